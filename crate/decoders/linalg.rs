@@ -1,0 +1,162 @@
+//! The few dense kernels the decoders need, written as plain loops in a fixed order.
+//!
+//! Why not a BLAS or `ndarray::dot`: their kernels differ between x86_64 (fused multiply-add, wide registers) and
+//! wasm32, so the same fit would round differently in the page and the CLI. These loops compile to the same IEEE
+//! operations on every target, which is what lets the two faces print identical numbers.
+
+/// Dot product of two equal-length slices.
+///
+/// Four partial sums over interleaved elements, combined as `(s0 + s1) + (s2 + s3)`, then the tail: a fixed order
+/// (so every target rounds identically) that breaks the add-latency chain of a single accumulator and lets the
+/// compiler use SIMD lanes on x86_64 and wasm32 alike.
+#[inline]
+pub fn dot(a: &[f64], b: &[f64]) -> f64 {
+    let n = a.len().min(b.len());
+    let (a, b) = (&a[..n], &b[..n]);
+    let mut s = [0.0f64; 4];
+    let chunks = n / 4;
+    for k in 0..chunks {
+        let (x, y) = (&a[4 * k..4 * k + 4], &b[4 * k..4 * k + 4]);
+        s[0] += x[0] * y[0];
+        s[1] += x[1] * y[1];
+        s[2] += x[2] * y[2];
+        s[3] += x[3] * y[3];
+    }
+    let mut total = (s[0] + s[1]) + (s[2] + s[3]);
+    for i in 4 * chunks..n {
+        total += a[i] * b[i];
+    }
+    total
+}
+
+/// `y += a * x`.
+#[inline]
+pub fn axpy(a: f64, x: &[f64], y: &mut [f64]) {
+    for (yi, xi) in y.iter_mut().zip(x) {
+        *yi += a * xi;
+    }
+}
+
+/// Upper triangle of `ZᵀZ` for row-major `z` (n × p), mirrored to a full p × p matrix.
+pub fn gram(z: &[f64], n: usize, p: usize) -> Vec<f64> {
+    let mut g = vec![0.0; p * p];
+    for r in 0..n {
+        let row = &z[r * p..(r + 1) * p];
+        for i in 0..p {
+            let xi = row[i];
+            if xi == 0.0 {
+                continue;
+            }
+            axpy(xi, &row[i..], &mut g[i * p + i..(i + 1) * p]);
+        }
+    }
+    for i in 0..p {
+        for j in 0..i {
+            g[i * p + j] = g[j * p + i];
+        }
+    }
+    g
+}
+
+/// Cholesky factor `U` (row-major, upper triangular, `A = UᵀU`) of a symmetric positive-definite matrix, or `None`
+/// if a pivot is not positive. Only the upper triangle of `a` is read.
+///
+/// The outer-product form: each step scales row k and subtracts its multiples from the rows below with `axpy` on
+/// contiguous memory, which is several times faster than inner-product forms on these small matrices.
+pub fn cholesky(a: &[f64], p: usize) -> Option<Vec<f64>> {
+    let mut u = a.to_vec();
+    for k in 0..p {
+        let pivot = u[k * p + k];
+        if pivot <= 0.0 || !pivot.is_finite() {
+            return None;
+        }
+        let d = pivot.sqrt();
+        u[k * p + k] = d;
+        for v in &mut u[k * p + k + 1..(k + 1) * p] {
+            *v /= d;
+        }
+        let (done, rest) = u.split_at_mut((k + 1) * p);
+        let row_k = &done[k * p..(k + 1) * p];
+        for i in k + 1..p {
+            let f = row_k[i];
+            if f != 0.0 {
+                let row_i = &mut rest[(i - k - 1) * p..(i - k) * p];
+                axpy(-f, &row_k[i..], &mut row_i[i..]);
+            }
+        }
+    }
+    for i in 0..p {
+        for j in 0..i {
+            u[i * p + j] = 0.0;
+        }
+    }
+    Some(u)
+}
+
+/// Solve `UᵀU x = b` in place, given the Cholesky factor.
+pub fn cholesky_solve(u: &[f64], p: usize, b: &mut [f64]) {
+    for i in 0..p {
+        b[i] /= u[i * p + i];
+        let (head, tail) = b.split_at_mut(i + 1);
+        axpy(-head[i], &u[i * p + i + 1..(i + 1) * p], tail);
+    }
+    for i in (0..p).rev() {
+        let s = b[i] - dot(&u[i * p + i + 1..(i + 1) * p], &b[i + 1..]);
+        b[i] = s / u[i * p + i];
+    }
+}
+
+/// Factor a symmetric positive semi-definite matrix, adding the smallest ridge (relative to its mean diagonal) that
+/// makes it positive definite. Returns the factor and the ridge that was added (0 in the ordinary case).
+pub fn cholesky_with_ridge(a: &[f64], p: usize) -> (Vec<f64>, f64) {
+    if let Some(l) = cholesky(a, p) {
+        return (l, 0.0);
+    }
+    let mean_diag = (0..p).map(|i| a[i * p + i]).sum::<f64>() / p as f64;
+    let scale = if mean_diag > 0.0 && mean_diag.is_finite() {
+        mean_diag
+    } else {
+        1.0
+    };
+    let mut ridge = scale * 1e-12;
+    loop {
+        let mut b = a.to_vec();
+        for i in 0..p {
+            b[i * p + i] += ridge;
+        }
+        if let Some(l) = cholesky(&b, p) {
+            return (l, ridge);
+        }
+        ridge *= 10.0;
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn gram_matches_hand_product() {
+        // Z = [[1, 2], [3, 4], [5, 6]]: ZᵀZ = [[35, 44], [44, 56]].
+        let g = gram(&[1.0, 2.0, 3.0, 4.0, 5.0, 6.0], 3, 2);
+        assert_eq!(g, vec![35.0, 44.0, 44.0, 56.0]);
+    }
+
+    #[test]
+    fn cholesky_solves_a_small_system() {
+        // A = [[4, 2], [2, 3]], b = [2, 1] → x = [0.5, 0].
+        let a = [4.0, 2.0, 2.0, 3.0];
+        let l = cholesky(&a, 2).unwrap();
+        let mut b = [2.0, 1.0];
+        cholesky_solve(&l, 2, &mut b);
+        assert!((b[0] - 0.5).abs() < 1e-12 && b[1].abs() < 1e-12, "{b:?}");
+    }
+
+    #[test]
+    fn singular_matrix_gets_a_small_ridge() {
+        let a = [1.0, 1.0, 1.0, 1.0];
+        assert!(cholesky(&a, 2).is_none());
+        let (_, ridge) = cholesky_with_ridge(&a, 2);
+        assert!(ridge > 0.0 && ridge < 1e-6);
+    }
+}

@@ -1,0 +1,320 @@
+//! Linear support vector machine: L2-regularised squared hinge loss, solved in the dual by coordinate descent.
+//!
+//! The algorithm is the dual coordinate descent of Hsieh, Chang, Lin, Keerthi & Sundararajan (ICML 2008), with the
+//! shrinking heuristic and the stopping rule on the spread of the projected gradient described there. For the
+//! squared hinge (L2-loss) variant the dual has no upper bound on α and a diagonal term 1/(2C). The intercept is
+//! learnt as the weight of a constant feature equal to 1 (so it is regularised too, the usual convention of this
+//! formulation). More than two classes: one-vs-rest, predicting the class with the largest decision value.
+//!
+//! The visiting order of coordinates is a permutation drawn from a fixed-seed SplitMix64 sequence inside each fit:
+//! deterministic (it uses none of the recipe's random streams) yet free of the slow convergence of a cyclic order.
+//!
+//! The dual has one variable per training trial. When a fold has more trials than features (+1 for the intercept),
+//! the same objective is smaller in the primal, and dual coordinate descent can crawl there (measured on invented
+//! 232 × 52 data: hundreds of passes per fit, as scikit-learn's dual LinearSVC also reports). Those fits use the
+//! finite Newton method for the primal squared-hinge objective (Keerthi & DeCoste, JMLR 2005): each step solves
+//! `(I + 2C·X̃ᵢᵀX̃ᵢ) d = −∇f` over the trials inside the margin, with a backtracking line search. Both routes minimise
+//! the same strictly convex function, so they reach the same decoder; the choice only saves time (the same choice
+//! scikit-learn's LinearSVC makes with `dual="auto"`, scikit-learn 1.9 documentation).
+
+use super::linalg::{axpy, cholesky_solve, cholesky_with_ridge, dot};
+use super::{argmax, present_classes, Decoder, Model};
+
+/// Stop when the projected gradient's spread (max − min) falls below this.
+pub const TOLERANCE: f64 = 1e-1;
+/// Outer passes over the coordinates before giving up (the fit is then flagged).
+pub const MAX_PASSES: usize = 1000;
+/// Primal route: stop when the gradient norm falls below this fraction of its value at w = 0.
+pub const NEWTON_TOLERANCE: f64 = 1e-8;
+/// Primal route: Newton steps before giving up (the fit is then flagged).
+pub const MAX_NEWTON_STEPS: usize = 100;
+
+pub struct LinearSvm {
+    pub c: f64,
+}
+
+/// One weight vector (and intercept) per one-vs-rest problem.
+struct LinearModel {
+    classes: Vec<usize>,
+    /// Row per problem: `p` weights then the intercept.
+    w: Vec<Vec<f64>>,
+    capped: bool,
+}
+
+impl Decoder for LinearSvm {
+    fn fit(&self, x: &[f64], n: usize, p: usize, y: &[usize], n_classes: usize) -> Box<dyn Model> {
+        let classes = present_classes(y, n_classes);
+        let sq_norms: Vec<f64> = (0..n)
+            .map(|i| dot(&x[i * p..(i + 1) * p], &x[i * p..(i + 1) * p]) + 1.0)
+            .collect();
+        let gram_all = if n > p + 1 {
+            augmented_gram(x, n, p)
+        } else {
+            Vec::new()
+        };
+        let mut capped = false;
+        let mut solve = |positive: usize| {
+            let signs: Vec<f64> = y
+                .iter()
+                .map(|&c| if c == positive { 1.0 } else { -1.0 })
+                .collect();
+            let (w, hit_cap) = if n > p + 1 {
+                primal_newton(x, n, p, &signs, self.c, &gram_all)
+            } else {
+                dual_cd(x, n, p, &signs, &sq_norms, self.c)
+            };
+            capped |= hit_cap;
+            w
+        };
+        let w = if classes.len() == 2 {
+            // One problem suffices: the second class is the positive one.
+            vec![solve(classes[1])]
+        } else {
+            classes.iter().map(|&k| solve(k)).collect()
+        };
+        Box::new(LinearModel { classes, w, capped })
+    }
+}
+
+impl Model for LinearModel {
+    fn predict(&self, x: &[f64]) -> Vec<usize> {
+        let p = self.w[0].len() - 1;
+        x.chunks_exact(p)
+            .map(|row| {
+                let decision = |w: &Vec<f64>| dot(&w[..p], row) + w[p];
+                if self.w.len() == 1 {
+                    self.classes[usize::from(decision(&self.w[0]) > 0.0)]
+                } else {
+                    let scores: Vec<f64> = self.w.iter().map(decision).collect();
+                    self.classes[argmax(&scores)]
+                }
+            })
+            .collect()
+    }
+
+    fn hit_iteration_cap(&self) -> bool {
+        self.capped
+    }
+}
+
+/// Solve one binary problem with labels ±1; returns `p` weights then the intercept, and whether the cap was hit.
+fn dual_cd(
+    x: &[f64],
+    n: usize,
+    p: usize,
+    signs: &[f64],
+    sq_norms: &[f64],
+    c: f64,
+) -> (Vec<f64>, bool) {
+    let diag = 0.5 / c;
+    let qd: Vec<f64> = sq_norms.iter().map(|q| q + diag).collect();
+    let mut w = vec![0.0; p + 1];
+    let mut alpha = vec![0.0; n];
+    let mut index: Vec<usize> = (0..n).collect();
+    let mut active = n;
+    // With no upper bound on α (squared hinge), only the lower bound can be shrunk, so only the old maximum is kept.
+    let mut pg_max_old = f64::INFINITY;
+    let mut order = SplitMix64(0x005e_ed0f_d0a1);
+    for _pass in 0..MAX_PASSES {
+        let (mut pg_max, mut pg_min) = (f64::NEG_INFINITY, f64::INFINITY);
+        for s in 0..active {
+            let j = s + (order.next() % (active - s) as u64) as usize;
+            index.swap(s, j);
+        }
+        let mut s = 0;
+        while s < active {
+            let i = index[s];
+            let xi = &x[i * p..(i + 1) * p];
+            let yi = signs[i];
+            let g = yi * (dot(&w[..p], xi) + w[p]) - 1.0 + alpha[i] * diag;
+            let mut pg = 0.0;
+            if alpha[i] == 0.0 {
+                if g > pg_max_old {
+                    // Shrinking: this coordinate is at its bound and likely to stay there.
+                    active -= 1;
+                    index.swap(s, active);
+                    continue;
+                } else if g < 0.0 {
+                    pg = g;
+                }
+            } else {
+                pg = g;
+            }
+            pg_max = pg_max.max(pg);
+            pg_min = pg_min.min(pg);
+            if pg.abs() > 1e-12 {
+                let old = alpha[i];
+                alpha[i] = (old - g / qd[i]).max(0.0);
+                let step = (alpha[i] - old) * yi;
+                axpy(step, xi, &mut w[..p]);
+                w[p] += step;
+            }
+            s += 1;
+        }
+        if pg_max - pg_min <= TOLERANCE {
+            if active == n {
+                return (w, false);
+            }
+            // Converged on the shrunk set: check once more on every coordinate.
+            active = n;
+            pg_max_old = f64::INFINITY;
+            continue;
+        }
+        pg_max_old = if pg_max <= 0.0 { f64::INFINITY } else { pg_max };
+    }
+    (w, true)
+}
+
+/// `X̃ᵀX̃` for x̃ = [x, 1] (q × q, q = p + 1): the Hessian term when every trial is inside the margin, as all are at
+/// w = 0. Computed once per fit and shared by the one-vs-rest problems.
+fn augmented_gram(x: &[f64], n: usize, p: usize) -> Vec<f64> {
+    let q = p + 1;
+    let mut aug = Vec::with_capacity(n * q);
+    for row in x.chunks_exact(p) {
+        aug.extend_from_slice(row);
+        aug.push(1.0);
+    }
+    super::linalg::gram(&aug, n, q)
+}
+
+/// Add `sign · 2C · x̃ x̃ᵀ` to the upper triangle of `hess`.
+fn rank_one(hess: &mut [f64], xi: &[f64], scale: f64) {
+    let p = xi.len();
+    let q = p + 1;
+    for a in 0..p {
+        let v = scale * xi[a];
+        axpy(v, &xi[a..], &mut hess[a * q + a..a * q + p]);
+        hess[a * q + p] += v;
+    }
+    hess[p * q + p] += scale;
+}
+
+/// Minimise `½‖w̃‖² + C Σ max(0, 1 − yᵢ w̃·x̃ᵢ)²` in the primal (x̃ = [x, 1]); returns `p` weights then the
+/// intercept, and whether the step cap was hit.
+///
+/// The generalised Hessian `I + 2C Σ_{inside} x̃ᵢx̃ᵢᵀ` starts from the shared full Gram matrix and is then updated
+/// only for the trials that enter or leave the margin, which after the first steps are few. The margins
+/// `mᵢ = yᵢ w̃·x̃ᵢ` are carried along the steps, so the line search costs O(n) per trial point.
+fn primal_newton(
+    x: &[f64],
+    n: usize,
+    p: usize,
+    signs: &[f64],
+    c: f64,
+    gram_all: &[f64],
+) -> (Vec<f64>, bool) {
+    let q = p + 1;
+    let mut w = vec![0.0; q];
+    let mut margin = vec![0.0; n];
+    let mut inside = vec![true; n];
+    let mut hess_upper: Vec<f64> = gram_all.iter().map(|g| 2.0 * c * g).collect();
+    let mut first_norm = None;
+    for _step in 0..MAX_NEWTON_STEPS {
+        let mut grad = w.clone();
+        for i in 0..n {
+            let slack = 1.0 - margin[i];
+            let now_inside = slack > 0.0;
+            let xi = &x[i * p..(i + 1) * p];
+            if now_inside != inside[i] {
+                rank_one(
+                    &mut hess_upper,
+                    xi,
+                    if now_inside { 2.0 * c } else { -2.0 * c },
+                );
+                inside[i] = now_inside;
+            }
+            if now_inside {
+                axpy(-2.0 * c * slack * signs[i], xi, &mut grad[..p]);
+                grad[p] -= 2.0 * c * slack * signs[i];
+            }
+        }
+        let norm = dot(&grad, &grad).sqrt();
+        let first = *first_norm.get_or_insert(norm);
+        if norm <= NEWTON_TOLERANCE * first.max(1.0) {
+            return (w, false);
+        }
+        let mut hess = hess_upper.clone();
+        for a in 0..q {
+            hess[a * q + a] += 1.0;
+            for b in 0..a {
+                hess[a * q + b] = hess[b * q + a];
+            }
+        }
+        let (l, _) = cholesky_with_ridge(&hess, q);
+        let mut d: Vec<f64> = grad.iter().map(|g| -g).collect();
+        cholesky_solve(&l, q, &mut d);
+        let dm: Vec<f64> = (0..n)
+            .map(|i| signs[i] * (dot(&d[..p], &x[i * p..(i + 1) * p]) + d[p]))
+            .collect();
+        let t = exact_step(&w, &d, &margin, &dm, c);
+        axpy(t, &d, &mut w);
+        axpy(t, &dm, &mut margin);
+    }
+    (w, true)
+}
+
+/// Minimiser over t of the piecewise-quadratic `f(w + t·d)`, by Newton's method on its piecewise-linear derivative
+/// (exact once the set of trials inside the margin stops changing), starting from the full Newton step t = 1.
+fn exact_step(w: &[f64], d: &[f64], margin: &[f64], dm: &[f64], c: f64) -> f64 {
+    let (wd, dd) = (dot(w, d), dot(d, d));
+    let mut t = 1.0;
+    for _ in 0..50 {
+        let (mut slope, mut curvature) = (t * dd + wd, dd);
+        for (m, g) in margin.iter().zip(dm) {
+            let slack = 1.0 - m - t * g;
+            if slack > 0.0 {
+                slope -= 2.0 * c * slack * g;
+                curvature += 2.0 * c * g * g;
+            }
+        }
+        let next = t - slope / curvature;
+        if (next - t).abs() <= 1e-12 * t.abs().max(1.0) {
+            return next;
+        }
+        t = next;
+    }
+    t
+}
+
+/// SplitMix64 (Steele, Lea & Flood, 2014): a tiny fixed generator for the coordinate order.
+struct SplitMix64(u64);
+
+impl SplitMix64 {
+    fn next(&mut self) -> u64 {
+        self.0 = self.0.wrapping_add(0x9e37_79b9_7f4a_7c15);
+        let mut z = self.0;
+        z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
+        z ^ (z >> 31)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn separates_two_points_symmetrically() {
+        // Points −1 and +1 on one feature: by symmetry the boundary is at 0.
+        let svm = LinearSvm { c: 10.0 };
+        let m = svm.fit(&[-1.0, 1.0], 2, 1, &[0, 1], 2);
+        assert_eq!(m.predict(&[-0.1, 0.1, -5.0, 5.0]), vec![0, 1, 0, 1]);
+        assert!(!m.hit_iteration_cap());
+    }
+
+    #[test]
+    fn one_vs_rest_on_three_clusters() {
+        let x = [
+            -3.0, 0.0, -2.8, 0.2, 3.0, 0.0, 2.9, -0.1, 0.0, 3.0, 0.1, 2.9,
+        ];
+        let y = [0, 0, 1, 1, 2, 2];
+        let m = LinearSvm { c: 1.0 }.fit(&x, 6, 2, &y, 3);
+        assert_eq!(m.predict(&[-3.0, 0.1, 3.1, 0.0, 0.0, 3.2]), vec![0, 1, 2]);
+    }
+
+    #[test]
+    fn never_predicts_an_absent_class() {
+        let m = LinearSvm { c: 1.0 }.fit(&[-1.0, 1.0, 2.0], 3, 1, &[0, 2, 2], 3);
+        assert!(m.predict(&[-9.0, 0.0, 9.0]).iter().all(|&c| c != 1));
+    }
+}

@@ -1,0 +1,182 @@
+//! The recipe: everything that decides the numbers, in one serialisable value.
+//!
+//! The CLI writes it next to its results and reads it back with `--recipe`; the page saves and loads the same file.
+//! Two runs with equal recipes on files with equal SHA-256 give identical results on every face.
+
+use crate::data::Columns;
+use crate::decoders::Classifier;
+use crate::error::{Error, Result};
+use serde::{Deserialize, Deserializer, Serialize, Serializer};
+
+/// Marks a file as a popdecode recipe and its version.
+pub const RECIPE_FORMAT: &str = "popdecode-recipe/1";
+
+/// Number of cross-validation folds, or leave-one-out.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Folds {
+    K(usize),
+    LeaveOneOut,
+}
+
+impl Folds {
+    pub fn parse(s: &str) -> Result<Folds> {
+        let t = s.trim();
+        if t.eq_ignore_ascii_case("loo") {
+            return Ok(Folds::LeaveOneOut);
+        }
+        match t.parse::<usize>() {
+            Ok(k) if k >= 2 => Ok(Folds::K(k)),
+            _ => Err(Error::Recipe(format!(
+                "folds must be a whole number of at least 2, or 'loo'; got '{s}'"
+            ))),
+        }
+    }
+}
+
+impl std::fmt::Display for Folds {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            Folds::K(k) => write!(f, "{k}"),
+            Folds::LeaveOneOut => f.write_str("loo"),
+        }
+    }
+}
+
+impl Serialize for Folds {
+    fn serialize<S: Serializer>(&self, s: S) -> std::result::Result<S::Ok, S::Error> {
+        match self {
+            Folds::K(k) => s.serialize_u64(*k as u64),
+            Folds::LeaveOneOut => s.serialize_str("loo"),
+        }
+    }
+}
+
+impl<'de> Deserialize<'de> for Folds {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> std::result::Result<Folds, D::Error> {
+        let v = serde_json::Value::deserialize(d)?;
+        let text = match &v {
+            serde_json::Value::Number(n) => n.to_string(),
+            serde_json::Value::String(s) => s.clone(),
+            _ => {
+                return Err(serde::de::Error::custom(
+                    "folds must be a number or \"loo\"",
+                ))
+            }
+        };
+        Folds::parse(&text).map_err(serde::de::Error::custom)
+    }
+}
+
+/// Every setting of a decoding analysis.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Recipe {
+    pub format: String,
+    pub columns: Columns,
+    pub classifier: Classifier,
+    /// Regularisation constant of the linear SVM (larger = less regularised).
+    pub c: f64,
+    pub folds: Folds,
+    /// Independent resamplings (balancing + fold assignment) of the observed labels.
+    pub repeats: usize,
+    /// Undersample every class to the smallest in each repeat.
+    pub balance: bool,
+    /// Label permutations for the shuffle control (0 = none).
+    pub shuffles: usize,
+    /// Repeats run for each permutation; `None` = min(repeats, 10).
+    #[serde(default)]
+    pub shuffle_repeats: Option<usize>,
+    pub seed: u64,
+}
+
+impl Recipe {
+    /// The defaults, for a named label column.
+    pub fn new(label: &str) -> Recipe {
+        Recipe {
+            format: RECIPE_FORMAT.to_string(),
+            columns: Columns {
+                label: label.to_string(),
+                ..Columns::default()
+            },
+            classifier: Classifier::LinearSvm,
+            c: 1.0,
+            folds: Folds::K(5),
+            repeats: 100,
+            balance: true,
+            shuffles: 200,
+            shuffle_repeats: None,
+            seed: 1,
+        }
+    }
+
+    /// Read a recipe file's text.
+    pub fn from_json(source: &str, text: &str) -> Result<Recipe> {
+        let r: Recipe = serde_json::from_str(text)
+            .map_err(|e| Error::Recipe(format!("{source}: not a valid recipe: {e}")))?;
+        if r.format != RECIPE_FORMAT {
+            return Err(Error::Recipe(format!(
+                "{source}: recipe format '{}' is not '{RECIPE_FORMAT}', the one this version reads",
+                r.format
+            )));
+        }
+        r.validate()?;
+        Ok(r)
+    }
+
+    pub fn to_json(&self) -> String {
+        serde_json::to_string_pretty(self).expect("a recipe always serialises")
+    }
+
+    /// Repeats per shuffle after applying the default.
+    pub fn shuffle_repeats(&self) -> usize {
+        self.shuffle_repeats.unwrap_or(self.repeats.min(10))
+    }
+
+    /// Settings that are wrong whatever the data.
+    pub fn validate(&self) -> Result<()> {
+        if self.repeats == 0 {
+            return Err(Error::Recipe("repeats must be at least 1".into()));
+        }
+        if !(self.c.is_finite() && self.c > 0.0) {
+            return Err(Error::Recipe(format!(
+                "C must be a positive number; got {}",
+                self.c
+            )));
+        }
+        if self.shuffles > 0 && self.shuffle_repeats() == 0 {
+            return Err(Error::Recipe(
+                "repeats per shuffle must be at least 1".into(),
+            ));
+        }
+        if self.columns.label.trim().is_empty() {
+            return Err(Error::Recipe("name the label column".into()));
+        }
+        Ok(())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn round_trips_through_json() {
+        let mut r = Recipe::new("odour");
+        r.folds = Folds::LeaveOneOut;
+        r.columns.group = Some("session".into());
+        let back = Recipe::from_json("r.json", &r.to_json()).unwrap();
+        assert_eq!(back, r);
+    }
+
+    #[test]
+    fn rejects_unknown_keys_and_bad_folds() {
+        let mut v: serde_json::Value = serde_json::from_str(&Recipe::new("x").to_json()).unwrap();
+        v["colour"] = "red".into();
+        assert!(Recipe::from_json("r.json", &v.to_string())
+            .unwrap_err()
+            .to_string()
+            .contains("colour"));
+        assert!(Folds::parse("1").is_err());
+        assert_eq!(Folds::parse("LOO").unwrap(), Folds::LeaveOneOut);
+    }
+}
