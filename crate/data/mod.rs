@@ -148,7 +148,23 @@ impl Dataset {
             None => (None, Vec::new()),
         };
         let p = feature_cols.len();
-        let warnings = counter_columns(&x, p, &feature_cols, table);
+        let mut warnings = counter_columns(&x, p, &feature_cols, table);
+        if !skipped.is_empty() {
+            warnings.push(format!(
+                "{} not used as features because {} mostly text: {}",
+                if skipped.len() == 1 {
+                    "this column is"
+                } else {
+                    "these columns are"
+                },
+                if skipped.len() == 1 {
+                    "it holds"
+                } else {
+                    "they hold"
+                },
+                quoted_list(&skipped)
+            ));
+        }
         Ok(Dataset {
             source: src.clone(),
             sha256: String::new(),

@@ -1,0 +1,187 @@
+//! The command line as a user runs it: exit codes, one-line errors, recipes, and thread-count independence.
+
+use std::path::PathBuf;
+use std::process::Command;
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_popdecode"))
+}
+
+fn temp_dir(name: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("popdecode-cli-{name}-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    dir
+}
+
+fn sample() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("samples/odours.csv")
+}
+
+fn decode_json(dir: &std::path::Path, name: &str, extra: &[&str]) -> String {
+    let json = dir.join(name);
+    let out = bin()
+        .args([
+            "decode",
+            sample().to_str().unwrap(),
+            "--label",
+            "odour",
+            "--group",
+            "session",
+        ])
+        .args([
+            "--repeats",
+            "8",
+            "--quiet",
+            "--json",
+            json.to_str().unwrap(),
+        ])
+        .args(extra)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    std::fs::read_to_string(json).unwrap()
+}
+
+#[test]
+fn thread_count_does_not_change_a_byte() {
+    let dir = temp_dir("threads");
+    let one = decode_json(&dir, "one.json", &["--threads", "1", "--shuffles", "12"]);
+    let three = decode_json(&dir, "three.json", &["--threads", "3", "--shuffles", "12"]);
+    assert_eq!(one, three);
+    let v: serde_json::Value = serde_json::from_str(&one).unwrap();
+    for key in ["accuracy", "balanced_accuracy"] {
+        assert!(v["summary"][key]["mean"].is_f64() && v["summary"][key]["sd"].is_f64());
+    }
+    assert_eq!(v["classes"].as_array().unwrap().len(), 4);
+    assert_eq!(v["shuffle"]["null"].as_array().unwrap().len(), 12);
+    assert!(v["shuffle"]["p_value"].is_f64());
+    let rows = v["summary"]["confusion"].as_array().unwrap();
+    for row in rows {
+        let sum: f64 = row
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|x| x.as_f64().unwrap())
+            .sum();
+        assert!(
+            (sum - 1.0).abs() < 1e-9,
+            "confusion rows are normalised: {sum}"
+        );
+    }
+}
+
+#[test]
+fn a_saved_recipe_reproduces_the_run() {
+    let dir = temp_dir("recipe");
+    let recipe = dir.join("r.json");
+    let first = decode_json(
+        &dir,
+        "a.json",
+        &[
+            "--classifier",
+            "shrinkage-lda",
+            "--shuffles",
+            "5",
+            "--save-recipe",
+            recipe.to_str().unwrap(),
+        ],
+    );
+    let json = dir.join("b.json");
+    let out = bin()
+        .args([
+            "decode",
+            sample().to_str().unwrap(),
+            "--recipe",
+            recipe.to_str().unwrap(),
+            "--quiet",
+        ])
+        .args(["--json", json.to_str().unwrap()])
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert_eq!(first, std::fs::read_to_string(json).unwrap());
+    assert!(std::fs::read_to_string(&recipe)
+        .unwrap()
+        .contains("\"classifier\": \"shrinkage-lda\""));
+}
+
+#[test]
+fn no_shuffles_gives_a_null_p_value() {
+    let dir = temp_dir("noshuffle");
+    let json = decode_json(&dir, "n.json", &["--shuffles", "0"]);
+    let v: serde_json::Value = serde_json::from_str(&json).unwrap();
+    assert!(v["shuffle"]["p_value"].is_null());
+    assert_eq!(v["shuffle"]["null"].as_array().unwrap().len(), 0);
+}
+
+#[test]
+fn bad_input_exits_non_zero_with_one_line() {
+    let dir = temp_dir("bad");
+    let file = dir.join("broken.csv");
+    std::fs::write(&file, "odour,n1,n2\na,1,2\nb,3,oops\na,2,2\nb,4,1\n").unwrap();
+    let out = bin()
+        .args([
+            "decode",
+            file.to_str().unwrap(),
+            "--label",
+            "odour",
+            "--quiet",
+        ])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(stderr.trim().lines().count(), 1, "{stderr}");
+    assert!(
+        stderr.contains("broken.csv, line 3, column 'n2': 'oops' is not a number"),
+        "{stderr}"
+    );
+    assert!(out.stdout.is_empty());
+}
+
+#[test]
+fn predict_uses_the_given_folds() {
+    let dir = temp_dir("predict");
+    let file = dir.join("f.csv");
+    let mut text = String::from("odour,fold,n1\n");
+    for i in 0..20 {
+        let (class, x) = if i % 2 == 0 { ("a", -1.0) } else { ("b", 1.0) };
+        text += &format!("{class},{},{}\n", i % 4, x + 0.01 * i as f64);
+    }
+    std::fs::write(&file, text).unwrap();
+    let out = bin()
+        .args([
+            "predict",
+            file.to_str().unwrap(),
+            "--label",
+            "odour",
+            "--fold-column",
+            "fold",
+        ])
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let stdout = String::from_utf8(out.stdout).unwrap();
+    let lines: Vec<&str> = stdout.lines().collect();
+    assert_eq!(lines[0], "line,fold,true,predicted");
+    assert_eq!(lines.len(), 21);
+    assert!(
+        lines[1..].iter().all(|l| {
+            let f: Vec<&str> = l.split(',').collect();
+            f[2] == f[3]
+        }),
+        "{stdout}"
+    );
+}

@@ -1,0 +1,175 @@
+//! Statistical behaviour of the protocol on invented data.
+
+mod common;
+
+use common::{analyse, no_information, recipe};
+use popdecode::data::Dataset;
+use popdecode::decoders::Classifier;
+use popdecode::protocol::{Outcome, Plan};
+use popdecode::recipe::Folds;
+use popdecode::report::Report;
+use popdecode::simulate::{self, Scenario};
+use popdecode::stats::binomial;
+
+/// The majority-guess trap (common practice, no source): on an 80/20 split with no information, raw accuracy
+/// approaches 0.8 by favouring the large class, while balancing (or balanced accuracy) stays at 0.5.
+#[test]
+fn balancing_defeats_the_majority_guess() {
+    let scenario = no_information(vec![400, 100], 4, 11);
+    for classifier in Classifier::ALL {
+        let balanced = analyse(&scenario, &recipe(classifier, 20, 0));
+        let acc = balanced.summary.accuracy.mean;
+        assert!(
+            (acc - 0.5).abs() < 0.05,
+            "{classifier:?} balanced accuracy {acc}"
+        );
+
+        let mut unbalanced_recipe = recipe(classifier, 20, 0);
+        unbalanced_recipe.balance = false;
+        let unbalanced = analyse(&scenario, &unbalanced_recipe);
+        let raw = unbalanced.summary.accuracy.mean;
+        let bacc = unbalanced.summary.balanced_accuracy.mean;
+        assert!(
+            raw > 0.72,
+            "{classifier:?} raw accuracy {raw} should approach 0.8"
+        );
+        assert!(
+            (bacc - 0.5).abs() < 0.05,
+            "{classifier:?} balanced accuracy {bacc}"
+        );
+        assert_eq!(
+            unbalanced.headline().mean,
+            bacc,
+            "balanced accuracy must be the headline when unbalanced"
+        );
+    }
+}
+
+/// Blocked conditions with block-specific offsets and no stimulus information: random folds learn "which block",
+/// which stands in for "which condition"; grouped folds (the block as group) do not (common practice, no source).
+#[test]
+fn grouped_folds_remove_block_confounds() {
+    let scenario = Scenario {
+        blocks_per_class: 10,
+        block_offset: 0.6,
+        ..no_information(vec![100, 100], 20, 12)
+    };
+    let random = analyse(&scenario, &recipe(Classifier::ShrinkageLda, 10, 0));
+    assert!(
+        random.summary.accuracy.mean > 0.7,
+        "random folds: {}",
+        random.summary.accuracy.mean
+    );
+
+    let mut grouped_recipe = recipe(Classifier::ShrinkageLda, 10, 0);
+    grouped_recipe.columns.group = Some("block".into());
+    let grouped = analyse(&scenario, &grouped_recipe);
+    let acc = grouped.summary.accuracy.mean;
+    assert!(
+        (acc - 0.5).abs() < 0.1,
+        "grouped folds should be at chance, got {acc}"
+    );
+}
+
+/// Under no information, a valid permutation test rejects at its nominal rate. With as many repeats per shuffle as
+/// observed repeats, the observed score is exchangeable with the null scores, so P(p < 0.05) = P(b ≤ 8) = 9/200
+/// for m = 199 (Phipson & Smyth 2010); ties only lower it. The rate over 300 datasets must lie inside the binomial
+/// 99 % interval around 0.05.
+#[test]
+fn shuffle_control_is_calibrated() {
+    let datasets = 300;
+    let mut rejections = 0;
+    for d in 0..datasets {
+        let scenario = no_information(vec![20, 20], 3, 1000 + d);
+        let mut r = recipe(Classifier::ShrinkageLda, 2, 199);
+        r.shuffle_repeats = Some(2);
+        r.seed = d;
+        let report = analyse(&scenario, &r);
+        if report.shuffle.p_value.unwrap() < 0.05 {
+            rejections += 1;
+        }
+    }
+    let lo = binomial::quantile(0.005, datasets, 0.05);
+    let hi = binomial::quantile(0.995, datasets, 0.05);
+    assert!(
+        lo <= rejections && rejections <= hi,
+        "{rejections} of {datasets} rejected; 99 % interval {lo}..={hi}"
+    );
+}
+
+/// A clear signal gives the smallest possible p and beats the binomial threshold.
+#[test]
+fn informative_data_is_significant() {
+    let scenario = Scenario {
+        tuning: 0.4,
+        ..Scenario::odours()
+    };
+    let mut r = recipe(Classifier::ShrinkageLda, 5, 99);
+    r.columns.ignore = vec!["session".into()];
+    let report = analyse(&scenario, &r);
+    assert_eq!(report.shuffle.p_value, Some(0.01));
+    assert!(report.summary.accuracy.mean > report.chance.threshold);
+    assert!(report.shuffle.null_mean.unwrap() < 0.35);
+}
+
+fn odour_plan_outcomes(reverse: bool) -> Report {
+    let csv = simulate::csv(&Scenario::odours());
+    let mut r = recipe(Classifier::LinearSvm, 6, 5);
+    r.columns.group = Some("session".into());
+    r.folds = Folds::K(3);
+    let data = Dataset::from_csv("odours.csv", csv.as_bytes(), &r.columns).unwrap();
+    let plan = Plan::new(&data, &r).unwrap();
+    let mut tasks = plan.tasks();
+    if reverse {
+        tasks.reverse();
+    }
+    let outcomes: Vec<Outcome> = tasks.into_iter().map(|t| plan.run(t)).collect();
+    Report::build(&plan, &outcomes)
+}
+
+/// Each task draws from its own stream: running tasks in another order changes nothing.
+#[test]
+fn task_order_does_not_matter() {
+    assert_eq!(
+        odour_plan_outcomes(false).to_json(),
+        odour_plan_outcomes(true).to_json()
+    );
+}
+
+/// Leave-one-out and a constant feature: every number stays finite.
+#[test]
+fn leave_one_out_with_a_constant_feature() {
+    let mut csv = String::from("odour,n1,n2,flat\n");
+    for i in 0..12 {
+        let class = if i % 2 == 0 { "a" } else { "b" };
+        let shift = if i % 2 == 0 { 0.0 } else { 3.0 };
+        csv += &format!(
+            "{class},{},{},7\n",
+            shift + (i as f64 * 0.37).sin(),
+            (i as f64 * 1.3).cos()
+        );
+    }
+    for classifier in Classifier::ALL {
+        let mut r = recipe(classifier, 1, 9);
+        r.folds = Folds::LeaveOneOut;
+        let data = Dataset::from_csv("t.csv", csv.as_bytes(), &r.columns).unwrap();
+        let plan = Plan::new(&data, &r).unwrap();
+        let report = popdecode::report::run_all(&plan);
+        assert_eq!(report.design.folds, 12);
+        assert!(
+            report.summary.accuracy.mean > 0.9,
+            "{classifier:?}: {}",
+            report.summary.accuracy.mean
+        );
+        let s = &report.summary;
+        assert!([s.accuracy.mean, s.accuracy.sd, s.balanced_accuracy.mean]
+            .iter()
+            .all(|v| v.is_finite()));
+        assert!(report
+            .summary
+            .confusion
+            .iter()
+            .flatten()
+            .all(|v| v.is_finite()));
+    }
+}
