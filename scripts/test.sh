@@ -1,0 +1,57 @@
+#!/usr/bin/env bash
+# Every test suite, with one closing line "N passed, N failed" summed over all of them.
+#   Rust unit, integration and doc tests (cargo test --release)
+#   reference agreement with scikit-learn (pytest, in the venv made by scripts/reference-venv.sh)
+#   formatting and lint (cargo fmt --check, cargo clippy -D warnings), one check each
+#   browser tests (node --test), when scripts/build-web.sh exists
+set -uo pipefail
+cd "$(dirname "$0")/.."
+mkdir -p test-output
+passed=0
+failed=0
+
+count_cargo() { # sum "test result: ok. N passed; M failed" lines
+  local p f
+  p=$(grep -Eo '[0-9]+ passed;' "$1" | grep -Eo '[0-9]+' | awk '{s+=$1} END {print s+0}')
+  f=$(grep -Eo '[0-9]+ failed;' "$1" | grep -Eo '[0-9]+' | awk '{s+=$1} END {print s+0}')
+  passed=$((passed + ${p:-0})); failed=$((failed + ${f:-0}))
+}
+
+check() { # one named check that passes or fails as a whole
+  local name=$1; shift
+  if "$@" > "test-output/$name.log" 2>&1; then passed=$((passed + 1)); echo "ok: $name"
+  else failed=$((failed + 1)); echo "FAILED: $name (see test-output/$name.log)"; tail -n 20 "test-output/$name.log"; fi
+}
+
+echo "== cargo test"
+cargo test --release 2>&1 | tee test-output/cargo-test.log | grep -E '^test result|FAILED|panicked'
+if ! grep -q '^test result' test-output/cargo-test.log; then
+  echo "cargo test did not run (build failure?)"; tail -n 30 test-output/cargo-test.log; failed=$((failed + 1))
+fi
+count_cargo test-output/cargo-test.log
+
+echo "== formatting and lint"
+check cargo-fmt cargo fmt --check
+check cargo-clippy cargo clippy --release --all-targets -- -D warnings
+
+echo "== reference agreement (scikit-learn)"
+source scripts/reference-venv.sh
+"$VENV/bin/python" -m pytest -q tests/reference 2>&1 | tee test-output/pytest.log | tail -n 3
+p=$(grep -Eo '[0-9]+ passed' test-output/pytest.log | tail -1 | grep -Eo '[0-9]+'); passed=$((passed + ${p:-0}))
+f=$(grep -Eo '[0-9]+ (failed|error)' test-output/pytest.log | grep -Eo '[0-9]+' | awk '{s+=$1} END {print s+0}'); failed=$((failed + ${f:-0}))
+[ -n "$p$f" ] || { echo "pytest ran no test"; failed=$((failed + 1)); }
+
+if [ -x scripts/build-web.sh ] && [ -d tests/browser ]; then
+  echo "== browser tests"
+  if scripts/build-web.sh > test-output/build-web.log 2>&1; then
+    node --test --test-reporter=spec tests/browser/ 2>&1 | tee test-output/browser.log | grep -E '^ℹ (pass|fail)|✖' | head -40
+    p=$(grep -Eo '^ℹ pass [0-9]+' test-output/browser.log | grep -Eo '[0-9]+'); passed=$((passed + ${p:-0}))
+    f=$(grep -Eo '^ℹ fail [0-9]+' test-output/browser.log | grep -Eo '[0-9]+'); failed=$((failed + ${f:-0}))
+    [ -n "$p" ] || { echo "browser tests did not run"; failed=$((failed + 1)); }
+  else
+    echo "FAILED: web build (see test-output/build-web.log)"; tail -n 30 test-output/build-web.log; failed=$((failed + 1))
+  fi
+fi
+
+echo "$passed passed, $failed failed"
+[ "$failed" -eq 0 ]

@@ -1,0 +1,86 @@
+"""Fold-by-fold agreement of popdecode's decoders with scikit-learn (version pinned in scripts/reference-venv.sh).
+
+Each data set gets fold numbers from scikit-learn's StratifiedKFold; `popdecode predict` and a scikit-learn
+Pipeline(StandardScaler(), decoder) are fitted on exactly those folds, and their test predictions must agree on at
+least 98 % of trials. References:
+- linear SVM: sklearn.svm.LinearSVC (squared hinge, L2 penalty, intercept_scaling=1), solved to a tight tolerance so
+  that both sides sit at the optimum of the same objective;
+- shrinkage LDA: sklearn.discriminant_analysis.LinearDiscriminantAnalysis(solver='lsqr', shrinkage='auto').
+Data: iris (Fisher 1936) and wine (UCI wine data), as shipped with scikit-learn, and invented populations of
+Poisson-spiking units made here (never real recordings).
+"""
+import os
+import subprocess
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+from sklearn.datasets import load_iris, load_wine
+from sklearn.discriminant_analysis import LinearDiscriminantAnalysis
+from sklearn.model_selection import StratifiedKFold
+from sklearn.pipeline import make_pipeline
+from sklearn.preprocessing import StandardScaler
+from sklearn.svm import LinearSVC
+
+ROOT = Path(__file__).resolve().parents[2]
+BIN = Path(os.environ.get("POPDECODE_BIN", ROOT / "target" / "release" / "popdecode"))
+
+
+def invented_population(n_per_class, n_classes, units, tuning, seed):
+    """Poisson counts in 0.5 s windows from units log-normally tuned to each condition, in Hz."""
+    rng = np.random.default_rng(seed)
+    baseline = rng.uniform(2, 20, units)
+    gains = rng.normal(0, tuning, (n_classes, units))
+    labels = np.repeat(np.arange(n_classes), n_per_class)
+    rates = baseline * np.exp(gains[labels])
+    X = rng.poisson(rates * 0.5) / 0.5
+    return X, np.array([f"odour_{c}" for c in labels])
+
+
+def data_sets():
+    iris = load_iris()
+    wine = load_wine()
+    yield "iris", iris.data, iris.target_names[iris.target]
+    yield "wine", wine.data, wine.target_names[wine.target]
+    yield "invented 4 x 58 x 52", *invented_population(58, 4, 52, 0.15, 1)
+    yield "invented 2 x 150 x 40", *invented_population(150, 2, 40, 0.1, 2)
+    yield "invented 3 x 200 x 150", *invented_population(200, 3, 150, 0.08, 3)
+    # More units than training trials: the linear SVM takes its dual route here.
+    yield "invented 3 x 20 x 120", *invented_population(20, 3, 120, 0.2, 4)
+
+
+REFERENCES = {
+    "linear-svm": lambda: LinearSVC(C=1.0, loss="squared_hinge", dual=False, tol=1e-8, max_iter=100_000),
+    "shrinkage-lda": lambda: LinearDiscriminantAnalysis(solver="lsqr", shrinkage="auto"),
+}
+
+CASES = [(name, clf) for name, *_ in data_sets() for clf in REFERENCES]
+
+
+@pytest.mark.parametrize("name,classifier", CASES)
+def test_predictions_agree_fold_by_fold(name, classifier, tmp_path):
+    X, y = next((X, y) for n, X, y in data_sets() if n == name)
+    folds = np.zeros(len(y), dtype=int)
+    for f, (_, test) in enumerate(StratifiedKFold(5, shuffle=True, random_state=0).split(X, y)):
+        folds[test] = f
+    table = pd.DataFrame(X, columns=[f"unit {j}" for j in range(X.shape[1])])
+    table.insert(0, "condition", y)
+    table.insert(1, "fold", folds)
+    csv = tmp_path / "data.csv"
+    table.to_csv(csv, index=False, float_format="%.17g")
+    out = subprocess.run(
+        [BIN, "predict", csv, "--label", "condition", "--fold-column", "fold", "--classifier", classifier],
+        capture_output=True, text=True, check=True,
+    )
+    ours = pd.read_csv(pd.io.common.StringIO(out.stdout))
+    assert (ours["true"].to_numpy() == y).all()
+
+    theirs = np.empty(len(y), dtype=object)
+    for f in range(5):
+        train, test = folds != f, folds == f
+        model = make_pipeline(StandardScaler(), REFERENCES[classifier]()).fit(X[train], y[train])
+        theirs[test] = model.predict(X[test])
+    agreement = (ours["predicted"].to_numpy() == theirs).mean()
+    print(f"{name} {classifier}: agreement {agreement:.4f}")
+    assert agreement >= 0.98, f"{name} {classifier}: agreement {agreement:.4f}"
