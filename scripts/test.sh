@@ -39,7 +39,7 @@ source scripts/reference-venv.sh
 "$VENV/bin/python" -m pytest -q tests/reference 2>&1 | tee test-output/pytest.log | tail -n 3
 p=$(grep -Eo '[0-9]+ passed' test-output/pytest.log | tail -1 | grep -Eo '[0-9]+'); passed=$((passed + ${p:-0}))
 f=$(grep -Eo '[0-9]+ (failed|error)' test-output/pytest.log | grep -Eo '[0-9]+' | awk '{s+=$1} END {print s+0}'); failed=$((failed + ${f:-0}))
-[ -n "$p$f" ] || { echo "pytest ran no test"; failed=$((failed + 1)); }
+[ "${p:-0}" -gt 0 ] || [ "${f:-0}" -gt 0 ] || { echo "pytest ran no test"; failed=$((failed + 1)); }
 
 if [ -x scripts/build-web.sh ] && [ -d tests/browser ]; then
   echo "== browser tests"
