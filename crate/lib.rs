@@ -28,3 +28,6 @@ pub mod simulate;
 pub mod stats;
 
 pub use error::{Error, Result};
+
+#[cfg(target_arch = "wasm32")]
+pub mod wasm;

@@ -6,7 +6,7 @@ use popdecode::data::Dataset;
 use popdecode::decoders::Classifier;
 use popdecode::protocol::{predict_with_folds, Outcome, Plan};
 use popdecode::recipe::{Folds, Recipe};
-use popdecode::report::{methods, text, Report};
+use popdecode::report::{methods, plots, text, Report};
 use popdecode::Error;
 use rayon::prelude::*;
 use std::path::{Path, PathBuf};
@@ -93,6 +93,9 @@ struct DecodeArgs {
     /// Write the settings used as a recipe file.
     #[arg(long)]
     save_recipe: Option<PathBuf>,
+    /// Write the figures (scores.svg, null.svg, confusion.svg) into this folder.
+    #[arg(long)]
+    plots: Option<PathBuf>,
     /// Print no progress bar.
     #[arg(long)]
     quiet: bool,
@@ -225,6 +228,15 @@ fn decode(args: DecodeArgs) -> Result<(), String> {
     }
     if let Some(path) = &args.save_recipe {
         write(path, &(recipe.to_json() + "\n"))?;
+    }
+    if let Some(dir) = &args.plots {
+        std::fs::create_dir_all(dir)
+            .map_err(|e| format!("{}: cannot create the folder: {e}", dir.display()))?;
+        write(&dir.join("scores.svg"), &plots::score_distribution(&report))?;
+        write(&dir.join("confusion.svg"), &plots::confusion(&report))?;
+        if let Some(null) = plots::null_distribution(&report) {
+            write(&dir.join("null.svg"), &null)?;
+        }
     }
     Ok(())
 }

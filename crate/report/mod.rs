@@ -18,6 +18,7 @@
 //! Nothing time- or machine-dependent is written, so equal recipes and files give byte-identical JSON.
 
 pub mod methods;
+pub mod plots;
 pub mod text;
 
 use crate::protocol::{Headline, Outcome, Plan, Split, Task};

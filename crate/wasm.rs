@@ -1,0 +1,178 @@
+//! The page's bridge to the core (wasm-bindgen). Plain strings in and out (JSON), so the surface stays small.
+//!
+//! Nothing here may panic across the boundary unnoticed: every fallible call returns `Result<_, JsValue>` with the
+//! core's message, and a panic hook records the message of any bug, which the page reads with [`last_panic`] when
+//! the wasm instance traps, instead of dying silently.
+
+use crate::data::table::{Cell, Table};
+use crate::data::{sha256_hex, Dataset};
+use crate::protocol::{Outcome, Plan, Task};
+use crate::recipe::Recipe;
+use crate::report::{methods, plots, text, Report};
+use serde_json::json;
+use std::sync::Mutex;
+use wasm_bindgen::prelude::*;
+
+static PANIC: Mutex<String> = Mutex::new(String::new());
+
+fn err(e: impl std::fmt::Display) -> JsValue {
+    JsValue::from_str(&e.to_string())
+}
+
+/// Install the panic recorder; the page calls this once per instance.
+#[wasm_bindgen]
+pub fn start() {
+    std::panic::set_hook(Box::new(|info| {
+        if let Ok(mut m) = PANIC.lock() {
+            *m = info.to_string();
+        }
+    }));
+}
+
+/// The message of the last panic, if any (read after a trap).
+#[wasm_bindgen]
+pub fn last_panic() -> String {
+    PANIC.lock().map(|m| m.clone()).unwrap_or_default()
+}
+
+#[wasm_bindgen]
+pub fn version() -> String {
+    env!("CARGO_PKG_VERSION").to_string()
+}
+
+/// A first look at a file: header, first rows, which columns are numeric, and a suggested label column.
+#[wasm_bindgen]
+pub fn inspect(name: &str, bytes: &[u8]) -> Result<String, JsValue> {
+    let t = Table::parse(name, bytes).map_err(err)?;
+    let numeric: Vec<bool> = (0..t.headers.len())
+        .map(|c| {
+            let (mut num, mut txt) = (0, 0);
+            for r in 0..t.rows.len() {
+                match t.cell(r, c) {
+                    Cell::Number(_) => num += 1,
+                    Cell::NotNumber => txt += 1,
+                    Cell::Missing => {}
+                }
+            }
+            num > txt
+        })
+        .collect();
+    let label = (0..t.headers.len())
+        .find(|&c| !numeric[c] && distinct(&t, c) < t.rows.len())
+        .or(Some(0));
+    Ok(json!({
+        "file": name,
+        "sha256": sha256_hex(bytes),
+        "delimiter": t.delimiter_name(),
+        "decimal_comma": t.decimal_comma,
+        "headers": t.headers,
+        "numeric": numeric,
+        "rows": t.rows.len(),
+        "preview": t.rows.iter().take(8).collect::<Vec<_>>(),
+        "suggested_label": label.map(|c| t.headers[c].clone()),
+    })
+    .to_string())
+}
+
+fn distinct(t: &Table, c: usize) -> usize {
+    let mut v: Vec<&str> = t.rows.iter().map(|r| r[c].as_str()).collect();
+    v.sort_unstable();
+    v.dedup();
+    v.len()
+}
+
+fn load(name: &str, bytes: &[u8], recipe_json: &str) -> Result<(Dataset, Recipe), JsValue> {
+    let recipe = Recipe::from_json("recipe", recipe_json).map_err(err)?;
+    let data = Dataset::from_csv(name, bytes, &recipe.columns).map_err(err)?;
+    Ok((data, recipe))
+}
+
+/// Check a file against a recipe; list the tasks with their cost in fits, the classes and the warnings.
+#[wasm_bindgen]
+pub fn prepare(name: &str, bytes: &[u8], recipe_json: &str) -> Result<String, JsValue> {
+    let (data, recipe) = load(name, bytes, recipe_json)?;
+    let plan = Plan::new(&data, &recipe).map_err(err)?;
+    let tasks = plan.tasks();
+    let fits: Vec<usize> = tasks.iter().map(|&t| plan.fits_in(t)).collect();
+    Ok(json!({
+        "tasks": tasks,
+        "fits": fits,
+        "classes": data.classes,
+        "class_counts": data.class_counts(),
+        "features": data.n_features(),
+        "trials": data.n_trials(),
+        "trials_per_repeat": plan.trials_per_repeat,
+        "warnings": plan.warnings,
+    })
+    .to_string())
+}
+
+/// Runs tasks in a worker: the file is parsed once per run, each task by its kind and index.
+#[wasm_bindgen]
+pub struct Runner {
+    data: Dataset,
+    recipe: Recipe,
+}
+
+#[wasm_bindgen]
+impl Runner {
+    #[wasm_bindgen(constructor)]
+    pub fn new(name: &str, bytes: &[u8], recipe_json: &str) -> Result<Runner, JsValue> {
+        let (data, recipe) = load(name, bytes, recipe_json)?;
+        Plan::new(&data, &recipe).map_err(err)?;
+        Ok(Runner { data, recipe })
+    }
+
+    /// One task's outcome as JSON; `kind` is "repeat" or "shuffle".
+    pub fn run(&self, kind: &str, index: usize) -> Result<String, JsValue> {
+        let plan = Plan::new(&self.data, &self.recipe).map_err(err)?;
+        let task = match kind {
+            "repeat" => Task::Repeat(index),
+            "shuffle" => Task::Shuffle(index),
+            other => return Err(err(format!("unknown task kind '{other}'"))),
+        };
+        Ok(serde_json::to_string(&plan.run(task)).expect("outcomes serialise"))
+    }
+}
+
+/// Assemble the outcomes into the report, its text, methods paragraph and figures.
+#[wasm_bindgen]
+pub fn finish(
+    name: &str,
+    bytes: &[u8],
+    recipe_json: &str,
+    outcomes_json: &str,
+) -> Result<String, JsValue> {
+    let (data, recipe) = load(name, bytes, recipe_json)?;
+    let plan = Plan::new(&data, &recipe).map_err(err)?;
+    let outcomes: Vec<Outcome> = serde_json::from_str(outcomes_json)
+        .map_err(|e| err(format!("outcomes are malformed: {e}")))?;
+    let report = Report::build(&plan, &outcomes);
+    Ok(json!({
+        "report": report,
+        "report_json": report.to_json(),
+        "headline": text::headline_sentence(&report),
+        "text": text::render(&report),
+        "methods": methods::paragraph(&report),
+        "plots": {
+            "scores": plots::score_distribution(&report),
+            "null": plots::null_distribution(&report),
+            "confusion": plots::confusion(&report),
+        },
+    })
+    .to_string())
+}
+
+/// The default recipe for a label column, as JSON.
+#[wasm_bindgen]
+pub fn default_recipe(label: &str) -> String {
+    Recipe::new(label).to_json()
+}
+
+/// Validate a recipe file's text and return it normalised (or the reason it is refused).
+#[wasm_bindgen]
+pub fn check_recipe(text: &str) -> Result<String, JsValue> {
+    Recipe::from_json("recipe file", text)
+        .map(|r| r.to_json())
+        .map_err(err)
+}

@@ -1,0 +1,52 @@
+// Make dist/popdecode.html: the page in one file that works from file:// with no network at all.
+// From file:// browsers refuse module workers and fetch/import of file URLs, so: the wasm is inlined as base64 and
+// compiled on the main thread; workers are classic workers made from a Blob holding the no-modules glue followed by
+// worker.js; the compiled WebAssembly.Module is posted to them. The Content-Security-Policy allows exactly the
+// inline scripts and style of this file (by SHA-256) and forbids every connection (connect-src 'none').
+import { createHash } from 'node:crypto';
+import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+
+const read = (p) => readFileSync(new URL(`../${p}`, import.meta.url), 'utf8');
+const hash = (text) => `'sha256-${createHash('sha256').update(text, 'utf8').digest('base64')}'`;
+const guard = (name, text) => {
+  if (/<\/script/i.test(text) || /<!--/.test(text)) throw new Error(`${name} contains text that would end an inline script`);
+  return text;
+};
+
+const html = read('www/index.html');
+const glue = guard('glue', read('www/pkg/popdecode.js'));
+const app = guard('app.js', read('www/app.js'));
+const worker = guard('worker.js', read('www/worker.js'));
+const css = read('www/style.css');
+const wasm = readFileSync(new URL('../www/pkg/popdecode_bg.wasm', import.meta.url)).toString('base64');
+const example = read('samples/odours.csv');
+
+const boot = `window.POPDECODE_OFFLINE = true;\nwindow.POPDECODE_WASM_BASE64 = "${wasm}";\n` +
+  `window.POPDECODE_EXAMPLE_CSV = ${JSON.stringify(example).replace(/</g, '\\u003c')};\n`;
+const scripts = [boot, glue, app];
+const csp = [
+  "default-src 'none'",
+  `script-src ${scripts.map(hash).join(' ')} 'wasm-unsafe-eval'`,
+  'worker-src blob:',
+  "connect-src 'none'",
+  'img-src blob: data:',
+  `style-src ${hash(css)}`,
+  "base-uri 'none'",
+  "form-action 'none'",
+].join('; ');
+
+const marker = (name) => new RegExp(`<!--${name}-->.*\\n?`, 'g');
+let out = html
+  .replace(marker('CSP'), `<meta http-equiv="Content-Security-Policy" content="${csp}">\n`)
+  .replace('<link rel="stylesheet" href="style.css">', `<style>${css}</style>`);
+const scriptStart = out.indexOf('<!--SCRIPTS-->');
+const scriptEnd = out.indexOf('</body>');
+if (scriptStart < 0 || scriptEnd < 0) throw new Error('index.html lost its SCRIPTS marker');
+out = out.slice(0, scriptStart) +
+  scripts.map((s) => `<script>${s}</script>\n`).join('') +
+  `<script type="text/plain" id="glue-src">${glue}</script>\n` +
+  `<script type="text/plain" id="worker-src">${worker}</script>\n` +
+  out.slice(scriptEnd);
+mkdirSync(new URL('../dist/', import.meta.url), { recursive: true });
+writeFileSync(new URL('../dist/popdecode.html', import.meta.url), out);
+console.log(`dist/popdecode.html: ${out.length} bytes`);

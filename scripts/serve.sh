@@ -1,0 +1,8 @@
+#!/usr/bin/env bash
+# Build the page and serve www/ on 127.0.0.1 (the example data is one click away on the page).
+set -euo pipefail
+cd "$(dirname "$0")/.."
+scripts/build-web.sh
+PORT="${PORT:-8765}"
+echo "popdecode is at http://127.0.0.1:$PORT/  (offline single file: dist/popdecode.html)"
+exec python3 -m http.server "$PORT" --bind 127.0.0.1 --directory www

@@ -1,0 +1,87 @@
+// Shared set-up for the browser tests: a static server for www/ on 127.0.0.1, Debian's chromium driven by
+// playwright-core, a record of every request (page and workers), and screenshots under test-output/browser/.
+import { createServer } from 'node:http';
+import { mkdirSync, readFileSync, existsSync, mkdtempSync } from 'node:fs';
+import { extname, join, normalize } from 'node:path';
+import { tmpdir } from 'node:os';
+import { execFileSync } from 'node:child_process';
+import { chromium } from 'playwright-core';
+
+export const ROOT = new URL('../../', import.meta.url).pathname;
+export const OUT = join(ROOT, 'test-output', 'browser');
+mkdirSync(OUT, { recursive: true });
+
+const TYPES = { '.html': 'text/html', '.js': 'text/javascript', '.css': 'text/css', '.wasm': 'application/wasm', '.csv': 'text/csv', '.json': 'application/json' };
+
+export async function serve() {
+  const www = join(ROOT, 'www');
+  const hits = [];
+  const server = createServer((req, res) => {
+    hits.push(req.url);
+    const path = normalize(decodeURIComponent(new URL(req.url, 'http://x').pathname)).replace(/^(\.\.[/\\])+/, '');
+    const file = join(www, path.endsWith('/') ? path + 'index.html' : path);
+    if (!file.startsWith(www) || !existsSync(file)) { res.writeHead(404); res.end(); return; }
+    res.writeHead(200, { 'content-type': TYPES[extname(file)] || 'application/octet-stream' });
+    res.end(readFileSync(file));
+  });
+  await new Promise((ok) => server.listen(0, '127.0.0.1', ok));
+  const origin = `http://127.0.0.1:${server.address().port}`;
+  return { origin, hits, close: () => new Promise((ok) => server.close(ok)) };
+}
+
+export async function browser() {
+  const profile = mkdtempSync(join(tmpdir(), 'popdecode-chromium-'));
+  const context = await chromium.launchPersistentContext(profile, {
+    executablePath: '/usr/bin/chromium',
+    headless: true,
+    acceptDownloads: true,
+    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run',
+      '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+  });
+  const requests = [];
+  context.on('request', (r) => requests.push(r.url()));
+  const page = context.pages()[0] || await context.newPage();
+  page.on('worker', (w) => requests.push('worker:' + w.url()));
+  const errors = [];
+  page.on('pageerror', (e) => errors.push(String(e)));
+  page.on('dialog', (d) => { errors.push('dialog: ' + d.message()); d.dismiss(); });
+  return { context, page, requests, errors };
+}
+
+/// Every request must stay on the page's own origin (served) or on file:, blob:, data: (offline).
+export function assertLocalOnly(assert, requests, origin) {
+  const allowed = (u) => {
+    const url = u.startsWith('worker:') ? u.slice(7) : u;
+    return (origin && url.startsWith(origin + '/')) || /^(file|blob|data):/.test(url);
+  };
+  const outside = requests.filter((u) => !allowed(u));
+  assert.deepEqual(outside, [], 'requests beyond the page\'s own files');
+}
+
+export async function shot(page, name) {
+  await page.screenshot({ path: join(OUT, name + '.png'), fullPage: true });
+}
+
+/// Small settings so a full run takes seconds.
+export async function quickSettings(page, { repeats = 4, shuffles = 6 } = {}) {
+  await page.fill('#repeats', String(repeats));
+  await page.dispatchEvent('#repeats', 'change');
+  await page.fill('#shuffles', String(shuffles));
+  await page.dispatchEvent('#shuffles', 'change');
+}
+
+export async function runAndWait(page) {
+  await page.click('#start');
+  await page.waitForSelector('#results:not([hidden])', { timeout: 120_000 });
+  return page.textContent('#headline');
+}
+
+export async function downloadText(page, selector) {
+  const [dl] = await Promise.all([page.waitForEvent('download'), page.click(selector)]);
+  const path = await dl.path();
+  return readFileSync(path, 'utf8');
+}
+
+export function cli(args) {
+  return execFileSync(join(ROOT, 'target', 'release', 'popdecode'), args, { encoding: 'utf8' });
+}

@@ -1,0 +1,166 @@
+// The page as a scientist uses it: load data, run, read the numbers, export; and the offline single file.
+import { test, after, before } from 'node:test';
+import assert from 'node:assert/strict';
+import { writeFileSync, readFileSync, mkdtempSync } from 'node:fs';
+import { join } from 'node:path';
+import { tmpdir } from 'node:os';
+import { serve, browser, assertLocalOnly, shot, quickSettings, runAndWait, downloadText, cli, ROOT } from './helpers.mjs';
+
+let server;
+before(async () => { server = await serve(); });
+after(async () => { await server.close(); });
+
+const tmp = mkdtempSync(join(tmpdir(), 'popdecode-browser-'));
+
+async function openPage(query = '') {
+  const b = await browser();
+  await b.page.goto(`${server.origin}/index.html${query}`);
+  await b.page.waitForFunction(() => document.getElementById('version').textContent.length > 0);
+  return b;
+}
+
+async function exampleRun(query) {
+  const b = await openPage(query);
+  await b.page.click('#example');
+  await b.page.waitForSelector('#data-view:not([hidden])');
+  await quickSettings(b.page);
+  const headline = await runAndWait(b.page);
+  const json = await downloadText(b.page, '#export-json');
+  const recipe = await downloadText(b.page, '#export-recipe');
+  return { b, headline, json, recipe };
+}
+
+test('example run matches the command line byte for byte', async () => {
+  const { b, headline, json, recipe } = await exampleRun('');
+  await shot(b.page, 'example-results');
+  const recipeFile = join(tmp, 'page.recipe.json');
+  writeFileSync(recipeFile, recipe);
+  const cliJson = join(tmp, 'cli.json');
+  const stdout = cli(['decode', join(ROOT, 'samples', 'odours.csv'), '--recipe', recipeFile, '--quiet', '--json', cliJson]);
+  assert.equal(json, readFileSync(cliJson, 'utf8'), 'page JSON and CLI JSON differ');
+  assert.equal(headline.trim(), stdout.split('\n')[0].trim());
+  assert.match(headline, /'odour' decoded at \d+\.\d % ± \d+\.\d % accuracy .*chance 25\.0 %.*p = .* over 6 shuffles/);
+  const methods = await b.page.textContent('#methods');
+  assert.match(methods, /SHA-256 [0-9a-f]{64}/);
+  assert.deepEqual(b.errors, []);
+  assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});
+
+test('one worker and three workers give identical results', async () => {
+  const one = await exampleRun('?workers=1');
+  const three = await exampleRun('?workers=3');
+  assert.equal(one.json, three.json);
+  assertLocalOnly(assert, [...one.b.requests, ...three.b.requests], server.origin);
+  await one.b.context.close();
+  await three.b.context.close();
+});
+
+test('file chooser and drag-and-drop both load a file', async () => {
+  const b = await openPage();
+  const csv = 'stimulus,u1,u2\n' + Array.from({ length: 40 }, (_, i) => `${i % 2 ? 'grating' : 'blank'},${(i % 2) * 3 + Math.sin(i)},${Math.cos(i)}`).join('\n') + '\n';
+  const file = join(tmp, 'upload.csv');
+  writeFileSync(file, csv);
+  await b.page.setInputFiles('#file', file);
+  await b.page.waitForSelector('#data-view:not([hidden])');
+  assert.match(await b.page.textContent('#file-summary'), /upload\.csv: 40 rows × 3 columns, comma-separated/);
+  assert.equal(await b.page.inputValue('#label'), 'stimulus');
+  await shot(b.page, 'uploaded');
+
+  await b.page.evaluate((text) => {
+    const dt = new DataTransfer();
+    dt.items.add(new File([text], 'dropped.csv', { type: 'text/csv' }));
+    const drop = document.getElementById('drop');
+    drop.dispatchEvent(new DragEvent('dragover', { dataTransfer: dt, bubbles: true, cancelable: true }));
+    drop.dispatchEvent(new DragEvent('drop', { dataTransfer: dt, bubbles: true, cancelable: true }));
+  }, csv.replace(/,/g, ';'));
+  await b.page.waitForFunction(() => document.getElementById('file-summary').textContent.startsWith('dropped.csv'));
+  assert.match(await b.page.textContent('#file-summary'), /semicolon-separated/);
+  await quickSettings(b.page, { repeats: 3, shuffles: 0 });
+  const headline = await runAndWait(b.page);
+  assert.match(headline, /'stimulus' decoded at .* no shuffle control run\./);
+  assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});
+
+test('cancel stops promptly and the page runs again afterwards', async () => {
+  const b = await openPage('?workers=2');
+  await b.page.click('#example');
+  await b.page.waitForSelector('#data-view:not([hidden])');
+  await quickSettings(b.page, { repeats: 5000, shuffles: 2000 });
+  await b.page.click('#start');
+  await b.page.waitForFunction(() => /fits \(\d+ %\)/.test(document.getElementById('progress-text').textContent), null, { timeout: 60_000 });
+  await shot(b.page, 'running');
+  const t0 = Date.now();
+  await b.page.click('#cancel');
+  await b.page.waitForFunction(() => document.getElementById('progress-text').textContent.startsWith('Cancelled'));
+  assert.ok(Date.now() - t0 < 2000, 'cancel took too long');
+  assert.equal(await b.page.isDisabled('#start'), false);
+  assert.equal(await b.page.isVisible('#results'), false);
+  await shot(b.page, 'cancelled');
+  await quickSettings(b.page, { repeats: 2, shuffles: 0 });
+  await runAndWait(b.page);
+  assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});
+
+test('markup in the file is shown as text and never runs', async () => {
+  const b = await openPage();
+  const evil = '<img src=x onerror="window.__pwned=1">';
+  const rows = Array.from({ length: 30 }, (_, i) => `${i % 2 ? '<script>window.__pwned=2</script>' : '<b>bold</b>'},${(i % 2) * 2 + Math.sin(i)},${Math.cos(i)}`);
+  const csv = `"${evil.replace(/"/g, '""')}","<svg onload=window.__pwned=3>",n2\n` + rows.join('\n') + '\n';
+  const file = join(tmp, 'evil.csv');
+  writeFileSync(file, csv);
+  await b.page.setInputFiles('#file', file);
+  await b.page.waitForSelector('#data-view:not([hidden])');
+  await quickSettings(b.page, { repeats: 2, shuffles: 3 });
+  await runAndWait(b.page);
+  await shot(b.page, 'injection');
+  assert.equal(await b.page.evaluate(() => window.__pwned), undefined);
+  assert.equal(await b.page.textContent('#preview th'), evil);
+  assert.equal(await b.page.locator('#preview img, #recall script, #results b').count(), 0);
+  assert.match(await b.page.textContent('#recall'), /<script>window.__pwned=2<\/script>/);
+  assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});
+
+test('a malformed file gets a clear message and the page keeps working', async () => {
+  const b = await openPage();
+  const file = join(tmp, 'broken.csv');
+  writeFileSync(file, 'odour,n1,n2\na,1,2\nb,3,4\na,5,oops\nb,1,1\n');
+  await b.page.setInputFiles('#file', file);
+  await b.page.waitForSelector('#data-error:not([hidden])');
+  assert.equal((await b.page.textContent('#data-error')).trim(), "broken.csv, line 4, column 'n2': 'oops' is not a number");
+  assert.equal(await b.page.isDisabled('#start'), true);
+  await shot(b.page, 'malformed');
+  const ragged = join(tmp, 'ragged.csv');
+  writeFileSync(ragged, 'odour,n1,n2\na,1,2\nb,3\n');
+  await b.page.setInputFiles('#file', ragged);
+  await b.page.waitForFunction(() => /line 3: this row has 2 fields/.test(document.getElementById('data-error').textContent));
+  await b.page.click('#example');
+  await b.page.waitForSelector('#data-error', { state: 'hidden' });
+  await quickSettings(b.page, { repeats: 2, shuffles: 0 });
+  await runAndWait(b.page);
+  assert.deepEqual(b.errors, []);
+  await b.context.close();
+});
+
+test('the offline file works from file:// with no network', async () => {
+  const b = await browser();
+  await b.page.goto('file://' + join(ROOT, 'dist', 'popdecode.html'));
+  await b.page.waitForFunction(() => document.getElementById('version').textContent.length > 0);
+  await b.page.click('#example');
+  await b.page.waitForSelector('#data-view:not([hidden])');
+  await quickSettings(b.page);
+  const headline = await runAndWait(b.page);
+  await shot(b.page, 'offline');
+  assert.match(headline, /'odour' decoded at .* over 6 shuffles/);
+  const json = await downloadText(b.page, '#export-json');
+  const served = await exampleRun('');
+  assert.equal(json, served.json, 'offline and served pages differ');
+  assert.deepEqual(b.errors, []);
+  assertLocalOnly(assert, b.requests, null);
+  assert.ok(b.requests.some((u) => u.startsWith('worker:blob:')), 'workers run from blob URLs');
+  await served.b.context.close();
+  await b.context.close();
+});
