@@ -43,6 +43,9 @@ f=$(grep -Eo '[0-9]+ (failed|error)' test-output/pytest.log | grep -Eo '[0-9]+' 
 
 if [ -x scripts/build-web.sh ] && [ -d tests/browser ]; then
   echo "== browser tests"
+  (cd tests/browser && { [ -d node_modules/playwright-core ] || npm ci --no-audit --no-fund --silent; }) \
+    > test-output/npm.log 2>&1 || echo "npm install failed (see test-output/npm.log)"
+  cargo build --release --quiet --bin popdecode
   if scripts/build-web.sh > test-output/build-web.log 2>&1; then
     node --test --test-reporter=spec tests/browser/ 2>&1 | tee test-output/browser.log | grep -E '^ℹ (pass|fail)|✖' | head -40
     p=$(grep -Eo '^ℹ pass [0-9]+' test-output/browser.log | grep -Eo '[0-9]+'); passed=$((passed + ${p:-0}))

@@ -63,9 +63,11 @@ impl Classifier {
     pub fn describe(self, c: f64) -> String {
         match self {
             Classifier::LinearSvm => format!(
-                "a linear support vector machine (L2-regularised squared hinge loss, C = {c}, one-vs-rest for more \
-                 than two classes) fitted by dual coordinate descent (Hsieh et al., 2008; stopping tolerance {} on \
-                 the projected gradient, at most {} passes)",
+                "a linear support vector machine (L2-regularised squared hinge loss with the intercept as a \
+                 constant feature, C = {c}, one-vs-rest for more than two classes), minimised in the primal by the \
+                 finite Newton method (Keerthi & DeCoste, 2005) when a training fold had more trials than features \
+                 and otherwise in the dual by coordinate descent (Hsieh et al., 2008; stopping tolerance {} on the \
+                 projected gradient, at most {} passes)",
                 linear_svm::TOLERANCE,
                 linear_svm::MAX_PASSES
             ),
