@@ -14,7 +14,7 @@ TOOLS=target/web-tools
 BINARYEN=132.0.0
 if [ ! -x "$TOOLS/node_modules/.bin/wasm-opt" ]; then
   mkdir -p "$TOOLS"
-  (cd "$TOOLS" && [ -f package.json ] || (cd "$TOOLS" && npm init -y >/dev/null))
+  [ -f "$TOOLS/package.json" ] || echo '{"name": "popdecode-web-tools", "private": true}' > "$TOOLS/package.json"
   (cd "$TOOLS" && npm install --no-audit --no-fund --silent "binaryen@$BINARYEN")
 fi
 

@@ -33,6 +33,8 @@ count_cargo test-output/cargo-test.log
 echo "== formatting and lint"
 check cargo-fmt cargo fmt --check
 check cargo-clippy cargo clippy --release --all-targets -- -D warnings
+check cargo-clippy-wasm env RUSTFLAGS="-C target-feature=+simd128" \
+  cargo clippy --lib --release --target wasm32-unknown-unknown -- -D warnings
 
 echo "== reference agreement (scikit-learn)"
 source scripts/reference-venv.sh

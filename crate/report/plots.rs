@@ -113,11 +113,11 @@ fn histogram(title: &str, x_label: &str, values: &[f64], markers: &[Marker], bar
     while t <= hi + 1e-9 {
         write!(
             svg,
-            r#"<path d="M{x:.2} {b} v5" stroke="{INK}"/><text x="{x:.2}" y="{ty}" text-anchor="middle" fill="{INK}">{l}</text>"#,
+            r#"<path d="M{x:.2} {b} v5" stroke="{INK}"/><text x="{x:.2}" y="{ty}" text-anchor="middle" fill="{INK}">{l:.0} %</text>"#,
             x = x(t),
             b = TOP + ph,
             ty = TOP + ph + 18.0,
-            l = format!("{:.0} %", t * 100.0)
+            l = t * 100.0
         )
         .unwrap();
         t += step;

@@ -164,3 +164,19 @@ test('the offline file works from file:// with no network', async () => {
   await served.b.context.close();
   await b.context.close();
 });
+
+test('the request recorder sees what workers fetch from elsewhere', async () => {
+  // Guards the network assertion itself: a worker's request to another origin must be caught.
+  const elsewhere = await serve();
+  const b = await browser();
+  await b.page.goto(`${server.origin}/no-such-page`);
+  await b.page.evaluate((url) => {
+    const src = `fetch(${JSON.stringify(url)}).then(() => postMessage('done'), () => postMessage('done'))`;
+    const w = new Worker(URL.createObjectURL(new Blob([src], { type: 'text/javascript' })));
+    return new Promise((ok) => { w.onmessage = ok; });
+  }, `${elsewhere.origin}/probe`);
+  assert.ok(b.requests.includes(`${elsewhere.origin}/probe`), 'worker request not recorded');
+  assert.throws(() => assertLocalOnly(assert, b.requests, server.origin));
+  await b.context.close();
+  await elsewhere.close();
+});
