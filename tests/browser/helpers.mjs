@@ -26,7 +26,13 @@ export async function serve() {
   });
   await new Promise((ok) => server.listen(0, '127.0.0.1', ok));
   const origin = `http://127.0.0.1:${server.address().port}`;
-  return { origin, hits, close: () => new Promise((ok) => server.close(ok)) };
+  return { origin, hits, close: () => new Promise((ok) => { server.closeAllConnections(); server.close(ok); }) };
+}
+
+const open = [];
+/// Close every browser still open (a failed test leaves its own open; this keeps the run from hanging).
+export async function closeAll() {
+  await Promise.all(open.splice(0).map((c) => c.close().catch(() => {})));
 }
 
 export async function browser() {
@@ -38,6 +44,7 @@ export async function browser() {
     args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run',
       '--disable-background-networking', '--disable-component-update', '--disable-sync'],
   });
+  open.push(context);
   const requests = [];
   context.on('request', (r) => requests.push(r.url()));
   const page = context.pages()[0] || await context.newPage();

@@ -4,11 +4,11 @@ import assert from 'node:assert/strict';
 import { writeFileSync, readFileSync, mkdtempSync } from 'node:fs';
 import { join } from 'node:path';
 import { tmpdir } from 'node:os';
-import { serve, browser, assertLocalOnly, shot, quickSettings, runAndWait, downloadText, cli, ROOT } from './helpers.mjs';
+import { serve, browser, closeAll, assertLocalOnly, shot, quickSettings, runAndWait, downloadText, cli, ROOT } from './helpers.mjs';
 
 let server;
 before(async () => { server = await serve(); });
-after(async () => { await server.close(); });
+after(async () => { await closeAll(); await server.close(); });
 
 const tmp = mkdtempSync(join(tmpdir(), 'popdecode-browser-'));
 
@@ -168,15 +168,49 @@ test('the offline file works from file:// with no network', async () => {
 test('the request recorder sees what workers fetch from elsewhere', async () => {
   // Guards the network assertion itself: a worker's request to another origin must be caught.
   const elsewhere = await serve();
-  const b = await browser();
-  await b.page.goto(`${server.origin}/no-such-page`);
-  await b.page.evaluate((url) => {
-    const src = `fetch(${JSON.stringify(url)}).then(() => postMessage('done'), () => postMessage('done'))`;
-    const w = new Worker(URL.createObjectURL(new Blob([src], { type: 'text/javascript' })));
-    return new Promise((ok) => { w.onmessage = ok; });
-  }, `${elsewhere.origin}/probe`);
-  assert.ok(b.requests.includes(`${elsewhere.origin}/probe`), 'worker request not recorded');
-  assert.throws(() => assertLocalOnly(assert, b.requests, server.origin));
+  try {
+    const b = await browser();
+    await b.page.goto(`${server.origin}/style.css`); // a document without the page's CSP
+    await b.page.evaluate((url) => {
+      const src = `fetch(${JSON.stringify(url)}).then(() => postMessage('done'), () => postMessage('done'))`;
+      const w = new Worker(URL.createObjectURL(new Blob([src], { type: 'text/javascript' })));
+      return new Promise((ok) => { w.onmessage = ok; });
+    }, `${elsewhere.origin}/probe`);
+    assert.ok(b.requests.includes(`${elsewhere.origin}/probe`), 'worker request not recorded');
+    assert.throws(() => assertLocalOnly(assert, b.requests, server.origin));
+    await b.context.close();
+  } finally {
+    await elsewhere.close();
+  }
+});
+
+test('a recipe file loads into the form, and figures export as PNG and SVG', async () => {
+  const b = await openPage();
+  await b.page.click('#example');
+  await b.page.waitForSelector('#data-view:not([hidden])');
+  const recipe = {
+    format: 'popdecode-recipe/1',
+    columns: { label: 'odour', group: null, features: ['unit_01', 'unit_02', 'unit_03'], drop_missing: false },
+    classifier: 'shrinkage-lda', c: 1, folds: 4, repeats: 3, balance: false, shuffles: 0, shuffle_repeats: null, seed: 7,
+  };
+  const file = join(tmp, 'loaded.recipe.json');
+  writeFileSync(file, JSON.stringify(recipe));
+  await b.page.setInputFiles('#recipe-file', file);
+  await b.page.waitForFunction(() => document.getElementById('recipe-status').textContent.startsWith('Loaded'));
+  assert.equal(await b.page.inputValue('#classifier'), 'shrinkage-lda');
+  assert.equal(await b.page.inputValue('#group'), '');
+  assert.equal(await b.page.isChecked('#balance'), false);
+  const headline = await runAndWait(b.page);
+  assert.match(headline, /balanced accuracy/);
+  const exported = JSON.parse(await downloadText(b.page, '#export-recipe'));
+  assert.deepEqual(exported.columns.features, ['unit_01', 'unit_02', 'unit_03']);
+  assert.equal(exported.seed, 7);
+  const svg = await downloadText(b.page, '#fig-confusion figcaption button:nth-of-type(2)');
+  assert.match(svg, /^<svg [^>]*xmlns="http:\/\/www.w3.org\/2000\/svg"/);
+  const [dl] = await Promise.all([b.page.waitForEvent('download'), b.page.click('#fig-scores figcaption button:nth-of-type(1)')]);
+  const png = readFileSync(await dl.path());
+  assert.deepEqual([...png.subarray(0, 4)], [0x89, 0x50, 0x4e, 0x47], 'a PNG file');
+  const csv = await downloadText(b.page, '#export-csv');
+  assert.match(csv, /^kind,index,accuracy,balanced_accuracy\nrepeat,0,/);
   await b.context.close();
-  await elsewhere.close();
 });
