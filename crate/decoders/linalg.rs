@@ -106,6 +106,28 @@ pub fn cholesky_solve(u: &[f64], p: usize, b: &mut [f64]) {
     }
 }
 
+/// Turn the Cholesky factor of `A` into that of `A + s·xxᵀ` (`s` = +1 update, −1 downdate) in O(p²), by the
+/// rotations of LINPACK's `dchud`/`dchdd` (Dongarra et al., LINPACK Users' Guide, 1979). `x` is overwritten.
+/// Returns false if a downdate would leave the matrix not positive definite (the factor is then unusable).
+pub fn cholesky_rank_one(u: &mut [f64], p: usize, x: &mut [f64], s: f64) -> bool {
+    for k in 0..p {
+        let d = u[k * p + k];
+        let r2 = d * d + s * x[k] * x[k];
+        if r2 <= 0.0 || !r2.is_finite() {
+            return false;
+        }
+        let r = r2.sqrt();
+        let (c, sn) = (r / d, x[k] / d);
+        u[k * p + k] = r;
+        for j in k + 1..p {
+            let ukj = (u[k * p + j] + s * sn * x[j]) / c;
+            x[j] = c * x[j] - sn * ukj;
+            u[k * p + j] = ukj;
+        }
+    }
+    true
+}
+
 /// Factor a symmetric positive semi-definite matrix, adding the smallest ridge (relative to its mean diagonal) that
 /// makes it positive definite. Returns the factor and the ridge that was added (0 in the ordinary case).
 pub fn cholesky_with_ridge(a: &[f64], p: usize) -> (Vec<f64>, f64) {

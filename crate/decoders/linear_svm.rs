@@ -17,7 +17,7 @@
 //! the same strictly convex function, so they reach the same decoder; the choice only saves time (the same choice
 //! scikit-learn's LinearSVC makes with `dual="auto"`, scikit-learn 1.9 documentation).
 
-use super::linalg::{axpy, cholesky_solve, cholesky_with_ridge, dot};
+use super::linalg::{axpy, cholesky_rank_one, cholesky_solve, cholesky_with_ridge, dot};
 use super::{argmax, present_classes, Decoder, Model};
 
 /// Stop when the projected gradient's spread (max − min) falls below this; 0.1 is the usual default of this solver
@@ -210,24 +210,43 @@ fn primal_newton(
     let mut margin = vec![0.0; n];
     let mut inside = vec![true; n];
     let mut hess_upper: Vec<f64> = gram_all.iter().map(|g| 2.0 * c * g).collect();
+    let mut factor: Option<Vec<f64>> = None;
     let mut first_norm = None;
+    let root = (2.0 * c).sqrt();
     for _step in 0..MAX_NEWTON_STEPS {
         let mut grad = w.clone();
+        let mut changed = Vec::new();
         for i in 0..n {
             let slack = 1.0 - margin[i];
             let now_inside = slack > 0.0;
-            let xi = &x[i * p..(i + 1) * p];
             if now_inside != inside[i] {
-                rank_one(
-                    &mut hess_upper,
-                    xi,
-                    if now_inside { 2.0 * c } else { -2.0 * c },
-                );
                 inside[i] = now_inside;
+                changed.push(i);
             }
             if now_inside {
-                axpy(-2.0 * c * slack * signs[i], xi, &mut grad[..p]);
+                axpy(
+                    -2.0 * c * slack * signs[i],
+                    &x[i * p..(i + 1) * p],
+                    &mut grad[..p],
+                );
                 grad[p] -= 2.0 * c * slack * signs[i];
+            }
+        }
+        // Keep the Hessian by the cheaper route: add and remove the trials that crossed the margin, or rebuild it
+        // from the trials inside when those are fewer (typically after the first step, when most leave at once).
+        let n_inside = inside.iter().filter(|&&b| b).count();
+        if changed.len() <= n_inside {
+            for &i in &changed {
+                rank_one(
+                    &mut hess_upper,
+                    &x[i * p..(i + 1) * p],
+                    if inside[i] { 2.0 * c } else { -2.0 * c },
+                );
+            }
+        } else {
+            hess_upper.iter_mut().for_each(|v| *v = 0.0);
+            for i in (0..n).filter(|&i| inside[i]) {
+                rank_one(&mut hess_upper, &x[i * p..(i + 1) * p], 2.0 * c);
             }
         }
         let norm = dot(&grad, &grad).sqrt();
@@ -235,16 +254,28 @@ fn primal_newton(
         if norm <= NEWTON_TOLERANCE * first.max(1.0) {
             return (w, false);
         }
-        let mut hess = hess_upper.clone();
-        for a in 0..q {
-            hess[a * q + a] += 1.0;
-            for b in 0..a {
-                hess[a * q + b] = hess[b * q + a];
+        // Few trials crossed the margin: update the factor in O(q²) each instead of refactoring in O(q³).
+        let mut u = factor.take().filter(|_| changed.len() * 8 <= q);
+        if let Some(f) = u.as_mut() {
+            for &i in &changed {
+                let mut v: Vec<f64> = x[i * p..(i + 1) * p].iter().map(|xv| root * xv).collect();
+                v.push(root);
+                if !cholesky_rank_one(f, q, &mut v, if inside[i] { 1.0 } else { -1.0 }) {
+                    u = None;
+                    break;
+                }
             }
         }
-        let (l, _) = cholesky_with_ridge(&hess, q);
+        let l = u.unwrap_or_else(|| {
+            let mut hess = hess_upper.clone();
+            for a in 0..q {
+                hess[a * q + a] += 1.0;
+            }
+            cholesky_with_ridge(&hess, q).0
+        });
         let mut d: Vec<f64> = grad.iter().map(|g| -g).collect();
         cholesky_solve(&l, q, &mut d);
+        factor = Some(l);
         let dm: Vec<f64> = (0..n)
             .map(|i| signs[i] * (dot(&d[..p], &x[i * p..(i + 1) * p]) + d[p]))
             .collect();
