@@ -175,6 +175,21 @@ mod tests {
     }
 
     #[test]
+    fn rank_one_update_and_downdate_match_refactoring() {
+        // A = [[4, 2], [2, 3]], x = (1, 2): A + xxᵀ = [[5, 4], [4, 7]].
+        let mut u = cholesky(&[4.0, 2.0, 2.0, 3.0], 2).unwrap();
+        assert!(cholesky_rank_one(&mut u, 2, &mut [1.0, 2.0], 1.0));
+        let direct = cholesky(&[5.0, 4.0, 4.0, 7.0], 2).unwrap();
+        assert!(u.iter().zip(&direct).all(|(a, b)| (a - b).abs() < 1e-12), "{u:?} vs {direct:?}");
+        assert!(cholesky_rank_one(&mut u, 2, &mut [1.0, 2.0], -1.0));
+        let back = cholesky(&[4.0, 2.0, 2.0, 3.0], 2).unwrap();
+        assert!(u.iter().zip(&back).all(|(a, b)| (a - b).abs() < 1e-12));
+        // Removing more than is there must be refused: [[1, 0], [0, 1]] − (2, 0)(2, 0)ᵀ is indefinite.
+        let mut eye = cholesky(&[1.0, 0.0, 0.0, 1.0], 2).unwrap();
+        assert!(!cholesky_rank_one(&mut eye, 2, &mut [2.0, 0.0], -1.0));
+    }
+
+    #[test]
     fn singular_matrix_gets_a_small_ridge() {
         let a = [1.0, 1.0, 1.0, 1.0];
         assert!(cholesky(&a, 2).is_none());
