@@ -181,6 +181,7 @@
   // ---------- plan (checks and class counts) ----------
   function refreshPlan() {
     syncFeatureOptions();
+    $('c').disabled = $('classifier').value !== 'linear-svm';
     saveSettings();
     if (!state.file) return;
     clearError('data-error');
