@@ -305,7 +305,7 @@ impl<'a> Plan<'a> {
             let y_train: Vec<usize> = train.iter().map(|&pos| y[pos]).collect();
             let model =
                 FittedPipeline::fit(self.decoder.as_ref(), &x_train, p, &y_train, n_classes);
-            let predicted = model.predict(&self.rows(used, &test));
+            let predicted = model.predict(self.rows(used, &test));
             for (&pos, c) in test.iter().zip(predicted) {
                 labels[pos] = c;
             }
@@ -435,7 +435,7 @@ pub fn predict_with_folds(
             &y_train,
             data.classes.len(),
         );
-        for (&i, c) in test.iter().zip(model.predict(&gather(&test))) {
+        for (&i, c) in test.iter().zip(model.predict(gather(&test))) {
             predicted[i] = c;
         }
     }

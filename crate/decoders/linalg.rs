@@ -180,7 +180,10 @@ mod tests {
         let mut u = cholesky(&[4.0, 2.0, 2.0, 3.0], 2).unwrap();
         assert!(cholesky_rank_one(&mut u, 2, &mut [1.0, 2.0], 1.0));
         let direct = cholesky(&[5.0, 4.0, 4.0, 7.0], 2).unwrap();
-        assert!(u.iter().zip(&direct).all(|(a, b)| (a - b).abs() < 1e-12), "{u:?} vs {direct:?}");
+        assert!(
+            u.iter().zip(&direct).all(|(a, b)| (a - b).abs() < 1e-12),
+            "{u:?} vs {direct:?}"
+        );
         assert!(cholesky_rank_one(&mut u, 2, &mut [1.0, 2.0], -1.0));
         let back = cholesky(&[4.0, 2.0, 2.0, 3.0], 2).unwrap();
         assert!(u.iter().zip(&back).all(|(a, b)| (a - b).abs() < 1e-12));

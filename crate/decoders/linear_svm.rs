@@ -49,10 +49,18 @@ impl Decoder for LinearSvm {
         let sq_norms: Vec<f64> = (0..n)
             .map(|i| dot(&x[i * p..(i + 1) * p], &x[i * p..(i + 1) * p]) + 1.0)
             .collect();
-        let gram_all = if n > p + 1 {
-            augmented_gram(x, n, p)
+        // Primal route: at w = 0 every trial is inside the margin for every class, so the first Hessian and its
+        // factor are the same for all one-vs-rest problems: compute them once.
+        let (gram_all, factor0) = if n > p + 1 {
+            let gram_all = augmented_gram(x, n, p);
+            let mut h0: Vec<f64> = gram_all.iter().map(|g| 2.0 * self.c * g).collect();
+            for a in 0..=p {
+                h0[a * (p + 1) + a] += 1.0;
+            }
+            let factor0 = cholesky_with_ridge(&h0, p + 1).0;
+            (gram_all, factor0)
         } else {
-            Vec::new()
+            (Vec::new(), Vec::new())
         };
         let mut capped = false;
         let mut solve = |positive: usize| {
@@ -61,7 +69,7 @@ impl Decoder for LinearSvm {
                 .map(|&c| if c == positive { 1.0 } else { -1.0 })
                 .collect();
             let (w, hit_cap) = if n > p + 1 {
-                primal_newton(x, n, p, &signs, self.c, &gram_all)
+                primal_newton(x, n, p, &signs, self.c, &gram_all, &factor0)
             } else {
                 dual_cd(x, n, p, &signs, &sq_norms, self.c)
             };
@@ -204,13 +212,14 @@ fn primal_newton(
     signs: &[f64],
     c: f64,
     gram_all: &[f64],
+    factor0: &[f64],
 ) -> (Vec<f64>, bool) {
     let q = p + 1;
     let mut w = vec![0.0; q];
     let mut margin = vec![0.0; n];
     let mut inside = vec![true; n];
     let mut hess_upper: Vec<f64> = gram_all.iter().map(|g| 2.0 * c * g).collect();
-    let mut factor: Option<Vec<f64>> = None;
+    let mut factor: Option<Vec<f64>> = Some(factor0.to_vec());
     let mut first_norm = None;
     let root = (2.0 * c).sqrt();
     for _step in 0..MAX_NEWTON_STEPS {

@@ -120,14 +120,13 @@ impl FittedPipeline {
         FittedPipeline { scaler, fitted }
     }
 
-    /// Predict raw row-major test rows, standardised with the training statistics.
-    pub fn predict(&self, x_test: &[f64]) -> Vec<usize> {
+    /// Predict raw row-major test rows (taken by value), standardised with the training statistics.
+    pub fn predict(&self, mut x_test: Vec<f64>) -> Vec<usize> {
         match &self.fitted {
             Fitted::OnlyClass(c) => vec![*c; x_test.len() / self.scaler.mean.len()],
             Fitted::Model(m) => {
-                let mut z = x_test.to_vec();
-                self.scaler.apply(&mut z);
-                m.predict(&z)
+                self.scaler.apply(&mut x_test);
+                m.predict(&x_test)
             }
         }
     }
