@@ -1,12 +1,27 @@
 #!/usr/bin/env bash
-# Benchmark: popdecode's decoders against scikit-learn on the identical protocol. Prints figures; asserts nothing.
+# Benchmark: popdecode's decoders against scikit-learn on the identical protocol. Prints figures and ratios;
+# asserts nothing. Each side runs ROUNDS times (default 3) on one thread and the median time is used.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 source scripts/reference-venv.sh
+ROUNDS="${ROUNDS:-3}"
 cargo build --release --quiet --bin popdecode-bench
 table=$(mktemp --suffix=.csv)
-trap 'rm -f "$table"' EXIT
-echo "== popdecode (one thread)"
-./target/release/popdecode-bench --trials-csv "$table"
-echo "== scikit-learn (one thread)"
-"$VENV/bin/python" scripts/bench_sklearn.py "$table"
+out=$(mktemp)
+trap 'rm -f "$table" "$out"' EXIT
+for _ in $(seq "$ROUNDS"); do
+  ./target/release/popdecode-bench --trials-csv "$table" >> "$out"
+  "$VENV/bin/python" -W ignore scripts/bench_sklearn.py "$table" >> "$out"
+done
+median() { grep -F "$1" "$out" | awk '{for (i = 1; i <= NF; i++) if ($(i + 1) == "s") {print $i; break}}' | sort -g | awk '{v[NR] = $1} END {print v[int((NR + 1) / 2)]}'; }
+svm=$(median "linear-svm ")
+lda=$(median "shrinkage-lda ")
+svc=$(median "SVC(kernel='linear')")
+linsvc=$(median "LinearSVC ")
+sklda=$(median "LDA(lsqr, auto)")
+grep -m1 "^scikit-learn" "$out"
+echo "232 trials x 52 units, 4 classes, 100 repeats x 5 folds, one thread, median of $ROUNDS rounds:"
+printf '  %-15s %7.3f s   scikit-learn SVC(kernel=linear) %7.3f s  ratio %5.1fx   LinearSVC %7.3f s  ratio %5.1fx\n' \
+  linear-svm "$svm" "$svc" "$(echo "$svc / $svm" | awk -F/ '{print $1 / $2}')" "$linsvc" "$(echo "$linsvc / $svm" | awk -F/ '{print $1 / $2}')"
+printf '  %-15s %7.3f s   scikit-learn LDA(lsqr, auto)    %7.3f s  ratio %5.1fx\n' \
+  shrinkage-lda "$lda" "$sklda" "$(echo "$sklda / $lda" | awk -F/ '{print $1 / $2}')"

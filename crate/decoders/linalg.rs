@@ -61,29 +61,37 @@ pub fn gram(z: &[f64], n: usize, p: usize) -> Vec<f64> {
 /// Cholesky factor `U` (row-major, upper triangular, `A = UᵀU`) of a symmetric positive-definite matrix, or `None`
 /// if a pivot is not positive. Only the upper triangle of `a` is read.
 ///
-/// The outer-product form: each step scales row k and subtracts its multiples from the rows below with `axpy` on
-/// contiguous memory, which is several times faster than inner-product forms on these small matrices.
+/// The outer-product form, two pivot rows at a time: rows k and k+1 are finished, then every row below subtracts
+/// both of their multiples in one contiguous pass. That halves the passes over the trailing rows compared with one
+/// pivot at a time, which is most of the cost on these small matrices; the order of operations is fixed, so every
+/// target rounds identically.
 pub fn cholesky(a: &[f64], p: usize) -> Option<Vec<f64>> {
-    let mut u = a.to_vec();
-    for k in 0..p {
-        let pivot = u[k * p + k];
-        if pivot <= 0.0 || !pivot.is_finite() {
-            return None;
+    cholesky_owned(a.to_vec(), p)
+}
+
+/// [`cholesky`] factoring a matrix the caller no longer needs, in its own storage (saves a copy per Newton step).
+pub fn cholesky_owned(mut u: Vec<f64>, p: usize) -> Option<Vec<f64>> {
+    let mut k = 0;
+    while k < p {
+        pivot_row(&mut u, p, k)?;
+        if k + 1 == p {
+            break;
         }
-        let d = pivot.sqrt();
-        u[k * p + k] = d;
-        for v in &mut u[k * p + k + 1..(k + 1) * p] {
-            *v /= d;
-        }
-        let (done, rest) = u.split_at_mut((k + 1) * p);
-        let row_k = &done[k * p..(k + 1) * p];
-        for i in k + 1..p {
-            let f = row_k[i];
-            if f != 0.0 {
-                let row_i = &mut rest[(i - k - 1) * p..(i - k) * p];
-                axpy(-f, &row_k[i..], &mut row_i[i..]);
+        // Bring row k+1 up to date with row k alone, then finish it.
+        let (head, tail) = u.split_at_mut((k + 1) * p);
+        let row_k = &head[k * p..(k + 1) * p];
+        axpy(-row_k[k + 1], &row_k[k + 1..], &mut tail[k + 1..p]);
+        pivot_row(&mut u, p, k + 1)?;
+        let (head, tail) = u.split_at_mut((k + 2) * p);
+        let (row_k, row_k1) = head[k * p..].split_at(p);
+        for i in k + 2..p {
+            let (f0, f1) = (row_k[i], row_k1[i]);
+            let row_i = &mut tail[(i - k - 2) * p + i..(i - k - 1) * p];
+            for ((x, a), b) in row_i.iter_mut().zip(&row_k[i..]).zip(&row_k1[i..]) {
+                *x -= f0 * a + f1 * b;
             }
         }
+        k += 2;
     }
     for i in 0..p {
         for j in 0..i {
@@ -91,6 +99,20 @@ pub fn cholesky(a: &[f64], p: usize) -> Option<Vec<f64>> {
         }
     }
     Some(u)
+}
+
+/// Take the square root of pivot k and scale the rest of row k by it.
+fn pivot_row(u: &mut [f64], p: usize, k: usize) -> Option<()> {
+    let pivot = u[k * p + k];
+    if pivot <= 0.0 || !pivot.is_finite() {
+        return None;
+    }
+    let d = pivot.sqrt();
+    u[k * p + k] = d;
+    for v in &mut u[k * p + k + 1..(k + 1) * p] {
+        *v /= d;
+    }
+    Some(())
 }
 
 /// Solve `UᵀU x = b` in place, given the Cholesky factor.

@@ -17,7 +17,9 @@
 //! the same strictly convex function, so they reach the same decoder; the choice only saves time (the same choice
 //! scikit-learn's LinearSVC makes with `dual="auto"`, scikit-learn 1.9 documentation).
 
-use super::linalg::{axpy, cholesky_rank_one, cholesky_solve, cholesky_with_ridge, dot};
+use super::linalg::{
+    axpy, cholesky_owned, cholesky_rank_one, cholesky_solve, cholesky_with_ridge, dot,
+};
 use super::{argmax, present_classes, Decoder, Model};
 
 /// Stop when the projected gradient's spread (max − min) falls below this; 0.1 is the usual default of this solver
@@ -276,11 +278,16 @@ fn primal_newton(
             }
         }
         let l = u.unwrap_or_else(|| {
-            let mut hess = hess_upper.clone();
-            for a in 0..q {
-                hess[a * q + a] += 1.0;
-            }
-            cholesky_with_ridge(&hess, q).0
+            let with_identity = || {
+                let mut hess = hess_upper.clone();
+                for a in 0..q {
+                    hess[a * q + a] += 1.0;
+                }
+                hess
+            };
+            // I + (positive semi-definite) is positive definite; the ridge fallback is for round-off only.
+            cholesky_owned(with_identity(), q)
+                .unwrap_or_else(|| cholesky_with_ridge(&with_identity(), q).0)
         });
         let mut d: Vec<f64> = grad.iter().map(|g| -g).collect();
         cholesky_solve(&l, q, &mut d);
