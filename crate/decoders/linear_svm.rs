@@ -181,12 +181,29 @@ fn dual_cd(
 /// w = 0. Computed once per fit and shared by the one-vs-rest problems.
 fn augmented_gram(x: &[f64], n: usize, p: usize) -> Vec<f64> {
     let q = p + 1;
-    let mut aug = Vec::with_capacity(n * q);
-    for row in x.chunks_exact(p) {
-        aug.extend_from_slice(row);
-        aug.push(1.0);
+    let g = super::linalg::gram(x, n, p);
+    let mut out = vec![0.0; q * q];
+    for a in 0..p {
+        out[a * q..a * q + p].copy_from_slice(&g[a * p..(a + 1) * p]);
     }
-    super::linalg::gram(&aug, n, q)
+    // The constant feature's row and column: column sums of x, and n.
+    for row in x.chunks_exact(p) {
+        for (a, v) in row.iter().enumerate() {
+            out[a * q + p] += v;
+        }
+    }
+    for a in 0..p {
+        out[p * q + a] = out[a * q + p];
+    }
+    out[p * q + p] = n as f64;
+    out
+}
+
+/// How each margin changes per unit step along `d`: `yᵢ d·x̃ᵢ`.
+fn step_margins(x: &[f64], n: usize, p: usize, signs: &[f64], d: &[f64]) -> Vec<f64> {
+    (0..n)
+        .map(|i| signs[i] * (dot(&d[..p], &x[i * p..(i + 1) * p]) + d[p]))
+        .collect()
 }
 
 /// Add `sign · 2C · x̃ x̃ᵀ` to the upper triangle of `hess`.
@@ -221,7 +238,8 @@ fn primal_newton(
     let mut margin = vec![0.0; n];
     let mut inside = vec![true; n];
     let mut hess_upper: Vec<f64> = gram_all.iter().map(|g| 2.0 * c * g).collect();
-    let mut factor: Option<Vec<f64>> = Some(factor0.to_vec());
+    // The factor of the current Hessian, once this problem has one of its own (step 0 uses the shared `factor0`).
+    let mut factor: Option<Vec<f64>> = None;
     let mut first_norm = None;
     let root = (2.0 * c).sqrt();
     for _step in 0..MAX_NEWTON_STEPS {
@@ -265,6 +283,15 @@ fn primal_newton(
         if norm <= NEWTON_TOLERANCE * first.max(1.0) {
             return (w, false);
         }
+        let mut d: Vec<f64> = grad.iter().map(|g| -g).collect();
+        if _step == 0 {
+            cholesky_solve(factor0, q, &mut d);
+            let dm = step_margins(x, n, p, signs, &d);
+            let t = exact_step(&w, &d, &margin, &dm, c);
+            axpy(t, &d, &mut w);
+            axpy(t, &dm, &mut margin);
+            continue;
+        }
         // Few trials crossed the margin: update the factor in O(q²) each instead of refactoring in O(q³).
         let mut u = factor.take().filter(|_| changed.len() * 8 <= q);
         if let Some(f) = u.as_mut() {
@@ -289,12 +316,9 @@ fn primal_newton(
             cholesky_owned(with_identity(), q)
                 .unwrap_or_else(|| cholesky_with_ridge(&with_identity(), q).0)
         });
-        let mut d: Vec<f64> = grad.iter().map(|g| -g).collect();
         cholesky_solve(&l, q, &mut d);
         factor = Some(l);
-        let dm: Vec<f64> = (0..n)
-            .map(|i| signs[i] * (dot(&d[..p], &x[i * p..(i + 1) * p]) + d[p]))
-            .collect();
+        let dm = step_margins(x, n, p, signs, &d);
         let t = exact_step(&w, &d, &margin, &dm, c);
         axpy(t, &d, &mut w);
         axpy(t, &dm, &mut margin);
