@@ -259,7 +259,7 @@ pub fn confusion(r: &Report) -> String {
     let cell = (360.0 / k as f64).clamp(28.0, 72.0);
     let label_w = 130.0;
     let (w, h) = (
-        label_w + cell * k as f64 + 30.0,
+        (label_w + cell * k as f64 + 30.0).max(400.0), // at least as wide as the title
         TOP + 30.0 + cell * k as f64 + 40.0,
     );
     let x0 = label_w;
