@@ -111,11 +111,8 @@ impl<'a> Plan<'a> {
             (None, Folds::LeaveOneOut) => Split::LeaveOneOut,
             (None, Folds::K(k)) if k >= trials_per_repeat => Split::LeaveOneOut,
             (None, Folds::K(k)) => {
-                let per_class = if recipe.balance {
-                    smallest
-                } else {
-                    counts[smallest_class]
-                };
+                // The smallest class has the same size whether or not balancing is on.
+                let per_class = smallest;
                 if per_class < k {
                     return Err(Error::Design(format!(
                         "{}: class '{}' has {} trial{}{}, fewer than the {k} folds; choose {} or fewer folds, or \
