@@ -13,6 +13,15 @@ fn temp_dir(name: &str) -> PathBuf {
     dir
 }
 
+/// Fail with the command's stderr unless it exited successfully.
+fn succeeded(out: &std::process::Output) {
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+}
+
 fn sample() -> PathBuf {
     PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("samples/odours.csv")
 }
@@ -38,11 +47,7 @@ fn decode_json(dir: &std::path::Path, name: &str, extra: &[&str]) -> String {
         .args(extra)
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    succeeded(&out);
     std::fs::read_to_string(json).unwrap()
 }
 
@@ -102,11 +107,7 @@ fn a_saved_recipe_reproduces_the_run() {
         .args(["--json", json.to_str().unwrap()])
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    succeeded(&out);
     assert_eq!(first, std::fs::read_to_string(json).unwrap());
     assert!(std::fs::read_to_string(&recipe)
         .unwrap()
@@ -168,11 +169,7 @@ fn predict_uses_the_given_folds() {
         ])
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    succeeded(&out);
     let stdout = String::from_utf8(out.stdout).unwrap();
     let lines: Vec<&str> = stdout.lines().collect();
     assert_eq!(lines[0], "line,fold,true,predicted");
