@@ -26,6 +26,7 @@ pub mod resample;
 pub mod rng;
 pub mod simulate;
 pub mod stats;
+pub mod timecourse;
 
 pub use error::{Error, Result};
 

@@ -4,9 +4,14 @@ use clap::{Args, Parser, Subcommand};
 use indicatif::{ProgressBar, ProgressStyle};
 use popdecode::data::Dataset;
 use popdecode::decoders::Classifier;
-use popdecode::protocol::{predict_with_folds, Outcome, Plan};
-use popdecode::recipe::{Folds, Recipe};
+use popdecode::protocol::{predict_with_folds, Plan, Task};
+use popdecode::recipe::{Folds, Recipe, TimeInput, TimeSettings};
 use popdecode::report::{methods, plots, text, Report};
+use popdecode::timecourse::data::{FileBytes, TimeDataset};
+use popdecode::timecourse::plan::TimePlan;
+use popdecode::timecourse::plots as tc_plots;
+use popdecode::timecourse::report::TimeReport;
+use popdecode::timecourse::text as tc_text;
 use popdecode::Error;
 use rayon::prelude::*;
 use std::path::{Path, PathBuf};
@@ -27,15 +32,24 @@ struct Cli {
 enum Command {
     /// Cross-validated decoding with repeats, class balancing and a label-shuffle control.
     Decode(DecodeArgs),
+    /// Decoding at every time window, with cluster-corrected significance and temporal generalization.
+    Timecourse(Box<TimecourseArgs>),
     /// Cross-validated predictions on fold numbers you supply in a column (no balancing, no repeats).
     Predict(PredictArgs),
 }
 
-/// Flags that choose columns and the decoder, shared by every subcommand.
+/// A trial table and the flags that choose its columns and the decoder.
 #[derive(Args)]
 struct TableArgs {
     /// The trial table (CSV with a header; comma, semicolon or tab separated).
     csv: PathBuf,
+    #[command(flatten)]
+    columns: ColumnArgs,
+}
+
+/// Flags that choose columns and the decoder, shared by every subcommand.
+#[derive(Args)]
+struct ColumnArgs {
     /// Column holding the condition to decode.
     #[arg(long)]
     label: Option<String>,
@@ -60,6 +74,13 @@ struct TableArgs {
 struct DecodeArgs {
     #[command(flatten)]
     table: TableArgs,
+    #[command(flatten)]
+    run: RunArgs,
+}
+
+/// Resampling, statistics and output flags, shared by `decode` and `timecourse`.
+#[derive(Args)]
+struct RunArgs {
     /// Column naming the session, block or day; folds never split a group and shuffles stay within groups.
     #[arg(long)]
     group: Option<String>,
@@ -84,7 +105,7 @@ struct DecodeArgs {
     /// Threads to run tasks on [default: all cores]; results do not depend on it.
     #[arg(long)]
     threads: Option<usize>,
-    /// Write the full result as JSON (schema popdecode-result/1).
+    /// Write the full result as JSON.
     #[arg(long)]
     json: Option<PathBuf>,
     /// Read settings from a recipe file; flags given as well override it.
@@ -93,12 +114,59 @@ struct DecodeArgs {
     /// Write the settings used as a recipe file.
     #[arg(long)]
     save_recipe: Option<PathBuf>,
-    /// Write the figures (scores.svg, null.svg, confusion.svg) into this folder.
+    /// Write the figures (SVG; for a time course also the curve and matrix as CSV) into this folder.
     #[arg(long)]
     plots: Option<PathBuf>,
     /// Print no progress bar.
     #[arg(long)]
     quiet: bool,
+}
+
+/// Decoding at every time window: a binned table (one row per trial × bin), or spike events with a trial table.
+#[derive(Args)]
+struct TimecourseArgs {
+    /// The binned table: one row per trial and time bin (omit with --events).
+    csv: Option<PathBuf>,
+    /// Spike events CSV: one row per spike with trial, neuron and time (s) columns.
+    #[arg(long, requires = "trials", conflicts_with = "csv")]
+    events: Option<PathBuf>,
+    /// Trial table CSV for --events: trial, label, optional group and alignment columns.
+    #[arg(long, requires = "events")]
+    trials: Option<PathBuf>,
+    /// Trial id column (binned table; events file and trial table) [default: trial].
+    #[arg(long)]
+    trial: Option<String>,
+    /// Bin time column of the binned table, or spike time column of the events file, in s [default: time].
+    #[arg(long)]
+    time: Option<String>,
+    /// Neuron column of the events file [default: neuron].
+    #[arg(long)]
+    neuron: Option<String>,
+    /// Trial-table column with each trial's alignment time (s), when spike times are on one session clock.
+    #[arg(long)]
+    align: Option<String>,
+    /// Window width, s [default: 0.1].
+    #[arg(long)]
+    width: Option<f64>,
+    /// Step between window starts, s [default: 0.05].
+    #[arg(long)]
+    step: Option<f64>,
+    /// Start of the first window relative to alignment, s.
+    #[arg(long, allow_hyphen_values = true)]
+    start: Option<f64>,
+    /// No window extends past this time relative to alignment, s.
+    #[arg(long, allow_hyphen_values = true)]
+    end: Option<f64>,
+    /// Also train at every window and test at every window (temporal generalization matrix).
+    #[arg(long)]
+    generalize: bool,
+    /// Clusters with a permutation p below this are significant [default: 0.05].
+    #[arg(long)]
+    alpha: Option<f64>,
+    #[command(flatten)]
+    columns: ColumnArgs,
+    #[command(flatten)]
+    run: RunArgs,
 }
 
 #[derive(Args)]
@@ -131,6 +199,7 @@ fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
         Command::Decode(args) => decode(args),
+        Command::Timecourse(args) => timecourse(*args),
         Command::Predict(args) => predict(args),
     };
     match result {
@@ -159,8 +228,8 @@ fn display_name(path: &Path) -> String {
     )
 }
 
-/// Apply the table flags to a recipe.
-fn apply_table_flags(recipe: &mut Recipe, t: &TableArgs) {
+/// Apply the column and decoder flags to a recipe.
+fn apply_column_flags(recipe: &mut Recipe, t: &ColumnArgs) {
     if let Some(l) = &t.label {
         recipe.columns.label = l.clone();
     }
@@ -179,66 +248,220 @@ fn apply_table_flags(recipe: &mut Recipe, t: &TableArgs) {
     }
 }
 
-fn decode(args: DecodeArgs) -> Result<(), String> {
-    let mut recipe = match &args.recipe {
+/// The recipe a run starts from: a recipe file, or the defaults for the label column.
+fn base_recipe(run: &RunArgs, columns: &ColumnArgs) -> Result<Recipe, String> {
+    let mut recipe = match &run.recipe {
         Some(path) => {
             let text = String::from_utf8_lossy(&read(path)?).into_owned();
-            Recipe::from_json(&display_name(path), &text).map_err(|e| e.to_string())?
+            Recipe::from_json(&display_name(path), &text).map_err(show)?
         }
         None => Recipe::new(
-            args.table
+            columns
                 .label
                 .as_deref()
                 .ok_or("name the label column with --label <COLUMN>")?,
         ),
     };
-    apply_table_flags(&mut recipe, &args.table);
-    if let Some(g) = &args.group {
+    apply_column_flags(&mut recipe, columns);
+    if let Some(g) = &run.group {
         recipe.columns.group = Some(g.clone());
     }
-    if let Some(f) = args.folds {
+    if let Some(f) = run.folds {
         recipe.folds = f;
     }
-    if let Some(r) = args.repeats {
+    if let Some(r) = run.repeats {
         recipe.repeats = r;
     }
-    if let Some(s) = args.shuffles {
+    if let Some(s) = run.shuffles {
         recipe.shuffles = s;
     }
-    if args.shuffle_repeats.is_some() {
-        recipe.shuffle_repeats = args.shuffle_repeats;
+    if run.shuffle_repeats.is_some() {
+        recipe.shuffle_repeats = run.shuffle_repeats;
     }
-    recipe.balance &= !args.no_balance;
-    if let Some(s) = args.seed {
+    recipe.balance &= !run.no_balance;
+    if let Some(s) = run.seed {
         recipe.seed = s;
     }
-    recipe.validate().map_err(|e| e.to_string())?;
+    Ok(recipe)
+}
 
+/// Write the JSON, the recipe and the figures a run asked for.
+fn write_outputs(
+    run: &RunArgs,
+    recipe: &Recipe,
+    json: &str,
+    figures: &[(&str, Option<String>)],
+) -> Result<(), String> {
+    if let Some(path) = &run.json {
+        write(path, &(json.to_string() + "\n"))?;
+    }
+    if let Some(path) = &run.save_recipe {
+        write(path, &(recipe.to_json() + "\n"))?;
+    }
+    if let Some(dir) = &run.plots {
+        std::fs::create_dir_all(dir)
+            .map_err(|e| format!("{}: cannot create the folder: {e}", dir.display()))?;
+        for (name, contents) in figures {
+            if let Some(c) = contents {
+                write(&dir.join(name), c)?;
+            }
+        }
+    }
+    Ok(())
+}
+
+fn decode(args: DecodeArgs) -> Result<(), String> {
+    let recipe = base_recipe(&args.run, &args.table.columns)?;
+    if recipe.time.is_some() {
+        return Err("this recipe is for a time course; run it with 'popdecode timecourse'".into());
+    }
+    recipe.validate().map_err(show)?;
     let bytes = read(&args.table.csv)?;
     let data =
         Dataset::from_csv(&display_name(&args.table.csv), &bytes, &recipe.columns).map_err(show)?;
     let plan = Plan::new(&data, &recipe).map_err(show)?;
-    let outcomes = run_tasks(&plan, args.threads, args.quiet)?;
+    let tasks = plan.tasks();
+    let costs: Vec<usize> = tasks.iter().map(|&t| plan.fits_in(t)).collect();
+    let outcomes = run_tasks(&tasks, &costs, |t| plan.run(t), &args.run)?;
     let report = Report::build(&plan, &outcomes);
 
     print!("{}", text::render(&report));
     println!("\nMethods:\n{}", methods::paragraph(&report));
-    if let Some(path) = &args.json {
-        write(path, &(report.to_json() + "\n"))?;
-    }
-    if let Some(path) = &args.save_recipe {
-        write(path, &(recipe.to_json() + "\n"))?;
-    }
-    if let Some(dir) = &args.plots {
-        std::fs::create_dir_all(dir)
-            .map_err(|e| format!("{}: cannot create the folder: {e}", dir.display()))?;
-        write(&dir.join("scores.svg"), &plots::score_distribution(&report))?;
-        write(&dir.join("confusion.svg"), &plots::confusion(&report))?;
-        if let Some(null) = plots::null_distribution(&report) {
-            write(&dir.join("null.svg"), &null)?;
+    write_outputs(
+        &args.run,
+        &recipe,
+        &report.to_json(),
+        &[
+            ("scores.svg", Some(plots::score_distribution(&report))),
+            ("confusion.svg", Some(plots::confusion(&report))),
+            ("null.svg", plots::null_distribution(&report)),
+        ],
+    )
+}
+
+/// The time settings: from the recipe file when it has them, with every flag given applied on top.
+fn time_settings(
+    args: &TimecourseArgs,
+    from_recipe: Option<TimeSettings>,
+) -> Result<TimeSettings, String> {
+    let trial = args.trial.clone();
+    let mut settings = match (&args.events, &args.csv, from_recipe) {
+        (Some(_), _, Some(t @ TimeSettings { input: TimeInput::Events { .. }, .. })) => t,
+        (None, Some(_), Some(t @ TimeSettings { input: TimeInput::Binned { .. }, .. })) => t,
+        (Some(_), _, _) => {
+            let (start, end) = match (args.start, args.end) {
+                (Some(s), Some(e)) => (s, e),
+                _ => {
+                    return Err(
+                        "with --events, give the analysis span with --start and --end (s from alignment)".into(),
+                    )
+                }
+            };
+            TimeSettings::events(start, end)
+        }
+        (None, Some(_), _) => TimeSettings::binned("trial", "time"),
+        (None, None, _) => {
+            return Err(
+                "give a binned table (popdecode timecourse TABLE.csv ...) or --events EVENTS.csv --trials TRIALS.csv"
+                    .into(),
+            )
+        }
+    };
+    match &mut settings.input {
+        TimeInput::Binned { trial: tr, time } => {
+            if let Some(t) = trial {
+                *tr = t;
+            }
+            if let Some(t) = &args.time {
+                *time = t.clone();
+            }
+            if args.neuron.is_some()
+                || args.align.is_some()
+                || args.width.is_some()
+                || args.step.is_some()
+            {
+                return Err("--neuron, --align, --width and --step apply to spike events (--events), not to a \
+                            binned table, whose bins are the windows"
+                    .into());
+            }
+        }
+        TimeInput::Events {
+            trial: tr,
+            neuron,
+            time,
+            align,
+            width,
+            step,
+            start,
+            end,
+        } => {
+            if let Some(t) = trial {
+                *tr = t;
+            }
+            if let Some(t) = &args.time {
+                *time = t.clone();
+            }
+            if let Some(n) = &args.neuron {
+                *neuron = n.clone();
+            }
+            if args.align.is_some() {
+                *align = args.align.clone();
+            }
+            *width = args.width.unwrap_or(*width);
+            *step = args.step.unwrap_or(*step);
+            *start = args.start.unwrap_or(*start);
+            *end = args.end.unwrap_or(*end);
         }
     }
-    Ok(())
+    settings.generalize |= args.generalize;
+    if let Some(a) = args.alpha {
+        settings.alpha = a;
+    }
+    Ok(settings)
+}
+
+fn timecourse(args: TimecourseArgs) -> Result<(), String> {
+    let mut recipe = base_recipe(&args.run, &args.columns)?;
+    if recipe.columns.drop_missing {
+        return Err(
+            "a time course needs every value; --drop-missing applies to trial tables only".into(),
+        );
+    }
+    recipe.time = Some(time_settings(&args, recipe.time.take())?);
+    recipe.validate().map_err(show)?;
+    let paths: Vec<&PathBuf> = match (&args.events, &args.trials, &args.csv) {
+        (Some(e), Some(t), _) => vec![e, t],
+        (_, _, Some(c)) => vec![c],
+        _ => unreachable!("time_settings checked the inputs"),
+    };
+    let contents: Vec<(String, Vec<u8>)> = paths
+        .iter()
+        .map(|p| Ok((display_name(p), read(p)?)))
+        .collect::<Result<_, String>>()?;
+    let files: Vec<FileBytes> = contents
+        .iter()
+        .map(|(name, bytes)| FileBytes { name, bytes })
+        .collect();
+    let settings = recipe.time.as_ref().expect("set above");
+    let data = TimeDataset::load(&files, &recipe.columns, &settings.input).map_err(show)?;
+    let plan = TimePlan::new(&data, &recipe).map_err(show)?;
+    let tasks = plan.tasks();
+    let costs: Vec<usize> = tasks.iter().map(|&t| plan.fits_in(t)).collect();
+    let outcomes = run_tasks(&tasks, &costs, |t| plan.run(t), &args.run)?;
+    let report = TimeReport::build(&plan, &outcomes);
+    print!("{}", tc_text::render(&report));
+    println!("\nMethods:\n{}", tc_text::methods(&report));
+    write_outputs(
+        &args.run,
+        &recipe,
+        &report.to_json(),
+        &[
+            ("curve.svg", Some(tc_plots::curve(&report))),
+            ("curve.csv", Some(tc_text::curve_csv(&report))),
+            ("generalization.svg", tc_plots::generalization(&report)),
+            ("generalization.csv", tc_text::generalization_csv(&report)),
+        ],
+    )
 }
 
 fn show(e: Error) -> String {
@@ -246,10 +469,14 @@ fn show(e: Error) -> String {
 }
 
 /// Run every task on a rayon pool. Outcomes are collected by task, so the thread count cannot change them.
-fn run_tasks(plan: &Plan, threads: Option<usize>, quiet: bool) -> Result<Vec<Outcome>, String> {
-    let tasks = plan.tasks();
-    let total: usize = tasks.iter().map(|&t| plan.fits_in(t)).sum();
-    let bar = if quiet {
+fn run_tasks<O: Send>(
+    tasks: &[Task],
+    costs: &[usize],
+    run: impl Fn(Task) -> O + Sync,
+    args: &RunArgs,
+) -> Result<Vec<O>, String> {
+    let total: usize = costs.iter().sum();
+    let bar = if args.quiet {
         ProgressBar::hidden()
     } else {
         ProgressBar::new(total as u64)
@@ -261,7 +488,7 @@ fn run_tasks(plan: &Plan, threads: Option<usize>, quiet: bool) -> Result<Vec<Out
         .expect("valid template"),
     );
     let mut builder = rayon::ThreadPoolBuilder::new();
-    if let Some(n) = threads {
+    if let Some(n) = args.threads {
         if n == 0 {
             return Err("--threads must be at least 1".into());
         }
@@ -273,9 +500,10 @@ fn run_tasks(plan: &Plan, threads: Option<usize>, quiet: bool) -> Result<Vec<Out
     let outcomes = pool.install(|| {
         tasks
             .par_iter()
-            .map(|&t| {
-                let o = plan.run(t);
-                bar.inc(plan.fits_in(t) as u64);
+            .zip(costs)
+            .map(|(&t, &cost)| {
+                let o = run(t);
+                bar.inc(cost as u64);
                 o
             })
             .collect()
@@ -287,11 +515,12 @@ fn run_tasks(plan: &Plan, threads: Option<usize>, quiet: bool) -> Result<Vec<Out
 fn predict(args: PredictArgs) -> Result<(), String> {
     let mut recipe = Recipe::new(
         args.table
+            .columns
             .label
             .as_deref()
             .ok_or("name the label column with --label <COLUMN>")?,
     );
-    apply_table_flags(&mut recipe, &args.table);
+    apply_column_flags(&mut recipe, &args.table.columns);
     recipe.columns.ignore.push(args.fold_column.clone());
     let bytes = read(&args.table.csv)?;
     let name = display_name(&args.table.csv);

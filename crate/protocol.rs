@@ -63,24 +63,56 @@ pub enum Split {
     LeaveOneGroupOut,
 }
 
-/// A recipe checked against a dataset, ready to run tasks.
-pub struct Plan<'a> {
-    pub data: &'a Dataset,
-    pub recipe: Recipe,
+/// Who the trials are, without their activity: all that resampling and the design checks need.
+#[derive(Debug, Clone, Copy)]
+pub struct Trials<'a> {
+    pub source: &'a str,
+    pub y: &'a [usize],
+    pub classes: &'a [String],
+    pub groups: Option<&'a [usize]>,
+    pub group_names: &'a [String],
+    pub group_column: Option<&'a str>,
+}
+
+impl Trials<'_> {
+    fn class_counts(&self) -> Vec<usize> {
+        let mut counts = vec![0; self.classes.len()];
+        for &c in self.y {
+            counts[c] += 1;
+        }
+        counts
+    }
+}
+
+/// The resampling scheme of a recipe, resolved against the trials: how folds are made, which score leads, and what
+/// the user should know. Shared by every kind of analysis, so that a trial table and a time-resolved recording are
+/// balanced and split by exactly the same rules.
+#[derive(Debug, Clone)]
+pub struct Scheme {
     pub split: Split,
     pub headline: Headline,
     /// Trials entering each repeat (after balancing).
     pub trials_per_repeat: usize,
     pub warnings: Vec<String>,
-    decoder: Box<dyn Decoder>,
-    x: Vec<f64>,
+    balance: bool,
+    n_classes: usize,
+    n_groups: usize,
 }
 
-impl<'a> Plan<'a> {
-    pub fn new(data: &'a Dataset, recipe: &Recipe) -> Result<Plan<'a>> {
+/// One repeat's draw: the trials used (indices into the data), their labels, and the fold of each.
+pub struct Draw {
+    pub used: Vec<usize>,
+    pub y: Vec<usize>,
+    pub fold: Vec<usize>,
+    pub folds: usize,
+}
+
+impl Scheme {
+    /// Check the recipe against the trials (every design error is raised here, once) and resolve the split.
+    pub fn resolve(t: &Trials, recipe: &Recipe) -> Result<Scheme> {
         recipe.validate()?;
-        let n_classes = data.classes.len();
-        let counts = data.class_counts();
+        let n_classes = t.classes.len();
+        let counts = t.class_counts();
         let smallest = *counts.iter().min().expect("at least two classes");
         let (smallest_class, _) = counts
             .iter()
@@ -90,17 +122,17 @@ impl<'a> Plan<'a> {
         let trials_per_repeat = if recipe.balance {
             smallest * n_classes
         } else {
-            data.n_trials()
+            t.y.len()
         };
-        let mut warnings = data.warnings.clone();
-        let split = match (&data.groups, recipe.folds) {
+        let mut warnings = Vec::new();
+        let split = match (&t.groups, recipe.folds) {
             (Some(_), folds) => {
-                let n_groups = data.group_names.len();
+                let n_groups = t.group_names.len();
                 if n_groups < 2 {
                     return Err(Error::Design(format!(
                         "{}: the group column '{}' holds a single group; grouped folds need at least two",
-                        data.source,
-                        data.group_column.as_deref().unwrap_or("")
+                        t.source,
+                        t.group_column.unwrap_or("")
                     )));
                 }
                 match folds {
@@ -117,8 +149,8 @@ impl<'a> Plan<'a> {
                     return Err(Error::Design(format!(
                         "{}: class '{}' has {} trial{}{}, fewer than the {k} folds; choose {} or fewer folds, or \
                          leave-one-out",
-                        data.source,
-                        data.classes[smallest_class],
+                        t.source,
+                        t.classes[smallest_class],
                         per_class,
                         if per_class == 1 { "" } else { "s" },
                         if recipe.balance { " (the size every class is balanced to)" } else { "" },
@@ -128,10 +160,10 @@ impl<'a> Plan<'a> {
                 Split::Stratified { folds: k }
             }
         };
-        if let (Some(groups), Split::LeaveOneGroupOut) = (&data.groups, split) {
-            for (g, name) in data.group_names.iter().enumerate() {
+        if let (Some(groups), Split::LeaveOneGroupOut) = (t.groups, split) {
+            for (g, name) in t.group_names.iter().enumerate() {
                 let mut others = vec![false; n_classes];
-                for (i, &c) in data.y.iter().enumerate() {
+                for (i, &c) in t.y.iter().enumerate() {
                     if groups[i] != g {
                         others[c] = true;
                     }
@@ -140,20 +172,19 @@ impl<'a> Plan<'a> {
                     return Err(Error::Design(format!(
                         "{}: leaving out group '{name}' leaves a single class to train on; with groups, every \
                          training fold needs at least two classes",
-                        data.source
+                        t.source
                     )));
                 }
             }
         }
         if recipe.shuffles > 0 {
-            if let Some(groups) = &data.groups {
-                let varies = (0..data.group_names.len()).any(|g| {
-                    let mut labels = data
-                        .y
-                        .iter()
-                        .zip(groups)
-                        .filter(|(_, &gi)| gi == g)
-                        .map(|(&c, _)| c);
+            if let Some(groups) = t.groups {
+                let varies = (0..t.group_names.len()).any(|g| {
+                    let mut labels =
+                        t.y.iter()
+                            .zip(groups)
+                            .filter(|(_, &gi)| gi == g)
+                            .map(|(&c, _)| c);
                     labels
                         .next()
                         .is_some_and(|first| labels.any(|c| c != first))
@@ -177,14 +208,91 @@ impl<'a> Plan<'a> {
         } else {
             Headline::BalancedAccuracy
         };
-        let x = data.x.as_standard_layout().iter().copied().collect();
-        Ok(Plan {
-            data,
-            recipe: recipe.clone(),
+        Ok(Scheme {
             split,
             headline,
             trials_per_repeat,
             warnings,
+            balance: recipe.balance,
+            n_classes,
+            n_groups: t.group_names.len(),
+        })
+    }
+
+    /// Folds per repeat (for leave-one-out, the trial count; for leave-one-group-out, the group count).
+    pub fn folds(&self) -> usize {
+        match self.split {
+            Split::Stratified { folds } | Split::Grouped { folds } => folds,
+            Split::LeaveOneOut => self.trials_per_repeat,
+            Split::LeaveOneGroupOut => self.n_groups,
+        }
+    }
+
+    /// Balance (if asked) and split, for `labels` (observed or permuted), from the task's own random stream.
+    pub fn draw(&self, labels: &[usize], groups: Option<&[usize]>, rng: &mut impl RngCore) -> Draw {
+        let used: Vec<usize> = if self.balance {
+            balance(rng, labels, self.n_classes)
+        } else {
+            (0..labels.len()).collect()
+        };
+        let y: Vec<usize> = used.iter().map(|&i| labels[i]).collect();
+        let grouped = |rng: &mut _, k: usize| {
+            let g = groups.expect("grouped splits exist only with groups");
+            let g_used: Vec<usize> = used.iter().map(|&i| g[i]).collect();
+            grouped_folds(rng, &g_used, self.n_groups, k)
+        };
+        let (fold, folds) = match self.split {
+            Split::Stratified { folds } => {
+                (stratified_folds(rng, &y, self.n_classes, folds), folds)
+            }
+            Split::LeaveOneOut => ((0..used.len()).collect(), used.len()),
+            Split::Grouped { folds } => grouped(rng, folds),
+            Split::LeaveOneGroupOut => grouped(rng, usize::MAX),
+        };
+        Draw {
+            used,
+            y,
+            fold,
+            folds,
+        }
+    }
+
+    /// The score a run is judged by, from accuracy and balanced accuracy.
+    pub fn headline_of(&self, accuracy: f64, balanced_accuracy: f64) -> f64 {
+        match self.headline {
+            Headline::Accuracy => accuracy,
+            Headline::BalancedAccuracy => balanced_accuracy,
+        }
+    }
+}
+
+impl Draw {
+    /// Training and test positions (into `used`) of fold `f`.
+    pub fn partition(&self, f: usize) -> (Vec<usize>, Vec<usize>) {
+        (0..self.used.len()).partition(|&pos| self.fold[pos] != f)
+    }
+}
+
+/// A recipe checked against a dataset, ready to run tasks.
+pub struct Plan<'a> {
+    pub data: &'a Dataset,
+    pub recipe: Recipe,
+    pub scheme: Scheme,
+    decoder: Box<dyn Decoder>,
+    x: Vec<f64>,
+}
+
+impl<'a> Plan<'a> {
+    pub fn new(data: &'a Dataset, recipe: &Recipe) -> Result<Plan<'a>> {
+        let mut scheme = Scheme::resolve(&data.trials(), recipe)?;
+        let mut warnings = data.warnings.clone();
+        warnings.append(&mut scheme.warnings);
+        scheme.warnings = warnings;
+        let x = data.x.as_standard_layout().iter().copied().collect();
+        Ok(Plan {
+            data,
+            recipe: recipe.clone(),
+            scheme,
             decoder: recipe.classifier.build(recipe.c),
             x,
         })
@@ -200,11 +308,7 @@ impl<'a> Plan<'a> {
 
     /// Fits one task performs (for progress bars): folds × repeats.
     pub fn fits_in(&self, task: Task) -> usize {
-        let folds = match self.split {
-            Split::Stratified { folds } | Split::Grouped { folds } => folds,
-            Split::LeaveOneOut => self.trials_per_repeat,
-            Split::LeaveOneGroupOut => self.data.group_names.len(),
-        };
+        let folds = self.scheme.folds();
         match task {
             Task::Repeat(_) => folds,
             Task::Shuffle(_) => folds * self.recipe.shuffle_repeats(),
@@ -246,40 +350,16 @@ impl<'a> Plan<'a> {
 
     /// The headline score of an outcome.
     pub fn headline_score(&self, o: &Outcome) -> f64 {
-        match self.headline {
-            Headline::Accuracy => o.accuracy,
-            Headline::BalancedAccuracy => o.balanced_accuracy,
-        }
+        self.scheme.headline_of(o.accuracy, o.balanced_accuracy)
     }
 
     fn one_repeat(&self, labels: &[usize], rng: &mut impl RngCore) -> Outcome {
-        let n_classes = self.data.classes.len();
-        let used: Vec<usize> = if self.recipe.balance {
-            balance(rng, labels, n_classes)
-        } else {
-            (0..labels.len()).collect()
-        };
-        let y: Vec<usize> = used.iter().map(|&i| labels[i]).collect();
-        let grouped = |rng: &mut _, k: usize| {
-            let g = self
-                .data
-                .groups
-                .as_ref()
-                .expect("grouped splits exist only with groups");
-            let g_used: Vec<usize> = used.iter().map(|&i| g[i]).collect();
-            grouped_folds(rng, &g_used, self.data.group_names.len(), k)
-        };
-        let (fold, k) = match self.split {
-            Split::Stratified { folds } => (stratified_folds(rng, &y, n_classes, folds), folds),
-            Split::LeaveOneOut => ((0..used.len()).collect(), used.len()),
-            Split::Grouped { folds } => grouped(rng, folds),
-            Split::LeaveOneGroupOut => grouped(rng, usize::MAX),
-        };
-        let predicted = self.cross_validate(&used, &y, &fold, k);
+        let draw = self.scheme.draw(labels, self.data.groups.as_deref(), rng);
+        let predicted = self.cross_validate(&draw);
         score(
-            &y,
+            &draw.y,
             &predicted.labels,
-            n_classes,
+            self.data.classes.len(),
             predicted.fits,
             predicted.capped,
             predicted.single_class,
@@ -287,14 +367,14 @@ impl<'a> Plan<'a> {
     }
 
     /// Fit on every fold but one, predict that one; returns a prediction per position of `used`.
-    fn cross_validate(&self, used: &[usize], y: &[usize], fold: &[usize], k: usize) -> Predictions {
+    fn cross_validate(&self, draw: &Draw) -> Predictions {
         let p = self.data.n_features();
         let n_classes = self.data.classes.len();
+        let (used, y) = (&draw.used, &draw.y);
         let mut labels = vec![usize::MAX; used.len()];
         let (mut fits, mut capped, mut single_class) = (0, 0, 0);
-        for f in 0..k {
-            let (train, test): (Vec<usize>, Vec<usize>) =
-                (0..used.len()).partition(|&pos| fold[pos] != f);
+        for f in 0..draw.folds {
+            let (train, test) = draw.partition(f);
             if test.is_empty() || train.is_empty() {
                 continue;
             }
@@ -350,8 +430,7 @@ impl Outcome {
     }
 }
 
-/// Pool predictions into a confusion matrix, accuracy and balanced accuracy (mean recall over the classes present
-/// among the test trials).
+/// Pool predictions into a confusion matrix, accuracy and balanced accuracy.
 fn score(
     y: &[usize],
     predicted: &[usize],
@@ -360,28 +439,36 @@ fn score(
     capped: u32,
     single: u32,
 ) -> Outcome {
-    let mut confusion = vec![vec![0u32; n_classes]; n_classes];
+    let mut flat = vec![0u32; n_classes * n_classes];
     for (&t, &p) in y.iter().zip(predicted) {
-        confusion[t][p] += 1;
+        flat[t * n_classes + p] += 1;
     }
-    let correct: u32 = (0..n_classes).map(|c| confusion[c][c]).sum();
-    let recalls: Vec<f64> = confusion
-        .iter()
-        .enumerate()
-        .filter_map(|(c, row)| {
-            let total: u32 = row.iter().sum();
-            (total > 0).then(|| row[c] as f64 / total as f64)
-        })
-        .collect();
+    let (accuracy, balanced_accuracy) = accuracies(&flat, n_classes);
     Outcome {
         task: Task::Repeat(0),
-        accuracy: correct as f64 / y.len() as f64,
-        balanced_accuracy: recalls.iter().sum::<f64>() / recalls.len() as f64,
-        confusion,
+        accuracy,
+        balanced_accuracy,
+        confusion: flat.chunks(n_classes).map(<[u32]>::to_vec).collect(),
         fits,
         capped_fits: capped,
         single_class_fits: single,
     }
+}
+
+/// Accuracy and balanced accuracy (mean recall over the classes present among the test trials) of row-major
+/// confusion counts (rows = true class).
+pub fn accuracies(confusion: &[u32], n_classes: usize) -> (f64, f64) {
+    let (mut correct, mut total, mut recall_sum, mut present) = (0u64, 0u64, 0.0, 0usize);
+    for (c, row) in confusion.chunks_exact(n_classes).enumerate() {
+        let in_class: u32 = row.iter().sum();
+        correct += u64::from(row[c]);
+        total += u64::from(in_class);
+        if in_class > 0 {
+            recall_sum += row[c] as f64 / in_class as f64;
+            present += 1;
+        }
+    }
+    (correct as f64 / total as f64, recall_sum / present as f64)
 }
 
 /// Cross-validated predictions on fold assignments the caller supplies (one fold number per trial).

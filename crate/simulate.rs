@@ -139,3 +139,171 @@ pub fn csv(s: &Scenario) -> String {
     }
     out
 }
+
+/// An invented time-resolved recording: odour identity is carried only between `info_start` and `info_end`
+/// seconds after odour onset, by a fraction of the units. Everything else is baseline firing.
+#[derive(Debug, Clone)]
+pub struct TimeScenario {
+    pub classes: Vec<String>,
+    pub trials_per_class: usize,
+    pub units: usize,
+    /// SD of the log-rate tuning to odour inside the informative period.
+    pub tuning: f64,
+    pub tuned_fraction: f64,
+    pub info_start: f64,
+    pub info_end: f64,
+    /// Recorded span around odour onset, s.
+    pub start: f64,
+    pub end: f64,
+    pub sessions: usize,
+    /// Write spike times on one session clock, with each trial's onset time in the trial table.
+    pub absolute_times: bool,
+    pub seed: u64,
+}
+
+impl TimeScenario {
+    /// Three odours, 40 trials each, 24 units, information from 0.2 to 0.6 s after onset, recorded -0.5 to 1 s.
+    pub fn odours() -> TimeScenario {
+        TimeScenario {
+            classes: ["citral", "eugenol", "hexanal"].map(String::from).to_vec(),
+            trials_per_class: 40,
+            units: 24,
+            tuning: 0.6,
+            tuned_fraction: 0.5,
+            info_start: 0.2,
+            info_end: 0.6,
+            start: -0.5,
+            end: 1.0,
+            sessions: 3,
+            absolute_times: false,
+            seed: 2027,
+        }
+    }
+
+    fn baseline_and_tuning(&self, rng: &mut impl rand_core::RngCore) -> (Vec<f64>, Vec<Vec<f64>>) {
+        let baseline: Vec<f64> = (0..self.units)
+            .map(|_| 4.0 + 16.0 * crate::rng::unit(rng))
+            .collect();
+        let tuned = (self.units as f64 * self.tuned_fraction).round() as usize;
+        let tuning = (0..self.classes.len())
+            .map(|_| {
+                (0..self.units)
+                    .map(|u| {
+                        if u < tuned {
+                            self.tuning * normal(rng)
+                        } else {
+                            0.0
+                        }
+                    })
+                    .collect()
+            })
+            .collect();
+        (baseline, tuning)
+    }
+
+    /// Trial order (class of each trial), shuffled.
+    fn order(&self, rng: &mut impl rand_core::RngCore) -> Vec<usize> {
+        let mut order: Vec<usize> = (0..self.classes.len())
+            .flat_map(|c| std::iter::repeat_n(c, self.trials_per_class))
+            .collect();
+        shuffle(rng, &mut order);
+        order
+    }
+}
+
+/// The two files of a spike-event recording.
+pub struct EventFiles {
+    /// `trial,neuron,time`: one row per spike.
+    pub events: String,
+    /// `trial,odour,session[,onset]`: one row per trial.
+    pub trials: String,
+}
+
+/// Spike trains as inhomogeneous Poisson processes with piecewise-constant rates, times rounded to 0.1 ms.
+pub fn spike_events(s: &TimeScenario) -> EventFiles {
+    let mut rng = task_rng(s.seed, Stream::Simulation, 1, 0);
+    let (baseline, tuning) = s.baseline_and_tuning(&mut rng);
+    let order = s.order(&mut rng);
+    let mut events = String::from("trial,neuron,time\n");
+    let mut trials = format!(
+        "trial,odour,session{}\n",
+        if s.absolute_times { ",onset" } else { "" }
+    );
+    let segments = [
+        (s.start, s.info_start, false),
+        (s.info_start, s.info_end, true),
+        (s.info_end, s.end, false),
+    ];
+    for (t, &c) in order.iter().enumerate() {
+        let id = format!("tr{:03}", t + 1);
+        let session = t * s.sessions.max(1) / order.len() + 1;
+        // Trials 4 s apart on the session clock, onset 1 s into each.
+        let onset = if s.absolute_times {
+            4.0 * t as f64 + 1.0
+        } else {
+            0.0
+        };
+        write!(trials, "{id},{},s{session}", s.classes[c]).unwrap();
+        if s.absolute_times {
+            write!(trials, ",{onset}").unwrap();
+        }
+        trials.push('\n');
+        for u in 0..s.units {
+            let mut times = Vec::new();
+            for &(a, b, informative) in &segments {
+                let gain = if informative {
+                    libm::exp(tuning[c][u])
+                } else {
+                    1.0
+                };
+                let n = poisson(&mut rng, baseline[u] * gain * (b - a));
+                for _ in 0..n {
+                    times.push(a + (b - a) * crate::rng::unit(&mut rng));
+                }
+            }
+            times.sort_by(f64::total_cmp);
+            for time in times {
+                writeln!(events, "{id},u{:02},{:.4}", u + 1, time + onset).unwrap();
+            }
+        }
+    }
+    EventFiles { events, trials }
+}
+
+/// A binned table (one row per trial × bin of `bin` seconds): Poisson counts at each bin's rate, written in Hz.
+pub fn binned(s: &TimeScenario, bin: f64) -> String {
+    let mut rng = task_rng(s.seed, Stream::Simulation, 2, 0);
+    let (baseline, tuning) = s.baseline_and_tuning(&mut rng);
+    let order = s.order(&mut rng);
+    let bins = ((s.end - s.start) / bin).round() as usize;
+    let mut out = String::from("trial,time,odour,session");
+    for u in 0..s.units {
+        write!(out, ",u{:02}", u + 1).unwrap();
+    }
+    out.push('\n');
+    for (t, &c) in order.iter().enumerate() {
+        let session = t * s.sessions.max(1) / order.len() + 1;
+        for b in 0..bins {
+            let centre = s.start + (b as f64 + 0.5) * bin;
+            write!(
+                out,
+                "tr{:03},{centre:.4},{},s{session}",
+                t + 1,
+                s.classes[c]
+            )
+            .unwrap();
+            let informative = centre >= s.info_start && centre < s.info_end;
+            for u in 0..s.units {
+                let gain = if informative {
+                    libm::exp(tuning[c][u])
+                } else {
+                    1.0
+                };
+                let n = poisson(&mut rng, baseline[u] * gain * bin);
+                write!(out, ",{}", n as f64 / bin).unwrap();
+            }
+            out.push('\n');
+        }
+    }
+    out
+}

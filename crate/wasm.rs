@@ -101,8 +101,8 @@ pub fn prepare(name: &str, bytes: &[u8], recipe_json: &str) -> Result<String, Js
         "class_counts": data.class_counts(),
         "features": data.n_features(),
         "trials": data.n_trials(),
-        "trials_per_repeat": plan.trials_per_repeat,
-        "warnings": plan.warnings,
+        "trials_per_repeat": plan.scheme.trials_per_repeat,
+        "warnings": plan.scheme.warnings,
     })
     .to_string())
 }

@@ -1,6 +1,6 @@
 //! Writes the invented demo tables in `samples/`: `cargo run --release --example make-samples`.
 
-use popdecode::simulate::{csv, Scenario};
+use popdecode::simulate::{binned, csv, spike_events, Scenario, TimeScenario};
 
 fn main() -> std::io::Result<()> {
     let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("samples");
@@ -14,6 +14,13 @@ fn main() -> std::io::Result<()> {
         ..Scenario::odours()
     };
     std::fs::write(dir.join("odours_blocked.csv"), csv(&blocked))?;
+    let timed = spike_events(&TimeScenario::odours());
+    std::fs::write(dir.join("odour_spikes.csv"), timed.events)?;
+    std::fs::write(dir.join("odour_trials.csv"), timed.trials)?;
+    std::fs::write(
+        dir.join("odours_binned.csv"),
+        binned(&TimeScenario::odours(), 0.1),
+    )?;
     println!("wrote {}", dir.display());
     Ok(())
 }

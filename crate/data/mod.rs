@@ -7,6 +7,7 @@ pub mod labels;
 pub mod table;
 
 use crate::error::{Error, Result};
+use crate::protocol::Trials;
 use ndarray::Array2;
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
@@ -189,6 +190,18 @@ impl Dataset {
 
     pub fn n_trials(&self) -> usize {
         self.y.len()
+    }
+
+    /// The trials' labels and groups, as resampling sees them.
+    pub fn trials(&self) -> Trials<'_> {
+        Trials {
+            source: &self.source,
+            y: &self.y,
+            classes: &self.classes,
+            groups: self.groups.as_deref(),
+            group_names: &self.group_names,
+            group_column: self.group_column.as_deref(),
+        }
     }
 
     pub fn n_features(&self) -> usize {

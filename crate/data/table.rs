@@ -33,68 +33,104 @@ pub enum Cell {
     NotNumber,
 }
 
+/// The header and delimiter of a file read row by row with [`stream`].
+pub struct Header {
+    pub headers: Vec<String>,
+    pub delimiter: u8,
+}
+
+/// Read a delimited file row by row without keeping it: `on_header` sees the checked header first, then `on_row`
+/// gets each non-blank record with the file line it starts on. For files too large to hold as text cells (spike
+/// events); [`Table::parse`] is this plus collecting the rows.
+pub fn stream(
+    source: &str,
+    bytes: &[u8],
+    mut on_header: impl FnMut(&Header) -> Result<()>,
+    mut on_row: impl FnMut(u64, &csv::StringRecord) -> Result<()>,
+) -> Result<Header> {
+    let text = std::str::from_utf8(bytes).map_err(|e| {
+        Error::Input(format!(
+            "{source}: the file is not UTF-8 text (first bad byte at offset {}); save it as UTF-8 CSV",
+            e.valid_up_to()
+        ))
+    })?;
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    if text.trim().is_empty() {
+        return Err(Error::Input(format!("{source}: the file is empty")));
+    }
+    let delimiter = detect_delimiter(text);
+    // The csv crate's own line counter skips blank lines; count from byte offsets instead.
+    let line_starts: Vec<usize> = std::iter::once(0)
+        .chain(text.match_indices('\n').map(|(i, _)| i + 1))
+        .collect();
+    // A record's position is where the previous one ended, before any blank lines: step over those first.
+    let line_of = |byte: u64| {
+        let skip = text.as_bytes().get(byte as usize..).map_or(0, |rest| {
+            rest.iter()
+                .take_while(|&&b| b == b'\n' || b == b'\r')
+                .count()
+        });
+        line_starts.partition_point(|&s| s <= byte as usize + skip) as u64
+    };
+    let mut reader = csv::ReaderBuilder::new()
+        .delimiter(delimiter)
+        .has_headers(true)
+        .flexible(false)
+        .trim(csv::Trim::All)
+        .from_reader(text.as_bytes());
+    let headers: Vec<String> = reader
+        .headers()
+        .map_err(|e| csv_error(source, e, &line_of))?
+        .iter()
+        .map(|h| h.trim().to_string())
+        .collect();
+    check_headers(source, &headers)?;
+    let header = Header { headers, delimiter };
+    on_header(&header)?;
+    let mut record = csv::StringRecord::new();
+    let mut any = false;
+    loop {
+        match reader.read_record(&mut record) {
+            Ok(false) => break,
+            Ok(true) => {}
+            Err(e) => return Err(csv_error(source, e, &line_of)),
+        }
+        if record.iter().all(|c| c.is_empty()) {
+            continue; // a blank line inside the file, as spreadsheets leave at the end
+        }
+        any = true;
+        on_row(record.position().map_or(0, |p| line_of(p.byte())), &record)?;
+    }
+    if !any {
+        return Err(Error::Input(format!(
+            "{source}: the file has a header but no data rows"
+        )));
+    }
+    Ok(header)
+}
+
 impl Table {
     /// Read a whole table from the bytes of a file.
     pub fn parse(source: &str, bytes: &[u8]) -> Result<Table> {
-        let text = std::str::from_utf8(bytes).map_err(|e| {
-            Error::Input(format!(
-                "{source}: the file is not UTF-8 text (first bad byte at offset {}); save it as UTF-8 CSV",
-                e.valid_up_to()
-            ))
-        })?;
-        let text = text.strip_prefix('\u{feff}').unwrap_or(text);
-        if text.trim().is_empty() {
-            return Err(Error::Input(format!("{source}: the file is empty")));
-        }
-        let delimiter = detect_delimiter(text);
-        // The csv crate's own line counter skips blank lines; count from byte offsets instead.
-        let line_starts: Vec<usize> = std::iter::once(0)
-            .chain(text.match_indices('\n').map(|(i, _)| i + 1))
-            .collect();
-        // A record's position is where the previous one ended, before any blank lines: step over those first.
-        let line_of = |byte: u64| {
-            let skip = text.as_bytes().get(byte as usize..).map_or(0, |rest| {
-                rest.iter()
-                    .take_while(|&&b| b == b'\n' || b == b'\r')
-                    .count()
-            });
-            line_starts.partition_point(|&s| s <= byte as usize + skip) as u64
-        };
-        let mut reader = csv::ReaderBuilder::new()
-            .delimiter(delimiter)
-            .has_headers(true)
-            .flexible(false)
-            .trim(csv::Trim::All)
-            .from_reader(text.as_bytes());
-        let headers: Vec<String> = reader
-            .headers()
-            .map_err(|e| csv_error(source, e, &line_of))?
-            .iter()
-            .map(|h| h.trim().to_string())
-            .collect();
-        check_headers(source, &headers)?;
         let mut rows = Vec::new();
         let mut lines = Vec::new();
-        for record in reader.records() {
-            let record = record.map_err(|e| csv_error(source, e, &line_of))?;
-            if record.iter().all(|c| c.is_empty()) {
-                continue; // a blank line inside the file, as spreadsheets leave at the end
-            }
-            lines.push(record.position().map_or(0, |p| line_of(p.byte())));
-            rows.push(record.iter().map(str::to_string).collect());
-        }
-        if rows.is_empty() {
-            return Err(Error::Input(format!(
-                "{source}: the file has a header but no data rows"
-            )));
-        }
+        let header = stream(
+            source,
+            bytes,
+            |_| Ok(()),
+            |line, record| {
+                lines.push(line);
+                rows.push(record.iter().map(str::to_string).collect());
+                Ok(())
+            },
+        )?;
         Ok(Table {
             source: source.to_string(),
-            headers,
+            headers: header.headers,
             rows,
             lines,
-            delimiter,
-            decimal_comma: delimiter == b';',
+            delimiter: header.delimiter,
+            decimal_comma: header.delimiter == b';',
         })
     }
 
@@ -128,11 +164,7 @@ impl Table {
 
     /// The delimiter as a word, for reports.
     pub fn delimiter_name(&self) -> &'static str {
-        match self.delimiter {
-            b';' => "semicolon",
-            b'\t' => "tab",
-            _ => "comma",
-        }
+        delimiter_name(self.delimiter)
     }
 }
 
@@ -159,6 +191,15 @@ pub fn parse_number(s: &str, decimal_comma: bool) -> Cell {
     match parsed {
         Ok(v) if v.is_finite() => Cell::Number(v),
         _ => Cell::NotNumber,
+    }
+}
+
+/// A delimiter as a word, for reports.
+pub fn delimiter_name(delimiter: u8) -> &'static str {
+    match delimiter {
+        b';' => "semicolon",
+        b'\t' => "tab",
+        _ => "comma",
     }
 }
 

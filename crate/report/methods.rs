@@ -2,8 +2,9 @@
 //! and the data's SHA-256, so a reader can re-run the identical analysis.
 
 use super::text::{p_text, pct};
-use super::Report;
+use super::{Design, Report};
 use crate::protocol::{Headline, Split};
+use crate::recipe::Recipe;
 
 pub fn paragraph(r: &Report) -> String {
     let rc = &r.recipe;
@@ -33,37 +34,15 @@ pub fn paragraph(r: &Report) -> String {
             r.input.dropped_lines.len()
         ));
     }
-    let balance = if rc.balance {
-        format!(
-            "classes were balanced by randomly undersampling every class to the size of the smallest ({} trials per \
-             class, {} in all), and ",
-            r.design.trials_per_repeat / r.classes.len(),
-            r.design.trials_per_repeat
-        )
-    } else {
-        String::new()
-    };
     let group = r.input.group_column.as_deref().unwrap_or("");
-    let split = match r.design.split {
-        Split::Stratified { folds } => format!("trials were split into {folds} stratified folds"),
-        Split::LeaveOneOut => "each trial was held out in turn (leave-one-out)".to_string(),
-        Split::Grouped { folds } => format!(
-            "trials were split into {folds} folds that never divided a level of '{group}' ({} levels)",
-            r.input.groups.len()
-        ),
-        Split::LeaveOneGroupOut => {
-            format!("each level of '{group}' was held out in turn ({} levels; leave-one-group-out)", r.input.groups.len())
-        }
-    };
-    s.push(format!(
-        "In each of {} repeats, {balance}{split}.",
-        rc.repeats
+    s.push(resampling(
+        rc,
+        &r.design,
+        r.classes.len(),
+        group,
+        r.input.groups.len(),
     ));
-    s.push(format!(
-        "Within each training fold, every feature was standardised with the mean and standard deviation of the \
-         training trials, which were then applied to the test trials, and the decoder was fitted: {}.",
-        rc.classifier.describe(rc.c)
-    ));
+    s.push(fitting(rc));
     let metric = match r.design.headline {
         Headline::Accuracy => "accuracy (fraction of test trials correctly classified)".to_string(),
         Headline::BalancedAccuracy => {
@@ -111,4 +90,45 @@ pub fn paragraph(r: &Report) -> String {
         rc.seed
     ));
     s.join(" ")
+}
+
+/// "In each of R repeats, classes were balanced …, and trials were split …": the resampling sentence shared by
+/// every kind of analysis.
+pub(crate) fn resampling(
+    rc: &Recipe,
+    design: &Design,
+    n_classes: usize,
+    group: &str,
+    n_groups: usize,
+) -> String {
+    let balance = if rc.balance {
+        format!(
+            "classes were balanced by randomly undersampling every class to the size of the smallest ({} trials per \
+             class, {} in all), and ",
+            design.trials_per_repeat / n_classes,
+            design.trials_per_repeat
+        )
+    } else {
+        String::new()
+    };
+    let split = match design.split {
+        Split::Stratified { folds } => format!("trials were split into {folds} stratified folds"),
+        Split::LeaveOneOut => "each trial was held out in turn (leave-one-out)".to_string(),
+        Split::Grouped { folds } => format!(
+            "trials were split into {folds} folds that never divided a level of '{group}' ({n_groups} levels)"
+        ),
+        Split::LeaveOneGroupOut => {
+            format!("each level of '{group}' was held out in turn ({n_groups} levels; leave-one-group-out)")
+        }
+    };
+    format!("In each of {} repeats, {balance}{split}.", rc.repeats)
+}
+
+/// The standardisation-and-decoder sentence.
+pub(crate) fn fitting(rc: &Recipe) -> String {
+    format!(
+        "Within each training fold, every feature was standardised with the mean and standard deviation of the \
+         training trials, which were then applied to the test trials, and the decoder was fitted: {}.",
+        rc.classifier.describe(rc.c)
+    )
 }

@@ -195,18 +195,14 @@ impl Report {
             null,
         };
 
-        let folds = match plan.split {
-            Split::Stratified { folds } | Split::Grouped { folds } => folds,
-            Split::LeaveOneOut => plan.trials_per_repeat,
-            Split::LeaveOneGroupOut => data.group_names.len(),
-        };
+        let folds = plan.scheme.folds();
         let sum = |f: fn(&Outcome) -> u32| outcomes.iter().map(|o| f(o) as u64).sum::<u64>();
         let fits = Fits {
             total: sum(|o| o.fits),
             capped: sum(|o| o.capped_fits),
             single_class: sum(|o| o.single_class_fits),
         };
-        let mut warnings = plan.warnings.clone();
+        let mut warnings = plan.scheme.warnings.clone();
         if fits.capped > 0 {
             warnings.push(format!(
                 "{} of {} fits stopped at the solver's iteration cap before reaching its tolerance; their decoders \
@@ -241,20 +237,20 @@ impl Report {
             classes: data.classes.clone(),
             class_counts: data.class_counts(),
             design: Design {
-                split: plan.split,
+                split: plan.scheme.split,
                 folds,
-                trials_per_repeat: plan.trials_per_repeat,
-                headline: plan.headline,
+                trials_per_repeat: plan.scheme.trials_per_repeat,
+                headline: plan.scheme.headline,
             },
             chance: Chance {
                 level: 1.0 / n_classes as f64,
                 threshold: binomial::chance_threshold(
-                    plan.trials_per_repeat as u64,
+                    plan.scheme.trials_per_repeat as u64,
                     n_classes,
                     CHANCE_ALPHA,
                 ),
                 alpha: CHANCE_ALPHA,
-                test_trials: plan.trials_per_repeat,
+                test_trials: plan.scheme.trials_per_repeat,
             },
             repeats: repeats
                 .iter()

@@ -10,15 +10,15 @@ use super::Report;
 use crate::protocol::Headline;
 use std::fmt::Write;
 
-const W: f64 = 560.0;
-const H: f64 = 340.0;
-const LEFT: f64 = 56.0;
-const RIGHT: f64 = 20.0;
-const TOP: f64 = 44.0;
-const BOTTOM: f64 = 52.0;
-const INK: &str = "#1f2933";
-const BAR: &str = "#5b7fa6";
-const NULL_BAR: &str = "#a7a9ac";
+pub(crate) const W: f64 = 560.0;
+pub(crate) const H: f64 = 340.0;
+pub(crate) const LEFT: f64 = 56.0;
+pub(crate) const RIGHT: f64 = 20.0;
+pub(crate) const TOP: f64 = 44.0;
+pub(crate) const BOTTOM: f64 = 52.0;
+pub(crate) const INK: &str = "#1f2933";
+pub(crate) const BAR: &str = "#5b7fa6";
+pub(crate) const NULL_BAR: &str = "#a7a9ac";
 
 /// Escape text for SVG content and attribute values.
 pub fn esc(s: &str) -> String {
@@ -36,7 +36,7 @@ pub fn esc(s: &str) -> String {
     out
 }
 
-fn open(svg: &mut String, title: &str, w: f64, h: f64) {
+pub(crate) fn open(svg: &mut String, title: &str, w: f64, h: f64) {
     write!(
         svg,
         r#"<svg xmlns="http://www.w3.org/2000/svg" width="{w}" height="{h}" viewBox="0 0 {w} {h}" font-family="system-ui, sans-serif" font-size="12" role="img"><title>{t}</title><rect width="{w}" height="{h}" fill="white"/><text x="{x}" y="22" font-size="14" font-weight="600" fill="{INK}">{t}</text>"#,

@@ -1,0 +1,227 @@
+//! The decoding protocol at every window, cut into the same independent tasks as a single-window analysis.
+//!
+//! A repeat draws its balancing and folds once, from the same random stream a trial-table analysis would use, and
+//! applies them to every window: labels belong to trials, not to windows, so sharing the split is what makes the
+//! windows comparable (and it is what makes window `w` of a time course equal, number for number, to a trial-table
+//! analysis of window `w` alone). Within each fold and window the pipeline (standardisation + decoder) is fitted on
+//! the training trials of that window only. With temporal generalization, the decoder fitted at window `w`
+//! predicts the same held-out trials at every window, so the matrix's diagonal is the decoding curve itself.
+//!
+//! A shuffle permutes the labels once (within groups when groups are set) and runs the recipe's repeats per
+//! shuffle over every window, so one permutation is used at every window: what the cluster test needs.
+
+use super::data::TimeDataset;
+use crate::decoders::{Decoder, FittedPipeline};
+use crate::error::{Error, Result};
+use crate::protocol::{accuracies, Draw, Scheme, Task};
+use crate::recipe::{Recipe, TimeSettings};
+use crate::resample::permute_labels;
+use crate::rng::{task_rng, Stream};
+use serde::{Deserialize, Serialize};
+
+/// What a task produced at every window. For a shuffle, scores are means over its repeats.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct TimeOutcome {
+    pub task: Task,
+    /// Per window.
+    pub accuracy: Vec<f64>,
+    pub balanced_accuracy: Vec<f64>,
+    /// Headline score with training window as row and testing window as column, row-major; empty unless the
+    /// recipe asks for temporal generalization.
+    #[serde(default)]
+    pub generalization: Vec<f64>,
+    pub fits: u32,
+    pub capped_fits: u32,
+    pub single_class_fits: u32,
+}
+
+/// A time-resolved recipe checked against a recording.
+pub struct TimePlan<'a> {
+    pub data: &'a TimeDataset,
+    pub recipe: Recipe,
+    pub settings: TimeSettings,
+    pub scheme: Scheme,
+    decoder: Box<dyn Decoder>,
+}
+
+impl<'a> TimePlan<'a> {
+    pub fn new(data: &'a TimeDataset, recipe: &Recipe) -> Result<TimePlan<'a>> {
+        let settings = recipe.time.clone().ok_or_else(|| {
+            Error::Recipe("this recipe has no time settings; it is for a trial table".into())
+        })?;
+        let mut scheme = Scheme::resolve(&data.trials(), recipe)?;
+        let mut warnings = data.warnings.clone();
+        warnings.append(&mut scheme.warnings);
+        scheme.warnings = warnings;
+        Ok(TimePlan {
+            data,
+            recipe: recipe.clone(),
+            settings,
+            scheme,
+            decoder: recipe.classifier.build(recipe.c),
+        })
+    }
+
+    pub fn n_windows(&self) -> usize {
+        self.data.windows.len()
+    }
+
+    /// Every task, repeats first, in index order.
+    pub fn tasks(&self) -> Vec<Task> {
+        (0..self.recipe.repeats)
+            .map(Task::Repeat)
+            .chain((0..self.recipe.shuffles).map(Task::Shuffle))
+            .collect()
+    }
+
+    /// Fits one task performs (for progress): folds × windows, times the repeats of a shuffle.
+    pub fn fits_in(&self, task: Task) -> usize {
+        let per_repeat = self.scheme.folds() * self.n_windows();
+        match task {
+            Task::Repeat(_) => per_repeat,
+            Task::Shuffle(_) => per_repeat * self.recipe.shuffle_repeats(),
+        }
+    }
+
+    pub fn run(&self, task: Task) -> TimeOutcome {
+        let seed = self.recipe.seed;
+        let groups = self.data.groups.as_deref();
+        match task {
+            Task::Repeat(i) => {
+                let mut rng = task_rng(seed, Stream::Repeat, i as u64, 0);
+                let draw = self.scheme.draw(&self.data.y, groups, &mut rng);
+                let mut out = self.one_repeat(&draw);
+                out.task = task;
+                out
+            }
+            Task::Shuffle(j) => {
+                let mut rng = task_rng(seed, Stream::Permutation, j as u64, 0);
+                let labels = permute_labels(&mut rng, &self.data.y, groups);
+                let r = self.recipe.shuffle_repeats();
+                let mut total: Option<TimeOutcome> = None;
+                for i in 0..r {
+                    let mut rng = task_rng(seed, Stream::ShuffleRepeat, j as u64, i as u64);
+                    let draw = self.scheme.draw(&labels, groups, &mut rng);
+                    let o = self.one_repeat(&draw);
+                    match &mut total {
+                        None => total = Some(o),
+                        Some(t) => {
+                            add(&mut t.accuracy, &o.accuracy);
+                            add(&mut t.balanced_accuracy, &o.balanced_accuracy);
+                            add(&mut t.generalization, &o.generalization);
+                            t.fits += o.fits;
+                            t.capped_fits += o.capped_fits;
+                            t.single_class_fits += o.single_class_fits;
+                        }
+                    }
+                }
+                let mut t = total.expect("at least one repeat per shuffle");
+                for v in t
+                    .accuracy
+                    .iter_mut()
+                    .chain(&mut t.balanced_accuracy)
+                    .chain(&mut t.generalization)
+                {
+                    *v /= r as f64;
+                }
+                t.task = task;
+                t
+            }
+        }
+    }
+
+    /// The headline score at each window of an outcome.
+    pub fn headline_scores(&self, o: &TimeOutcome) -> Vec<f64> {
+        o.accuracy
+            .iter()
+            .zip(&o.balanced_accuracy)
+            .map(|(&a, &b)| self.scheme.headline_of(a, b))
+            .collect()
+    }
+
+    /// Cross-validate one draw at every window (and, with generalization, test every window's decoder at every
+    /// window).
+    fn one_repeat(&self, draw: &Draw) -> TimeOutcome {
+        let data = self.data;
+        let (nw, k, p) = (self.n_windows(), data.classes.len(), data.n_neurons());
+        let generalize = self.settings.generalize;
+        let cells = if generalize { nw * nw } else { nw };
+        let mut confusion = vec![0u32; cells * k * k];
+        let (mut fits, mut capped, mut single) = (0, 0, 0);
+        for f in 0..draw.folds {
+            let (train, test) = draw.partition(f);
+            if train.is_empty() || test.is_empty() {
+                continue;
+            }
+            let y_train: Vec<usize> = train.iter().map(|&pos| draw.y[pos]).collect();
+            let gather = |w: usize, positions: &[usize]| {
+                let x = data.window(w);
+                let mut out = Vec::with_capacity(positions.len() * p);
+                for &pos in positions {
+                    let i = draw.used[pos];
+                    out.extend_from_slice(&x[i * p..(i + 1) * p]);
+                }
+                out
+            };
+            // Test rows of every window, gathered once per fold when every decoder tests at every window.
+            let test_rows: Vec<Vec<f64>> = if generalize {
+                (0..nw).map(|w| gather(w, &test)).collect()
+            } else {
+                Vec::new()
+            };
+            for w in 0..nw {
+                let model =
+                    FittedPipeline::fit(self.decoder.as_ref(), &gather(w, &train), p, &y_train, k);
+                fits += 1;
+                capped += u32::from(model.hit_iteration_cap());
+                single += u32::from(model.single_class());
+                let mut tally = |cell: usize, predicted: Vec<usize>| {
+                    let c = &mut confusion[cell * k * k..(cell + 1) * k * k];
+                    for (&pos, q) in test.iter().zip(predicted) {
+                        c[draw.y[pos] * k + q] += 1;
+                    }
+                };
+                if generalize {
+                    for (w2, rows) in test_rows.iter().enumerate() {
+                        tally(w * nw + w2, model.predict(rows.clone()));
+                    }
+                } else {
+                    tally(w, model.predict(gather(w, &test)));
+                }
+            }
+        }
+        let scored: Vec<(f64, f64)> = confusion
+            .chunks_exact(k * k)
+            .map(|c| accuracies(c, k))
+            .collect();
+        let diagonal = |i: usize| {
+            if generalize {
+                scored[i * nw + i]
+            } else {
+                scored[i]
+            }
+        };
+        TimeOutcome {
+            task: Task::Repeat(0),
+            accuracy: (0..nw).map(|i| diagonal(i).0).collect(),
+            balanced_accuracy: (0..nw).map(|i| diagonal(i).1).collect(),
+            generalization: if generalize {
+                scored
+                    .iter()
+                    .map(|&(a, b)| self.scheme.headline_of(a, b))
+                    .collect()
+            } else {
+                Vec::new()
+            },
+            fits,
+            capped_fits: capped,
+            single_class_fits: single,
+        }
+    }
+}
+
+fn add(total: &mut [f64], more: &[f64]) {
+    for (t, m) in total.iter_mut().zip(more) {
+        *t += m;
+    }
+}
