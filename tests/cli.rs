@@ -182,3 +182,92 @@ fn predict_uses_the_given_folds() {
         "{stdout}"
     );
 }
+
+fn samples(name: &str) -> String {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("samples")
+        .join(name)
+        .to_str()
+        .unwrap()
+        .to_string()
+}
+
+fn timecourse(dir: &std::path::Path, name: &str, extra: &[&str]) -> String {
+    let json = dir.join(name);
+    let out = bin()
+        .args(["timecourse", "--events", &samples("odour_spikes.csv")])
+        .args(["--trials", &samples("odour_trials.csv"), "--label", "odour"])
+        .args([
+            "--start", "-0.5", "--end", "1", "--width", "0.2", "--step", "0.1",
+        ])
+        .args([
+            "--classifier",
+            "shrinkage-lda",
+            "--repeats",
+            "3",
+            "--shuffles",
+            "9",
+        ])
+        .args(["--quiet", "--json", json.to_str().unwrap()])
+        .args(extra)
+        .output()
+        .unwrap();
+    succeeded(&out);
+    std::fs::read_to_string(json).unwrap()
+}
+
+/// The time course's JSON carries the keys the issue names, and threads do not change a byte of it.
+#[test]
+fn timecourse_json_is_complete_and_thread_independent() {
+    let dir = temp_dir("timecourse");
+    let one = timecourse(&dir, "one.json", &["--threads", "1", "--generalize"]);
+    let three = timecourse(&dir, "three.json", &["--threads", "3", "--generalize"]);
+    assert_eq!(one, three);
+    let v: serde_json::Value = serde_json::from_str(&one).unwrap();
+    assert_eq!(v["schema"], "popdecode-timecourse/1");
+    let windows = v["windows"].as_array().unwrap();
+    assert_eq!(windows.len(), 14); // starts -0.5, -0.4, ..., 0.8 (0.8 + 0.2 = 1, the end)
+    assert_eq!(windows[0]["time"], -0.4);
+    for w in windows {
+        assert!(w["accuracy"]["mean"].is_f64() && w["accuracy"]["sd"].is_f64());
+        assert!(w["null_p95"].is_f64());
+    }
+    for c in v["clusters"].as_array().unwrap() {
+        assert!(c["start"].is_f64() && c["end"].is_f64() && c["p_value"].is_f64());
+    }
+    let g = v["generalization"]["scores"].as_array().unwrap();
+    assert_eq!(g.len(), 14);
+    assert_eq!(g[0].as_array().unwrap().len(), 14);
+}
+
+/// A saved time-course recipe re-runs the identical analysis from the recipe alone.
+#[test]
+fn timecourse_recipe_reproduces_the_run() {
+    let dir = temp_dir("timecourse-recipe");
+    let recipe = dir.join("r.json");
+    let first = timecourse(&dir, "a.json", &["--save-recipe", recipe.to_str().unwrap()]);
+    let json = dir.join("b.json");
+    let out = bin()
+        .args(["timecourse", "--events", &samples("odour_spikes.csv")])
+        .args(["--trials", &samples("odour_trials.csv")])
+        .args(["--recipe", recipe.to_str().unwrap(), "--quiet"])
+        .args(["--json", json.to_str().unwrap()])
+        .output()
+        .unwrap();
+    succeeded(&out);
+    assert_eq!(first, std::fs::read_to_string(json).unwrap());
+    let text = std::fs::read_to_string(&recipe).unwrap();
+    assert!(text.contains("\"width\": 0.2"), "{text}");
+}
+
+#[test]
+fn timecourse_without_a_span_says_what_to_add() {
+    let out = bin()
+        .args(["timecourse", "--events", &samples("odour_spikes.csv")])
+        .args(["--trials", &samples("odour_trials.csv"), "--label", "odour"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert!(stderr.contains("--start and --end"), "{stderr}");
+}
