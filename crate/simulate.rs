@@ -270,40 +270,65 @@ pub fn spike_events(s: &TimeScenario) -> EventFiles {
     EventFiles { events, trials }
 }
 
-/// A binned table (one row per trial × bin of `bin` seconds): Poisson counts at each bin's rate, written in Hz.
-pub fn binned(s: &TimeScenario, bin: f64) -> String {
+/// One bin of one trial of [`binned_trials`]: which trial and bin, and the units' rates in Hz.
+pub struct Bin<'a> {
+    pub trial: usize,
+    pub class: usize,
+    pub session: usize,
+    pub bin: usize,
+    pub centre: f64,
+    pub rates: &'a [f64],
+}
+
+/// Trials binned at `bin` seconds: Poisson counts at each bin's rate, in Hz, handed to `emit` trial by trial.
+pub fn binned_trials(s: &TimeScenario, bin: f64, mut emit: impl FnMut(Bin)) {
     let mut rng = task_rng(s.seed, Stream::Simulation, 2, 0);
     let (baseline, tuning) = s.baseline_and_tuning(&mut rng);
     let order = s.order(&mut rng);
     let bins = ((s.end - s.start) / bin).round() as usize;
+    let mut rates = vec![0.0; s.units];
+    for (t, &c) in order.iter().enumerate() {
+        let session = t * s.sessions.max(1) / order.len() + 1;
+        for b in 0..bins {
+            let centre = s.start + (b as f64 + 0.5) * bin;
+            let informative = centre >= s.info_start && centre < s.info_end;
+            for (u, r) in rates.iter_mut().enumerate() {
+                let gain = if informative { libm::exp(tuning[c][u]) } else { 1.0 };
+                *r = poisson(&mut rng, baseline[u] * gain * bin) as f64 / bin;
+            }
+            emit(Bin {
+                trial: t,
+                class: c,
+                session,
+                bin: b,
+                centre,
+                rates: &rates,
+            });
+        }
+    }
+}
+
+/// A binned table (one row per trial × bin of `bin` seconds), from [`binned_trials`].
+pub fn binned(s: &TimeScenario, bin: f64) -> String {
     let mut out = String::from("trial,time,odour,session");
     for u in 0..s.units {
         write!(out, ",u{:02}", u + 1).unwrap();
     }
     out.push('\n');
-    for (t, &c) in order.iter().enumerate() {
-        let session = t * s.sessions.max(1) / order.len() + 1;
-        for b in 0..bins {
-            let centre = s.start + (b as f64 + 0.5) * bin;
-            write!(
-                out,
-                "tr{:03},{centre:.4},{},s{session}",
-                t + 1,
-                s.classes[c]
-            )
-            .unwrap();
-            let informative = centre >= s.info_start && centre < s.info_end;
-            for u in 0..s.units {
-                let gain = if informative {
-                    libm::exp(tuning[c][u])
-                } else {
-                    1.0
-                };
-                let n = poisson(&mut rng, baseline[u] * gain * bin);
-                write!(out, ",{}", n as f64 / bin).unwrap();
-            }
-            out.push('\n');
+    binned_trials(s, bin, |b| {
+        write!(
+            out,
+            "tr{:03},{:.4},{},s{}",
+            b.trial + 1,
+            b.centre,
+            s.classes[b.class],
+            b.session
+        )
+        .unwrap();
+        for r in b.rates {
+            write!(out, ",{r}").unwrap();
         }
-    }
+        out.push('\n');
+    });
     out
 }

@@ -9,6 +9,11 @@ use crate::data::{sha256_hex, Dataset};
 use crate::protocol::{Outcome, Plan, Task};
 use crate::recipe::Recipe;
 use crate::report::{methods, plots, text, Report};
+use crate::timecourse::data::{FileBytes, TimeDataset};
+use crate::timecourse::plan::{TimeOutcome, TimePlan};
+use crate::timecourse::plots as tc_plots;
+use crate::timecourse::report::TimeReport;
+use crate::timecourse::text as tc_text;
 use serde_json::json;
 use std::sync::Mutex;
 use wasm_bindgen::prelude::*;
@@ -126,12 +131,15 @@ impl Runner {
     /// One task's outcome as JSON; `kind` is "repeat" or "shuffle".
     pub fn run(&self, kind: &str, index: usize) -> Result<String, JsValue> {
         let plan = Plan::new(&self.data, &self.recipe).map_err(err)?;
-        let task = match kind {
-            "repeat" => Task::Repeat(index),
-            "shuffle" => Task::Shuffle(index),
-            other => return Err(err(format!("unknown task kind '{other}'"))),
-        };
-        Ok(serde_json::to_string(&plan.run(task)).expect("outcomes serialise"))
+        Ok(serde_json::to_string(&plan.run(task(kind, index)?)).expect("outcomes serialise"))
+    }
+}
+
+fn task(kind: &str, index: usize) -> Result<Task, JsValue> {
+    match kind {
+        "repeat" => Ok(Task::Repeat(index)),
+        "shuffle" => Ok(Task::Shuffle(index)),
+        other => Err(err(format!("unknown task kind '{other}'"))),
     }
 }
 
@@ -175,4 +183,127 @@ pub fn check_recipe(text: &str) -> Result<String, JsValue> {
     Recipe::from_json("recipe file", text)
         .map(|r| r.to_json())
         .map_err(err)
+}
+
+// ---------- time courses ----------
+
+/// The recording's files: one (a binned table; `name_b` empty) or two (spike events, then the trial table).
+fn time_files<'a>(
+    name_a: &'a str,
+    bytes_a: &'a [u8],
+    name_b: &'a str,
+    bytes_b: &'a [u8],
+) -> Vec<FileBytes<'a>> {
+    let mut files = vec![FileBytes {
+        name: name_a,
+        bytes: bytes_a,
+    }];
+    if !name_b.is_empty() {
+        files.push(FileBytes {
+            name: name_b,
+            bytes: bytes_b,
+        });
+    }
+    files
+}
+
+fn load_time(files: &[FileBytes], recipe_json: &str) -> Result<(TimeDataset, Recipe), JsValue> {
+    let recipe = Recipe::from_json("recipe", recipe_json).map_err(err)?;
+    let settings = recipe
+        .time
+        .as_ref()
+        .ok_or_else(|| err("this recipe has no time settings"))?;
+    let data = TimeDataset::load(files, &recipe.columns, &settings.input).map_err(err)?;
+    Ok((data, recipe))
+}
+
+/// Check a recording against a time-course recipe: tasks with their cost in fits, classes, windows and warnings.
+#[wasm_bindgen]
+pub fn prepare_time(
+    name_a: &str,
+    bytes_a: &[u8],
+    name_b: &str,
+    bytes_b: &[u8],
+    recipe_json: &str,
+) -> Result<String, JsValue> {
+    let (data, recipe) = load_time(&time_files(name_a, bytes_a, name_b, bytes_b), recipe_json)?;
+    let plan = TimePlan::new(&data, &recipe).map_err(err)?;
+    let tasks = plan.tasks();
+    let fits: Vec<usize> = tasks.iter().map(|&t| plan.fits_in(t)).collect();
+    Ok(json!({
+        "tasks": tasks,
+        "fits": fits,
+        "classes": data.classes,
+        "class_counts": data.class_counts(),
+        "features": data.n_neurons(),
+        "trials": data.n_trials(),
+        "windows": data.windows,
+        "spikes_total": data.spikes_total,
+        "spikes_outside": data.spikes_outside,
+        "trials_per_repeat": plan.scheme.trials_per_repeat,
+        "warnings": plan.scheme.warnings,
+    })
+    .to_string())
+}
+
+/// Runs time-course tasks in a worker: the files are read once per run.
+#[wasm_bindgen]
+pub struct TimeRunner {
+    data: TimeDataset,
+    recipe: Recipe,
+}
+
+#[wasm_bindgen]
+impl TimeRunner {
+    #[wasm_bindgen(constructor)]
+    pub fn new(
+        name_a: &str,
+        bytes_a: &[u8],
+        name_b: &str,
+        bytes_b: &[u8],
+        recipe_json: &str,
+    ) -> Result<TimeRunner, JsValue> {
+        let (data, recipe) = load_time(&time_files(name_a, bytes_a, name_b, bytes_b), recipe_json)?;
+        TimePlan::new(&data, &recipe).map_err(err)?;
+        Ok(TimeRunner { data, recipe })
+    }
+
+    /// One task's outcome as JSON; `kind` is "repeat" or "shuffle".
+    pub fn run(&self, kind: &str, index: usize) -> Result<String, JsValue> {
+        let plan = TimePlan::new(&self.data, &self.recipe).map_err(err)?;
+        Ok(serde_json::to_string(&plan.run(task(kind, index)?)).expect("outcomes serialise"))
+    }
+}
+
+/// Assemble a time course's outcomes into its report, text, methods paragraph, figures and CSV tables.
+#[wasm_bindgen]
+pub fn finish_time(
+    name_a: &str,
+    bytes_a: &[u8],
+    name_b: &str,
+    bytes_b: &[u8],
+    recipe_json: &str,
+    outcomes_json: &str,
+) -> Result<String, JsValue> {
+    let (data, recipe) = load_time(&time_files(name_a, bytes_a, name_b, bytes_b), recipe_json)?;
+    let plan = TimePlan::new(&data, &recipe).map_err(err)?;
+    let outcomes: Vec<TimeOutcome> = serde_json::from_str(outcomes_json)
+        .map_err(|e| err(format!("outcomes are malformed: {e}")))?;
+    let report = TimeReport::build(&plan, &outcomes);
+    Ok(json!({
+        "report": report,
+        "report_json": report.to_json(),
+        "headline": tc_text::headline_sentence(&report),
+        "text": tc_text::render(&report),
+        "methods": tc_text::methods(&report),
+        "plots": {
+            "curve": tc_plots::curve(&report),
+            "generalization": tc_plots::generalization(&report),
+        },
+        "csv": {
+            "curve": tc_text::curve_csv(&report),
+            "generalization": tc_text::generalization_csv(&report),
+        },
+    })
+    .to_string())
 }

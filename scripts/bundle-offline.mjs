@@ -19,10 +19,11 @@ const app = guard('app.js', read('www/app.js'));
 const worker = guard('worker.js', read('www/worker.js'));
 const css = read('www/style.css');
 const wasm = readFileSync(new URL('../www/pkg/popdecode_bg.wasm', import.meta.url)).toString('base64');
-const example = read('samples/odours.csv');
+const examples = Object.fromEntries(['odours.csv', 'odours_binned.csv', 'odour_spikes.csv', 'odour_trials.csv']
+  .map((name) => [name, read(`samples/${name}`)]));
 
 const boot = `window.POPDECODE_OFFLINE = true;\nwindow.POPDECODE_WASM_BASE64 = "${wasm}";\n` +
-  `window.POPDECODE_EXAMPLE_CSV = ${JSON.stringify(example).replace(/</g, '\\u003c')};\n`;
+  `window.POPDECODE_EXAMPLES = ${JSON.stringify(examples).replace(/</g, '\\u003c')};\n`;
 const scripts = [boot, glue, app];
 const csp = [
   "default-src 'none'",

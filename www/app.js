@@ -6,7 +6,13 @@
 (function () {
   const $ = (id) => document.getElementById(id);
   const STORE = 'popdecode.settings';
-  const state = { module: null, file: null, info: null, pool: [], run: null, result: null, lastRecipe: null };
+  // kind: 'table' (one row per trial), 'binned' (one row per trial × bin) or 'events' (spike events + trial table).
+  // file/info: the trial table or binned table; events/eventsInfo: the spike events file (events only).
+  const state = {
+    kind: 'table', module: null, file: null, info: null, events: null, eventsInfo: null,
+    pool: [], run: null, result: null, lastRecipe: null,
+  };
+  const EXAMPLES = { table: ['odours.csv'], binned: ['odours_binned.csv'], events: ['odour_spikes.csv', 'odour_trials.csv'] };
 
   // ---------- start-up ----------
   async function compileWasm() {
@@ -32,6 +38,7 @@
     }
     restoreSettings();
     wire();
+    showKind();
     $('workers-info').textContent = poolSize() + ' worker' + (poolSize() === 1 ? '' : 's') + ' on this computer';
   }
 
@@ -59,6 +66,45 @@
   function baseName() { return (state.file ? state.file.name : 'data').replace(/\.[^.]*$/, ''); }
 
   // ---------- data ----------
+  const isTime = () => state.kind !== 'table';
+  const ready = () => (state.kind === 'events' ? !!(state.file && state.events) : !!state.file);
+
+  // Show the parts of the page that belong to the chosen kind of data.
+  function showKind() {
+    document.querySelectorAll('[data-kinds]').forEach((e) => { e.hidden = !e.dataset.kinds.split(' ').includes(state.kind); });
+    $('drop-what').textContent = state.kind === 'binned'
+      ? 'binned table (CSV, one row per trial and time bin)' : 'trial table (CSV, one row per trial)';
+    $('start').textContent = isTime() ? 'Decode over time' : 'Decode';
+  }
+
+  function setKind(kind) {
+    if (state.run) cancel();
+    state.kind = kind;
+    for (const r of document.querySelectorAll('input[name=kind]')) r.checked = r.value === kind;
+    state.file = null; state.info = null; state.events = null; state.eventsInfo = null; state.result = null;
+    $('data-view').hidden = true;
+    $('results').hidden = true;
+    $('start').disabled = true;
+    clearError('data-error');
+    showKind();
+  }
+
+  // The files a time course reads, as the core's bridge takes them: (name, bytes) twice; the second is empty for a
+  // binned table.
+  function fileArgs() {
+    return state.kind === 'events'
+      ? [state.events.name, state.events.bytes, state.file.name, state.file.bytes]
+      : [state.file.name, state.file.bytes, '', new Uint8Array(0)];
+  }
+
+  // The first part of a file, cut at a line end: enough to show the columns of a spike events file of any size.
+  function head(bytes) {
+    const LIMIT = 256 * 1024;
+    if (bytes.length <= LIMIT) return bytes;
+    const cut = bytes.lastIndexOf(10, LIMIT);
+    return bytes.subarray(0, cut > 0 ? cut + 1 : LIMIT);
+  }
+
   async function loadFile(name, bytes) {
     clearError('data-error');
     $('data-view').hidden = true;
@@ -75,14 +121,50 @@
     state.info = info;
     $('file-summary').textContent = `${name}: ${info.rows} rows × ${info.headers.length} columns, ` +
       `${info.delimiter}-separated${info.decimal_comma ? ' with decimal commas' : ''}; SHA-256 ${info.sha256.slice(0, 16)}…`;
-    drawPreview(info);
+    drawPreview($('preview'), info);
     fillColumns(info);
-    $('data-view').hidden = false;
+    showData();
+  }
+
+  async function loadEvents(name, bytes) {
+    clearError('data-error');
+    let info;
+    try {
+      info = JSON.parse(wasm_bindgen.inspect(name, head(bytes)));
+    } catch (e) {
+      state.events = null;
+      showError('data-error', String(e));
+      return;
+    }
+    state.events = { name, bytes };
+    state.eventsInfo = info;
+    $('events-summary').textContent = `${name}: spike events, ${(bytes.length / 1e6).toFixed(1)} MB, ` +
+      `${info.delimiter}-separated; columns ${info.headers.join(', ')}`;
+    drawPreview($('events-preview'), info);
+    fillEventColumns(info);
+    showData();
+  }
+
+  // In events mode a dropped file is the events file when its header has a neuron-like column.
+  async function loadDropped(files) {
+    for (const f of files) {
+      const bytes = new Uint8Array(await f.arrayBuffer());
+      if (state.kind !== 'events') { await loadFile(f.name, bytes); return; }
+      let headers = [];
+      try { headers = JSON.parse(wasm_bindgen.inspect(f.name, head(bytes))).headers; } catch (_) { headers = []; }
+      if (headers.some((h) => /^(neuron|unit|cluster|cell)/i.test(h))) await loadEvents(f.name, bytes);
+      else await loadFile(f.name, bytes);
+    }
+  }
+
+  function showData() {
+    $('data-view').hidden = !(state.file || state.events);
+    if (state.kind === 'events' && !state.file) $('file-summary').textContent = 'Now the trial table (one row per trial, with the label).';
+    if (state.kind === 'events' && !state.events) $('file-summary').textContent += ' Now the spike events file.';
     refreshPlan();
   }
 
-  function drawPreview(info) {
-    const t = $('preview');
+  function drawPreview(t, info) {
     t.replaceChildren();
     const head = el('tr');
     info.headers.forEach((h) => head.appendChild(el('th', h, 'text')));
@@ -101,22 +183,49 @@
     return o;
   }
 
+  const find = (headers, re, fallback) => headers.find((h) => re.test(h)) ?? fallback;
+
   function fillColumns(info) {
+    const h = info.headers;
     const label = $('label'); const group = $('group'); const feats = $('features');
-    label.replaceChildren(); group.replaceChildren(); feats.replaceChildren();
-    info.headers.forEach((h) => label.appendChild(option(h, h, h === info.suggested_label)));
+    const trial = $('trial-col'); const align = $('align-col');
+    [label, group, feats, trial, align].forEach((e) => e.replaceChildren());
+    const trialCol = find(h, /^trials?([ _-]?(id|number|no))?$/i, h[0]);
+    h.forEach((c) => trial.appendChild(option(c, c, c === trialCol)));
+    let suggested = info.suggested_label;
+    if (state.kind === 'binned') {
+      const timeCol = find(h, /^(time|t|bin|bin[ _]?time)$/i, find(h, /time/i, h[1]));
+      fillSelect($('time-col'), h, timeCol);
+      suggested = h.find((c, i) => !info.numeric[i] && c !== trialCol && c !== timeCol) ?? suggested;
+    }
+    h.forEach((c) => label.appendChild(option(c, c, c === suggested)));
     group.appendChild(option('', '(none)', true));
-    info.headers.forEach((h) => group.appendChild(option(h, h, false)));
-    info.headers.forEach((h, i) => { if (info.numeric[i]) feats.appendChild(option(h, h, true)); });
+    h.forEach((c) => group.appendChild(option(c, c, false)));
+    align.appendChild(option('', '(none: spike times are relative)', true));
+    h.forEach((c, i) => { if (info.numeric[i] && c !== trialCol) align.appendChild(option(c, c, false)); });
+    h.forEach((c, i) => { if (info.numeric[i]) feats.appendChild(option(c, c, true)); });
     syncFeatureOptions();
   }
 
-  // A column chosen as label or group cannot also be a feature.
+  function fillSelect(select, headers, chosen) {
+    select.replaceChildren();
+    headers.forEach((c) => select.appendChild(option(c, c, c === chosen)));
+  }
+
+  function fillEventColumns(info) {
+    const h = info.headers;
+    fillSelect($('neuron-col'), h, find(h, /^(neuron|unit|cluster|cell)/i, h[1]));
+    fillSelect($('time-col'), h, find(h, /^(time|t|spike[ _]?time)s?$/i, find(h, /time/i, h[2])));
+  }
+
+  // A column chosen as label, group, trial or time cannot also be a feature.
   function syncFeatureOptions() {
     const used = [$('label').value, $('group').value];
+    if (state.kind === 'binned') used.push($('trial-col').value, $('time-col').value);
     for (const o of $('features').options) {
+      const was = o.disabled;
       o.disabled = used.includes(o.value);
-      if (o.disabled) o.selected = false;
+      if (o.disabled) o.selected = false; else if (was) o.selected = true;
     }
   }
 
@@ -124,10 +233,18 @@
   function readRecipe() {
     const recipe = JSON.parse(wasm_bindgen.default_recipe($('label').value || 'label'));
     recipe.columns.group = $('group').value || null;
-    const feats = [...$('features').options].filter((o) => o.selected).map((o) => o.value);
-    const allNumeric = [...$('features').options].filter((o) => !o.disabled).map((o) => o.value);
-    recipe.columns.features = feats.length === allNumeric.length ? null : feats;
-    recipe.columns.drop_missing = $('drop-missing').checked;
+    if (state.kind !== 'events') {
+      const opts = [...$('features').options];
+      const feats = opts.filter((o) => o.selected).map((o) => o.value);
+      const enabled = opts.filter((o) => !o.disabled).map((o) => o.value);
+      // null = "every other column", which the core reads as every numeric one for a trial table and every
+      // remaining one for a binned table: say so only when that is exactly the selection.
+      const others = state.info ? state.info.headers.filter((h) => !['trial-col', 'time-col', 'label', 'group']
+        .some((id) => (state.kind === 'binned' || !id.endsWith('-col')) && $(id).value === h)) : [];
+      const allNumeric = state.kind === 'table' || others.every((h) => enabled.includes(h));
+      recipe.columns.features = feats.length === enabled.length && allNumeric ? null : feats;
+    }
+    recipe.columns.drop_missing = state.kind === 'table' && $('drop-missing').checked;
     recipe.classifier = $('classifier').value;
     recipe.c = Number($('c').value);
     const folds = $('folds').value.trim().toLowerCase();
@@ -137,10 +254,30 @@
     recipe.shuffles = Number($('shuffles').value);
     recipe.shuffle_repeats = $('shuffle-repeats').value === '' ? null : Number($('shuffle-repeats').value);
     recipe.seed = Number($('seed').value);
+    if (state.kind === 'binned') {
+      recipe.time = { input: { kind: 'binned', trial: $('trial-col').value, time: $('time-col').value } };
+    } else if (state.kind === 'events') {
+      recipe.time = {
+        input: {
+          kind: 'events', trial: $('trial-col').value, neuron: $('neuron-col').value, time: $('time-col').value,
+          align: $('align-col').value || null, width: Number($('width').value), step: Number($('step').value),
+          start: Number($('t-start').value), end: Number($('t-end').value),
+        },
+      };
+    }
+    if (recipe.time) {
+      recipe.time.generalize = $('generalize').checked;
+      recipe.time.alpha = Number($('alpha').value);
+    }
     return recipe;
   }
 
   function applyRecipe(r) {
+    const kind = r.time ? r.time.input.kind : 'table';
+    if (kind !== state.kind) {
+      setKind(kind);
+      $('recipe-status').textContent = 'This recipe is for another kind of data: load the data now.';
+    }
     $('classifier').value = r.classifier;
     $('c').value = r.c;
     $('folds').value = r.folds;
@@ -150,18 +287,37 @@
     $('shuffle-repeats').value = r.shuffle_repeats === null || r.shuffle_repeats === undefined ? '' : r.shuffle_repeats;
     $('seed').value = r.seed;
     $('drop-missing').checked = !!r.columns.drop_missing;
+    if (r.time) {
+      $('generalize').checked = !!r.time.generalize;
+      $('alpha').value = r.time.alpha;
+      const t = r.time.input;
+      if (t.kind === 'events') {
+        $('width').value = t.width; $('step').value = t.step; $('t-start').value = t.start; $('t-end').value = t.end;
+      }
+    }
+    const pick = (id, value, headers) => { if (value && headers && headers.includes(value)) $(id).value = value; };
     if (state.info) {
-      const has = (c) => c && state.info.headers.includes(c);
-      if (has(r.columns.label)) $('label').value = r.columns.label;
-      $('group').value = has(r.columns.group) ? r.columns.group : '';
+      const h = state.info.headers;
+      pick('label', r.columns.label, h);
+      $('group').value = r.columns.group && h.includes(r.columns.group) ? r.columns.group : '';
+      if (r.time) {
+        pick('trial-col', r.time.input.trial, h);
+        if (r.time.input.kind === 'binned') pick('time-col', r.time.input.time, h);
+        if (r.time.input.kind === 'events') $('align-col').value = r.time.input.align && h.includes(r.time.input.align) ? r.time.input.align : '';
+      }
       syncFeatureOptions();
       if (Array.isArray(r.columns.features)) {
         for (const o of $('features').options) o.selected = !o.disabled && r.columns.features.includes(o.value);
       }
     }
+    if (state.eventsInfo && r.time && r.time.input.kind === 'events') {
+      pick('neuron-col', r.time.input.neuron, state.eventsInfo.headers);
+      pick('time-col', r.time.input.time, state.eventsInfo.headers);
+    }
   }
 
-  const SETTING_IDS = ['classifier', 'c', 'folds', 'repeats', 'balance', 'shuffles', 'shuffle-repeats', 'seed', 'drop-missing'];
+  const SETTING_IDS = ['classifier', 'c', 'folds', 'repeats', 'balance', 'shuffles', 'shuffle-repeats', 'seed', 'drop-missing',
+    'width', 'step', 't-start', 't-end', 'generalize', 'alpha'];
   function saveSettings() {
     const s = {};
     SETTING_IDS.forEach((id) => { const e = $(id); s[id] = e.type === 'checkbox' ? e.checked : e.value; });
@@ -183,15 +339,15 @@
     syncFeatureOptions();
     $('c').disabled = $('classifier').value !== 'linear-svm';
     saveSettings();
-    if (!state.file) return;
-    clearError('data-error');
     const box = $('classes');
     box.replaceChildren();
+    if (!ready()) { $('start').disabled = true; return; }
+    clearError('data-error');
     let plan;
     try {
       const recipe = readRecipe();
       $('cli-line').textContent = cliLine(recipe);
-      plan = JSON.parse(wasm_bindgen.prepare(state.file.name, state.file.bytes, JSON.stringify(recipe)));
+      plan = prepare(recipe);
     } catch (e) {
       showError('data-error', String(e));
       $('start').disabled = true;
@@ -200,7 +356,9 @@
     const folds = readRecipe().folds;
     const max = Math.max(...plan.class_counts);
     const min = Math.min(...plan.class_counts);
-    box.appendChild(el('h3', `Trials per class (${plan.trials} trials, ${plan.features} features)`));
+    box.appendChild(el('h3', `Trials per class (${plan.trials} trials, ${plan.features} ${isTime() ? 'neurons' : 'features'}` +
+      (isTime() ? `, ${plan.windows.length} windows from ${plan.windows[0].time} s to ${plan.windows[plan.windows.length - 1].time} s` : '') +
+      (state.kind === 'events' ? `, ${plan.spikes_total} spikes of which ${plan.spikes_outside} fall outside every window` : '') + ')'));
     const bars = el('div', null, 'bars');
     plan.classes.forEach((c, i) => {
       const n = plan.class_counts[i];
@@ -223,9 +381,24 @@
     $('start').disabled = state.run !== null;
   }
 
+  function prepare(recipe) {
+    const text = JSON.stringify(recipe);
+    return JSON.parse(isTime() ? wasm_bindgen.prepare_time(...fileArgs(), text) : wasm_bindgen.prepare(state.file.name, state.file.bytes, text));
+  }
+
   function cliLine(r) {
-    const q = (s) => (/^[\w.,-]+$/.test(s) ? s : `'${s.replace(/'/g, "'\\''")}'`);
-    const parts = ['popdecode decode', q(state.file ? state.file.name : 'FILE'), '--label', q(r.columns.label)];
+    const q = (s) => (/^[\w.,-]+$/.test(String(s)) ? String(s) : `'${String(s).replace(/'/g, "'\\''")}'`);
+    const parts = [];
+    const t = r.time && r.time.input;
+    if (!t) parts.push('popdecode decode', q(state.file ? state.file.name : 'FILE'));
+    else if (t.kind === 'binned') parts.push('popdecode timecourse', q(state.file.name), '--trial', q(t.trial), '--time', q(t.time));
+    else {
+      parts.push('popdecode timecourse --events', q(state.events ? state.events.name : 'EVENTS'), '--trials', q(state.file ? state.file.name : 'TRIALS'),
+        '--trial', q(t.trial), '--neuron', q(t.neuron), '--time', q(t.time));
+      if (t.align) parts.push('--align', q(t.align));
+      parts.push('--width', t.width, '--step', t.step, '--start', t.start, '--end', t.end);
+    }
+    parts.push('--label', q(r.columns.label));
     if (r.columns.group) parts.push('--group', q(r.columns.group));
     if (r.columns.features) parts.push('--features', q(r.columns.features.join(',')));
     parts.push('--classifier', r.classifier);
@@ -235,6 +408,8 @@
     if (!r.balance) parts.push('--no-balance');
     if (r.columns.drop_missing) parts.push('--drop-missing');
     parts.push('--seed', r.seed);
+    if (r.time && r.time.generalize) parts.push('--generalize');
+    if (r.time && r.time.alpha !== 0.05) parts.push('--alpha', r.time.alpha);
     return parts.join(' ');
   }
 
@@ -253,12 +428,12 @@
   }
 
   function start() {
-    if (!state.file || state.run) return;
+    if (!ready() || state.run) return;
     clearError('run-error');
     let recipe, plan;
     try {
       recipe = readRecipe();
-      plan = JSON.parse(wasm_bindgen.prepare(state.file.name, state.file.bytes, JSON.stringify(recipe)));
+      plan = prepare(recipe);
     } catch (e) { showError('run-error', String(e)); return; }
     const queue = plan.tasks.map((t, i) => ({ kind: t.kind, index: t.index, fits: plan.fits[i] }));
     const run = {
@@ -276,7 +451,7 @@
       state.pool.push(worker);
       worker.onmessage = (ev) => onWorkerMessage(run, worker, ev.data);
       worker.onerror = (ev) => fail(run, 'a worker stopped: ' + (ev.message || 'unknown error'));
-      worker.postMessage({ type: 'init', module: state.module, name: state.file.name, bytes: state.file.bytes, recipe: run.recipe });
+      worker.postMessage({ type: 'init', module: state.module, time: isTime(), files: fileArgs(), recipe: run.recipe });
     }
   }
 
@@ -312,7 +487,7 @@
     stopPool();
     state.run = null;
     $('cancel').disabled = true;
-    $('start').disabled = !state.file;
+    $('start').disabled = !ready();
   }
 
   function fail(run, message) {
@@ -334,12 +509,15 @@
     endRun();
     let result;
     try {
-      result = JSON.parse(wasm_bindgen.finish(state.file.name, state.file.bytes, run.recipe, '[' + run.outcomes.join(',') + ']'));
+      const outcomes = '[' + run.outcomes.join(',') + ']';
+      result = JSON.parse(isTime()
+        ? wasm_bindgen.finish_time(...fileArgs(), run.recipe, outcomes)
+        : wasm_bindgen.finish(state.file.name, state.file.bytes, run.recipe, outcomes));
     } catch (e) { showError('run-error', String(e)); return; }
     const seconds = ((performance.now() - run.started) / 1000).toFixed(1);
     $('progress-text').textContent = `Done: ${run.fitsTotal} fits in ${seconds} s on ${Math.min(poolSize(), run.queue.length)} workers.`;
     state.result = result;
-    showResults(result);
+    if (isTime()) showTimeResults(result); else showResults(result);
   }
 
   // ---------- results ----------
@@ -375,6 +553,7 @@
 
   function showResults(res) {
     const r = res.report;
+    showKind();
     $('results').hidden = false;
     $('headline').textContent = res.headline;
     const warn = $('warnings'); warn.replaceChildren();
@@ -407,6 +586,47 @@
     $('results').scrollIntoView({ behavior: 'smooth', block: 'start' });
   }
 
+  function showTimeResults(res) {
+    const r = res.report;
+    showKind();
+    $('results').hidden = false;
+    $('headline').textContent = res.headline;
+    const warn = $('warnings'); warn.replaceChildren();
+    r.warnings.forEach((w) => warn.appendChild(el('li', w)));
+    $('onset').textContent = r.onset
+      ? `Onset: ${r.onset.time} s, the first window of the earliest significant cluster (approximate: a cluster test does not date an onset precisely).`
+      : (r.shuffle.count ? 'No significant cluster, so no onset.' : 'No shuffles were run, so nothing is tested.');
+    const t = $('clusters'); t.replaceChildren();
+    const rows = [...r.clusters.map((c) => ['time course', `${c.start} to ${c.end} s`, '', c.mass, c.p_value, c.significant])];
+    if (r.generalization) {
+      // The matrix has many small chance clusters: list the significant ones and count the rest.
+      const g = r.generalization.clusters;
+      g.filter((c) => c.significant).forEach((c) => rows.push(['generalization', `${c.train_start} to ${c.train_end} s`, `${c.test_start} to ${c.test_end} s`, c.mass, c.p_value, true]));
+      const rest = g.filter((c) => !c.significant);
+      if (rest.length) {
+        rows.push([`generalization: ${rest.length} more, none significant`, '', '', Math.max(...rest.map((c) => c.mass)), Math.min(...rest.map((c) => c.p_value)), false]);
+      }
+    }
+    if (rows.length) {
+      const hr = el('tr');
+      ['clusters', 'trained (window centres)', 'tested', 'mass', 'p', ''].forEach((h) => hr.appendChild(el('th', h, 'text')));
+      t.appendChild(hr);
+      rows.forEach(([what, a, b, mass, p, sig]) => {
+        const tr = el('tr');
+        [what, a, b].forEach((v) => tr.appendChild(el('td', v, 'text')));
+        tr.appendChild(el('td', mass.toFixed(3)));
+        tr.appendChild(el('td', p.toPrecision(3)));
+        tr.appendChild(el('td', sig ? 'significant' : '', 'text'));
+        t.appendChild(tr);
+      });
+    }
+    svgImage('fig-curve', res.plots.curve, 'curve');
+    svgImage('fig-generalization', res.plots.generalization, 'generalization');
+    $('export-matrix').hidden = !res.csv.generalization;
+    $('methods').textContent = res.methods;
+    $('results').scrollIntoView({ behavior: 'smooth', block: 'start' });
+  }
+
   function scoresCsv(r) {
     const q = (s) => '"' + String(s).replace(/"/g, '""') + '"';
     const lines = ['kind,index,accuracy,balanced_accuracy'];
@@ -424,23 +644,39 @@
       if (f) await loadFile(f.name, new Uint8Array(await f.arrayBuffer()));
       e.target.value = '';
     });
+    for (const [id, load] of [['events-file', loadEvents], ['trials-file', loadFile]]) {
+      $(id).addEventListener('change', async (e) => {
+        const f = e.target.files[0];
+        if (f) await load(f.name, new Uint8Array(await f.arrayBuffer()));
+        e.target.value = '';
+      });
+    }
     const drop = $('drop');
     drop.addEventListener('dragover', (e) => { e.preventDefault(); drop.classList.add('over'); });
     drop.addEventListener('dragleave', () => drop.classList.remove('over'));
     drop.addEventListener('drop', async (e) => {
       e.preventDefault(); drop.classList.remove('over');
-      const f = e.dataTransfer.files[0];
-      if (f) await loadFile(f.name, new Uint8Array(await f.arrayBuffer()));
+      await loadDropped([...e.dataTransfer.files].slice(0, 2));
     });
-    $('example').addEventListener('click', async () => {
-      const text = window.POPDECODE_EXAMPLE_CSV !== undefined
-        ? window.POPDECODE_EXAMPLE_CSV
-        : await (await fetch('samples/odours.csv')).text();
-      await loadFile('odours.csv', new TextEncoder().encode(text));
+    const example = async () => {
+      const texts = await Promise.all(EXAMPLES[state.kind].map(async (name) => (window.POPDECODE_EXAMPLES
+        ? window.POPDECODE_EXAMPLES[name] : (await fetch('samples/' + name)).text())));
+      const bytes = texts.map((t) => new TextEncoder().encode(t));
+      if (state.kind === 'events') {
+        await loadEvents(EXAMPLES.events[0], bytes[0]);
+        await loadFile(EXAMPLES.events[1], bytes[1]);
+        $('t-start').value = -0.5; $('t-end').value = 1;
+      } else {
+        await loadFile(EXAMPLES[state.kind][0], bytes[0]);
+      }
       $('group').value = 'session';
       refreshPlan();
-    });
-    ['label', 'group', 'features', ...SETTING_IDS].forEach((id) => $(id).addEventListener('change', refreshPlan));
+    };
+    $('example').addEventListener('click', example);
+    $('example-events').addEventListener('click', example);
+    document.querySelectorAll('input[name=kind]').forEach((r) => r.addEventListener('change', () => setKind(r.value)));
+    ['label', 'group', 'features', 'trial-col', 'time-col', 'neuron-col', 'align-col', ...SETTING_IDS]
+      .forEach((id) => $(id).addEventListener('change', refreshPlan));
     $('start').addEventListener('click', start);
     $('cancel').addEventListener('click', cancel);
     $('save-recipe').addEventListener('click', () => download(`${baseName()}.recipe.json`, JSON.stringify(readRecipe(), null, 2) + '\n', 'application/json'));
@@ -464,6 +700,9 @@
     });
     $('export-json').addEventListener('click', () => state.result && download(`${baseName()}-result.json`, state.result.report_json + '\n', 'application/json'));
     $('export-csv').addEventListener('click', () => state.result && download(`${baseName()}-scores.csv`, scoresCsv(state.result.report), 'text/csv'));
+    $('export-curve').addEventListener('click', () => state.result && download(`${baseName()}-curve.csv`, state.result.csv.curve, 'text/csv'));
+    $('export-matrix').addEventListener('click', () => state.result && state.result.csv.generalization &&
+      download(`${baseName()}-generalization.csv`, state.result.csv.generalization, 'text/csv'));
     $('export-recipe').addEventListener('click', () => state.lastRecipe && download(`${baseName()}.recipe.json`, JSON.stringify(state.lastRecipe, null, 2) + '\n', 'application/json'));
   }
 

@@ -1,4 +1,5 @@
-// One decoding worker: its own wasm instance, running tasks (repeat i / shuffle j) the pool hands it.
+// One decoding worker: its own wasm instance, running tasks (repeat i / shuffle j) the pool hands it, for a trial
+// table or a time course.
 // Served page: the wasm-bindgen glue is loaded with importScripts. Offline file: the glue is concatenated in
 // front of this script inside a Blob, so `wasm_bindgen` already exists.
 /* global wasm_bindgen, importScripts */
@@ -25,7 +26,9 @@ self.onmessage = async (event) => {
     if (msg.type === 'init') {
       await wasm_bindgen({ module_or_path: msg.module });
       wasm_bindgen.start();
-      runner = new wasm_bindgen.Runner(msg.name, msg.bytes, msg.recipe);
+      runner = msg.time
+        ? new wasm_bindgen.TimeRunner(...msg.files, msg.recipe)
+        : new wasm_bindgen.Runner(msg.files[0], msg.files[1], msg.recipe);
       self.postMessage({ type: 'ready' });
     } else if (msg.type === 'task') {
       const outcome = runner.run(msg.kind, msg.index);

@@ -1,19 +1,38 @@
-//! Benchmark of the standard protocol: prints wall-clock figures, asserts nothing.
+//! Benchmarks: print wall-clock figures, assert nothing.
 //!
-//! `popdecode-bench [--trials-csv PATH]`: 232 invented trials × 52 units, 4 odours (58 each), 100 repeats × 5
-//! stratified folds, no shuffles, one thread, for each decoder. `--trials-csv` also writes the table so that
-//! `scripts/bench_sklearn.py` can time scikit-learn on the identical data and protocol.
+//! `popdecode-bench [--trials-csv PATH]`: the standard trial-table protocol, 232 invented trials × 52 units,
+//! 4 odours (58 each), 100 repeats × 5 stratified folds, no shuffles, one thread, for each decoder.
+//! `--trials-csv` also writes the table so that `scripts/bench_sklearn.py` can time scikit-learn on the identical
+//! data and protocol.
+//!
+//! `popdecode-bench timecourse [--trials N] [--units N] [--windows N] [--repeats N] [--shuffles N]
+//! [--classifier NAME] [--threads N] [--generalize]`: the time-resolved protocol on an invented recording built in
+//! memory (defaults: the issue's target case, 1000 trials × 300 units × 40 windows, 5 folds × 10 repeats,
+//! 200 shuffles × 10 repeats, shrinkage LDA, every core). Prints the time and the fits per second.
 
 use popdecode::data::Dataset;
 use popdecode::decoders::Classifier;
 use popdecode::protocol::Plan;
-use popdecode::recipe::Recipe;
+use popdecode::recipe::{Recipe, TimeSettings};
 use popdecode::report::run_all;
-use popdecode::simulate::{csv, Scenario};
+use popdecode::simulate::{binned_trials, csv, Scenario, TimeScenario};
+use popdecode::timecourse::data::TimeDataset;
+use popdecode::timecourse::plan::TimePlan;
+use popdecode::timecourse::report::TimeReport;
+use popdecode::timecourse::windows::Window;
+use rayon::prelude::*;
 use std::time::Instant;
 
 fn main() {
     let args: Vec<String> = std::env::args().collect();
+    if args.get(1).map(String::as_str) == Some("timecourse") {
+        timecourse(&args[2..]);
+    } else {
+        trial_table(&args);
+    }
+}
+
+fn trial_table(args: &[String]) {
     let scenario = Scenario {
         trials_per_class: vec![58; 4],
         ..Scenario::odours()
@@ -44,4 +63,112 @@ fn main() {
             report.summary.accuracy.mean
         );
     }
+}
+
+fn flag(args: &[String], name: &str, default: usize) -> usize {
+    args.iter()
+        .position(|a| a == name)
+        .and_then(|i| args.get(i + 1))
+        .map_or(default, |v| v.parse().expect("a whole number"))
+}
+
+/// An invented recording of `windows` bins of 50 ms, built in memory (the CSV of the target case is ~100 MB).
+fn recording(trials: usize, units: usize, windows: usize) -> TimeDataset {
+    let bin = 0.05;
+    let scenario = TimeScenario {
+        classes: ["citral", "eugenol", "hexanal", "limonene"]
+            .map(String::from)
+            .to_vec(),
+        trials_per_class: trials / 4,
+        units,
+        start: -0.5,
+        end: -0.5 + bin * windows as f64,
+        ..TimeScenario::odours()
+    };
+    let n = scenario.trials_per_class * 4;
+    let mut x = ndarray::Array3::<f64>::zeros((windows, n, units));
+    let mut y = vec![0; n];
+    let mut times = vec![0.0; windows];
+    binned_trials(&scenario, bin, |b| {
+        y[b.trial] = b.class;
+        times[b.bin] = b.centre;
+        for (u, &r) in b.rates.iter().enumerate() {
+            x[[b.bin, b.trial, u]] = r;
+        }
+    });
+    TimeDataset {
+        source: "bench".into(),
+        files: Vec::new(),
+        x,
+        windows: times
+            .iter()
+            .map(|&t| Window {
+                start: t,
+                end: t,
+                time: t,
+            })
+            .collect(),
+        trial_ids: (0..n).map(|i| format!("t{i}")).collect(),
+        y,
+        classes: scenario.classes.clone(),
+        groups: None,
+        group_names: Vec::new(),
+        neurons: (0..units).map(|u| format!("u{u}")).collect(),
+        label_column: "odour".into(),
+        group_column: None,
+        spikes_outside: 0,
+        spikes_total: 0,
+        warnings: Vec::new(),
+    }
+}
+
+fn timecourse(args: &[String]) {
+    let (trials, units, windows) = (
+        flag(args, "--trials", 1000),
+        flag(args, "--units", 300),
+        flag(args, "--windows", 40),
+    );
+    let classifier = args
+        .iter()
+        .position(|a| a == "--classifier")
+        .and_then(|i| args.get(i + 1))
+        .map_or(Classifier::ShrinkageLda, |n| {
+            Classifier::from_name(n).expect("a decoder name")
+        });
+    let data = recording(trials, units, windows);
+    let mut recipe = Recipe::new("odour");
+    recipe.classifier = classifier;
+    recipe.repeats = flag(args, "--repeats", 10);
+    recipe.shuffles = flag(args, "--shuffles", 200);
+    let mut settings = TimeSettings::binned("trial", "time");
+    settings.generalize = args.iter().any(|a| a == "--generalize");
+    recipe.time = Some(settings);
+    let plan = TimePlan::new(&data, &recipe).expect("valid plan");
+    let tasks = plan.tasks();
+    let fits: usize = tasks.iter().map(|&t| plan.fits_in(t)).sum();
+    let pool = rayon::ThreadPoolBuilder::new()
+        .num_threads(flag(args, "--threads", 0))
+        .build()
+        .expect("threads");
+    let start = Instant::now();
+    let outcomes: Vec<_> = pool.install(|| tasks.par_iter().map(|&t| plan.run(t)).collect());
+    let seconds = start.elapsed().as_secs_f64();
+    let report = TimeReport::build(&plan, &outcomes);
+    let peak = report.curve().iter().copied().fold(0.0, f64::max);
+    println!(
+        "timecourse {} {:>8.2} s for {} trials x {} units x {} windows, {} repeats + {} shuffles x {} repeats, \
+         {} fits ({:.0} fits/s, {} threads; peak accuracy {:.3})",
+        classifier.name(),
+        seconds,
+        data.n_trials(),
+        units,
+        windows,
+        recipe.repeats,
+        recipe.shuffles,
+        recipe.shuffle_repeats(),
+        fits,
+        fits as f64 / seconds,
+        pool.current_num_threads(),
+        peak
+    );
 }

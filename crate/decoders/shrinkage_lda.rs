@@ -121,8 +121,8 @@ fn class_covariance(x: &[f64], p: usize, rows: &[usize], mean: &[f64]) -> Vec<f6
 /// Returns `(1 − s)·S + s·μ·I` with `S = ZᵀZ/n`, `μ = tr(S)/p` and the shrinkage `s` of Ledoit & Wolf (2004,
 /// lemma 3.2 and section 3.3), in the form scikit-learn's `ledoit_wolf_shrinkage` writes it.
 pub fn ledoit_wolf(z: &[f64], n: usize, p: usize) -> Vec<f64> {
-    let s = ledoit_wolf_shrinkage(z, n, p);
     let mut cov = gram(z, n, p);
+    let s = shrinkage_from_gram(z, &cov, n, p);
     let nf = n as f64;
     for v in &mut cov {
         *v /= nf;
@@ -139,11 +139,15 @@ pub fn ledoit_wolf(z: &[f64], n: usize, p: usize) -> Vec<f64> {
 
 /// The shrinkage weight in [0, 1].
 pub fn ledoit_wolf_shrinkage(z: &[f64], n: usize, p: usize) -> f64 {
+    shrinkage_from_gram(z, &gram(z, n, p), n, p)
+}
+
+/// [`ledoit_wolf_shrinkage`] given `g = ZᵀZ`, which the caller needs anyway (the Gram matrix is most of the cost).
+fn shrinkage_from_gram(z: &[f64], g: &[f64], n: usize, p: usize) -> f64 {
     if p == 1 {
         return 0.0; // the target equals the estimate
     }
     let (nf, pf) = (n as f64, p as f64);
-    let g = gram(z, n, p);
     let trace = (0..p).map(|i| g[i * p + i]).sum::<f64>() / nf; // Σ diag(S)
     let mu = trace / pf;
     // Σᵢⱼ (Σₙ zₙᵢ² zₙⱼ²) = Σₙ (Σᵢ zₙᵢ²)²: the sum of (Z∘Z)ᵀ(Z∘Z) without forming it.

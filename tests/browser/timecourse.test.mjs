@@ -1,0 +1,125 @@
+// Time courses in the page: spike events and binned tables, the same numbers as the command line, bad files, and
+// the offline file.
+import { test, after, before } from 'node:test';
+import assert from 'node:assert/strict';
+import { writeFileSync, readFileSync, mkdtempSync } from 'node:fs';
+import { join } from 'node:path';
+import { tmpdir } from 'node:os';
+import { serve, browser, closeAll, assertLocalOnly, shot, quickSettings, runAndWait, downloadText, cli, ROOT } from './helpers.mjs';
+
+let server;
+before(async () => { server = await serve(); });
+after(async () => { await closeAll(); await server.close(); });
+
+const tmp = mkdtempSync(join(tmpdir(), 'popdecode-browser-time-'));
+
+async function openPage(url) {
+  const b = await browser();
+  await b.page.goto(url);
+  await b.page.waitForFunction(() => document.getElementById('version').textContent.length > 0);
+  return b;
+}
+
+async function set(page, id, value) {
+  await page.fill('#' + id, String(value));
+  await page.dispatchEvent('#' + id, 'change');
+}
+
+/// The spike-events example with small settings: 0.2 s windows stepped by 0.1 s, temporal generalization on.
+async function eventsRun(url) {
+  const b = await openPage(url);
+  await b.page.check('input[name=kind][value=events]');
+  await b.page.click('#example-events');
+  await b.page.waitForFunction(() => /Trials per class/.test(document.getElementById('classes').textContent));
+  await quickSettings(b.page, { repeats: 3, shuffles: 19 });
+  await set(b.page, 'width', 0.2);
+  await set(b.page, 'step', 0.1);
+  await b.page.check('#generalize');
+  await b.page.dispatchEvent('#generalize', 'change');
+  const headline = await runAndWait(b.page);
+  const json = await downloadText(b.page, '#export-json');
+  const recipe = await downloadText(b.page, '#export-recipe');
+  return { b, headline, json, recipe };
+}
+
+test('spike events: the page and the command line give the same bytes', async () => {
+  const { b, headline, json, recipe } = await eventsRun(`${server.origin}/index.html`);
+  await shot(b.page, 'timecourse-results');
+  const recipeFile = join(tmp, 'events.recipe.json');
+  writeFileSync(recipeFile, recipe);
+  const out = join(tmp, 'events-cli.json');
+  const stdout = cli(['timecourse', '--events', join(ROOT, 'samples', 'odour_spikes.csv'), '--trials',
+    join(ROOT, 'samples', 'odour_trials.csv'), '--recipe', recipeFile, '--quiet', '--json', out]);
+  assert.equal(json, readFileSync(out, 'utf8'), 'page JSON and CLI JSON differ');
+  assert.equal(headline.trim(), stdout.split('\n')[0].trim());
+  assert.match(headline, /'odour' decoded at up to \d+\.\d % accuracy at .* s .*chance 33\.3 %/);
+  const report = JSON.parse(json);
+  assert.equal(report.windows.length, 14);
+  assert.equal(report.generalization.scores.length, 14);
+  assert.ok(await b.page.isVisible('#fig-curve img'));
+  assert.ok(await b.page.isVisible('#fig-generalization img'));
+  assert.equal(await b.page.isVisible('#fig-confusion'), false, 'trial-table figures are hidden');
+  assert.match(await b.page.textContent('#clusters'), /time course/);
+  assert.match(await b.page.textContent('#methods'), /windows of 0\.2 s stepped by 0\.1 s/);
+  assert.match(await b.page.textContent('#cli-line'), /^popdecode timecourse --events odour_spikes\.csv --trials odour_trials\.csv/);
+  const curve = await downloadText(b.page, '#export-curve');
+  assert.match(curve, /^window,start_s,end_s,time_s,accuracy_mean/);
+  assert.equal(curve.trim().split('\n').length, 15);
+  const matrix = await downloadText(b.page, '#export-matrix');
+  assert.equal(matrix.trim().split('\n').length, 15);
+  assert.deepEqual(b.errors, []);
+  assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});
+
+test('binned table: one worker and three give identical results', async () => {
+  const runs = [];
+  for (const workers of [1, 3]) {
+    const b = await openPage(`${server.origin}/index.html?workers=${workers}`);
+    await b.page.check('input[name=kind][value=binned]');
+    await b.page.click('#example');
+    await b.page.waitForFunction(() => /15 windows/.test(document.getElementById('classes').textContent));
+    assert.equal(await b.page.inputValue('#trial-col'), 'trial');
+    assert.equal(await b.page.inputValue('#time-col'), 'time');
+    assert.equal(await b.page.inputValue('#label'), 'odour');
+    await quickSettings(b.page, { repeats: 3, shuffles: 9 });
+    await runAndWait(b.page);
+    runs.push(await downloadText(b.page, '#export-json'));
+    assertLocalOnly(assert, b.requests, server.origin);
+    await shot(b.page, `binned-${workers}`);
+    await b.context.close();
+  }
+  assert.equal(runs[0], runs[1]);
+  assert.equal(JSON.parse(runs[0]).input.kind, 'binned');
+});
+
+test('a spike file naming an unknown trial gets a clear message, and the page recovers', async () => {
+  const b = await openPage(`${server.origin}/index.html`);
+  await b.page.check('input[name=kind][value=events]');
+  const events = join(tmp, 'spikes.csv');
+  const trials = join(tmp, 'trials.csv');
+  writeFileSync(events, 'trial,neuron,time\nt1,n1,0.1\nt7,n1,0.2\n');
+  writeFileSync(trials, 'trial,odour\nt1,a\nt2,b\n');
+  await b.page.setInputFiles('#events-file', events);
+  await b.page.setInputFiles('#trials-file', trials);
+  await b.page.waitForSelector('#data-error:not([hidden])');
+  assert.match(await b.page.textContent('#data-error'), /spikes\.csv, line 3, column 'trial': trial 't7' is not in the trial table trials\.csv/);
+  assert.equal(await b.page.isDisabled('#start'), true);
+  await shot(b.page, 'timecourse-bad-events');
+  await b.page.click('#example-events');
+  await b.page.waitForSelector('#data-error', { state: 'hidden' });
+  assert.equal(await b.page.isDisabled('#start'), false);
+  assert.deepEqual(b.errors, []);
+  await b.context.close();
+});
+
+test('the offline file runs a time course from file:// like the served page', async () => {
+  const offline = await eventsRun('file://' + join(ROOT, 'dist', 'popdecode.html'));
+  const served = await eventsRun(`${server.origin}/index.html`);
+  assert.equal(offline.json, served.json);
+  assertLocalOnly(assert, offline.b.requests, null);
+  assert.deepEqual(offline.b.errors, []);
+  await shot(offline.b.page, 'timecourse-offline');
+  await offline.b.context.close();
+  await served.b.context.close();
+});
