@@ -293,7 +293,11 @@ pub fn binned_trials(s: &TimeScenario, bin: f64, mut emit: impl FnMut(Bin)) {
             let centre = s.start + (b as f64 + 0.5) * bin;
             let informative = centre >= s.info_start && centre < s.info_end;
             for (u, r) in rates.iter_mut().enumerate() {
-                let gain = if informative { libm::exp(tuning[c][u]) } else { 1.0 };
+                let gain = if informative {
+                    libm::exp(tuning[c][u])
+                } else {
+                    1.0
+                };
                 *r = poisson(&mut rng, baseline[u] * gain * bin) as f64 / bin;
             }
             emit(Bin {
