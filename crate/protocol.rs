@@ -10,7 +10,7 @@
 //! predictions of all folds into one confusion matrix, accuracy and balanced accuracy.
 
 use crate::data::Dataset;
-use crate::decoders::{Decoder, FittedPipeline};
+use crate::decoders::{fit_folds, Decoder, FoldSet};
 use crate::error::{Error, Result};
 use crate::recipe::{Folds, Recipe};
 use crate::resample::{balance, grouped_folds, permute_labels, stratified_folds};
@@ -369,20 +369,24 @@ impl<'a> Plan<'a> {
     /// Fit on every fold but one, predict that one; returns a prediction per position of `used`.
     fn cross_validate(&self, draw: &Draw) -> Predictions {
         let p = self.data.n_features();
-        let n_classes = self.data.classes.len();
-        let (used, y) = (&draw.used, &draw.y);
-        let mut labels = vec![usize::MAX; used.len()];
+        let x = self.rows(&draw.used);
+        let set = FoldSet {
+            x: &x,
+            p,
+            y: &draw.y,
+            fold: &draw.fold,
+            folds: draw.folds,
+            n_classes: self.data.classes.len(),
+        };
+        let mut labels = vec![usize::MAX; draw.used.len()];
         let (mut fits, mut capped, mut single_class) = (0, 0, 0);
-        for f in 0..draw.folds {
-            let (train, test) = draw.partition(f);
-            if test.is_empty() || train.is_empty() {
-                continue;
-            }
-            let x_train = self.rows(used, &train);
-            let y_train: Vec<usize> = train.iter().map(|&pos| y[pos]).collect();
-            let model =
-                FittedPipeline::fit(self.decoder.as_ref(), &x_train, p, &y_train, n_classes);
-            let predicted = model.predict(self.rows(used, &test));
+        for (f, model) in fit_folds(self.decoder.as_ref(), &set)
+            .into_iter()
+            .enumerate()
+        {
+            let Some(model) = model else { continue };
+            let (_, test) = set.partition(f);
+            let predicted = model.predict(set.rows(&test));
             for (&pos, c) in test.iter().zip(predicted) {
                 labels[pos] = c;
             }
@@ -398,11 +402,11 @@ impl<'a> Plan<'a> {
         }
     }
 
-    fn rows(&self, used: &[usize], positions: &[usize]) -> Vec<f64> {
+    /// Row-major rows of the trials `used`, in that order.
+    fn rows(&self, used: &[usize]) -> Vec<f64> {
         let p = self.data.n_features();
-        let mut out = Vec::with_capacity(positions.len() * p);
-        for &pos in positions {
-            let i = used[pos];
+        let mut out = Vec::with_capacity(used.len() * p);
+        for &i in used {
             out.extend_from_slice(&self.x[i * p..(i + 1) * p]);
         }
         out
@@ -490,36 +494,34 @@ pub fn predict_with_folds(
         )));
     }
     let decoder = recipe.classifier.build(recipe.c);
-    let p = data.n_features();
     let x = data.x.as_standard_layout();
-    let flat = x.as_slice().expect("standard layout");
-    let mut folds: Vec<usize> = fold_of.to_vec();
-    folds.sort_unstable();
-    folds.dedup();
+    // Fold numbers as given, renumbered 0, 1, … in ascending order.
+    let mut names: Vec<usize> = fold_of.to_vec();
+    names.sort_unstable();
+    names.dedup();
+    let fold: Vec<usize> = fold_of
+        .iter()
+        .map(|f| names.binary_search(f).expect("a listed fold"))
+        .collect();
+    if names.len() == 1 {
+        return Err(Error::Design(format!(
+            "{}: fold {} holds every trial; nothing is left to train on",
+            data.source, names[0]
+        )));
+    }
+    let set = FoldSet {
+        x: x.as_slice().expect("standard layout"),
+        p: data.n_features(),
+        y: &data.y,
+        fold: &fold,
+        folds: names.len(),
+        n_classes: data.classes.len(),
+    };
     let mut predicted = vec![0; data.n_trials()];
-    for f in folds {
-        let (train, test): (Vec<usize>, Vec<usize>) =
-            (0..data.n_trials()).partition(|&i| fold_of[i] != f);
-        if train.is_empty() {
-            return Err(Error::Design(format!(
-                "{}: fold {f} holds every trial; nothing is left to train on",
-                data.source
-            )));
-        }
-        let gather = |idx: &[usize]| {
-            idx.iter()
-                .flat_map(|&i| flat[i * p..(i + 1) * p].iter().copied())
-                .collect::<Vec<_>>()
-        };
-        let y_train: Vec<usize> = train.iter().map(|&i| data.y[i]).collect();
-        let model = FittedPipeline::fit(
-            decoder.as_ref(),
-            &gather(&train),
-            p,
-            &y_train,
-            data.classes.len(),
-        );
-        for (&i, c) in test.iter().zip(model.predict(gather(&test))) {
+    for (f, model) in fit_folds(decoder.as_ref(), &set).into_iter().enumerate() {
+        let model = model.expect("every fold has training and test trials");
+        let (_, test) = set.partition(f);
+        for (&i, c) in test.iter().zip(model.predict(set.rows(&test))) {
             predicted[i] = c;
         }
     }

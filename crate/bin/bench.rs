@@ -6,7 +6,7 @@
 //! data and protocol.
 //!
 //! `popdecode-bench timecourse [--trials N] [--units N] [--windows N] [--repeats N] [--shuffles N]
-//! [--classifier NAME] [--threads N] [--generalize]`: the time-resolved protocol on an invented recording built in
+//! [--shuffle-repeats N] [--classifier NAME] [--threads N] [--generalize]`: the time-resolved protocol on an invented recording built in
 //! memory (defaults: the target case, 1000 trials × 300 units × 40 windows, 5 folds × 10 repeats,
 //! 200 shuffles × 10 repeats, shrinkage LDA, every core). Prints the time and the fits per second.
 
@@ -140,6 +140,9 @@ fn timecourse(args: &[String]) {
     recipe.classifier = classifier;
     recipe.repeats = flag(args, "--repeats", 10);
     recipe.shuffles = flag(args, "--shuffles", 200);
+    if args.iter().any(|a| a == "--shuffle-repeats") {
+        recipe.shuffle_repeats = Some(flag(args, "--shuffle-repeats", 10));
+    }
     let mut settings = TimeSettings::binned("trial", "time");
     settings.generalize = args.iter().any(|a| a == "--generalize");
     recipe.time = Some(settings);

@@ -19,6 +19,91 @@ use standardise::Standardiser;
 /// degenerate one-class fold itself). Classes absent from the fold must never be predicted.
 pub trait Decoder: Sync {
     fn fit(&self, x: &[f64], n: usize, p: usize, y: &[usize], n_classes: usize) -> Box<dyn Model>;
+
+    /// A shortcut for fitting every fold of a split at once, for decoders whose training statistics are sums over
+    /// trials (each trial's share is then computed once, and a fold is left out by subtraction). Rows are raw, not
+    /// standardised: a decoder may only offer this when it is exactly invariant to per-feature shifts and scales,
+    /// so that the pipeline's standardisation would change nothing but rounding. Returns a model for every fold
+    /// with `wanted[f]`, each fitted on the rows outside fold f only; `None` (the default) means no shortcut.
+    fn fit_folds_raw(
+        &self,
+        _set: &FoldSet,
+        _wanted: &[bool],
+    ) -> Option<Vec<Option<Box<dyn Model>>>> {
+        None
+    }
+}
+
+/// The trials of one split: raw row-major rows (n × p), their class indices, and the fold of each (below `folds`).
+pub struct FoldSet<'a> {
+    pub x: &'a [f64],
+    pub p: usize,
+    pub y: &'a [usize],
+    pub fold: &'a [usize],
+    pub folds: usize,
+    pub n_classes: usize,
+}
+
+impl FoldSet<'_> {
+    /// Row-major rows at `positions`.
+    pub fn rows(&self, positions: &[usize]) -> Vec<f64> {
+        let p = self.p;
+        let mut out = Vec::with_capacity(positions.len() * p);
+        for &i in positions {
+            out.extend_from_slice(&self.x[i * p..(i + 1) * p]);
+        }
+        out
+    }
+
+    /// Training and test positions of fold `f`.
+    pub fn partition(&self, f: usize) -> (Vec<usize>, Vec<usize>) {
+        (0..self.y.len()).partition(|&i| self.fold[i] != f)
+    }
+}
+
+/// One pipeline per fold, each fitted on the trials outside its fold only; `None` for a fold with no training or
+/// no test trials. Uses the decoder's shortcut when it has one, and a pipeline per fold otherwise.
+pub fn fit_folds(decoder: &dyn Decoder, set: &FoldSet) -> Vec<Option<FittedPipeline>> {
+    let splits: Vec<(Vec<usize>, Vec<usize>)> = (0..set.folds).map(|f| set.partition(f)).collect();
+    let single: Vec<Option<usize>> = splits
+        .iter()
+        .map(|(train, _)| {
+            let first = set.y[*train.first()?];
+            train.iter().all(|&i| set.y[i] == first).then_some(first)
+        })
+        .collect();
+    let usable = |f: usize| !splits[f].0.is_empty() && !splits[f].1.is_empty();
+    let wanted: Vec<bool> = (0..set.folds)
+        .map(|f| usable(f) && single[f].is_none())
+        .collect();
+    let mut shortcut = decoder.fit_folds_raw(set, &wanted);
+    (0..set.folds)
+        .map(|f| {
+            if !usable(f) {
+                return None;
+            }
+            if let Some(c) = single[f] {
+                return Some(FittedPipeline::only_class(c, set.p));
+            }
+            if let Some(models) = shortcut.as_mut() {
+                let model = models[f].take().expect("a model for every wanted fold");
+                return Some(FittedPipeline {
+                    scaler: None,
+                    p: set.p,
+                    fitted: Fitted::Model(model),
+                });
+            }
+            let (train, _) = &splits[f];
+            let y_train: Vec<usize> = train.iter().map(|&i| set.y[i]).collect();
+            Some(FittedPipeline::fit(
+                decoder,
+                &set.rows(train),
+                set.p,
+                &y_train,
+                set.n_classes,
+            ))
+        })
+        .collect()
 }
 
 /// A fitted decoder.
@@ -86,9 +171,11 @@ impl Classifier {
     }
 }
 
-/// Standardisation plus decoder, both fitted on one training fold.
+/// Standardisation plus decoder, both fitted on one training fold. `scaler` is `None` for decoders fitted by their
+/// fold shortcut on raw rows (see [`Decoder::fit_folds_raw`]), which are invariant to standardisation.
 pub struct FittedPipeline {
-    scaler: Standardiser,
+    scaler: Option<Standardiser>,
+    p: usize,
     fitted: Fitted,
 }
 
@@ -108,24 +195,37 @@ impl FittedPipeline {
         n_classes: usize,
     ) -> Self {
         let n = y_train.len();
-        let scaler = Standardiser::fit(x_train, n, p);
         let first = y_train[0];
-        let fitted = if y_train.iter().all(|&c| c == first) {
-            Fitted::OnlyClass(first)
-        } else {
-            let mut z = x_train.to_vec();
-            scaler.apply(&mut z);
-            Fitted::Model(decoder.fit(&z, n, p, y_train, n_classes))
-        };
-        FittedPipeline { scaler, fitted }
+        if y_train.iter().all(|&c| c == first) {
+            return FittedPipeline::only_class(first, p);
+        }
+        let scaler = Standardiser::fit(x_train, n, p);
+        let mut z = x_train.to_vec();
+        scaler.apply(&mut z);
+        let fitted = Fitted::Model(decoder.fit(&z, n, p, y_train, n_classes));
+        FittedPipeline {
+            scaler: Some(scaler),
+            p,
+            fitted,
+        }
+    }
+
+    fn only_class(class: usize, p: usize) -> Self {
+        FittedPipeline {
+            scaler: None,
+            p,
+            fitted: Fitted::OnlyClass(class),
+        }
     }
 
     /// Predict raw row-major test rows (taken by value), standardised with the training statistics.
     pub fn predict(&self, mut x_test: Vec<f64>) -> Vec<usize> {
         match &self.fitted {
-            Fitted::OnlyClass(c) => vec![*c; x_test.len() / self.scaler.mean.len()],
+            Fitted::OnlyClass(c) => vec![*c; x_test.len() / self.p],
             Fitted::Model(m) => {
-                self.scaler.apply(&mut x_test);
+                if let Some(s) = &self.scaler {
+                    s.apply(&mut x_test);
+                }
                 m.predict(&x_test)
             }
         }

@@ -11,11 +11,24 @@
 //!
 //! Σ is solved by Cholesky; when shrinkage is 0 and Σ is singular, the smallest ridge that makes it positive
 //! definite is added (see [`cholesky_with_ridge`]).
+//!
+//! **Every fold of a split at once.** Everything above is a function of per-class sums over training trials: the
+//! count, the sum of the rows, the scatter `Σ xxᵀ`, and (for the shrinkage weight) `Σ (|zᵢ|²)²`, one pass. So the
+//! count, sum and scatter of each (fold, class) are computed once per split, and the training statistics of fold f
+//! are the class totals minus fold f's share: one Gram matrix over all trials per split instead of one per fold.
+//! Step 1 makes the decoder exactly invariant to shifting and scaling each feature (the class SDs scale with the
+//! feature), so the standardisation the pipeline would apply changes nothing but rounding and is left out: the fold
+//! engine works on the raw values, after removing one offset per feature (the mean of the split's rows) so that the
+//! scatter sums do not lose digits to a large mean. The offset cancels exactly in the algebra; it only conditions the
+//! arithmetic.
 
 use super::linalg::{cholesky_solve, cholesky_with_ridge, dot, gram};
-use super::{argmax, present_classes, Decoder, Model};
+use super::{argmax, present_classes, Decoder, FoldSet, Model};
 
 pub struct ShrinkageLda;
+
+/// Most values the per-(fold, class) scatters of the fold shortcut may hold (8 M doubles, 64 MB).
+const MAX_SHARE_VALUES: usize = 8 << 20;
 
 struct LdaModel {
     classes: Vec<usize>,
@@ -26,44 +39,31 @@ struct LdaModel {
 
 impl Decoder for ShrinkageLda {
     fn fit(&self, x: &[f64], n: usize, p: usize, y: &[usize], n_classes: usize) -> Box<dyn Model> {
-        let classes = present_classes(y, n_classes);
-        let mut pooled = vec![0.0; p * p];
-        let mut means = Vec::with_capacity(classes.len());
-        let mut priors = Vec::with_capacity(classes.len());
-        for &k in &classes {
-            let rows: Vec<usize> = (0..n).filter(|&i| y[i] == k).collect();
-            let nk = rows.len();
-            let mut mean = vec![0.0; p];
-            for &i in &rows {
-                for (m, v) in mean.iter_mut().zip(&x[i * p..(i + 1) * p]) {
-                    *m += v;
-                }
-            }
-            for m in &mut mean {
-                *m /= nk as f64;
-            }
-            let prior = nk as f64 / n as f64;
-            let cov = class_covariance(x, p, &rows, &mean);
-            for (acc, v) in pooled.iter_mut().zip(&cov) {
-                *acc += prior * v;
-            }
-            means.push(mean);
-            priors.push(prior);
+        let all = vec![0; n];
+        let set = FoldSet {
+            x,
+            p,
+            y,
+            fold: &all,
+            folds: 1,
+            n_classes,
+        };
+        let sums = FoldSums::of(&set);
+        Box::new(sums.fit(&set, None))
+    }
+
+    fn fit_folds_raw(&self, set: &FoldSet, wanted: &[bool]) -> Option<Vec<Option<Box<dyn Model>>>> {
+        // One p × p scatter per (fold, class): with many folds (leave-one-out) and many features that is more memory
+        // than a browser tab should spend, and per-fold fits cost little more there anyway.
+        if set.folds * set.n_classes * set.p * set.p > MAX_SHARE_VALUES {
+            return None;
         }
-        let (l, _ridge) = cholesky_with_ridge(&pooled, p);
-        let mut coef = Vec::with_capacity(classes.len());
-        let mut intercept = Vec::with_capacity(classes.len());
-        for (mean, prior) in means.iter().zip(&priors) {
-            let mut w = mean.clone();
-            cholesky_solve(&l, p, &mut w);
-            intercept.push(-0.5 * dot(mean, &w) + libm::log(*prior));
-            coef.push(w);
-        }
-        Box::new(LdaModel {
-            classes,
-            coef,
-            intercept,
-        })
+        let sums = FoldSums::of(set);
+        Some(
+            (0..set.folds)
+                .map(|f| wanted[f].then(|| Box::new(sums.fit(set, Some(f))) as Box<dyn Model>))
+                .collect(),
+        )
     }
 }
 
@@ -84,75 +84,287 @@ impl Model for LdaModel {
     }
 }
 
-/// Ledoit–Wolf covariance of one class, computed on unit-SD features and scaled back.
-fn class_covariance(x: &[f64], p: usize, rows: &[usize], mean: &[f64]) -> Vec<f64> {
-    let n = rows.len();
-    let mut z = Vec::with_capacity(n * p);
-    for &i in rows {
-        z.extend(x[i * p..(i + 1) * p].iter().zip(mean).map(|(v, m)| v - m));
-    }
-    let mut scale = vec![0.0; p];
-    for row in z.chunks_exact(p) {
-        for (s, v) in scale.iter_mut().zip(row) {
-            *s += v * v;
+/// Count, sum of rows and scatter `Σ xxᵀ` (rows shifted by `offset`) of one group of trials.
+struct Sums {
+    n: usize,
+    sum: Vec<f64>,
+    scatter: Vec<f64>,
+}
+
+/// Per-class totals over the split and per-(fold, class) shares.
+struct FoldSums {
+    offset: Vec<f64>,
+    /// Row-major shifted copy of the split's rows.
+    shifted: Vec<f64>,
+    total: Vec<Sums>,
+    /// `[fold][class]`; empty when the split has a single fold (a plain fit).
+    share: Vec<Vec<Sums>>,
+}
+
+impl FoldSums {
+    fn of(set: &FoldSet) -> FoldSums {
+        let (p, n) = (set.p, set.y.len());
+        let mut offset = vec![0.0; p];
+        for row in set.x.chunks_exact(p) {
+            for (o, v) in offset.iter_mut().zip(row) {
+                *o += v;
+            }
+        }
+        for o in &mut offset {
+            *o /= n as f64;
+        }
+        let shifted: Vec<f64> = set
+            .x
+            .chunks_exact(p)
+            .flat_map(|row| row.iter().zip(&offset).map(|(v, o)| v - o))
+            .collect();
+        let sums_of = |rows: &[usize]| {
+            if rows.is_empty() {
+                return Sums {
+                    n: 0,
+                    sum: Vec::new(),
+                    scatter: Vec::new(),
+                };
+            }
+            let mut z = Vec::with_capacity(rows.len() * p);
+            let mut sum = vec![0.0; p];
+            for &i in rows {
+                let r = &shifted[i * p..(i + 1) * p];
+                z.extend_from_slice(r);
+                for (s, v) in sum.iter_mut().zip(r) {
+                    *s += v;
+                }
+            }
+            Sums {
+                n: rows.len(),
+                sum,
+                scatter: gram(&z, rows.len(), p),
+            }
+        };
+        let members = |keep: &dyn Fn(usize) -> bool, k: usize| -> Vec<usize> {
+            (0..n).filter(|&i| set.y[i] == k && keep(i)).collect()
+        };
+        if set.folds == 1 {
+            let total = (0..set.n_classes)
+                .map(|k| sums_of(&members(&|_| true, k)))
+                .collect();
+            return FoldSums {
+                offset,
+                shifted,
+                total,
+                share: Vec::new(),
+            };
+        }
+        let share: Vec<Vec<Sums>> = (0..set.folds)
+            .map(|f| {
+                (0..set.n_classes)
+                    .map(|k| sums_of(&members(&|i| set.fold[i] == f, k)))
+                    .collect()
+            })
+            .collect();
+        // Totals as the sum of the shares, in fold order: no second pass over the rows.
+        let total = (0..set.n_classes)
+            .map(|k| {
+                let mut t = Sums {
+                    n: 0,
+                    sum: vec![0.0; p],
+                    scatter: vec![0.0; p * p],
+                };
+                for s in share.iter().map(|fold| &fold[k]).filter(|s| s.n > 0) {
+                    t.n += s.n;
+                    add(&mut t.sum, &s.sum);
+                    add(&mut t.scatter, &s.scatter);
+                }
+                t
+            })
+            .collect();
+        FoldSums {
+            offset,
+            shifted,
+            total,
+            share,
         }
     }
-    for s in &mut scale {
-        let sd = (*s / n as f64).sqrt();
-        // The zero-variance rule of scikit-learn's StandardScaler (scale below 10 machine epsilons → 1).
-        *s = if sd < 10.0 * f64::EPSILON { 1.0 } else { sd };
-    }
-    for row in z.chunks_exact_mut(p) {
-        for (v, s) in row.iter_mut().zip(&scale) {
-            *v /= s;
+
+    /// The model trained on every trial outside fold `left_out` (every trial when `None`), on raw rows.
+    ///
+    /// Only upper triangles are formed (the Cholesky factorisation reads no more), in one reused buffer, and the
+    /// scaling of step 1 is folded into the sums: the scaled-back shrunk covariance is `(1 − s)·C/n` off the diagonal
+    /// and `(1 − s)·var + s·μ·var` on it, so only the shrinkage weight needs the unit-SD statistics.
+    fn fit(&self, set: &FoldSet, left_out: Option<usize>) -> LdaModel {
+        let p = set.p;
+        let in_training = |i: usize| left_out.is_none_or(|f| set.fold[i] != f);
+        let train: Vec<usize> = (0..set.y.len()).filter(|&i| in_training(i)).collect();
+        let classes = present_classes(
+            &train.iter().map(|&i| set.y[i]).collect::<Vec<_>>(),
+            set.n_classes,
+        );
+        let mut pooled = vec![0.0; p * p];
+        let mut c = vec![0.0; p * p];
+        let mut means = Vec::with_capacity(classes.len());
+        let mut priors = Vec::with_capacity(classes.len());
+        for &k in &classes {
+            let t = &self.total[k];
+            let share = left_out.map(|f| &self.share[f][k]).filter(|s| s.n > 0);
+            let n = t.n - share.map_or(0, |s| s.n);
+            let nf = n as f64;
+            let mean: Vec<f64> = match share {
+                None => t.sum.iter().map(|v| v / nf).collect(),
+                Some(s) => t
+                    .sum
+                    .iter()
+                    .zip(&s.sum)
+                    .map(|(a, b)| (a - b) / nf)
+                    .collect(),
+            };
+            // Upper triangle of the centred scatter C = Σ xxᵀ − n μμᵀ over the training trials of the class.
+            for i in 0..p {
+                let range = i * p + i..(i + 1) * p;
+                let (out, total) = (&mut c[range.clone()], &t.scatter[range.clone()]);
+                let m = nf * mean[i];
+                match share {
+                    None => {
+                        for ((o, a), mj) in out.iter_mut().zip(total).zip(&mean[i..]) {
+                            *o = a - m * mj;
+                        }
+                    }
+                    Some(s) => {
+                        let part = &s.scatter[range];
+                        for (((o, a), b), mj) in out.iter_mut().zip(total).zip(part).zip(&mean[i..])
+                        {
+                            *o = (a - b) - m * mj;
+                        }
+                    }
+                }
+            }
+            let rows: Vec<usize> = train.iter().copied().filter(|&i| set.y[i] == k).collect();
+            let (s, mu, var, constant) =
+                class_shrinkage(&c, &self.shifted, &rows, &mean, p, &t.scatter);
+            let prior = nf / train.len() as f64;
+            let off = prior * (1.0 - s) / nf;
+            // 0 for a constant feature, else 1: multiplying keeps the loop free of branches.
+            let keep: Vec<f64> = constant
+                .iter()
+                .map(|&k| if k { 0.0 } else { 1.0 })
+                .collect();
+            for i in 0..p {
+                let row = &mut pooled[i * p + i..(i + 1) * p];
+                let diagonal = row[0]
+                    + prior
+                        * if constant[i] {
+                            s * mu
+                        } else {
+                            (1.0 - s) * var[i] + s * mu * var[i]
+                        };
+                let a = off * keep[i];
+                for ((acc, v), kj) in row
+                    .iter_mut()
+                    .zip(&c[i * p + i..(i + 1) * p])
+                    .zip(&keep[i..])
+                {
+                    *acc += a * v * kj;
+                }
+                row[0] = diagonal;
+            }
+            means.push(mean);
+            priors.push(prior);
+        }
+        let (l, _ridge) = cholesky_with_ridge(&pooled, p);
+        let mut coef = Vec::with_capacity(classes.len());
+        let mut intercept = Vec::with_capacity(classes.len());
+        for (mean, prior) in means.iter().zip(&priors) {
+            let mut w = mean.clone();
+            cholesky_solve(&l, p, &mut w);
+            // The means are in shifted coordinates: move the offset into the intercept so raw rows can be scored.
+            intercept.push(-0.5 * dot(mean, &w) + libm::log(*prior) - dot(&self.offset, &w));
+            coef.push(w);
+        }
+        LdaModel {
+            classes,
+            coef,
+            intercept,
         }
     }
-    let mut cov = ledoit_wolf(&z, n, p);
+}
+
+fn add(total: &mut [f64], part: &[f64]) {
+    for (t, v) in total.iter_mut().zip(part) {
+        *t += v;
+    }
+}
+
+/// The Ledoit–Wolf weight of one class (step 1: its covariance on unit-SD features), from the upper triangle of
+/// its centred scatter `c`. Returns the weight, the target's scale μ (mean unit-SD variance), each feature's
+/// variance, and which features are constant in the class. `rows` index the class's training rows in `shifted`;
+/// `raw_scatter` (the class's scatter about the split's offset) tells round-off from real variance.
+fn class_shrinkage(
+    c: &[f64],
+    shifted: &[f64],
+    rows: &[usize],
+    mean: &[f64],
+    p: usize,
+    raw_scatter: &[f64],
+) -> (f64, f64, Vec<f64>, Vec<bool>) {
+    let n = rows.len() as f64;
+    let var: Vec<f64> = (0..p).map(|i| c[i * p + i] / n).collect();
+    // The zero-variance rule of scikit-learn's StandardScaler (scale below 10 machine epsilons → 1). Computed from
+    // sums, a constant feature's variance is round-off rather than 0, so it counts as constant when it is below
+    // 1e-9 of the feature's second moment about the split's offset; such a feature is 0 after centring, as it would
+    // be if it were centred directly.
+    let constant: Vec<bool> = (0..p)
+        .map(|i| var[i] <= 1e-9 * raw_scatter[i * p + i] / n || var[i].sqrt() < 10.0 * f64::EPSILON)
+        .collect();
+    let inv: Vec<f64> = (0..p)
+        .map(|i| {
+            if constant[i] {
+                0.0
+            } else {
+                1.0 / var[i].sqrt()
+            }
+        })
+        .collect();
+    // S = ZᵀZ/n of the unit-SD data: tr S and Σᵢⱼ Sᵢⱼ² (off-diagonal terms twice).
+    let (mut trace, mut delta_sum) = (0.0, 0.0);
     for i in 0..p {
-        for j in 0..p {
-            cov[i * p + j] *= scale[i] * scale[j];
+        let row = &c[i * p + i..(i + 1) * p];
+        let d = row[0] * inv[i] * inv[i] / n;
+        trace += d;
+        delta_sum += d * d;
+        let a = inv[i] / n;
+        let mut off = 0.0;
+        for (v, ij) in row.iter().zip(&inv[i..]).skip(1) {
+            let sij = v * a * ij;
+            off += sij * sij;
         }
+        delta_sum += 2.0 * off;
     }
-    cov
+    // Σₙ (|zₙ|²)², one pass over the rows.
+    let beta_sum: f64 = rows
+        .iter()
+        .map(|&r| {
+            let row = &shifted[r * p..(r + 1) * p];
+            let sq: f64 = (0..p)
+                .map(|i| {
+                    let z = (row[i] - mean[i]) * inv[i];
+                    z * z
+                })
+                .sum();
+            sq * sq
+        })
+        .sum();
+    let s = shrinkage(rows.len(), p, trace, delta_sum, beta_sum);
+    (s, trace / p as f64, var, constant)
 }
 
-/// Ledoit–Wolf shrunk covariance of centred row-major `z` (n × p).
-///
-/// Returns `(1 − s)·S + s·μ·I` with `S = ZᵀZ/n`, `μ = tr(S)/p` and the shrinkage `s` of Ledoit & Wolf (2004,
-/// lemma 3.2 and section 3.3), in the form scikit-learn's `ledoit_wolf_shrinkage` writes it.
-pub fn ledoit_wolf(z: &[f64], n: usize, p: usize) -> Vec<f64> {
-    let mut cov = gram(z, n, p);
-    let s = shrinkage_from_gram(z, &cov, n, p);
-    let nf = n as f64;
-    for v in &mut cov {
-        *v /= nf;
-    }
-    let mu = (0..p).map(|i| cov[i * p + i]).sum::<f64>() / p as f64;
-    for v in &mut cov {
-        *v *= 1.0 - s;
-    }
-    for i in 0..p {
-        cov[i * p + i] += s * mu;
-    }
-    cov
-}
-
-/// The shrinkage weight in [0, 1].
-pub fn ledoit_wolf_shrinkage(z: &[f64], n: usize, p: usize) -> f64 {
-    shrinkage_from_gram(z, &gram(z, n, p), n, p)
-}
-
-/// [`ledoit_wolf_shrinkage`] given `g = ZᵀZ`, which the caller needs anyway (the Gram matrix is most of the cost).
-fn shrinkage_from_gram(z: &[f64], g: &[f64], n: usize, p: usize) -> f64 {
+/// The Ledoit–Wolf shrinkage weight in [0, 1] (Ledoit & Wolf, 2004, lemma 3.2 and section 3.3, in the form of
+/// scikit-learn's `ledoit_wolf_shrinkage`), from the statistics of centred data Z (n × p) with S = ZᵀZ/n:
+/// `trace` = tr S, `delta_sum` = Σᵢⱼ Sᵢⱼ², `beta_sum` = Σₙ (|zₙ|²)².
+fn shrinkage(n: usize, p: usize, trace: f64, delta_sum: f64, beta_sum: f64) -> f64 {
     if p == 1 {
         return 0.0; // the target equals the estimate
     }
     let (nf, pf) = (n as f64, p as f64);
-    let trace = (0..p).map(|i| g[i * p + i]).sum::<f64>() / nf; // Σ diag(S)
     let mu = trace / pf;
-    // Σᵢⱼ (Σₙ zₙᵢ² zₙⱼ²) = Σₙ (Σᵢ zₙᵢ²)²: the sum of (Z∘Z)ᵀ(Z∘Z) without forming it.
-    let beta_sum: f64 = z.chunks_exact(p).map(|row| dot(row, row).powi(2)).sum();
-    let delta_sum = g.iter().map(|v| v * v).sum::<f64>() / (nf * nf);
     let beta = (beta_sum / nf - delta_sum) / (pf * nf);
     let delta = (delta_sum - 2.0 * mu * trace + pf * mu * mu) / pf;
     let beta = beta.min(delta);
@@ -167,17 +379,27 @@ fn shrinkage_from_gram(z: &[f64], g: &[f64], n: usize, p: usize) -> f64 {
 mod tests {
     use super::*;
 
+    /// The weight from raw centred samples, as the statistics are defined.
+    fn weight(z: &[f64], n: usize, p: usize) -> f64 {
+        let g = gram(z, n, p);
+        let nf = n as f64;
+        let trace = (0..p).map(|i| g[i * p + i]).sum::<f64>() / nf;
+        let delta_sum = g.iter().map(|v| v * v).sum::<f64>() / (nf * nf);
+        let beta_sum = z.chunks_exact(p).map(|r| dot(r, r).powi(2)).sum();
+        shrinkage(n, p, trace, delta_sum, beta_sum)
+    }
+
     #[test]
     fn shrinkage_matches_hand_calculation() {
         // Two centred samples ±v, v = (1, 2, −1): S = vvᵀ, tr S = 6, μ = 2; Σₙ(|zₙ|²)² = 72, Σ(ZᵀZ)²/n² = 36, so
         // β = (72/2 − 36)/(3·2) = 0 and the weight is 0: the spread of the samples says nothing against S.
         let z = [1.0, 2.0, -1.0, -1.0, -2.0, 1.0];
-        assert_eq!(ledoit_wolf_shrinkage(&z, 2, 3), 0.0);
+        assert_eq!(weight(&z, 2, 3), 0.0);
         // Four samples on the axes, z = (±2, 0), (0, ±1): S = diag(2, 0.5), μ = 1.25.
         // Σₙ(|zₙ|²)² = 16+16+1+1 = 34; ZᵀZ = diag(8, 2), Σ G² / n² = 68/16 = 4.25.
         // β = (34/4 − 4.25)/(2·4) = 0.53125; δ = (4.25 − 2·1.25·2.5 + 2·1.5625)/2 = 0.5625; s = β/δ = 0.9444…
         let z = [2.0, 0.0, -2.0, 0.0, 0.0, 1.0, 0.0, -1.0];
-        let s = ledoit_wolf_shrinkage(&z, 4, 2);
+        let s = weight(&z, 4, 2);
         assert!((s - 0.53125 / 0.5625).abs() < 1e-12, "{s}");
     }
 
@@ -189,5 +411,72 @@ mod tests {
         let y = [0, 0, 0, 1, 1, 1];
         let m = ShrinkageLda.fit(&x, 6, 2, &y, 2);
         assert_eq!(m.predict(&[-1.0, 0.0, 1.0, 0.0]), vec![0, 1]);
+    }
+
+    /// Leaving a fold out by subtraction gives the model a direct fit on the remaining rows gives, up to rounding:
+    /// same predictions, between-class coefficient differences within 1e-9. Features with a large offset and a feature constant within a
+    /// class (a silent neuron) included.
+    #[test]
+    fn fold_by_subtraction_equals_a_direct_fit() {
+        let (n, p) = (30, 4);
+        let mut x = Vec::new();
+        let mut y = Vec::new();
+        for i in 0..n {
+            let c = i % 3;
+            let t = i as f64;
+            y.push(c);
+            x.extend([
+                1000.0 + (t * 0.7).sin() + c as f64,
+                (t * 1.3).cos() * (1.0 + c as f64),
+                if c == 0 { 0.0 } else { (t * 0.37).sin() },
+                5.0,
+            ]);
+        }
+        let fold: Vec<usize> = (0..n).map(|i| (i * 7) % 4).collect();
+        let set = FoldSet {
+            x: &x,
+            p,
+            y: &y,
+            fold: &fold,
+            folds: 4,
+            n_classes: 3,
+        };
+        let sums = FoldSums::of(&set);
+        for f in 0..4 {
+            let by_sub = sums.fit(&set, Some(f));
+            let train: Vec<usize> = (0..n).filter(|&i| fold[i] != f).collect();
+            let xt: Vec<f64> = train
+                .iter()
+                .flat_map(|&i| x[i * p..(i + 1) * p].iter().copied())
+                .collect();
+            let yt: Vec<usize> = train.iter().map(|&i| y[i]).collect();
+            let direct_set = FoldSet {
+                x: &xt,
+                p,
+                y: &yt,
+                fold: &vec![0; train.len()],
+                folds: 1,
+                n_classes: 3,
+            };
+            let direct = FoldSums::of(&direct_set).fit(&direct_set, None);
+            assert_eq!(by_sub.predict(&x), direct.predict(&x), "fold {f}");
+            // A coefficient vector depends on the origin (the offsets differ), but its difference from another
+            // class's does not: that difference, and the score differences, are what the argmax reads.
+            let diff = |m: &LdaModel, k: usize| -> Vec<f64> {
+                m.coef[k]
+                    .iter()
+                    .zip(&m.coef[0])
+                    .map(|(a, b)| a - b)
+                    .collect()
+            };
+            for k in 1..3 {
+                for (a, b) in diff(&by_sub, k).iter().zip(diff(&direct, k)) {
+                    assert!(
+                        (a - b).abs() <= 1e-9 * b.abs().max(1.0),
+                        "fold {f}: {a} vs {b}"
+                    );
+                }
+            }
+        }
     }
 }

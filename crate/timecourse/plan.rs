@@ -11,7 +11,7 @@
 //! shuffle over every window, so one permutation is used at every window: what the cluster test needs.
 
 use super::data::TimeDataset;
-use crate::decoders::{Decoder, FittedPipeline};
+use crate::decoders::{fit_folds, Decoder, FittedPipeline, FoldSet};
 use crate::error::{Error, Result};
 use crate::protocol::{accuracies, Draw, Scheme, Task};
 use crate::recipe::{Recipe, TimeSettings};
@@ -140,53 +140,66 @@ impl<'a> TimePlan<'a> {
     }
 
     /// Cross-validate one draw at every window (and, with generalization, test every window's decoder at every
-    /// window).
+    /// window). All folds of a window are fitted together, so a decoder with a fold shortcut can use it.
     fn one_repeat(&self, draw: &Draw) -> TimeOutcome {
         let data = self.data;
         let (nw, k, p) = (self.n_windows(), data.classes.len(), data.n_neurons());
         let generalize = self.settings.generalize;
+        let gather = |w: usize, positions: &[usize]| {
+            let x = data.window(w);
+            let mut out = Vec::with_capacity(positions.len() * p);
+            for &pos in positions {
+                let i = draw.used[pos];
+                out.extend_from_slice(&x[i * p..(i + 1) * p]);
+            }
+            out
+        };
+        let all: Vec<usize> = (0..draw.used.len()).collect();
+        // models[w][f]: the pipeline trained at window w without fold f.
+        let models: Vec<Vec<Option<FittedPipeline>>> = (0..nw)
+            .map(|w| {
+                let x = gather(w, &all);
+                let set = FoldSet {
+                    x: &x,
+                    p,
+                    y: &draw.y,
+                    fold: &draw.fold,
+                    folds: draw.folds,
+                    n_classes: k,
+                };
+                fit_folds(self.decoder.as_ref(), &set)
+            })
+            .collect();
+        let fitted = models.iter().flatten().flatten();
+        let fits = fitted.clone().count() as u32;
+        let capped = fitted.clone().filter(|m| m.hit_iteration_cap()).count() as u32;
+        let single = fitted.filter(|m| m.single_class()).count() as u32;
+
         let cells = if generalize { nw * nw } else { nw };
         let mut confusion = vec![0u32; cells * k * k];
-        let (mut fits, mut capped, mut single) = (0, 0, 0);
         for f in 0..draw.folds {
-            let (train, test) = draw.partition(f);
-            if train.is_empty() || test.is_empty() {
+            let test: Vec<usize> = all
+                .iter()
+                .copied()
+                .filter(|&pos| draw.fold[pos] == f)
+                .collect();
+            if models.iter().all(|m| m[f].is_none()) {
                 continue;
             }
-            let y_train: Vec<usize> = train.iter().map(|&pos| draw.y[pos]).collect();
-            let gather = |w: usize, positions: &[usize]| {
-                let x = data.window(w);
-                let mut out = Vec::with_capacity(positions.len() * p);
-                for &pos in positions {
-                    let i = draw.used[pos];
-                    out.extend_from_slice(&x[i * p..(i + 1) * p]);
-                }
-                out
-            };
-            // Test rows of every window, gathered once per fold when every decoder tests at every window.
-            let test_rows: Vec<Vec<f64>> = if generalize {
-                (0..nw).map(|w| gather(w, &test)).collect()
-            } else {
-                Vec::new()
-            };
-            for w in 0..nw {
-                let model =
-                    FittedPipeline::fit(self.decoder.as_ref(), &gather(w, &train), p, &y_train, k);
-                fits += 1;
-                capped += u32::from(model.hit_iteration_cap());
-                single += u32::from(model.single_class());
-                let mut tally = |cell: usize, predicted: Vec<usize>| {
+            for w_test in 0..nw {
+                let rows = gather(w_test, &test);
+                let trained_at: Vec<usize> = if generalize {
+                    (0..nw).collect()
+                } else {
+                    vec![w_test]
+                };
+                for w in trained_at {
+                    let Some(model) = &models[w][f] else { continue };
+                    let cell = if generalize { w * nw + w_test } else { w };
                     let c = &mut confusion[cell * k * k..(cell + 1) * k * k];
-                    for (&pos, q) in test.iter().zip(predicted) {
+                    for (&pos, q) in test.iter().zip(model.predict(rows.clone())) {
                         c[draw.y[pos] * k + q] += 1;
                     }
-                };
-                if generalize {
-                    for (w2, rows) in test_rows.iter().enumerate() {
-                        tally(w * nw + w2, model.predict(rows.clone()));
-                    }
-                } else {
-                    tally(w, model.predict(gather(w, &test)));
                 }
             }
         }
