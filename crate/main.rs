@@ -62,10 +62,10 @@ struct ColumnArgs {
     /// Leave out trials with missing cells instead of stopping.
     #[arg(long)]
     drop_missing: bool,
-    /// Decoder: linear-svm or shrinkage-lda [default: linear-svm].
+    /// Decoder: linear-svm, shrinkage-lda, logistic, gaussian-nb, poisson-nb or nearest-mean [default: linear-svm].
     #[arg(long, value_parser = parse_classifier)]
     classifier: Option<Classifier>,
-    /// Regularisation constant C of the linear SVM [default: 1].
+    /// Regularisation constant C of the linear SVM and logistic regression [default: 1].
     #[arg(long)]
     c: Option<f64>,
 }

@@ -10,7 +10,7 @@
 //! predictions of all folds into one confusion matrix, accuracy and balanced accuracy.
 
 use crate::data::Dataset;
-use crate::decoders::{fit_folds, Decoder, FoldSet};
+use crate::decoders::{check_counts, fit_folds, Decoder, FoldSet};
 use crate::error::{Error, Result};
 use crate::recipe::{Folds, Recipe};
 use crate::resample::{balance, grouped_folds, permute_labels, stratified_folds};
@@ -288,7 +288,8 @@ impl<'a> Plan<'a> {
         let mut warnings = data.warnings.clone();
         warnings.append(&mut scheme.warnings);
         scheme.warnings = warnings;
-        let x = data.x.as_standard_layout().iter().copied().collect();
+        let x: Vec<f64> = data.x.as_standard_layout().iter().copied().collect();
+        check_counts(recipe.classifier, &x, &data.feature_names, &data.source)?;
         Ok(Plan {
             data,
             recipe: recipe.clone(),

@@ -29,10 +29,14 @@ fn balancing_defeats_the_majority_guess() {
         let unbalanced = analyse(&scenario, &unbalanced_recipe);
         let raw = unbalanced.summary.accuracy.mean;
         let bacc = unbalanced.summary.balanced_accuracy.mean;
-        assert!(
-            raw > 0.72,
-            "{classifier:?} raw accuracy {raw} should approach 0.8"
-        );
+        // The trap needs a decoder that learns class proportions (a prior or an intercept); nearest-mean has
+        // neither, so it is checked for the balanced scores only.
+        if classifier != Classifier::NearestMean {
+            assert!(
+                raw > 0.72,
+                "{classifier:?} raw accuracy {raw} should approach 0.8"
+            );
+        }
         assert!(
             (bacc - 0.5).abs() < 0.05,
             "{classifier:?} balanced accuracy {bacc}"
@@ -145,8 +149,8 @@ fn leave_one_out_with_a_constant_feature() {
         let shift = if i % 2 == 0 { 0.0 } else { 3.0 };
         csv += &format!(
             "{class},{},{},7\n",
-            shift + (i as f64 * 0.37).sin(),
-            (i as f64 * 1.3).cos()
+            shift + (i as f64 * 0.37).sin() + 1.0,
+            (i as f64 * 1.3).cos() + 1.0
         );
     }
     for classifier in Classifier::ALL {

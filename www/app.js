@@ -337,7 +337,7 @@
   // ---------- plan (checks and class counts) ----------
   function refreshPlan() {
     syncFeatureOptions();
-    $('c').disabled = $('classifier').value !== 'linear-svm';
+    $('c').disabled = !['linear-svm', 'logistic'].includes($('classifier').value);
     saveSettings();
     const box = $('classes');
     box.replaceChildren();
@@ -402,7 +402,7 @@
     if (r.columns.group) parts.push('--group', q(r.columns.group));
     if (r.columns.features) parts.push('--features', q(r.columns.features.join(',')));
     parts.push('--classifier', r.classifier);
-    if (r.classifier === 'linear-svm') parts.push('--c', r.c);
+    if (['linear-svm', 'logistic'].includes(r.classifier)) parts.push('--c', r.c);
     parts.push('--folds', r.folds, '--repeats', r.repeats, '--shuffles', r.shuffles);
     if (r.shuffle_repeats !== null) parts.push('--shuffle-repeats', r.shuffle_repeats);
     if (!r.balance) parts.push('--no-balance');

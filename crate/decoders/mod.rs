@@ -4,8 +4,12 @@
 //! a [`Model`] that predicts class indices), then add one variant to [`Classifier`] and one arm to
 //! [`Classifier::build`]. The protocol, the reports and every face pick it up from there.
 
+pub mod gaussian_nb;
 pub mod linalg;
 pub mod linear_svm;
+pub mod logistic;
+pub mod nearest_mean;
+pub mod poisson_nb;
 pub mod shrinkage_lda;
 pub mod standardise;
 
@@ -19,6 +23,12 @@ use standardise::Standardiser;
 /// degenerate one-class fold itself). Classes absent from the fold must never be predicted.
 pub trait Decoder: Sync {
     fn fit(&self, x: &[f64], n: usize, p: usize, y: &[usize], n_classes: usize) -> Box<dyn Model>;
+
+    /// Whether the pipeline standardises features before this decoder (every decoder but one that models raw
+    /// counts).
+    fn standardise(&self) -> bool {
+        true
+    }
 
     /// A shortcut for fitting every fold of a split at once, for decoders whose training statistics are sums over
     /// trials (each trial's share is then computed once, and a fold is left out by subtraction). Rows are raw, not
@@ -122,16 +132,31 @@ pub trait Model: Send {
 pub enum Classifier {
     LinearSvm,
     ShrinkageLda,
+    NearestMean,
+    GaussianNb,
+    PoissonNb,
+    Logistic,
 }
 
 impl Classifier {
-    pub const ALL: [Classifier; 2] = [Classifier::LinearSvm, Classifier::ShrinkageLda];
+    pub const ALL: [Classifier; 6] = [
+        Classifier::LinearSvm,
+        Classifier::ShrinkageLda,
+        Classifier::NearestMean,
+        Classifier::GaussianNb,
+        Classifier::PoissonNb,
+        Classifier::Logistic,
+    ];
 
     /// The spelling used in recipes and on the command line.
     pub fn name(self) -> &'static str {
         match self {
             Classifier::LinearSvm => "linear-svm",
             Classifier::ShrinkageLda => "shrinkage-lda",
+            Classifier::NearestMean => "nearest-mean",
+            Classifier::GaussianNb => "gaussian-nb",
+            Classifier::PoissonNb => "poisson-nb",
+            Classifier::Logistic => "logistic",
         }
     }
 
@@ -141,7 +166,12 @@ impl Classifier {
 
     /// Whether the regularisation constant C means anything for this decoder.
     pub fn uses_c(self) -> bool {
-        matches!(self, Classifier::LinearSvm)
+        matches!(self, Classifier::LinearSvm | Classifier::Logistic)
+    }
+
+    /// Whether the decoder models raw spike counts (and so needs non-negative values and no standardisation).
+    pub fn needs_counts(self) -> bool {
+        matches!(self, Classifier::PoissonNb)
     }
 
     /// One sentence for the methods paragraph.
@@ -160,6 +190,26 @@ impl Classifier {
                  regularised by Ledoit–Wolf analytic shrinkage (Ledoit & Wolf, 2004) and class priors equal to the \
                  training-fold class proportions"
                 .to_string(),
+            Classifier::NearestMean => "a nearest-class-mean decoder assigning each test trial to the class whose \
+                 mean training pattern correlated best with it across features (Pearson correlation)"
+                .to_string(),
+            Classifier::GaussianNb => format!(
+                "Gaussian naive Bayes (independent normal features per class, maximum-likelihood class variances \
+                 increased by {} times the largest feature variance, priors equal to the training-fold class \
+                 proportions, as scikit-learn's GaussianNB)",
+                gaussian_nb::VAR_SMOOTHING
+            ),
+            Classifier::PoissonNb => "Poisson naive Bayes on the values as given, without standardisation \
+                 (independent Poisson counts per neuron and class, rates (sum + 0.5)/n, priors equal to the \
+                 training-fold class proportions)"
+                .to_string(),
+            Classifier::Logistic => format!(
+                "logistic regression with an L2 penalty (C = {c}; binary for two classes, multinomial otherwise; \
+                 unpenalised intercepts), minimised by limited-memory BFGS to a relative gradient norm of {} (at \
+                 most {} iterations)",
+                logistic::TOLERANCE,
+                logistic::MAX_ITERATIONS
+            ),
         }
     }
 
@@ -167,6 +217,10 @@ impl Classifier {
         match self {
             Classifier::LinearSvm => Box::new(linear_svm::LinearSvm { c }),
             Classifier::ShrinkageLda => Box::new(shrinkage_lda::ShrinkageLda),
+            Classifier::NearestMean => Box::new(nearest_mean::NearestMean),
+            Classifier::GaussianNb => Box::new(gaussian_nb::GaussianNb),
+            Classifier::PoissonNb => Box::new(poisson_nb::PoissonNb),
+            Classifier::Logistic => Box::new(logistic::Logistic { c }),
         }
     }
 }
@@ -198,6 +252,13 @@ impl FittedPipeline {
         let first = y_train[0];
         if y_train.iter().all(|&c| c == first) {
             return FittedPipeline::only_class(first, p);
+        }
+        if !decoder.standardise() {
+            return FittedPipeline {
+                scaler: None,
+                p,
+                fitted: Fitted::Model(decoder.fit(x_train, n, p, y_train, n_classes)),
+            };
         }
         let scaler = Standardiser::fit(x_train, n, p);
         let mut z = x_train.to_vec();
@@ -237,6 +298,28 @@ impl FittedPipeline {
 
     pub fn single_class(&self) -> bool {
         matches!(self.fitted, Fitted::OnlyClass(_))
+    }
+}
+
+/// For decoders that model counts: every value must be a non-negative number. `names` label the columns.
+pub fn check_counts(
+    classifier: Classifier,
+    values: &[f64],
+    names: &[String],
+    source: &str,
+) -> crate::Result<()> {
+    if !classifier.needs_counts() {
+        return Ok(());
+    }
+    let p = names.len();
+    match values.iter().position(|v| *v < 0.0) {
+        Some(at) => Err(crate::Error::Design(format!(
+            "{source}: {} models spike counts, but '{}' has the negative value {}; choose another decoder",
+            classifier.name(),
+            names[at % p],
+            values[at]
+        ))),
+        None => Ok(()),
     }
 }
 

@@ -11,7 +11,7 @@
 //! shuffle over every window, so one permutation is used at every window: what the cluster test needs.
 
 use super::data::TimeDataset;
-use crate::decoders::{fit_folds, Decoder, FittedPipeline, FoldSet};
+use crate::decoders::{check_counts, fit_folds, Decoder, FittedPipeline, FoldSet};
 use crate::error::{Error, Result};
 use crate::protocol::{accuracies, Draw, Scheme, Task};
 use crate::recipe::{Recipe, TimeSettings};
@@ -50,6 +50,12 @@ impl<'a> TimePlan<'a> {
             Error::Recipe("this recipe has no time settings; it is for a trial table".into())
         })?;
         let mut scheme = Scheme::resolve(&data.trials(), recipe)?;
+        check_counts(
+            recipe.classifier,
+            data.x.as_slice().expect("standard layout"),
+            &data.neurons,
+            &data.source,
+        )?;
         let mut warnings = data.warnings.clone();
         warnings.append(&mut scheme.warnings);
         scheme.warnings = warnings;
