@@ -19,6 +19,7 @@
 pub mod data;
 pub mod decoders;
 pub mod error;
+pub mod neurons;
 pub mod protocol;
 pub mod recipe;
 pub mod report;

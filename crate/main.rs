@@ -4,7 +4,8 @@ use clap::{Args, Parser, Subcommand};
 use indicatif::{ProgressBar, ProgressStyle};
 use popdecode::data::Dataset;
 use popdecode::decoders::Classifier;
-use popdecode::protocol::{predict_with_folds, Plan, Task};
+use popdecode::neurons::{plots as neuron_plots, NeuronsPlan};
+use popdecode::protocol::{predict_with_folds, Plan};
 use popdecode::recipe::{Folds, Recipe, TimeInput, TimeSettings};
 use popdecode::report::{methods, plots, text, Report};
 use popdecode::timecourse::data::{FileBytes, TimeDataset};
@@ -34,6 +35,8 @@ enum Command {
     Decode(DecodeArgs),
     /// Decoding at every time window, with cluster-corrected significance and temporal generalization.
     Timecourse(Box<TimecourseArgs>),
+    /// What each neuron contributes: neuron-dropping curve, each neuron alone, weights and activation patterns.
+    Neurons(NeuronsArgs),
     /// Cross-validated predictions on fold numbers you supply in a column (no balancing, no repeats).
     Predict(PredictArgs),
 }
@@ -169,6 +172,18 @@ struct TimecourseArgs {
     run: RunArgs,
 }
 
+/// The neuron analyses run the decoding protocol without shuffles; --shuffles and --shuffle-repeats are ignored.
+#[derive(Args)]
+struct NeuronsArgs {
+    #[command(flatten)]
+    table: TableArgs,
+    /// Random subsets drawn per population size for the dropping curve [default: 10].
+    #[arg(long, default_value_t = 10)]
+    draws: usize,
+    #[command(flatten)]
+    run: RunArgs,
+}
+
 #[derive(Args)]
 struct PredictArgs {
     #[command(flatten)]
@@ -200,6 +215,7 @@ fn main() -> ExitCode {
     let result = match cli.command {
         Command::Decode(args) => decode(args),
         Command::Timecourse(args) => timecourse(*args),
+        Command::Neurons(args) => neurons(args),
         Command::Predict(args) => predict(args),
     };
     match result {
@@ -468,11 +484,39 @@ fn show(e: Error) -> String {
     e.to_string()
 }
 
+fn neurons(args: NeuronsArgs) -> Result<(), String> {
+    let recipe = base_recipe(&args.run, &args.table.columns)?;
+    if recipe.time.is_some() {
+        return Err(
+            "this recipe is for a time course; the neuron analyses read a trial table".into(),
+        );
+    }
+    recipe.validate().map_err(show)?;
+    let bytes = read(&args.table.csv)?;
+    let data =
+        Dataset::from_csv(&display_name(&args.table.csv), &bytes, &recipe.columns).map_err(show)?;
+    let plan = NeuronsPlan::new(&data, &recipe, args.draws).map_err(show)?;
+    let tasks = plan.tasks();
+    let costs: Vec<usize> = tasks.iter().map(|&t| plan.fits_in(t)).collect();
+    let outcomes = run_tasks(&tasks, &costs, |t| plan.run(t), &args.run)?;
+    let report = plan.report(&outcomes);
+    print!("{}", report.render());
+    write_outputs(
+        &args.run,
+        &plan.recipe,
+        &report.to_json(),
+        &[
+            ("dropping.svg", Some(neuron_plots::dropping(&report))),
+            ("single.svg", Some(neuron_plots::single(&report))),
+        ],
+    )
+}
+
 /// Run every task on a rayon pool. Outcomes are collected by task, so the thread count cannot change them.
-fn run_tasks<O: Send>(
-    tasks: &[Task],
+fn run_tasks<T: Copy + Sync, O: Send>(
+    tasks: &[T],
     costs: &[usize],
-    run: impl Fn(Task) -> O + Sync,
+    run: impl Fn(T) -> O + Sync,
     args: &RunArgs,
 ) -> Result<Vec<O>, String> {
     let total: usize = costs.iter().sum();

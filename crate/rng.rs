@@ -21,6 +21,8 @@ pub enum Stream {
     ShuffleRepeat = 3,
     /// Invented data for demos, tests and benchmarks.
     Simulation = 4,
+    /// Random subsets of neurons (the neuron-dropping curve).
+    Subset = 5,
 }
 
 /// A generator for task `(a, b)` of kind `kind` under `seed`.

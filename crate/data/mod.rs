@@ -208,6 +208,19 @@ impl Dataset {
         self.x.ncols()
     }
 
+    /// The same trials with only the feature columns `cols` (in that order).
+    pub fn with_features(&self, cols: &[usize]) -> Dataset {
+        Dataset {
+            x: self.x.select(ndarray::Axis(1), cols),
+            feature_names: cols
+                .iter()
+                .map(|&c| self.feature_names[c].clone())
+                .collect(),
+            warnings: Vec::new(),
+            ..self.clone()
+        }
+    }
+
     /// Trials per class, in class order.
     pub fn class_counts(&self) -> Vec<usize> {
         let mut counts = vec![0; self.classes.len()];

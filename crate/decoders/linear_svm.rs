@@ -107,6 +107,10 @@ impl Model for LinearModel {
     fn hit_iteration_cap(&self) -> bool {
         self.capped
     }
+
+    fn weights(&self) -> Option<Vec<(usize, Vec<f64>)>> {
+        Some(super::linear_weights(&self.classes, &self.w))
+    }
 }
 
 /// Solve one binary problem with labels ±1; returns `p` weights then the intercept, and whether the cap was hit.

@@ -195,6 +195,10 @@ impl Model for LogisticModel {
     fn hit_iteration_cap(&self) -> bool {
         self.capped
     }
+
+    fn weights(&self) -> Option<Vec<(usize, Vec<f64>)>> {
+        Some(super::linear_weights(&self.classes, &self.w))
+    }
 }
 
 #[cfg(test)]

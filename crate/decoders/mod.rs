@@ -124,6 +124,11 @@ pub trait Model: Send {
     fn hit_iteration_cap(&self) -> bool {
         false
     }
+    /// For linear decoders: the weight vector (p values, no intercept) of each output, and what each output scores
+    /// (the class index, or for a single binary output the class it favours when positive). `None` otherwise.
+    fn weights(&self) -> Option<Vec<(usize, Vec<f64>)>> {
+        None
+    }
 }
 
 /// The decoders a recipe can name.
@@ -296,6 +301,14 @@ impl FittedPipeline {
         matches!(&self.fitted, Fitted::Model(m) if m.hit_iteration_cap())
     }
 
+    /// The linear decoder's weights, on the standardised features it was fitted on (see [`Model::weights`]).
+    pub fn weights(&self) -> Option<Vec<(usize, Vec<f64>)>> {
+        match &self.fitted {
+            Fitted::Model(m) => m.weights(),
+            Fitted::OnlyClass(_) => None,
+        }
+    }
+
     pub fn single_class(&self) -> bool {
         matches!(self.fitted, Fitted::OnlyClass(_))
     }
@@ -320,6 +333,20 @@ pub fn check_counts(
             values[at]
         ))),
         None => Ok(()),
+    }
+}
+
+/// Weights of a one-vs-rest (or single binary) linear model stored as rows of `p` weights then the intercept.
+pub(crate) fn linear_weights(classes: &[usize], w: &[Vec<f64>]) -> Vec<(usize, Vec<f64>)> {
+    let p = w[0].len() - 1;
+    if w.len() == 1 {
+        vec![(classes[1], w[0][..p].to_vec())]
+    } else {
+        classes
+            .iter()
+            .zip(w)
+            .map(|(&c, w)| (c, w[..p].to_vec()))
+            .collect()
     }
 }
 

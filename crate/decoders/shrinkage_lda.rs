@@ -82,6 +82,16 @@ impl Model for LdaModel {
             })
             .collect()
     }
+
+    fn weights(&self) -> Option<Vec<(usize, Vec<f64>)>> {
+        Some(
+            self.classes
+                .iter()
+                .copied()
+                .zip(self.coef.clone())
+                .collect(),
+        )
+    }
 }
 
 /// Count, sum of rows and scatter `Σ xxᵀ` (rows shifted by `offset`) of one group of trials.
