@@ -71,6 +71,9 @@ struct ColumnArgs {
     /// Regularisation constant C of the linear SVM and logistic regression [default: 1].
     #[arg(long)]
     c: Option<f64>,
+    /// Choose C inside each training fold by nested cross-validation (grid 0.001 to 1000).
+    #[arg(long)]
+    tune: bool,
 }
 
 #[derive(Args)]
@@ -262,6 +265,7 @@ fn apply_column_flags(recipe: &mut Recipe, t: &ColumnArgs) {
     if let Some(c) = t.c {
         recipe.c = c;
     }
+    recipe.tune |= t.tune;
 }
 
 /// The recipe a run starts from: a recipe file, or the defaults for the label column.

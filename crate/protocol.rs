@@ -41,6 +41,9 @@ pub struct Outcome {
     pub capped_fits: u32,
     /// Fits whose training fold held a single class (grouped folds only).
     pub single_class_fits: u32,
+    /// With tuning, the setting chosen in each fit of an observed repeat, in fold order.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub chosen: Vec<f64>,
 }
 
 /// The score a run is judged by and the null is built from.
@@ -294,7 +297,7 @@ impl<'a> Plan<'a> {
             data,
             recipe: recipe.clone(),
             scheme,
-            decoder: recipe.classifier.build(recipe.c),
+            decoder: recipe.classifier.build_tuned(recipe.c, recipe.tune),
             x,
         })
     }
@@ -356,15 +359,7 @@ impl<'a> Plan<'a> {
 
     fn one_repeat(&self, labels: &[usize], rng: &mut impl RngCore) -> Outcome {
         let draw = self.scheme.draw(labels, self.data.groups.as_deref(), rng);
-        let predicted = self.cross_validate(&draw);
-        score(
-            &draw.y,
-            &predicted.labels,
-            self.data.classes.len(),
-            predicted.fits,
-            predicted.capped,
-            predicted.single_class,
-        )
+        score(&draw.y, self.cross_validate(&draw), self.data.classes.len())
     }
 
     /// Fit on every fold but one, predict that one; returns a prediction per position of `used`.
@@ -381,6 +376,7 @@ impl<'a> Plan<'a> {
         };
         let mut labels = vec![usize::MAX; draw.used.len()];
         let (mut fits, mut capped, mut single_class) = (0, 0, 0);
+        let mut chosen = Vec::new();
         for (f, model) in fit_folds(self.decoder.as_ref(), &set)
             .into_iter()
             .enumerate()
@@ -394,12 +390,14 @@ impl<'a> Plan<'a> {
             fits += 1;
             capped += u32::from(model.hit_iteration_cap());
             single_class += u32::from(model.single_class());
+            chosen.extend(model.chosen());
         }
         Predictions {
             labels,
             fits,
             capped,
             single_class,
+            chosen,
         }
     }
 
@@ -419,6 +417,7 @@ struct Predictions {
     fits: u32,
     capped: u32,
     single_class: u32,
+    chosen: Vec<f64>,
 }
 
 impl Outcome {
@@ -431,21 +430,15 @@ impl Outcome {
             fits: 0,
             capped_fits: 0,
             single_class_fits: 0,
+            chosen: Vec::new(),
         }
     }
 }
 
 /// Pool predictions into a confusion matrix, accuracy and balanced accuracy.
-fn score(
-    y: &[usize],
-    predicted: &[usize],
-    n_classes: usize,
-    fits: u32,
-    capped: u32,
-    single: u32,
-) -> Outcome {
+fn score(y: &[usize], predicted: Predictions, n_classes: usize) -> Outcome {
     let mut flat = vec![0u32; n_classes * n_classes];
-    for (&t, &p) in y.iter().zip(predicted) {
+    for (&t, &p) in y.iter().zip(&predicted.labels) {
         flat[t * n_classes + p] += 1;
     }
     let (accuracy, balanced_accuracy) = accuracies(&flat, n_classes);
@@ -454,9 +447,10 @@ fn score(
         accuracy,
         balanced_accuracy,
         confusion: flat.chunks(n_classes).map(<[u32]>::to_vec).collect(),
-        fits,
-        capped_fits: capped,
-        single_class_fits: single,
+        fits: predicted.fits,
+        capped_fits: predicted.capped,
+        single_class_fits: predicted.single_class,
+        chosen: predicted.chosen,
     }
 }
 
@@ -494,7 +488,7 @@ pub fn predict_with_folds(
             data.n_trials()
         )));
     }
-    let decoder = recipe.classifier.build(recipe.c);
+    let decoder = recipe.classifier.build_tuned(recipe.c, recipe.tune);
     let x = data.x.as_standard_layout();
     // Fold numbers as given, renumbered 0, 1, … in ascending order.
     let mut names: Vec<usize> = fold_of.to_vec();

@@ -74,8 +74,11 @@ pub struct Recipe {
     pub format: String,
     pub columns: Columns,
     pub classifier: Classifier,
-    /// Regularisation constant of the linear SVM (larger = less regularised).
+    /// Regularisation constant of the linear SVM and logistic regression (larger = less regularised).
     pub c: f64,
+    /// Choose C inside each training fold by nested cross-validation instead of using `c`.
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub tune: bool,
     pub folds: Folds,
     /// Independent resamplings (balancing + fold assignment) of the observed labels.
     pub repeats: usize,
@@ -173,6 +176,7 @@ impl Recipe {
             },
             classifier: Classifier::LinearSvm,
             c: 1.0,
+            tune: false,
             folds: Folds::K(5),
             repeats: 100,
             balance: true,
@@ -224,6 +228,12 @@ impl Recipe {
         }
         if self.columns.label.trim().is_empty() {
             return Err(Error::Recipe("name the label column".into()));
+        }
+        if self.tune && self.classifier.grid().is_none() {
+            return Err(Error::Recipe(format!(
+                "{} has no setting to choose; tuning applies to linear-svm and logistic",
+                self.classifier.name()
+            )));
         }
         if let Some(t) = &self.time {
             if !(t.alpha > 0.0 && t.alpha < 1.0) {

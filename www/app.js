@@ -247,6 +247,7 @@
     recipe.columns.drop_missing = state.kind === 'table' && $('drop-missing').checked;
     recipe.classifier = $('classifier').value;
     recipe.c = Number($('c').value);
+    recipe.tune = ['linear-svm', 'logistic'].includes(recipe.classifier) && $('tune').checked;
     const folds = $('folds').value.trim().toLowerCase();
     recipe.folds = folds === 'loo' ? 'loo' : Number(folds);
     recipe.repeats = Number($('repeats').value);
@@ -280,6 +281,7 @@
     }
     $('classifier').value = r.classifier;
     $('c').value = r.c;
+    $('tune').checked = !!r.tune;
     $('folds').value = r.folds;
     $('repeats').value = r.repeats;
     $('balance').checked = r.balance;
@@ -316,7 +318,7 @@
     }
   }
 
-  const SETTING_IDS = ['classifier', 'c', 'folds', 'repeats', 'balance', 'shuffles', 'shuffle-repeats', 'seed', 'drop-missing',
+  const SETTING_IDS = ['classifier', 'c', 'tune', 'folds', 'repeats', 'balance', 'shuffles', 'shuffle-repeats', 'seed', 'drop-missing',
     'width', 'step', 't-start', 't-end', 'generalize', 'alpha'];
   function saveSettings() {
     const s = {};
@@ -337,7 +339,8 @@
   // ---------- plan (checks and class counts) ----------
   function refreshPlan() {
     syncFeatureOptions();
-    $('c').disabled = !['linear-svm', 'logistic'].includes($('classifier').value);
+    $('c').disabled = !['linear-svm', 'logistic'].includes($('classifier').value) || $('tune').checked;
+    $('tune').disabled = !['linear-svm', 'logistic'].includes($('classifier').value);
     saveSettings();
     const box = $('classes');
     box.replaceChildren();
@@ -402,7 +405,8 @@
     if (r.columns.group) parts.push('--group', q(r.columns.group));
     if (r.columns.features) parts.push('--features', q(r.columns.features.join(',')));
     parts.push('--classifier', r.classifier);
-    if (['linear-svm', 'logistic'].includes(r.classifier)) parts.push('--c', r.c);
+    if (r.tune) parts.push('--tune');
+    else if (['linear-svm', 'logistic'].includes(r.classifier)) parts.push('--c', r.c);
     parts.push('--folds', r.folds, '--repeats', r.repeats, '--shuffles', r.shuffles);
     if (r.shuffle_repeats !== null) parts.push('--shuffle-repeats', r.shuffle_repeats);
     if (!r.balance) parts.push('--no-balance');
@@ -556,8 +560,7 @@
     showKind();
     $('results').hidden = false;
     $('headline').textContent = res.headline;
-    const warn = $('warnings'); warn.replaceChildren();
-    r.warnings.forEach((w) => warn.appendChild(el('li', w)));
+    showNotes(r);
     const t = $('scores'); t.replaceChildren();
     const hr = el('tr'); ['', 'mean', 'SD', '2.5 pct', '97.5 pct'].forEach((h) => hr.appendChild(el('th', h))); t.appendChild(hr);
     [['accuracy', r.summary.accuracy], ['balanced accuracy', r.summary.balanced_accuracy]].forEach(([name, s]) => {
@@ -591,8 +594,7 @@
     showKind();
     $('results').hidden = false;
     $('headline').textContent = res.headline;
-    const warn = $('warnings'); warn.replaceChildren();
-    r.warnings.forEach((w) => warn.appendChild(el('li', w)));
+    showNotes(r);
     $('onset').textContent = r.onset
       ? `Onset: ${r.onset.time} s, the first window of the earliest significant cluster (approximate: a cluster test does not date an onset precisely).`
       : (r.shuffle.count ? 'No significant cluster, so no onset.' : 'No shuffles were run, so nothing is tested.');
@@ -625,6 +627,16 @@
     $('export-matrix').hidden = !res.csv.generalization;
     $('methods').textContent = res.methods;
     $('results').scrollIntoView({ behavior: 'smooth', block: 'start' });
+  }
+
+  // Warnings, and with nested selection how often each C was chosen.
+  function showNotes(r) {
+    const notes = $('warnings'); notes.replaceChildren();
+    r.warnings.forEach((w) => notes.appendChild(el('li', w)));
+    if (r.tuning) {
+      const used = r.tuning.chosen.filter((c) => c.fits > 0).map((c) => `${c.value} in ${c.fits} fit${c.fits === 1 ? '' : 's'}`);
+      notes.appendChild(el('li', 'C chosen by nested cross-validation: ' + used.join(', '), 'info'));
+    }
   }
 
   function scoresCsv(r) {

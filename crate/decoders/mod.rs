@@ -12,6 +12,7 @@ pub mod nearest_mean;
 pub mod poisson_nb;
 pub mod shrinkage_lda;
 pub mod standardise;
+pub mod tuning;
 
 use serde::{Deserialize, Serialize};
 use standardise::Standardiser;
@@ -129,6 +130,10 @@ pub trait Model: Send {
     fn weights(&self) -> Option<Vec<(usize, Vec<f64>)>> {
         None
     }
+    /// The setting chosen by nested cross-validation, for a tuned decoder.
+    fn chosen(&self) -> Option<f64> {
+        None
+    }
 }
 
 /// The decoders a recipe can name.
@@ -180,11 +185,15 @@ impl Classifier {
     }
 
     /// One sentence for the methods paragraph.
-    pub fn describe(self, c: f64) -> String {
+    /// `c` is `None` when C was chosen by nested cross-validation.
+    pub fn describe(self, c: Option<f64>) -> String {
+        let c = c.map_or("C chosen within each training fold".to_string(), |c| {
+            format!("C = {c}")
+        });
         match self {
             Classifier::LinearSvm => format!(
                 "a linear support vector machine (L2-regularised squared hinge loss with the intercept as a \
-                 constant feature, C = {c}, one-vs-rest for more than two classes), minimised in the primal by the \
+                 constant feature, {c}, one-vs-rest for more than two classes), minimised in the primal by the \
                  finite Newton method (Keerthi & DeCoste, 2005) when a training fold had more trials than features \
                  and otherwise in the dual by coordinate descent (Hsieh et al., 2008; stopping tolerance {} on the \
                  projected gradient, at most {} passes)",
@@ -209,12 +218,29 @@ impl Classifier {
                  training-fold class proportions)"
                 .to_string(),
             Classifier::Logistic => format!(
-                "logistic regression with an L2 penalty (C = {c}; binary for two classes, multinomial otherwise; \
+                "logistic regression with an L2 penalty ({c}; binary for two classes, multinomial otherwise; \
                  unpenalised intercepts), minimised by limited-memory BFGS to a relative gradient norm of {} (at \
                  most {} iterations)",
                 logistic::TOLERANCE,
                 logistic::MAX_ITERATIONS
             ),
+        }
+    }
+
+    /// The setting grid nested cross-validation searches, for decoders that have a setting.
+    pub fn grid(self) -> Option<Vec<f64>> {
+        self.uses_c().then(|| tuning::C_GRID.to_vec())
+    }
+
+    /// The decoder, with its setting chosen inside each training fold when `tune` is set.
+    pub fn build_tuned(self, c: f64, tune: bool) -> Box<dyn Decoder> {
+        match (tune, self.grid()) {
+            (true, Some(grid)) => Box::new(tuning::Tuned {
+                build: Box::new(move |value| self.build(value)),
+                grid,
+                standardise: !self.needs_counts(),
+            }),
+            _ => self.build(c),
         }
     }
 
@@ -299,6 +325,14 @@ impl FittedPipeline {
 
     pub fn hit_iteration_cap(&self) -> bool {
         matches!(&self.fitted, Fitted::Model(m) if m.hit_iteration_cap())
+    }
+
+    /// The setting chosen inside the training fold, when the decoder was tuned.
+    pub fn chosen(&self) -> Option<f64> {
+        match &self.fitted {
+            Fitted::Model(m) => m.chosen(),
+            Fitted::OnlyClass(_) => None,
+        }
     }
 
     /// The linear decoder's weights, on the standardised features it was fitted on (see [`Model::weights`]).

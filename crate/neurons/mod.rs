@@ -277,7 +277,7 @@ pub fn linear(data: &Dataset, recipe: &Recipe) -> Option<Linear> {
     let (n, p) = (data.n_trials(), data.n_features());
     let x = data.x.as_standard_layout();
     let x = x.as_slice().expect("standard layout");
-    let decoder = recipe.classifier.build(recipe.c);
+    let decoder = recipe.classifier.build_tuned(recipe.c, recipe.tune);
     let model = FittedPipeline::fit(decoder.as_ref(), x, p, &data.y, data.classes.len());
     let outputs = model.weights()?;
     // The covariance (divisor n) of the standardised features the decoder saw.

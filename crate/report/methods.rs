@@ -129,6 +129,22 @@ pub(crate) fn fitting(rc: &Recipe) -> String {
     format!(
         "Within each training fold, every feature was standardised with the mean and standard deviation of the \
          training trials, which were then applied to the test trials, and the decoder was fitted: {}.",
-        rc.classifier.describe(rc.c)
-    )
+        rc.classifier.describe((!rc.tune).then_some(rc.c))
+    ) + &tuning_sentence(rc)
+}
+
+/// How C was chosen, when the recipe tunes: the nested cross-validation, in a sentence.
+fn tuning_sentence(rc: &Recipe) -> String {
+    match rc.classifier.grid().filter(|_| rc.tune) {
+        None => String::new(),
+        Some(grid) => format!(
+            " C was chosen within each training fold by nested cross-validation: the training trials were dealt, \
+             class by class in file order, into {} inner folds, each of the values {} was scored by the inner \
+             balanced accuracy of the full pipeline (standardisation refitted on each inner training fold), and the \
+             best value (the smaller on ties) was refitted on the whole training fold; the test fold was never used \
+             to choose it.",
+            crate::decoders::tuning::INNER_FOLDS,
+            grid.iter().map(|v| v.to_string()).collect::<Vec<_>>().join(", ")
+        ),
+    }
 }

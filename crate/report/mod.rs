@@ -14,6 +14,8 @@
 //! * `shuffle` {`count`, `repeats_each`, `within_groups`, `observed`, `null` (one headline score per shuffle),
 //!   `null_mean`, `null_sd`, `null_p95`, `p_value`}; the statistics are null when there are no shuffles
 //! * `fits` {`total`, `capped`, `single_class`}, `warnings`
+//! * `tuning` (only with nested selection): {`grid`, `chosen` [{`value`, `fits`}]}, how often each setting was
+//!   chosen across the folds of the observed repeats
 //!
 //! Nothing time- or machine-dependent is written, so equal recipes and files give byte-identical JSON.
 
@@ -45,6 +47,39 @@ pub struct Report {
     pub shuffle: Shuffle,
     pub fits: Fits,
     pub warnings: Vec<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub tuning: Option<Tuning>,
+}
+
+/// How often each setting of the grid was chosen by nested cross-validation.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Tuning {
+    pub grid: Vec<f64>,
+    pub chosen: Vec<Chosen>,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Chosen {
+    pub value: f64,
+    pub fits: usize,
+}
+
+impl Tuning {
+    /// The summary of the settings chosen, when the recipe tunes.
+    pub fn of<'a>(recipe: &Recipe, chosen: impl Iterator<Item = &'a f64>) -> Option<Tuning> {
+        let grid = recipe.classifier.grid().filter(|_| recipe.tune)?;
+        let chosen: Vec<f64> = chosen.copied().collect();
+        Some(Tuning {
+            chosen: grid
+                .iter()
+                .map(|&value| Chosen {
+                    value,
+                    fits: chosen.iter().filter(|&&c| c == value).count(),
+                })
+                .collect(),
+            grid,
+        })
+    }
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -270,6 +305,7 @@ impl Report {
             shuffle,
             fits,
             warnings,
+            tuning: Tuning::of(&plan.recipe, repeats.iter().flat_map(|o| &o.chosen)),
         }
     }
 

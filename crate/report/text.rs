@@ -129,10 +129,34 @@ pub fn render(r: &Report) -> String {
         }
         out.push('\n');
     }
+    if let Some(t) = &r.tuning {
+        out.push_str(&tuning_line(t));
+    }
     for w in &r.warnings {
         writeln!(out, "\nnote: {w}").unwrap();
     }
     out
+}
+
+/// "C chosen in nested cross-validation: 0.1 in 12 fits, 1 in 488 fits".
+pub fn tuning_line(t: &super::Tuning) -> String {
+    let parts: Vec<String> = t
+        .chosen
+        .iter()
+        .filter(|c| c.fits > 0)
+        .map(|c| {
+            format!(
+                "{} in {} fit{}",
+                c.value,
+                c.fits,
+                if c.fits == 1 { "" } else { "s" }
+            )
+        })
+        .collect();
+    format!(
+        "\nC chosen by nested cross-validation: {}\n",
+        parts.join(", ")
+    )
 }
 
 fn clip(s: &str, n: usize) -> String {

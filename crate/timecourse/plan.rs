@@ -33,6 +33,9 @@ pub struct TimeOutcome {
     pub fits: u32,
     pub capped_fits: u32,
     pub single_class_fits: u32,
+    /// With tuning, the setting chosen in each fit of an observed repeat (window by window, folds in order).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub chosen: Vec<f64>,
 }
 
 /// A time-resolved recipe checked against a recording.
@@ -64,7 +67,7 @@ impl<'a> TimePlan<'a> {
             recipe: recipe.clone(),
             settings,
             scheme,
-            decoder: recipe.classifier.build(recipe.c),
+            decoder: recipe.classifier.build_tuned(recipe.c, recipe.tune),
         })
     }
 
@@ -122,6 +125,7 @@ impl<'a> TimePlan<'a> {
                     }
                 }
                 let mut t = total.expect("at least one repeat per shuffle");
+                t.chosen.clear();
                 for v in t
                     .accuracy
                     .iter_mut()
@@ -179,7 +183,8 @@ impl<'a> TimePlan<'a> {
         let fitted = models.iter().flatten().flatten();
         let fits = fitted.clone().count() as u32;
         let capped = fitted.clone().filter(|m| m.hit_iteration_cap()).count() as u32;
-        let single = fitted.filter(|m| m.single_class()).count() as u32;
+        let single = fitted.clone().filter(|m| m.single_class()).count() as u32;
+        let chosen: Vec<f64> = fitted.filter_map(FittedPipeline::chosen).collect();
 
         let cells = if generalize { nw * nw } else { nw };
         let mut confusion = vec![0u32; cells * k * k];
@@ -235,6 +240,7 @@ impl<'a> TimePlan<'a> {
             fits,
             capped_fits: capped,
             single_class_fits: single,
+            chosen,
         }
     }
 }

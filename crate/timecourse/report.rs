@@ -1,8 +1,8 @@
 //! The result of a time-resolved analysis.
 //!
 //! Schema `popdecode-timecourse/1` (same family as `popdecode-result/1`; fields are only ever added):
-//! * `schema`, `software`, `recipe`, `classes`, `class_counts`, `design`, `chance`, `fits`, `warnings`: as in a
-//!   trial-table result
+//! * `schema`, `software`, `recipe`, `classes`, `class_counts`, `design`, `chance`, `fits`, `warnings`, `tuning`:
+//!   as in a trial-table result
 //! * `input` {`kind` ("binned" or "events"), `files` [{`file`, `sha256`}], `trials`, `neurons`, `label_column`,
 //!   `group_column`, `groups`, `spikes_total`, `spikes_outside`}
 //! * `windows`: per window {`index`, `start`, `end`, `time` (centre, s), `accuracy` and `balanced_accuracy`
@@ -24,7 +24,7 @@ use super::data::{SourceFile, TimeDataset};
 use super::plan::{TimeOutcome, TimePlan};
 use crate::protocol::Task;
 use crate::recipe::{Recipe, TimeInput};
-use crate::report::{Chance, Design, Fits, Software, CHANCE_ALPHA};
+use crate::report::{Chance, Design, Fits, Software, Tuning, CHANCE_ALPHA};
 use crate::stats::{self, binomial, Spread};
 use serde::{Deserialize, Serialize};
 
@@ -52,6 +52,8 @@ pub struct TimeReport {
     pub generalization: Option<Generalization>,
     pub fits: Fits,
     pub warnings: Vec<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub tuning: Option<Tuning>,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -318,6 +320,7 @@ impl TimeReport {
             generalization,
             fits,
             warnings,
+            tuning: Tuning::of(&plan.recipe, repeats.iter().flat_map(|o| &o.chosen)),
         }
     }
 

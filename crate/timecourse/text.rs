@@ -151,6 +151,9 @@ pub fn render(r: &TimeReport) -> String {
         )
         .unwrap();
     }
+    if let Some(t) = &r.tuning {
+        out.push_str(&crate::report::text::tuning_line(t));
+    }
     for w in &r.warnings {
         writeln!(out, "\nnote: {w}").unwrap();
     }

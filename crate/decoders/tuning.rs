@@ -1,0 +1,104 @@
+//! Choosing a decoder's setting inside the training fold (nested cross-validation).
+//!
+//! Picking C by the outer test accuracy would let the test trials choose the decoder: leakage. Instead, each outer
+//! training fold is split again into inner folds, every value of a log-spaced grid is scored by inner
+//! cross-validation (a full pipeline per inner fold, so standardisation is refitted on inner training trials too),
+//! and the value with the best inner balanced accuracy is refitted on the whole outer training fold. The outer test
+//! trials are never seen: this type only ever receives the outer training rows (a test instruments that).
+//!
+//! Inner folds are dealt without randomness: each class's trials, in the order they arrive, go to the inner folds in
+//! turn, so the choice is reproducible and needs no random stream. Ties go to the smaller C (the simpler decoder).
+
+use super::{fit_folds, Decoder, FoldSet, Model};
+use crate::protocol::accuracies;
+
+/// The grid of C values tried (10⁻³ … 10³).
+pub const C_GRID: [f64; 7] = [1e-3, 1e-2, 1e-1, 1.0, 1e1, 1e2, 1e3];
+/// Inner folds (fewer when a class has fewer training trials).
+pub const INNER_FOLDS: usize = 5;
+
+/// A decoder whose setting is chosen by inner cross-validation on each training fold.
+pub struct Tuned {
+    pub build: Box<dyn Fn(f64) -> Box<dyn Decoder> + Sync>,
+    pub grid: Vec<f64>,
+    pub standardise: bool,
+}
+
+struct TunedModel {
+    inner: Box<dyn Model>,
+    chosen: f64,
+}
+
+impl Tuned {
+    /// Inner balanced accuracy of each grid value on the rows given.
+    pub fn scores(&self, x: &[f64], p: usize, y: &[usize], n_classes: usize) -> Vec<f64> {
+        let mut counts = vec![0usize; n_classes];
+        let fold: Vec<usize> = y
+            .iter()
+            .map(|&c| {
+                counts[c] += 1;
+                counts[c] - 1
+            })
+            .collect();
+        let smallest = counts.iter().copied().filter(|&c| c > 0).min().unwrap_or(0);
+        let k = INNER_FOLDS.min(smallest).max(2);
+        let fold: Vec<usize> = fold.iter().map(|f| f % k).collect();
+        let set = FoldSet {
+            x,
+            p,
+            y,
+            fold: &fold,
+            folds: k,
+            n_classes,
+        };
+        self.grid
+            .iter()
+            .map(|&value| {
+                let decoder = (self.build)(value);
+                let mut confusion = vec![0u32; n_classes * n_classes];
+                for (f, model) in fit_folds(decoder.as_ref(), &set).into_iter().enumerate() {
+                    let Some(model) = model else { continue };
+                    let (_, test) = set.partition(f);
+                    for (&i, q) in test.iter().zip(model.predict(set.rows(&test))) {
+                        confusion[y[i] * n_classes + q] += 1;
+                    }
+                }
+                accuracies(&confusion, n_classes).1
+            })
+            .collect()
+    }
+}
+
+impl Decoder for Tuned {
+    fn fit(&self, x: &[f64], n: usize, p: usize, y: &[usize], n_classes: usize) -> Box<dyn Model> {
+        let scores = self.scores(x, p, y, n_classes);
+        // First best: the grid ascends, so ties keep the smaller value.
+        let best = (0..scores.len()).fold(0, |b, i| if scores[i] > scores[b] { i } else { b });
+        let chosen = self.grid[best];
+        // The rows arrive standardised (or raw, for a decoder that models counts) already: fit directly.
+        let inner = (self.build)(chosen).fit(x, n, p, y, n_classes);
+        Box::new(TunedModel { inner, chosen })
+    }
+
+    fn standardise(&self) -> bool {
+        self.standardise
+    }
+}
+
+impl Model for TunedModel {
+    fn predict(&self, x: &[f64]) -> Vec<usize> {
+        self.inner.predict(x)
+    }
+
+    fn hit_iteration_cap(&self) -> bool {
+        self.inner.hit_iteration_cap()
+    }
+
+    fn weights(&self) -> Option<Vec<(usize, Vec<f64>)>> {
+        self.inner.weights()
+    }
+
+    fn chosen(&self) -> Option<f64> {
+        Some(self.chosen)
+    }
+}

@@ -1,0 +1,96 @@
+//! Nested selection of C: the outer test trials are never seen, and the choices are reported.
+
+use popdecode::data::Dataset;
+use popdecode::decoders::tuning::Tuned;
+use popdecode::decoders::{fit_folds, Classifier, Decoder, FoldSet, Model};
+use popdecode::protocol::Plan;
+use popdecode::recipe::Recipe;
+use popdecode::report::run_all;
+use std::sync::{Arc, Mutex};
+
+/// A decoder that writes down every training row it is given (rows carry a unique id in their only feature).
+struct Spy(Arc<Mutex<Vec<Vec<f64>>>>);
+
+struct First(usize);
+
+impl Model for First {
+    fn predict(&self, x: &[f64]) -> Vec<usize> {
+        vec![self.0; x.len()]
+    }
+}
+
+impl Decoder for Spy {
+    fn fit(&self, x: &[f64], _n: usize, _p: usize, y: &[usize], _k: usize) -> Box<dyn Model> {
+        self.0.lock().unwrap().push(x.to_vec());
+        Box::new(First(y[0]))
+    }
+    fn standardise(&self) -> bool {
+        false // keep the ids readable
+    }
+}
+
+/// Instrumented data access: during the fit of outer fold f, every row any inner fit reads belongs to fold f's
+/// training trials, and the final refit reads exactly those.
+#[test]
+fn nested_selection_never_reads_outer_test_rows() {
+    let log = Arc::new(Mutex::new(Vec::new()));
+    let grid = vec![0.1, 1.0, 10.0];
+    let spy_log = log.clone();
+    let tuned = Tuned {
+        build: Box::new(move |_| Box::new(Spy(spy_log.clone())) as Box<dyn Decoder>),
+        grid: grid.clone(),
+        standardise: false,
+    };
+    let n = 40;
+    let x: Vec<f64> = (0..n).map(|i| i as f64).collect();
+    let y: Vec<usize> = (0..n).map(|i| i % 2).collect();
+    let fold: Vec<usize> = (0..n).map(|i| (i / 2) % 4).collect();
+    let set = FoldSet {
+        x: &x,
+        p: 1,
+        y: &y,
+        fold: &fold,
+        folds: 4,
+        n_classes: 2,
+    };
+    let models = fit_folds(&tuned, &set);
+    assert!(models.iter().all(Option::is_some));
+    let calls = log.lock().unwrap().clone();
+    // Per outer fold: 3 grid values × 5 inner folds, then the refit.
+    let per_fold = grid.len() * 5 + 1;
+    assert_eq!(calls.len(), 4 * per_fold);
+    for (f, segment) in calls.chunks(per_fold).enumerate() {
+        let training: Vec<f64> = (0..n).filter(|&i| fold[i] != f).map(|i| i as f64).collect();
+        assert_eq!(
+            segment.last().unwrap(),
+            &training,
+            "outer fold {f}: the refit"
+        );
+        for rows in segment {
+            assert!(
+                rows.iter().all(|id| training.contains(id)),
+                "outer fold {f} read a test row: {rows:?}"
+            );
+        }
+    }
+}
+
+/// With --tune the report says how often each C was chosen, over every fit of the observed repeats; a decoder
+/// without a setting refuses to be tuned.
+#[test]
+fn chosen_settings_are_reported() {
+    let text = popdecode::simulate::csv(&popdecode::simulate::Scenario::odours());
+    let mut recipe = Recipe::new("odour");
+    recipe.tune = true;
+    recipe.repeats = 3;
+    recipe.shuffles = 2;
+    recipe.columns.ignore = vec!["session".into()];
+    let data = Dataset::from_csv("o.csv", text.as_bytes(), &recipe.columns).unwrap();
+    let report = run_all(&Plan::new(&data, &recipe).unwrap());
+    let t = report.tuning.as_ref().expect("a tuning summary");
+    assert_eq!(t.grid.len(), 7);
+    let total: usize = t.chosen.iter().map(|c| c.fits).sum();
+    assert_eq!(total, 3 * 5, "one choice per fit of the observed repeats");
+    recipe.classifier = Classifier::ShrinkageLda;
+    assert!(Plan::new(&data, &recipe).is_err());
+}
