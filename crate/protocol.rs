@@ -10,7 +10,10 @@
 //! predictions of all folds into one confusion matrix, accuracy and balanced accuracy.
 
 use crate::data::Dataset;
-use crate::decoders::{check_counts, fit_folds, Decoder, FoldSet};
+use crate::decoders::{check_counts, fit_folds, rbf_svm, Classifier, Decoder, FoldSet};
+
+/// Kernel matrices above this size (256 MB per worker) are worth a warning on the page.
+const RBF_KERNEL_WARNING_BYTES: usize = 256 << 20;
 use crate::error::{Error, Result};
 use crate::recipe::{Folds, Recipe};
 use crate::resample::{balance, grouped_folds, permute_labels, stratified_folds};
@@ -128,6 +131,16 @@ impl Scheme {
             t.y.len()
         };
         let mut warnings = Vec::new();
+        if recipe.classifier == Classifier::RbfSvm {
+            let bytes = rbf_svm::kernel_bytes(trials_per_repeat);
+            if bytes > RBF_KERNEL_WARNING_BYTES {
+                warnings.push(format!(
+                    "the RBF SVM keeps a kernel matrix of up to {} MB per training fold; in a browser tab with \
+                     several workers this can run out of memory (the command line has no such limit)",
+                    bytes >> 20
+                ));
+            }
+        }
         let split = match (&t.groups, recipe.folds) {
             (Some(_), folds) => {
                 let n_groups = t.group_names.len();

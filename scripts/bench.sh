@@ -25,3 +25,12 @@ printf '  %-15s %7.3f s   scikit-learn SVC(kernel=linear) %7.3f s  ratio %5.1fx 
   linear-svm "$svm" "$svc" "$(echo "$svc / $svm" | awk -F/ '{print $1 / $2}')" "$linsvc" "$(echo "$linsvc / $svm" | awk -F/ '{print $1 / $2}')"
 printf '  %-15s %7.3f s   scikit-learn LDA(lsqr, auto)    %7.3f s  ratio %5.1fx\n' \
   shrinkage-lda "$lda" "$sklda" "$(echo "$sklda / $lda" | awk -F/ '{print $1 / $2}')"
+# The large case for the Gaussian-kernel SVM (one round: it takes about a minute per side).
+: > "$out"
+./target/release/popdecode-bench rbf --trials-csv "$table" >> "$out"
+"$VENV/bin/python" -W ignore scripts/bench_sklearn.py "$table" rbf >> "$out"
+rbf=$(median "rbf-svm ")
+svc_rbf=$(median "SVC(kernel='rbf')")
+echo "1000 trials x 300 units, 4 classes, 10 repeats x 5 folds, one thread:"
+printf '  %-15s %7.3f s   scikit-learn SVC(kernel=rbf)     %7.3f s  ratio %5.1fx\n' \
+  rbf-svm "$rbf" "$svc_rbf" "$(echo "$svc_rbf / $rbf" | awk -F/ '{print $1 / $2}')"

@@ -10,6 +10,7 @@ pub mod linear_svm;
 pub mod logistic;
 pub mod nearest_mean;
 pub mod poisson_nb;
+pub mod rbf_svm;
 pub mod shrinkage_lda;
 pub mod standardise;
 pub mod tuning;
@@ -146,16 +147,18 @@ pub enum Classifier {
     GaussianNb,
     PoissonNb,
     Logistic,
+    RbfSvm,
 }
 
 impl Classifier {
-    pub const ALL: [Classifier; 6] = [
+    pub const ALL: [Classifier; 7] = [
         Classifier::LinearSvm,
         Classifier::ShrinkageLda,
         Classifier::NearestMean,
         Classifier::GaussianNb,
         Classifier::PoissonNb,
         Classifier::Logistic,
+        Classifier::RbfSvm,
     ];
 
     /// The spelling used in recipes and on the command line.
@@ -167,6 +170,7 @@ impl Classifier {
             Classifier::GaussianNb => "gaussian-nb",
             Classifier::PoissonNb => "poisson-nb",
             Classifier::Logistic => "logistic",
+            Classifier::RbfSvm => "rbf-svm",
         }
     }
 
@@ -176,7 +180,10 @@ impl Classifier {
 
     /// Whether the regularisation constant C means anything for this decoder.
     pub fn uses_c(self) -> bool {
-        matches!(self, Classifier::LinearSvm | Classifier::Logistic)
+        matches!(
+            self,
+            Classifier::LinearSvm | Classifier::Logistic | Classifier::RbfSvm
+        )
     }
 
     /// Whether the decoder models raw spike counts (and so needs non-negative values and no standardisation).
@@ -224,6 +231,12 @@ impl Classifier {
                 logistic::TOLERANCE,
                 logistic::MAX_ITERATIONS
             ),
+            Classifier::RbfSvm => format!(
+                "a support vector machine with a Gaussian kernel ({c}; kernel width γ = 1/(features × variance of \
+                 the standardised training values)), one machine per pair of classes with voting, solved by SMO \
+                 with second-order working-set selection (Fan, Chen & Lin, 2005; tolerance {})",
+                rbf_svm::TOLERANCE
+            ),
         }
     }
 
@@ -252,6 +265,7 @@ impl Classifier {
             Classifier::GaussianNb => Box::new(gaussian_nb::GaussianNb),
             Classifier::PoissonNb => Box::new(poisson_nb::PoissonNb),
             Classifier::Logistic => Box::new(logistic::Logistic { c }),
+            Classifier::RbfSvm => Box::new(rbf_svm::RbfSvm { c }),
         }
     }
 }

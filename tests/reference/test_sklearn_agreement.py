@@ -8,6 +8,7 @@ least 98 % of trials. References:
 - shrinkage LDA: sklearn.discriminant_analysis.LinearDiscriminantAnalysis(solver='lsqr', shrinkage='auto');
 - Gaussian naive Bayes: sklearn.naive_bayes.GaussianNB (default var_smoothing);
 - logistic regression: sklearn.linear_model.LogisticRegression(C=1, L2), solved to a tight tolerance;
+- RBF-kernel SVM: sklearn.svm.SVC(kernel='rbf', C=1, gamma='scale'), one-vs-one;
 - nearest class mean by correlation and Poisson naive Bayes have no scikit-learn counterpart: they are written out
   below with numpy from their definitions (the Poisson one without standardisation, as popdecode fits it).
 Data: iris (Fisher 1936) and wine (UCI wine data), as shipped with scikit-learn, and invented populations of
@@ -28,7 +29,7 @@ from sklearn.naive_bayes import GaussianNB
 from sklearn.model_selection import StratifiedKFold
 from sklearn.pipeline import make_pipeline
 from sklearn.preprocessing import StandardScaler
-from sklearn.svm import LinearSVC
+from sklearn.svm import SVC, LinearSVC
 
 ROOT = Path(__file__).resolve().parents[2]
 BIN = Path(os.environ.get("POPDECODE_BIN", ROOT / "target" / "release" / "popdecode"))
@@ -99,6 +100,7 @@ REFERENCES = {
     "gaussian-nb": standardised(GaussianNB),
     "logistic": standardised(lambda: LogisticRegression(C=1.0, tol=1e-10, max_iter=100_000)),
     "nearest-mean": standardised(CorrelationNearestMean),
+    "rbf-svm": standardised(lambda: SVC(kernel="rbf", C=1.0, gamma="scale")),
     "poisson-nb": PoissonNaiveBayes,
 }
 
@@ -130,4 +132,6 @@ def test_predictions_agree_fold_by_fold(name, classifier, tmp_path):
         theirs[test] = model.predict(X[test])
     agreement = (ours["predicted"].to_numpy() == theirs).mean()
     print(f"{name} {classifier}: agreement {agreement:.4f}")
-    assert agreement >= 0.98, f"{name} {classifier}: agreement {agreement:.4f}"
+    # 98 % for the decoders of the first issue, 97 % for the others (both stated in their issues).
+    floor = 0.98 if classifier in ("linear-svm", "shrinkage-lda") else 0.97
+    assert agreement >= floor, f"{name} {classifier}: agreement {agreement:.4f}"
