@@ -12,6 +12,7 @@
     kind: 'table', module: null, file: null, info: null, events: null, eventsInfo: null,
     pool: [], run: null, result: null, lastRecipe: null,
   };
+  const WITH_C = ['linear-svm', 'logistic', 'rbf-svm'];
   const EXAMPLES = { table: ['odours.csv'], binned: ['odours_binned.csv'], events: ['odour_spikes.csv', 'odour_trials.csv'] };
 
   // ---------- start-up ----------
@@ -247,7 +248,7 @@
     recipe.columns.drop_missing = state.kind === 'table' && $('drop-missing').checked;
     recipe.classifier = $('classifier').value;
     recipe.c = Number($('c').value);
-    recipe.tune = ['linear-svm', 'logistic'].includes(recipe.classifier) && $('tune').checked;
+    recipe.tune = WITH_C.includes(recipe.classifier) && $('tune').checked;
     const folds = $('folds').value.trim().toLowerCase();
     recipe.folds = folds === 'loo' ? 'loo' : Number(folds);
     recipe.repeats = Number($('repeats').value);
@@ -339,8 +340,8 @@
   // ---------- plan (checks and class counts) ----------
   function refreshPlan() {
     syncFeatureOptions();
-    $('c').disabled = !['linear-svm', 'logistic'].includes($('classifier').value) || $('tune').checked;
-    $('tune').disabled = !['linear-svm', 'logistic'].includes($('classifier').value);
+    $('c').disabled = !WITH_C.includes($('classifier').value) || $('tune').checked;
+    $('tune').disabled = !WITH_C.includes($('classifier').value);
     saveSettings();
     const box = $('classes');
     box.replaceChildren();
@@ -406,7 +407,7 @@
     if (r.columns.features) parts.push('--features', q(r.columns.features.join(',')));
     parts.push('--classifier', r.classifier);
     if (r.tune) parts.push('--tune');
-    else if (['linear-svm', 'logistic'].includes(r.classifier)) parts.push('--c', r.c);
+    else if (WITH_C.includes(r.classifier)) parts.push('--c', r.c);
     parts.push('--folds', r.folds, '--repeats', r.repeats, '--shuffles', r.shuffles);
     if (r.shuffle_repeats !== null) parts.push('--shuffle-repeats', r.shuffle_repeats);
     if (!r.balance) parts.push('--no-balance');
