@@ -21,6 +21,7 @@ pub mod decoders;
 pub mod error;
 pub mod neurons;
 pub mod protocol;
+pub mod pseudo;
 pub mod recipe;
 pub mod report;
 pub mod resample;

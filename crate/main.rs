@@ -90,6 +90,10 @@ struct RunArgs {
     /// Column naming the session, block or day; folds never split a group and shuffles stay within groups.
     #[arg(long)]
     group: Option<String>,
+    /// Column naming the recording session when each neuron was recorded in one session only (empty cells in the
+    /// other sessions' rows): trials are combined across sessions into pseudo-trials.
+    #[arg(long, conflicts_with = "group")]
+    pseudo: Option<String>,
     /// Folds per repeat, or 'loo' for leave-one-out [default: 5].
     #[arg(long, value_parser = parse_folds)]
     folds: Option<Folds>,
@@ -285,6 +289,9 @@ fn base_recipe(run: &RunArgs, columns: &ColumnArgs) -> Result<Recipe, String> {
     apply_column_flags(&mut recipe, columns);
     if let Some(g) = &run.group {
         recipe.columns.group = Some(g.clone());
+    }
+    if let Some(s) = &run.pseudo {
+        recipe.columns.pseudo = Some(s.clone());
     }
     if let Some(f) = run.folds {
         recipe.folds = f;

@@ -63,10 +63,18 @@ pub enum Headline {
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum Split {
-    Stratified { folds: usize },
+    Stratified {
+        folds: usize,
+    },
     LeaveOneOut,
-    Grouped { folds: usize },
+    Grouped {
+        folds: usize,
+    },
     LeaveOneGroupOut,
+    /// Pseudo-trials built within each of `folds` folds of every session's trials ([`crate::pseudo`]).
+    Pseudo {
+        folds: usize,
+    },
 }
 
 /// Who the trials are, without their activity: all that resampling and the design checks need.
@@ -78,6 +86,8 @@ pub struct Trials<'a> {
     pub groups: Option<&'a [usize]>,
     pub group_names: &'a [String],
     pub group_column: Option<&'a str>,
+    /// The groups are recording sessions whose neurons are combined into pseudo-trials.
+    pub pseudo: bool,
 }
 
 impl Trials<'_> {
@@ -131,6 +141,9 @@ impl Scheme {
             t.y.len()
         };
         let mut warnings = Vec::new();
+        if t.pseudo {
+            return Scheme::resolve_pseudo(t, recipe, n_classes);
+        }
         if recipe.classifier == Classifier::RbfSvm {
             let bytes = rbf_svm::kernel_bytes(trials_per_repeat);
             if bytes > RBF_KERNEL_WARNING_BYTES {
@@ -235,10 +248,51 @@ impl Scheme {
         })
     }
 
+    /// Pseudo-populations: k folds of every session's trials; every (session, condition) needs k trials.
+    fn resolve_pseudo(t: &Trials, recipe: &Recipe, n_classes: usize) -> Result<Scheme> {
+        let k = match recipe.folds {
+            Folds::K(k) => k,
+            Folds::LeaveOneOut => {
+                return Err(Error::Design(format!(
+                    "{}: pseudo-populations need k folds (each fold builds its own pseudo-trials), not leave-one-out",
+                    t.source
+                )))
+            }
+        };
+        let sessions = t.groups.expect("sessions");
+        let counts = crate::pseudo::counts(t.y, sessions, t.group_names.len(), n_classes);
+        for (s, row) in counts.iter().enumerate() {
+            for (c, &m) in row.iter().enumerate() {
+                if m < k {
+                    return Err(Error::Design(format!(
+                        "{}: session '{}' has {m} trial{} of '{}', fewer than the {k} folds; every session needs \
+                         at least {k} trials of every condition for pseudo-trials (or choose fewer folds)",
+                        t.source,
+                        t.group_names[s],
+                        if m == 1 { "" } else { "s" },
+                        t.classes[c]
+                    )));
+                }
+            }
+        }
+        let per_repeat = crate::pseudo::per_fold(&counts, k).iter().sum::<usize>() * n_classes;
+        Ok(Scheme {
+            split: Split::Pseudo { folds: k },
+            headline: Headline::Accuracy,
+            trials_per_repeat: per_repeat,
+            warnings: vec![crate::pseudo::CAVEAT.to_string()],
+            balance: true,
+            n_classes,
+            n_groups: t.group_names.len(),
+        })
+    }
+
     /// Folds per repeat (for leave-one-out, the trial count; for leave-one-group-out, the group count).
     pub fn folds(&self) -> usize {
         match self.split {
-            Split::Stratified { folds } | Split::Grouped { folds } => folds,
+            Split::Stratified { folds } | Split::Grouped { folds } | Split::Pseudo { folds } => {
+                folds
+            }
             Split::LeaveOneOut => self.trials_per_repeat,
             Split::LeaveOneGroupOut => self.n_groups,
         }
@@ -264,6 +318,7 @@ impl Scheme {
             Split::LeaveOneOut => ((0..used.len()).collect(), used.len()),
             Split::Grouped { folds } => grouped(rng, folds),
             Split::LeaveOneGroupOut => grouped(rng, usize::MAX),
+            Split::Pseudo { .. } => unreachable!("pseudo-trials are drawn by crate::pseudo::build"),
         };
         Draw {
             used,
@@ -371,26 +426,35 @@ impl<'a> Plan<'a> {
     }
 
     fn one_repeat(&self, labels: &[usize], rng: &mut impl RngCore) -> Outcome {
-        let draw = self.scheme.draw(labels, self.data.groups.as_deref(), rng);
-        score(&draw.y, self.cross_validate(&draw), self.data.classes.len())
-    }
-
-    /// Fit on every fold but one, predict that one; returns a prediction per position of `used`.
-    fn cross_validate(&self, draw: &Draw) -> Predictions {
+        let n_classes = self.data.classes.len();
         let p = self.data.n_features();
-        let x = self.rows(&draw.used);
+        let (x, y, fold, folds) = match self.scheme.split {
+            Split::Pseudo { folds } => {
+                let (x, y, fold) = crate::pseudo::build(self.data, &self.x, labels, folds, rng);
+                (x, y, fold, folds)
+            }
+            _ => {
+                let draw = self.scheme.draw(labels, self.data.groups.as_deref(), rng);
+                (self.rows(&draw.used), draw.y, draw.fold, draw.folds)
+            }
+        };
         let set = FoldSet {
             x: &x,
             p,
-            y: &draw.y,
-            fold: &draw.fold,
-            folds: draw.folds,
-            n_classes: self.data.classes.len(),
+            y: &y,
+            fold: &fold,
+            folds,
+            n_classes,
         };
-        let mut labels = vec![usize::MAX; draw.used.len()];
+        score(&y, self.cross_validate(&set), n_classes)
+    }
+
+    /// Fit on every fold but one, predict that one; returns a prediction per row of the set.
+    fn cross_validate(&self, set: &FoldSet) -> Predictions {
+        let mut labels = vec![usize::MAX; set.y.len()];
         let (mut fits, mut capped, mut single_class) = (0, 0, 0);
         let mut chosen = Vec::new();
-        for (f, model) in fit_folds(self.decoder.as_ref(), &set)
+        for (f, model) in fit_folds(self.decoder.as_ref(), set)
             .into_iter()
             .enumerate()
         {

@@ -236,6 +236,11 @@ impl Recipe {
             )));
         }
         if let Some(t) = &self.time {
+            if self.columns.pseudo.is_some() {
+                return Err(Error::Recipe(
+                    "pseudo-populations are built from trial tables; a time course cannot use them yet".into(),
+                ));
+            }
             if !(t.alpha > 0.0 && t.alpha < 1.0) {
                 return Err(Error::Recipe(format!(
                     "alpha must lie between 0 and 1; got {}",

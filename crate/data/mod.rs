@@ -30,6 +30,11 @@ pub struct Columns {
     /// Leave out trials with a missing cell instead of stopping.
     #[serde(default)]
     pub drop_missing: bool,
+    /// Column naming the recording session when each neuron was recorded in one session only: trials are then
+    /// combined across sessions into pseudo-trials. Each neuron's cells are filled in its own session's rows and
+    /// empty in the others.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pseudo: Option<String>,
 }
 
 /// Trials × features with their labels, ready for the protocol.
@@ -57,6 +62,8 @@ pub struct Dataset {
     pub skipped_columns: Vec<String>,
     /// Things the user should know about the file that do not stop the analysis.
     pub warnings: Vec<String>,
+    /// Pseudo-populations: the session (index into `group_names`) each feature was recorded in.
+    pub pseudo: Option<Vec<usize>>,
 }
 
 impl Dataset {
@@ -72,9 +79,16 @@ impl Dataset {
     pub fn from_table(table: &Table, columns: &Columns) -> Result<Dataset> {
         let src = &table.source;
         let label_col = table.column(&columns.label)?;
+        if columns.pseudo.is_some() && columns.group.is_some() {
+            return Err(Error::Design(format!(
+                "{src}: a session column for pseudo-populations is also the group column; name only one"
+            )));
+        }
+        // The session column of a pseudo-population is read as the group column: shuffles stay within sessions.
         let group_col = columns
             .group
             .as_deref()
+            .or(columns.pseudo.as_deref())
             .map(|g| table.column(g))
             .transpose()?;
         if group_col == Some(label_col) {
@@ -102,6 +116,8 @@ impl Dataset {
             for &c in &feature_cols {
                 match table.cell(r, c) {
                     Cell::Number(v) => values.push(v),
+                    // Checked below against the sessions: a neuron is empty outside its own session.
+                    Cell::Missing if columns.pseudo.is_some() => values.push(f64::NAN),
                     Cell::Missing if columns.drop_missing => {
                         dropped.push(table.lines[r]);
                         continue 'rows;
@@ -166,7 +182,19 @@ impl Dataset {
                 quoted_list(&skipped)
             ));
         }
+        let pseudo = match (&columns.pseudo, &groups) {
+            (Some(_), Some(sessions)) => Some(session_of_features(
+                table,
+                &x,
+                p,
+                &feature_cols,
+                sessions,
+                &group_names,
+            )?),
+            _ => None,
+        };
         Ok(Dataset {
+            pseudo,
             source: src.clone(),
             sha256: String::new(),
             delimiter: table.delimiter_name().to_string(),
@@ -201,6 +229,7 @@ impl Dataset {
             groups: self.groups.as_deref(),
             group_names: &self.group_names,
             group_column: self.group_column.as_deref(),
+            pseudo: self.pseudo.is_some(),
         }
     }
 
@@ -217,6 +246,10 @@ impl Dataset {
                 .map(|&c| self.feature_names[c].clone())
                 .collect(),
             warnings: Vec::new(),
+            pseudo: self
+                .pseudo
+                .as_ref()
+                .map(|s| cols.iter().map(|&c| s[c]).collect()),
             ..self.clone()
         }
     }
@@ -229,6 +262,45 @@ impl Dataset {
         }
         counts
     }
+}
+
+/// For pseudo-populations: the one session each feature was recorded in. Every feature must have values in all the
+/// rows of exactly one session and in no other row.
+fn session_of_features(
+    table: &Table,
+    x: &[f64],
+    p: usize,
+    feature_cols: &[usize],
+    sessions: &[usize],
+    names: &[String],
+) -> Result<Vec<usize>> {
+    let n = sessions.len();
+    (0..p)
+        .map(|j| {
+            let name = &table.headers[feature_cols[j]];
+            let filled: Vec<usize> = (0..n).filter(|&i| !x[i * p + j].is_nan()).collect();
+            let Some(&first) = filled.first() else {
+                return Err(Error::Input(format!(
+                    "{}: column '{name}' has no values; remove it or fill it in",
+                    table.source
+                )));
+            };
+            let s = sessions[first];
+            if let Some(&i) = filled.iter().find(|&&i| sessions[i] != s) {
+                return Err(Error::Input(format!(
+                    "{}: '{name}' has values in sessions '{}' and '{}'; for pseudo-populations each neuron belongs \
+                     to one session, with empty cells in the others",
+                    table.at(i, feature_cols[j]),
+                    names[s],
+                    names[sessions[i]]
+                )));
+            }
+            if let Some(i) = (0..n).find(|&i| sessions[i] == s && x[i * p + j].is_nan()) {
+                return Err(missing(table, i, feature_cols[j]));
+            }
+            Ok(s)
+        })
+        .collect()
 }
 
 fn missing(table: &Table, r: usize, c: usize) -> Error {

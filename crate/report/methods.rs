@@ -101,6 +101,20 @@ pub(crate) fn resampling(
     group: &str,
     n_groups: usize,
 ) -> String {
+    if let Split::Pseudo { folds } = design.split {
+        return format!(
+            "Neurons were recorded in {n_groups} separate sessions (levels of '{group}') and combined into \
+             pseudo-trials. In each of {} repeats, each session's trials of each condition were shuffled and dealt \
+             into {folds} folds, and within each fold every condition received as many pseudo-trials as the \
+             smallest session-by-condition share of that fold ({} pseudo-trials per repeat in all), each joining one \
+             real trial of that condition from every session, paired at random without reuse, so that training and \
+             test pseudo-trials came from disjoint real trials, and conditions were balanced ({} per condition); {}.",
+            rc.repeats,
+            design.trials_per_repeat,
+            design.trials_per_repeat / n_classes,
+            crate::pseudo::CAVEAT
+        );
+    }
     let balance = if rc.balance {
         format!(
             "classes were balanced by randomly undersampling every class to the size of the smallest ({} trials per \
@@ -120,6 +134,7 @@ pub(crate) fn resampling(
         Split::LeaveOneGroupOut => {
             format!("each level of '{group}' was held out in turn ({n_groups} levels; leave-one-group-out)")
         }
+        Split::Pseudo { .. } => unreachable!("answered above"),
     };
     format!("In each of {} repeats, {balance}{split}.", rc.repeats)
 }

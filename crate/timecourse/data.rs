@@ -75,6 +75,7 @@ impl TimeDataset {
             groups: self.groups.as_deref(),
             group_names: &self.group_names,
             group_column: self.group_column.as_deref(),
+            pseudo: false,
         }
     }
 

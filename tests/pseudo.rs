@@ -1,0 +1,160 @@
+//! Pseudo-populations from neurons recorded in separate sessions.
+
+use popdecode::data::Dataset;
+use popdecode::decoders::Classifier;
+use popdecode::protocol::{Plan, Split};
+use popdecode::pseudo;
+use popdecode::recipe::Recipe;
+use popdecode::report::run_all;
+use popdecode::rng::{normal, task_rng, Stream};
+use std::fmt::Write;
+
+/// Three sessions of 6 neurons each, 30 trials per condition per session (two conditions), each neuron weakly
+/// tuned; cells of other sessions' neurons empty. `tag` makes every value unique to its trial (for tracing).
+fn sessions_table(tuning: f64) -> String {
+    let mut rng = task_rng(3, Stream::Simulation, 7, 0);
+    let mut text = String::from("session,cond");
+    for s in 0..3 {
+        for u in 0..6 {
+            write!(text, ",s{s}u{u}").unwrap();
+        }
+    }
+    text.push('\n');
+    for s in 0..3 {
+        for t in 0..60 {
+            let cond = t % 2;
+            write!(text, "S{s},{}", if cond == 0 { "a" } else { "b" }).unwrap();
+            for s2 in 0..3 {
+                for u in 0..6 {
+                    if s2 == s {
+                        let sign = if (u + s) % 2 == 0 { 1.0 } else { -1.0 };
+                        let v = sign * tuning * cond as f64 + normal(&mut rng);
+                        write!(text, ",{v}").unwrap();
+                    } else {
+                        text.push(',');
+                    }
+                }
+            }
+            text.push('\n');
+        }
+    }
+    text
+}
+
+fn recipe() -> Recipe {
+    let mut r = Recipe::new("cond");
+    r.columns.pseudo = Some("session".into());
+    r.classifier = Classifier::ShrinkageLda;
+    r.repeats = 5;
+    r.shuffles = 19;
+    r
+}
+
+/// Neurons from three sessions decode better together than one session's alone, which is the point of a
+/// pseudo-population; the report says what the pairing does.
+#[test]
+fn sessions_combine_into_a_better_decoder() {
+    let text = sessions_table(0.5);
+    let r = recipe();
+    let data = Dataset::from_csv("sessions.csv", text.as_bytes(), &r.columns).unwrap();
+    assert_eq!(data.pseudo.as_ref().unwrap().len(), 18);
+    let plan = Plan::new(&data, &r).unwrap();
+    assert_eq!(plan.scheme.split, Split::Pseudo { folds: 5 });
+    // 30 trials per (session, condition) in 5 folds: 6 per fold, so 6 × 5 × 2 = 60 pseudo-trials per repeat.
+    assert_eq!(plan.scheme.trials_per_repeat, 60);
+    let all = run_all(&plan);
+    // Session S0 alone, as an ordinary trial table: its rows and its six neurons.
+    let s0: String = text
+        .lines()
+        .filter(|l| l.starts_with("session") || l.starts_with("S0"))
+        .map(|l| l.split(',').take(8).collect::<Vec<_>>().join(",") + "\n")
+        .collect();
+    let mut single = r.clone();
+    single.shuffles = 0;
+    single.columns.pseudo = None;
+    single.columns.ignore = vec!["session".into()];
+    let one_session = Dataset::from_csv("s0.csv", s0.as_bytes(), &single.columns).unwrap();
+    let one = run_all(&Plan::new(&one_session, &single).unwrap());
+    assert!(
+        all.summary.accuracy.mean > one.summary.accuracy.mean + 0.05,
+        "{} vs {}",
+        all.summary.accuracy.mean,
+        one.summary.accuracy.mean
+    );
+    assert!(all.shuffle.p_value.unwrap() <= 0.05);
+    assert!(all
+        .warnings
+        .iter()
+        .any(|w| w.contains("noise correlations")));
+    let methods = popdecode::report::methods::paragraph(&all);
+    assert!(methods.contains("pseudo-trials"), "{methods}");
+}
+
+/// Training and test pseudo-trials are built from disjoint real trials: every value is unique to its real trial, so
+/// a value found in two folds would betray a reused trial.
+#[test]
+fn folds_use_disjoint_real_trials() {
+    let text = sessions_table(0.5);
+    let r = recipe();
+    let data = Dataset::from_csv("sessions.csv", text.as_bytes(), &r.columns).unwrap();
+    let x: Vec<f64> = data.x.iter().copied().collect();
+    let (rows, labels, folds) = pseudo::build(
+        &data,
+        &x,
+        &data.y,
+        5,
+        &mut task_rng(1, Stream::Repeat, 0, 0),
+    );
+    let p = data.n_features();
+    assert_eq!(labels.len(), 60);
+    let mut seen: Vec<(u64, usize)> = Vec::new();
+    for (t, row) in rows.chunks_exact(p).enumerate() {
+        assert!(
+            row.iter().all(|v| v.is_finite()),
+            "a pseudo-trial has a value from every session"
+        );
+        for v in row {
+            seen.push((v.to_bits(), folds[t]));
+        }
+    }
+    seen.sort_unstable();
+    for pair in seen.windows(2) {
+        assert!(pair[0].0 != pair[1].0, "a real trial's value appears twice");
+    }
+    // Balanced: each fold has as many pseudo-trials of each condition.
+    for f in 0..5 {
+        let a = (0..60).filter(|&t| folds[t] == f && labels[t] == 0).count();
+        let b = (0..60).filter(|&t| folds[t] == f && labels[t] == 1).count();
+        assert_eq!(a, b);
+    }
+}
+
+#[test]
+fn bad_session_layouts_are_named() {
+    let r = recipe();
+    let shared = "session,cond,n1,n2\nS0,a,1,\nS1,b,2,3\n";
+    let e = Dataset::from_csv("x.csv", shared.as_bytes(), &r.columns)
+        .unwrap_err()
+        .to_string();
+    assert!(
+        e.contains("x.csv, line 3, column 'n1'") && e.contains("sessions 'S0' and 'S1'"),
+        "{e}"
+    );
+    let gap = "session,cond,n1,n2\nS0,a,1,\nS0,b,,\nS1,a,,3\nS1,b,,4\n";
+    let e = Dataset::from_csv("x.csv", gap.as_bytes(), &r.columns)
+        .unwrap_err()
+        .to_string();
+    assert!(
+        e.contains("line 3, column 'n1'") && e.contains("missing"),
+        "{e}"
+    );
+    let text = sessions_table(0.5);
+    let mut few = r.clone();
+    few.folds = popdecode::recipe::Folds::K(40);
+    let data = Dataset::from_csv("sessions.csv", text.as_bytes(), &few.columns).unwrap();
+    let e = Plan::new(&data, &few).err().unwrap().to_string();
+    assert!(
+        e.contains("session 'S0' has 30 trials of 'a', fewer than the 40 folds"),
+        "{e}"
+    );
+}
