@@ -11,14 +11,14 @@
 
 use crate::data::Dataset;
 use crate::decoders::{check_counts, fit_folds, rbf_svm, Classifier, Decoder, FoldSet};
-
-/// Kernel matrices above this size (256 MB per worker) are worth a warning on the page.
-const RBF_KERNEL_WARNING_BYTES: usize = 256 << 20;
 use crate::error::{Error, Result};
 use crate::recipe::{Folds, Recipe};
 use crate::resample::{balance, grouped_folds, permute_labels, stratified_folds};
 use crate::rng::{task_rng, Stream};
 use rand_core::RngCore;
+
+/// Kernel matrices above this size (256 MB per worker) are worth a warning on the page.
+const RBF_KERNEL_WARNING_BYTES: usize = 256 << 20;
 use serde::{Deserialize, Serialize};
 
 /// One independent piece of work.
@@ -360,7 +360,12 @@ impl<'a> Plan<'a> {
         warnings.append(&mut scheme.warnings);
         scheme.warnings = warnings;
         let x: Vec<f64> = data.x.as_standard_layout().iter().copied().collect();
-        check_counts(recipe.classifier, &x, &data.feature_names, &data.source)?;
+        scheme.warnings.extend(check_counts(
+            recipe.classifier,
+            &x,
+            &data.feature_names,
+            &data.source,
+        )?);
         Ok(Plan {
             data,
             recipe: recipe.clone(),

@@ -85,6 +85,7 @@
     state.file = null; state.info = null; state.events = null; state.eventsInfo = null; state.result = null;
     $('data-view').hidden = true;
     $('results').hidden = true;
+    $('compare').hidden = true;
     $('start').disabled = true;
     clearError('data-error');
     showKind();
@@ -202,6 +203,9 @@
     h.forEach((c) => label.appendChild(option(c, c, c === suggested)));
     group.appendChild(option('', '(none)', true));
     h.forEach((c) => group.appendChild(option(c, c, false)));
+    const pseudoSel = $('pseudo');
+    pseudoSel.replaceChildren(option('', '(no: neurons recorded together)', true));
+    h.forEach((c, i) => { if (!info.numeric[i]) pseudoSel.appendChild(option(c, c, false)); });
     align.appendChild(option('', '(none: spike times are relative)', true));
     h.forEach((c, i) => { if (info.numeric[i] && c !== trialCol) align.appendChild(option(c, c, false)); });
     h.forEach((c, i) => { if (info.numeric[i]) feats.appendChild(option(c, c, true)); });
@@ -221,7 +225,8 @@
 
   // A column chosen as label, group, trial or time cannot also be a feature.
   function syncFeatureOptions() {
-    const used = [$('label').value, $('group').value];
+    $('group').disabled = state.kind === 'table' && $('pseudo').value !== '';
+    const used = [$('label').value, $('group').value, $('pseudo').value];
     if (state.kind === 'binned') used.push($('trial-col').value, $('time-col').value);
     for (const o of $('features').options) {
       const was = o.disabled;
@@ -234,6 +239,10 @@
   function readRecipe() {
     const recipe = JSON.parse(wasm_bindgen.default_recipe($('label').value || 'label'));
     recipe.columns.group = $('group').value || null;
+    if (state.kind === 'table' && $('pseudo').value) {
+      recipe.columns.pseudo = $('pseudo').value;
+      recipe.columns.group = null;
+    }
     if (state.kind !== 'events') {
       const opts = [...$('features').options];
       const feats = opts.filter((o) => o.selected).map((o) => o.value);
@@ -303,6 +312,7 @@
       const h = state.info.headers;
       pick('label', r.columns.label, h);
       $('group').value = r.columns.group && h.includes(r.columns.group) ? r.columns.group : '';
+      $('pseudo').value = r.columns.pseudo && h.includes(r.columns.pseudo) ? r.columns.pseudo : '';
       if (r.time) {
         pick('trial-col', r.time.input.trial, h);
         if (r.time.input.kind === 'binned') pick('time-col', r.time.input.time, h);
@@ -404,6 +414,7 @@
     }
     parts.push('--label', q(r.columns.label));
     if (r.columns.group) parts.push('--group', q(r.columns.group));
+    if (r.columns.pseudo) parts.push('--pseudo', q(r.columns.pseudo));
     if (r.columns.features) parts.push('--features', q(r.columns.features.join(',')));
     parts.push('--classifier', r.classifier);
     if (r.tune) parts.push('--tune');
@@ -440,13 +451,21 @@
       recipe = readRecipe();
       plan = prepare(recipe);
     } catch (e) { showError('run-error', String(e)); return; }
+    state.lastRecipe = recipe;
+    launch(recipe, plan, (result) => {
+      state.result = result;
+      if (isTime()) showTimeResults(result); else showResults(result);
+    });
+  }
+
+  // Run a prepared recipe on a fresh worker pool; `done` receives the finished result.
+  function launch(recipe, plan, done) {
     const queue = plan.tasks.map((t, i) => ({ kind: t.kind, index: t.index, fits: plan.fits[i] }));
     const run = {
-      recipe: JSON.stringify(recipe), queue, next: 0, outcomes: [], fitsDone: 0,
+      recipe: JSON.stringify(recipe), queue, next: 0, outcomes: [], fitsDone: 0, done,
       fitsTotal: plan.fits.reduce((a, b) => a + b, 0), started: performance.now(), failed: false,
     };
     state.run = run;
-    state.lastRecipe = recipe;
     $('start').disabled = true; $('cancel').disabled = false;
     $('progress').hidden = false; $('progress').value = 0;
     $('progress-text').textContent = 'Starting workers…';
@@ -521,8 +540,66 @@
     } catch (e) { showError('run-error', String(e)); return; }
     const seconds = ((performance.now() - run.started) / 1000).toFixed(1);
     $('progress-text').textContent = `Done: ${run.fitsTotal} fits in ${seconds} s on ${Math.min(poolSize(), run.queue.length)} workers.`;
-    state.result = result;
-    if (isTime()) showTimeResults(result); else showResults(result);
+    run.done(result);
+  }
+
+  // ---------- exploratory comparison of decoders ----------
+  const DECODERS = ['linear-svm', 'shrinkage-lda', 'logistic', 'gaussian-nb', 'poisson-nb', 'nearest-mean', 'rbf-svm'];
+
+  // Every decoder on the current settings, one after the other, without shuffles and with at most 20 repeats.
+  function compare() {
+    if (!ready() || state.run) return;
+    clearError('run-error');
+    let base;
+    try { base = readRecipe(); } catch (e) { showError('run-error', String(e)); return; }
+    base.shuffles = 0;
+    base.repeats = Math.min(base.repeats, 20);
+    base.tune = false;
+    const rows = [];
+    const table = $('compare-table');
+    const next = (i) => {
+      if (i === DECODERS.length) { drawComparison(table, rows); return; }
+      const recipe = { ...base, classifier: DECODERS[i] };
+      let plan;
+      try { plan = prepare(recipe); } catch (e) {
+        rows.push({ name: DECODERS[i], error: String(e) });
+        next(i + 1);
+        return;
+      }
+      $('progress-text').textContent = `Comparing: ${DECODERS[i]} (${i + 1} of ${DECODERS.length})…`;
+      launch(recipe, plan, (result) => {
+        const r = result.report;
+        const time = isTime();
+        const curve = time ? r.windows.map((w) => (r.design.headline === 'accuracy' ? w.accuracy.mean : w.balanced_accuracy.mean)) : null;
+        const h = time ? null : (r.design.headline === 'accuracy' ? r.summary.accuracy : r.summary.balanced_accuracy);
+        rows.push(time
+          ? { name: DECODERS[i], mean: Math.max(...curve), label: `peak at ${r.windows[curve.indexOf(Math.max(...curve))].time} s` }
+          : { name: DECODERS[i], mean: h.mean, sd: h.sd, label: '' });
+        next(i + 1);
+      });
+    };
+    $('compare').hidden = false;
+    table.replaceChildren();
+    next(0);
+  }
+
+  function drawComparison(table, rows) {
+    const head = el('tr');
+    ['decoder', isTime() ? 'peak score' : 'mean', isTime() ? '' : 'SD', ''].forEach((h) => head.appendChild(el('th', h, 'text')));
+    table.appendChild(head);
+    rows.forEach((r) => {
+      const tr = el('tr');
+      tr.appendChild(el('td', r.name, 'text'));
+      if (r.error) {
+        const td = el('td', 'not run: ' + r.error, 'text'); td.colSpan = 3; tr.appendChild(td);
+      } else {
+        tr.appendChild(el('td', pct(r.mean)));
+        tr.appendChild(el('td', r.sd === undefined ? '' : pct(r.sd)));
+        tr.appendChild(el('td', r.label, 'text'));
+      }
+      table.appendChild(tr);
+    });
+    $('progress-text').textContent = 'Comparison done.';
   }
 
   // ---------- results ----------
@@ -688,9 +765,10 @@
     $('example').addEventListener('click', example);
     $('example-events').addEventListener('click', example);
     document.querySelectorAll('input[name=kind]').forEach((r) => r.addEventListener('change', () => setKind(r.value)));
-    ['label', 'group', 'features', 'trial-col', 'time-col', 'neuron-col', 'align-col', ...SETTING_IDS]
+    ['label', 'group', 'pseudo', 'features', 'trial-col', 'time-col', 'neuron-col', 'align-col', ...SETTING_IDS]
       .forEach((id) => $(id).addEventListener('change', refreshPlan));
     $('start').addEventListener('click', start);
+    $('compare-start').addEventListener('click', compare);
     $('cancel').addEventListener('click', cancel);
     $('save-recipe').addEventListener('click', () => download(`${baseName()}.recipe.json`, JSON.stringify(readRecipe(), null, 2) + '\n', 'application/json'));
     $('recipe-file').addEventListener('change', async (e) => {

@@ -362,26 +362,39 @@ impl FittedPipeline {
     }
 }
 
-/// For decoders that model counts: every value must be a non-negative number. `names` label the columns.
+/// For decoders that model counts: every value must be a non-negative number (an error otherwise), and values that
+/// are not whole numbers (rates, most likely) earn a warning, returned. `names` label the columns.
 pub fn check_counts(
     classifier: Classifier,
     values: &[f64],
     names: &[String],
     source: &str,
-) -> crate::Result<()> {
+) -> crate::Result<Option<String>> {
     if !classifier.needs_counts() {
-        return Ok(());
+        return Ok(None);
     }
     let p = names.len();
-    match values.iter().position(|v| *v < 0.0) {
-        Some(at) => Err(crate::Error::Design(format!(
+    if let Some(at) = values.iter().position(|v| *v < 0.0) {
+        return Err(crate::Error::Design(format!(
             "{source}: {} models spike counts, but '{}' has the negative value {}; choose another decoder",
             classifier.name(),
             names[at % p],
             values[at]
-        ))),
-        None => Ok(()),
+        )));
     }
+    Ok(values
+        .iter()
+        .position(|v| v.fract() != 0.0)
+        .map(|at| {
+            format!(
+                "{} models spike counts, but '{}' holds {} and other values that are not whole numbers (rates?): \
+                 they are used as given; with balanced classes the decisions are those on counts, but with \
+                 unbalanced ones the class proportions weigh differently; counts per window are the right input",
+                classifier.name(),
+                names[at % p],
+                values[at]
+            )
+        }))
 }
 
 /// Weights of a one-vs-rest (or single binary) linear model stored as rows of `p` weights then the intercept.

@@ -53,7 +53,7 @@ impl<'a> TimePlan<'a> {
             Error::Recipe("this recipe has no time settings; it is for a trial table".into())
         })?;
         let mut scheme = Scheme::resolve(&data.trials(), recipe)?;
-        check_counts(
+        let counts_note = check_counts(
             recipe.classifier,
             data.x.as_slice().expect("standard layout"),
             &data.neurons,
@@ -61,6 +61,7 @@ impl<'a> TimePlan<'a> {
         )?;
         let mut warnings = data.warnings.clone();
         warnings.append(&mut scheme.warnings);
+        warnings.extend(counts_note);
         scheme.warnings = warnings;
         Ok(TimePlan {
             data,

@@ -214,3 +214,20 @@ test('a recipe file loads into the form, and figures export as PNG and SVG', asy
   assert.match(csv, /^kind,index,accuracy,balanced_accuracy\nrepeat,0,/);
   await b.context.close();
 });
+
+test('decoders side by side, labelled exploratory', async () => {
+  const b = await openPage();
+  await b.page.click('#example');
+  await b.page.waitForSelector('#data-view:not([hidden])');
+  await quickSettings(b.page, { repeats: 2, shuffles: 0 });
+  await b.page.click('#compare-start');
+  await b.page.waitForFunction(() => document.getElementById('progress-text').textContent === 'Comparison done.', null, { timeout: 120_000 });
+  await shot(b.page, 'compare');
+  const rows = await b.page.locator('#compare-table tr').count();
+  assert.equal(rows, 8, 'a header and seven decoders');
+  assert.match(await b.page.textContent('#compare'), /Exploratory only/);
+  assert.match(await b.page.textContent('#compare-table'), /shrinkage-lda\s*\d+\.\d %/);
+  assertLocalOnly(assert, b.requests, server.origin);
+  assert.deepEqual(b.errors, []);
+  await b.context.close();
+});
