@@ -519,6 +519,7 @@ fn neurons(args: NeuronsArgs) -> Result<(), String> {
         &[
             ("dropping.svg", Some(neuron_plots::dropping(&report))),
             ("single.svg", Some(neuron_plots::single(&report))),
+            ("weights.svg", neuron_plots::weights(&report)),
         ],
     )
 }

@@ -40,6 +40,7 @@ fn a_noise_cancelling_neuron_has_a_large_weight_and_no_pattern() {
         recipe.classifier = classifier;
         let data = Dataset::from_csv("two.csv", text.as_bytes(), &recipe.columns).unwrap();
         let l = linear(&data, &recipe).expect("a linear decoder");
+        assert_eq!(l.weights.len(), 2, "one row per neuron");
         // Two classes: one output per neuron for SVM and logistic; LDA has one per class, use the difference.
         let (w, a): (Vec<f64>, Vec<f64>) = (0..2)
             .map(|j| {
@@ -103,7 +104,9 @@ fn dropping_curve_rises_with_independent_informative_neurons() {
     assert!(means[4] > means[0] + 0.2, "{means:?}");
     assert_eq!(r.single.len(), 16);
     assert!(
-        r.single.windows(2).all(|p| p[0].accuracy >= p[1].accuracy),
+        r.single
+            .windows(2)
+            .all(|p| p[0].accuracy.mean >= p[1].accuracy.mean),
         "sorted best first"
     );
     assert_eq!(r.dropping[4].draws, 1);

@@ -39,8 +39,9 @@ pub enum NeuronTask {
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct NeuronOutcome {
     pub task: NeuronTask,
-    pub accuracy: f64,
-    pub balanced_accuracy: f64,
+    /// Mean and SD over the recipe's repeats.
+    pub accuracy: MeanSd,
+    pub balanced_accuracy: MeanSd,
 }
 
 /// Mean and SD (n − 1) of a score.
@@ -71,9 +72,9 @@ pub struct SizeResult {
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct SingleResult {
     pub neuron: String,
-    /// Mean over repeats (the SD is across repeats).
-    pub accuracy: f64,
-    pub balanced_accuracy: f64,
+    /// Over repeats.
+    pub accuracy: MeanSd,
+    pub balanced_accuracy: MeanSd,
 }
 
 /// Weights and patterns: `values[neuron][output]`.
@@ -83,7 +84,6 @@ pub struct Linear {
     pub outputs: Vec<String>,
     pub weights: Vec<Vec<f64>>,
     pub patterns: Vec<Vec<f64>>,
-    pub note: String,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -100,7 +100,11 @@ pub struct NeuronsReport {
     pub headline: String,
     pub dropping: Vec<SizeResult>,
     pub single: Vec<SingleResult>,
-    pub weights: Option<Linear>,
+    /// Linear decoders only (else null): what each output scores, then `weights[neuron][output]` and
+    /// `patterns[neuron][output]`.
+    pub outputs: Option<Vec<String>>,
+    pub weights: Option<Vec<Vec<f64>>>,
+    pub patterns: Option<Vec<Vec<f64>>>,
     pub patterns_note: String,
     pub warnings: Vec<String>,
 }
@@ -179,8 +183,8 @@ impl<'a> NeuronsPlan<'a> {
             .collect();
         NeuronOutcome {
             task,
-            accuracy: stats::mean(&outcomes.iter().map(|o| o.accuracy).collect::<Vec<_>>()),
-            balanced_accuracy: stats::mean(
+            accuracy: MeanSd::of(&outcomes.iter().map(|o| o.accuracy).collect::<Vec<_>>()),
+            balanced_accuracy: MeanSd::of(
                 &outcomes
                     .iter()
                     .map(|o| o.balanced_accuracy)
@@ -207,11 +211,13 @@ impl<'a> NeuronsPlan<'a> {
                 SizeResult {
                     size,
                     draws: draws.len(),
-                    accuracy: MeanSd::of(&draws.iter().map(|o| o.accuracy).collect::<Vec<_>>()),
+                    accuracy: MeanSd::of(
+                        &draws.iter().map(|o| o.accuracy.mean).collect::<Vec<_>>(),
+                    ),
                     balanced_accuracy: MeanSd::of(
                         &draws
                             .iter()
-                            .map(|o| o.balanced_accuracy)
+                            .map(|o| o.balanced_accuracy.mean)
                             .collect::<Vec<_>>(),
                     ),
                 }
@@ -227,13 +233,14 @@ impl<'a> NeuronsPlan<'a> {
         let balanced = self.recipe.balance;
         let lead = |o: &NeuronOutcome| {
             if balanced {
-                o.accuracy
+                o.accuracy.mean
             } else {
-                o.balanced_accuracy
+                o.balanced_accuracy.mean
             }
         };
         // Best first; ties by neuron order, so the order never depends on the order of outcomes.
         single.sort_by(|a, b| lead(b.1).total_cmp(&lead(a.1)).then(a.0.cmp(&b.0)));
+        let linear = linear(data, &self.recipe);
         NeuronsReport {
             schema: NEURONS_SCHEMA.into(),
             software: Software::current(),
@@ -254,11 +261,13 @@ impl<'a> NeuronsPlan<'a> {
                 .into_iter()
                 .map(|(n, o)| SingleResult {
                     neuron: data.feature_names[n].clone(),
-                    accuracy: o.accuracy,
-                    balanced_accuracy: o.balanced_accuracy,
+                    accuracy: o.accuracy.clone(),
+                    balanced_accuracy: o.balanced_accuracy.clone(),
                 })
                 .collect(),
-            weights: linear(data, &self.recipe),
+            outputs: linear.as_ref().map(|l| l.outputs.clone()),
+            weights: linear.as_ref().map(|l| l.weights.clone()),
+            patterns: linear.map(|l| l.patterns),
             patterns_note: PATTERNS_NOTE.into(),
             warnings: self.plan.scheme.warnings.clone(),
         }
@@ -316,7 +325,6 @@ pub fn linear(data: &Dataset, recipe: &Recipe) -> Option<Linear> {
         outputs: names,
         weights: by_neuron(&weights),
         patterns: by_neuron(&patterns),
-        note: PATTERNS_NOTE.into(),
     })
 }
 
@@ -335,7 +343,13 @@ impl NeuronsReport {
     pub fn render(&self) -> String {
         use std::fmt::Write;
         let pct = crate::report::text::pct;
-        let lead = |a: f64, b: f64| if self.headline == "accuracy" { a } else { b };
+        let lead = |a: &'_ MeanSd, b: &'_ MeanSd| -> MeanSd {
+            if self.headline == "accuracy" {
+                a.clone()
+            } else {
+                b.clone()
+            }
+        };
         let mut out = String::new();
         let score = self.headline.replace('_', " ");
         writeln!(
@@ -363,30 +377,32 @@ impl NeuronsReport {
         }
         writeln!(out, "\nEach neuron alone ({score}, best first):").unwrap();
         for s in &self.single {
-            writeln!(
-                out,
-                "  {:<24} {:>8}",
-                s.neuron,
-                pct(lead(s.accuracy, s.balanced_accuracy))
-            )
-            .unwrap();
+            let m = lead(&s.accuracy, &s.balanced_accuracy);
+            writeln!(out, "  {:<24} {:>8} ± {}", s.neuron, pct(m.mean), pct(m.sd)).unwrap();
         }
-        if let Some(l) = &self.weights {
+        if let (Some(outputs), Some(weights), Some(patterns)) =
+            (&self.outputs, &self.weights, &self.patterns)
+        {
             writeln!(
                 out,
                 "\nWeights and activation patterns ({}):",
-                l.outputs.join(", ")
+                outputs.join(", ")
             )
             .unwrap();
             for (j, name) in self.neurons.iter().enumerate() {
-                let cells: Vec<String> = l.weights[j]
+                let cells: Vec<String> = weights[j]
                     .iter()
-                    .zip(&l.patterns[j])
+                    .zip(&patterns[j])
                     .map(|(w, a)| format!("{w:>9.3} {a:>9.3}"))
                     .collect();
                 writeln!(out, "  {:<24} {}", name, cells.join("  ")).unwrap();
             }
-            writeln!(out, "  (per output: weight, pattern)\n\n{}", l.note).unwrap();
+            writeln!(
+                out,
+                "  (per output: weight, pattern)\n\n{}",
+                self.patterns_note
+            )
+            .unwrap();
         }
         for w in &self.warnings {
             writeln!(out, "\nnote: {w}").unwrap();

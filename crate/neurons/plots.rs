@@ -4,11 +4,12 @@ use super::NeuronsReport;
 use crate::report::plots::{esc, open, BAR, BOTTOM, H, INK, LEFT, RIGHT, TOP, W};
 use std::fmt::Write;
 
-fn lead(r: &NeuronsReport, accuracy: f64, balanced: f64) -> f64 {
+/// The headline mean of a single-neuron result.
+fn lead(r: &NeuronsReport, s: &super::SingleResult) -> f64 {
     if r.headline == "accuracy" {
-        accuracy
+        s.accuracy.mean
     } else {
-        balanced
+        s.balanced_accuracy.mean
     }
 }
 
@@ -130,7 +131,7 @@ pub fn single(r: &NeuronsReport) -> String {
     let h = TOP + 20.0 + row * shown.len() as f64 + 30.0;
     let top = shown
         .iter()
-        .map(|s| lead(r, s.accuracy, s.balanced_accuracy))
+        .map(|s| lead(r, s))
         .fold(r.chance, f64::max)
         .min(1.0);
     let pw = W - label_w - RIGHT - 50.0;
@@ -147,7 +148,7 @@ pub fn single(r: &NeuronsReport) -> String {
     };
     open(&mut svg, &title, W, h);
     for (i, s) in shown.iter().enumerate() {
-        let v = lead(r, s.accuracy, s.balanced_accuracy);
+        let v = lead(r, s);
         let yy = TOP + 10.0 + row * i as f64;
         write!(
             svg,
@@ -174,4 +175,98 @@ pub fn single(r: &NeuronsReport) -> String {
     .unwrap();
     svg.push_str("</svg>");
     svg
+}
+
+/// Weight and activation pattern of every neuron for the first output, side by side, scaled to the largest of
+/// each, with the note on which to read written beside them.
+pub fn weights(r: &NeuronsReport) -> Option<String> {
+    let (outputs, weights, patterns) = (
+        r.outputs.as_ref()?,
+        r.weights.as_ref()?,
+        r.patterns.as_ref()?,
+    );
+    let shown = r.neurons.len().min(40);
+    let row = 16.0;
+    let label_w = 120.0;
+    let col = 150.0;
+    let note_x = label_w + 2.0 * col + 40.0;
+    let w_total = note_x + 260.0;
+    let h = (TOP + 40.0 + row * shown as f64 + 20.0).max(TOP + 200.0);
+    let mut svg = String::new();
+    open(
+        &mut svg,
+        &format!("Weights and activation patterns ({})", outputs[0]),
+        w_total,
+        h,
+    );
+    let scale = |values: &[Vec<f64>]| {
+        values
+            .iter()
+            .map(|v| v[0].abs())
+            .fold(0.0, f64::max)
+            .max(f64::MIN_POSITIVE)
+    };
+    let (ws, ps) = (scale(weights), scale(patterns));
+    for (c, (heading, values, s)) in [
+        ("weight", weights, ws),
+        ("activation pattern", patterns, ps),
+    ]
+    .iter()
+    .enumerate()
+    {
+        let centre = label_w + col * c as f64 + col / 2.0 + 10.0 * c as f64;
+        write!(
+            svg,
+            r#"<text x="{centre:.1}" y="{y:.1}" text-anchor="middle" font-weight="600" fill="{INK}">{heading}</text><path d="M{centre:.1} {t:.1} V{b:.1}" stroke="{INK}"/>"#,
+            y = TOP + 12.0,
+            t = TOP + 20.0,
+            b = TOP + 24.0 + row * shown as f64
+        )
+        .unwrap();
+        for j in 0..shown {
+            let v = values[j][0] / s * (col / 2.0 - 6.0);
+            let yy = TOP + 24.0 + row * j as f64;
+            write!(
+                svg,
+                r#"<rect x="{x:.2}" y="{yy:.1}" width="{w:.2}" height="{bh}" fill="{BAR}"/>"#,
+                x = centre + v.min(0.0),
+                w = v.abs().max(0.5),
+                bh = row - 4.0
+            )
+            .unwrap();
+        }
+    }
+    for (j, name) in r.neurons.iter().take(shown).enumerate() {
+        write!(
+            svg,
+            r#"<text x="{x}" y="{y:.1}" text-anchor="end" fill="{INK}">{n}</text>"#,
+            x = label_w - 6.0,
+            y = TOP + 24.0 + row * j as f64 + row * 0.65,
+            n = esc(name)
+        )
+        .unwrap();
+    }
+    // The note, wrapped by hand at about 40 characters.
+    let mut lines = vec![String::new()];
+    for word in r.patterns_note.split(' ') {
+        if lines.last().is_some_and(|l| l.len() + word.len() > 40) {
+            lines.push(String::new());
+        }
+        let last = lines.last_mut().expect("a line");
+        if !last.is_empty() {
+            last.push(' ');
+        }
+        last.push_str(word);
+    }
+    for (i, line) in lines.iter().enumerate() {
+        write!(
+            svg,
+            r#"<text x="{note_x}" y="{y:.1}" fill="{INK}">{l}</text>"#,
+            y = TOP + 12.0 + 15.0 * i as f64,
+            l = esc(line)
+        )
+        .unwrap();
+    }
+    svg.push_str("</svg>");
+    Some(svg)
 }
