@@ -10,6 +10,7 @@
 //! predictions of all folds into one confusion matrix, accuracy and balanced accuracy.
 
 use crate::data::Dataset;
+use crate::decoders::tuning::Setting;
 use crate::decoders::{check_counts, fit_folds, rbf_svm, Classifier, Decoder, FoldSet};
 use crate::error::{Error, Result};
 use crate::recipe::{Folds, Recipe};
@@ -46,7 +47,7 @@ pub struct Outcome {
     pub single_class_fits: u32,
     /// With tuning, the setting chosen in each fit of an observed repeat, in fold order.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
-    pub chosen: Vec<f64>,
+    pub chosen: Vec<Setting>,
 }
 
 /// The score a run is judged by and the null is built from.
@@ -499,7 +500,7 @@ struct Predictions {
     fits: u32,
     capped: u32,
     single_class: u32,
-    chosen: Vec<f64>,
+    chosen: Vec<Setting>,
 }
 
 impl Outcome {

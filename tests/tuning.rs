@@ -1,7 +1,7 @@
 //! Nested selection of C: the outer test trials are never seen, and the choices are reported.
 
 use popdecode::data::Dataset;
-use popdecode::decoders::tuning::Tuned;
+use popdecode::decoders::tuning::{Setting, Tuned};
 use popdecode::decoders::{fit_folds, Classifier, Decoder, FoldSet, Model};
 use popdecode::protocol::Plan;
 use popdecode::recipe::Recipe;
@@ -34,7 +34,12 @@ impl Decoder for Spy {
 #[test]
 fn nested_selection_never_reads_outer_test_rows() {
     let log = Arc::new(Mutex::new(Vec::new()));
-    let grid = vec![0.1, 1.0, 10.0];
+    let grid: Vec<Setting> = [0.1, 1.0, 10.0]
+        .map(|c| Setting {
+            c,
+            gamma_factor: None,
+        })
+        .to_vec();
     let spy_log = log.clone();
     let tuned = Tuned {
         build: Box::new(move |_| Box::new(Spy(spy_log.clone())) as Box<dyn Decoder>),
@@ -91,6 +96,15 @@ fn chosen_settings_are_reported() {
     assert_eq!(t.grid.len(), 7);
     let total: usize = t.chosen.iter().map(|c| c.fits).sum();
     assert_eq!(total, 3 * 5, "one choice per fit of the observed repeats");
+    // The kernel SVM searches C and the kernel width together: 7 × 3 settings.
+    recipe.classifier = Classifier::RbfSvm;
+    recipe.shuffles = 0;
+    recipe.repeats = 1;
+    let report = run_all(&Plan::new(&data, &recipe).unwrap());
+    let t = report.tuning.as_ref().unwrap();
+    assert_eq!(t.grid.len(), 21);
+    assert!(t.grid.iter().all(|s| s.gamma_factor.is_some()));
+    assert_eq!(t.chosen.iter().map(|c| c.fits).sum::<usize>(), 5);
     recipe.classifier = Classifier::ShrinkageLda;
     assert!(Plan::new(&data, &recipe).is_err());
 }

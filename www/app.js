@@ -712,8 +712,9 @@
     const notes = $('warnings'); notes.replaceChildren();
     r.warnings.forEach((w) => notes.appendChild(el('li', w)));
     if (r.tuning) {
-      const used = r.tuning.chosen.filter((c) => c.fits > 0).map((c) => `${c.value} in ${c.fits} fit${c.fits === 1 ? '' : 's'}`);
-      notes.appendChild(el('li', 'C chosen by nested cross-validation: ' + used.join(', '), 'info'));
+      const used = r.tuning.chosen.filter((c) => c.fits > 0)
+        .map((c) => `C = ${c.c}${c.gamma_factor ? ', γ × ' + c.gamma_factor : ''} in ${c.fits} fit${c.fits === 1 ? '' : 's'}`);
+      notes.appendChild(el('li', 'Settings chosen by nested cross-validation: ' + used.join('; '), 'info'));
     }
   }
 

@@ -132,7 +132,7 @@ pub trait Model: Send {
         None
     }
     /// The setting chosen by nested cross-validation, for a tuned decoder.
-    fn chosen(&self) -> Option<f64> {
+    fn chosen(&self) -> Option<tuning::Setting> {
         None
     }
 }
@@ -241,19 +241,45 @@ impl Classifier {
     }
 
     /// The setting grid nested cross-validation searches, for decoders that have a setting.
-    pub fn grid(self) -> Option<Vec<f64>> {
-        self.uses_c().then(|| tuning::C_GRID.to_vec())
+    pub fn grid(self) -> Option<Vec<tuning::Setting>> {
+        let gammas: &[Option<f64>] = if self == Classifier::RbfSvm {
+            &[Some(0.1), Some(1.0), Some(10.0)]
+        } else {
+            &[None]
+        };
+        debug_assert!(self != Classifier::RbfSvm || gammas.len() == tuning::GAMMA_FACTORS.len());
+        self.uses_c().then(|| {
+            tuning::C_GRID
+                .iter()
+                .flat_map(|&c| {
+                    gammas
+                        .iter()
+                        .map(move |&gamma_factor| tuning::Setting { c, gamma_factor })
+                })
+                .collect()
+        })
     }
 
     /// The decoder, with its setting chosen inside each training fold when `tune` is set.
     pub fn build_tuned(self, c: f64, tune: bool) -> Box<dyn Decoder> {
         match (tune, self.grid()) {
             (true, Some(grid)) => Box::new(tuning::Tuned {
-                build: Box::new(move |value| self.build(value)),
+                build: Box::new(move |s: tuning::Setting| self.build_setting(s)),
                 grid,
                 standardise: !self.needs_counts(),
             }),
             _ => self.build(c),
+        }
+    }
+
+    /// The decoder at one grid point.
+    pub fn build_setting(self, s: tuning::Setting) -> Box<dyn Decoder> {
+        match self {
+            Classifier::RbfSvm => Box::new(rbf_svm::RbfSvm {
+                c: s.c,
+                gamma_factor: s.gamma_factor.unwrap_or(1.0),
+            }),
+            other => other.build(s.c),
         }
     }
 
@@ -265,7 +291,10 @@ impl Classifier {
             Classifier::GaussianNb => Box::new(gaussian_nb::GaussianNb),
             Classifier::PoissonNb => Box::new(poisson_nb::PoissonNb),
             Classifier::Logistic => Box::new(logistic::Logistic { c }),
-            Classifier::RbfSvm => Box::new(rbf_svm::RbfSvm { c }),
+            Classifier::RbfSvm => Box::new(rbf_svm::RbfSvm {
+                c,
+                gamma_factor: 1.0,
+            }),
         }
     }
 }
@@ -342,7 +371,7 @@ impl FittedPipeline {
     }
 
     /// The setting chosen inside the training fold, when the decoder was tuned.
-    pub fn chosen(&self) -> Option<f64> {
+    pub fn chosen(&self) -> Option<tuning::Setting> {
         match &self.fitted {
             Fitted::Model(m) => m.chosen(),
             Fitted::OnlyClass(_) => None,

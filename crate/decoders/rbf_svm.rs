@@ -27,6 +27,8 @@ const TAU: f64 = 1e-12;
 
 pub struct RbfSvm {
     pub c: f64,
+    /// Factor on the default γ (1 unless nested selection tries others).
+    pub gamma_factor: f64,
 }
 
 /// Memory of the kernel matrix of a training fold of `n` trials.
@@ -58,11 +60,12 @@ impl Decoder for RbfSvm {
         let classes = present_classes(y, n_classes);
         let mean = x.iter().sum::<f64>() / x.len() as f64;
         let var = x.iter().map(|v| (v - mean) * (v - mean)).sum::<f64>() / x.len() as f64;
-        let gamma = if var > 0.0 {
-            1.0 / (p as f64 * var)
-        } else {
-            1.0
-        };
+        let gamma = self.gamma_factor
+            * if var > 0.0 {
+                1.0 / (p as f64 * var)
+            } else {
+                1.0
+            };
         let norms: Vec<f64> = x.chunks_exact(p).map(|r| dot(r, r)).collect();
         let mut k = vec![0.0; n * n];
         for i in 0..n {
@@ -287,7 +290,11 @@ mod tests {
             x.extend([r * t.cos(), r * t.sin()]);
             y.push(i % 2);
         }
-        let m = RbfSvm { c: 10.0 }.fit(&x, 24, 2, &y, 2);
+        let m = RbfSvm {
+            c: 10.0,
+            gamma_factor: 1.0,
+        }
+        .fit(&x, 24, 2, &y, 2);
         assert_eq!(m.predict(&[0.0, 0.1, 2.1, 0.0, 0.0, -1.9]), vec![0, 1, 1]);
         assert!(!m.hit_iteration_cap());
     }
@@ -297,7 +304,11 @@ mod tests {
         let x = [
             -3.0, 0.0, -2.8, 0.2, 3.0, 0.0, 2.9, -0.1, 0.0, 3.0, 0.1, 2.9,
         ];
-        let m = RbfSvm { c: 1.0 }.fit(&x, 6, 2, &[0, 0, 1, 1, 2, 2], 3);
+        let m = RbfSvm {
+            c: 1.0,
+            gamma_factor: 1.0,
+        }
+        .fit(&x, 6, 2, &[0, 0, 1, 1, 2, 2], 3);
         assert_eq!(m.predict(&[-3.0, 0.1, 3.1, 0.0, 0.0, 3.2]), vec![0, 1, 2]);
     }
 }

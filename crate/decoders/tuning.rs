@@ -6,27 +6,51 @@
 //! and the value with the best inner balanced accuracy is refitted on the whole outer training fold. The outer test
 //! trials are never seen: this type only ever receives the outer training rows (a test instruments that).
 //!
+//! The grid is C = 10⁻³ … 10³ for every decoder with a C, and for the Gaussian-kernel SVM also the kernel width: γ
+//! at 0.1, 1 and 10 times its default (21 settings).
+//!
 //! Inner folds are dealt without randomness: each class's trials, in the order they arrive, go to the inner folds in
 //! turn, so the choice is reproducible and needs no random stream. Ties go to the smaller C (the simpler decoder).
 
 use super::{fit_folds, Decoder, FoldSet, Model};
 use crate::protocol::accuracies;
+use serde::{Deserialize, Serialize};
 
 /// The grid of C values tried (10⁻³ … 10³).
 pub const C_GRID: [f64; 7] = [1e-3, 1e-2, 1e-1, 1.0, 1e1, 1e2, 1e3];
+/// Factors on the default kernel width tried for the Gaussian-kernel SVM.
+pub const GAMMA_FACTORS: [f64; 3] = [0.1, 1.0, 10.0];
 /// Inner folds (fewer when a class has fewer training trials).
 pub const INNER_FOLDS: usize = 5;
 
+/// One point of a grid: C, and for the Gaussian-kernel SVM the factor on its default γ.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct Setting {
+    pub c: f64,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub gamma_factor: Option<f64>,
+}
+
+impl std::fmt::Display for Setting {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "C = {}", self.c)?;
+        if let Some(g) = self.gamma_factor {
+            write!(f, ", γ × {g}")?;
+        }
+        Ok(())
+    }
+}
+
 /// A decoder whose setting is chosen by inner cross-validation on each training fold.
 pub struct Tuned {
-    pub build: Box<dyn Fn(f64) -> Box<dyn Decoder> + Sync>,
-    pub grid: Vec<f64>,
+    pub build: Box<dyn Fn(Setting) -> Box<dyn Decoder> + Sync>,
+    pub grid: Vec<Setting>,
     pub standardise: bool,
 }
 
 struct TunedModel {
     inner: Box<dyn Model>,
-    chosen: f64,
+    chosen: Setting,
 }
 
 impl Tuned {
@@ -72,7 +96,7 @@ impl Tuned {
 impl Decoder for Tuned {
     fn fit(&self, x: &[f64], n: usize, p: usize, y: &[usize], n_classes: usize) -> Box<dyn Model> {
         let scores = self.scores(x, p, y, n_classes);
-        // First best: the grid ascends, so ties keep the smaller value.
+        // First best: the grid ascends in C (then γ), so ties keep the simpler decoder.
         let best = (0..scores.len()).fold(0, |b, i| if scores[i] > scores[b] { i } else { b });
         let chosen = self.grid[best];
         // The rows arrive standardised (or raw, for a decoder that models counts) already: fit directly.
@@ -98,7 +122,7 @@ impl Model for TunedModel {
         self.inner.weights()
     }
 
-    fn chosen(&self) -> Option<f64> {
+    fn chosen(&self) -> Option<Setting> {
         Some(self.chosen)
     }
 }

@@ -150,16 +150,24 @@ pub(crate) fn fitting(rc: &Recipe) -> String {
 
 /// How C was chosen, when the recipe tunes: the nested cross-validation, in a sentence.
 fn tuning_sentence(rc: &Recipe) -> String {
-    match rc.classifier.grid().filter(|_| rc.tune) {
-        None => String::new(),
-        Some(grid) => format!(
-            " C was chosen within each training fold by nested cross-validation: the training trials were dealt, \
-             class by class in file order, into {} inner folds, each of the values {} was scored by the inner \
-             balanced accuracy of the full pipeline (standardisation refitted on each inner training fold), and the \
-             best value (the smaller on ties) was refitted on the whole training fold; the test fold was never used \
-             to choose it.",
-            crate::decoders::tuning::INNER_FOLDS,
-            grid.iter().map(|v| v.to_string()).collect::<Vec<_>>().join(", ")
-        ),
+    if !rc.tune || rc.classifier.grid().is_none() {
+        return String::new();
     }
+    let c_grid: Vec<String> = crate::decoders::tuning::C_GRID
+        .iter()
+        .map(|v| v.to_string())
+        .collect();
+    let gamma = if rc.classifier == crate::decoders::Classifier::RbfSvm {
+        " and the kernel width γ at 0.1, 1 and 10 times its default"
+    } else {
+        ""
+    };
+    format!(
+        " C was chosen within each training fold by nested cross-validation: the training trials were dealt, class \
+         by class in file order, into {} inner folds, every combination of C in {{{}}}{gamma} was scored by the inner \
+         balanced accuracy of the full pipeline (standardisation refitted on each inner training fold), and the best \
+         (the simpler on ties) was refitted on the whole training fold; the test fold was never used to choose it.",
+        crate::decoders::tuning::INNER_FOLDS,
+        c_grid.join(", ")
+    )
 }

@@ -14,7 +14,8 @@
 //! * `shuffle` {`count`, `repeats_each`, `within_groups`, `observed`, `null` (one headline score per shuffle),
 //!   `null_mean`, `null_sd`, `null_p95`, `p_value`}; the statistics are null when there are no shuffles
 //! * `fits` {`total`, `capped`, `single_class`}, `warnings`
-//! * `tuning` (only with nested selection): {`grid`, `chosen` [{`value`, `fits`}]}, how often each setting was
+//! * `tuning` (only with nested selection): {`grid`, `chosen` [{`c`, `gamma_factor` (kernel SVM only), `fits`}]},
+//!   how often each setting was
 //!   chosen across the folds of the observed repeats
 //!
 //! Nothing time- or machine-dependent is written, so equal recipes and files give byte-identical JSON.
@@ -23,6 +24,7 @@ pub mod methods;
 pub mod plots;
 pub mod text;
 
+use crate::decoders::tuning::Setting;
 use crate::protocol::{Headline, Outcome, Plan, Split, Task};
 use crate::recipe::Recipe;
 use crate::stats::{self, binomial, Spread};
@@ -54,27 +56,28 @@ pub struct Report {
 /// How often each setting of the grid was chosen by nested cross-validation.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Tuning {
-    pub grid: Vec<f64>,
+    pub grid: Vec<Setting>,
     pub chosen: Vec<Chosen>,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Chosen {
-    pub value: f64,
+    #[serde(flatten)]
+    pub setting: Setting,
     pub fits: usize,
 }
 
 impl Tuning {
     /// The summary of the settings chosen, when the recipe tunes.
-    pub fn of<'a>(recipe: &Recipe, chosen: impl Iterator<Item = &'a f64>) -> Option<Tuning> {
+    pub fn of<'a>(recipe: &Recipe, chosen: impl Iterator<Item = &'a Setting>) -> Option<Tuning> {
         let grid = recipe.classifier.grid().filter(|_| recipe.tune)?;
-        let chosen: Vec<f64> = chosen.copied().collect();
+        let chosen: Vec<Setting> = chosen.copied().collect();
         Some(Tuning {
             chosen: grid
                 .iter()
-                .map(|&value| Chosen {
-                    value,
-                    fits: chosen.iter().filter(|&&c| c == value).count(),
+                .map(|&setting| Chosen {
+                    setting,
+                    fits: chosen.iter().filter(|&&c| c == setting).count(),
                 })
                 .collect(),
             grid,

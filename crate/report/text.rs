@@ -147,14 +147,14 @@ pub fn tuning_line(t: &super::Tuning) -> String {
         .map(|c| {
             format!(
                 "{} in {} fit{}",
-                c.value,
+                c.setting,
                 c.fits,
                 if c.fits == 1 { "" } else { "s" }
             )
         })
         .collect();
     format!(
-        "\nC chosen by nested cross-validation: {}\n",
+        "\nsettings chosen by nested cross-validation: {}\n",
         parts.join(", ")
     )
 }

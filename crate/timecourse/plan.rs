@@ -35,7 +35,7 @@ pub struct TimeOutcome {
     pub single_class_fits: u32,
     /// With tuning, the setting chosen in each fit of an observed repeat (window by window, folds in order).
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
-    pub chosen: Vec<f64>,
+    pub chosen: Vec<crate::decoders::tuning::Setting>,
 }
 
 /// A time-resolved recipe checked against a recording.
@@ -185,7 +185,7 @@ impl<'a> TimePlan<'a> {
         let fits = fitted.clone().count() as u32;
         let capped = fitted.clone().filter(|m| m.hit_iteration_cap()).count() as u32;
         let single = fitted.clone().filter(|m| m.single_class()).count() as u32;
-        let chosen: Vec<f64> = fitted.filter_map(FittedPipeline::chosen).collect();
+        let chosen = fitted.filter_map(FittedPipeline::chosen).collect();
 
         let cells = if generalize { nw * nw } else { nw };
         let mut confusion = vec![0u32; cells * k * k];
