@@ -20,7 +20,7 @@
 use super::linalg::{
     axpy, cholesky_owned, cholesky_rank_one, cholesky_solve, cholesky_with_ridge, dot,
 };
-use super::{argmax, present_classes, Decoder, Model};
+use super::{present_classes, Decoder, LinearModel, Model};
 
 /// Stop when the projected gradient's spread (max − min) falls below this; 0.1 is the usual default of this solver
 /// (from memory of liblinear's documentation), and on the reference checks it already reproduces scikit-learn's
@@ -35,14 +35,6 @@ pub const MAX_NEWTON_STEPS: usize = 100;
 
 pub struct LinearSvm {
     pub c: f64,
-}
-
-/// One weight vector (and intercept) per one-vs-rest problem.
-struct LinearModel {
-    classes: Vec<usize>,
-    /// Row per problem: `p` weights then the intercept.
-    w: Vec<Vec<f64>>,
-    capped: bool,
 }
 
 impl Decoder for LinearSvm {
@@ -85,31 +77,6 @@ impl Decoder for LinearSvm {
             classes.iter().map(|&k| solve(k)).collect()
         };
         Box::new(LinearModel { classes, w, capped })
-    }
-}
-
-impl Model for LinearModel {
-    fn predict(&self, x: &[f64]) -> Vec<usize> {
-        let p = self.w[0].len() - 1;
-        x.chunks_exact(p)
-            .map(|row| {
-                let decision = |w: &Vec<f64>| dot(&w[..p], row) + w[p];
-                if self.w.len() == 1 {
-                    self.classes[usize::from(decision(&self.w[0]) > 0.0)]
-                } else {
-                    let scores: Vec<f64> = self.w.iter().map(decision).collect();
-                    self.classes[argmax(&scores)]
-                }
-            })
-            .collect()
-    }
-
-    fn hit_iteration_cap(&self) -> bool {
-        self.capped
-    }
-
-    fn weights(&self) -> Option<Vec<(usize, Vec<f64>)>> {
-        Some(super::linear_weights(&self.classes, &self.w))
     }
 }
 

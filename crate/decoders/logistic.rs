@@ -8,7 +8,7 @@
 //! penalise a different parametrisation and reach a different decoder.
 
 use super::linalg::{axpy, dot};
-use super::{argmax, present_classes, Decoder, Model};
+use super::{present_classes, Decoder, LinearModel, Model};
 
 /// Stop when the gradient's norm falls below this fraction of its norm at the start.
 pub const TOLERANCE: f64 = 1e-8;
@@ -18,13 +18,6 @@ const MEMORY: usize = 10;
 
 pub struct Logistic {
     pub c: f64,
-}
-
-struct LogisticModel {
-    classes: Vec<usize>,
-    /// Row per output (one for two classes): `p` weights then the intercept.
-    w: Vec<Vec<f64>>,
-    capped: bool,
 }
 
 /// The objective and its gradient for parameters laid out as `outputs × (p + 1)`.
@@ -168,36 +161,11 @@ impl Decoder for Logistic {
             c: self.c,
         };
         let (theta, capped) = lbfgs(&problem, outputs * (p + 1));
-        Box::new(LogisticModel {
+        Box::new(LinearModel {
             classes,
             w: theta.chunks(p + 1).map(<[f64]>::to_vec).collect(),
             capped,
         })
-    }
-}
-
-impl Model for LogisticModel {
-    fn predict(&self, x: &[f64]) -> Vec<usize> {
-        let p = self.w[0].len() - 1;
-        x.chunks_exact(p)
-            .map(|row| {
-                let score = |w: &Vec<f64>| dot(&w[..p], row) + w[p];
-                if self.w.len() == 1 {
-                    self.classes[usize::from(score(&self.w[0]) > 0.0)]
-                } else {
-                    let scores: Vec<f64> = self.w.iter().map(score).collect();
-                    self.classes[argmax(&scores)]
-                }
-            })
-            .collect()
-    }
-
-    fn hit_iteration_cap(&self) -> bool {
-        self.capped
-    }
-
-    fn weights(&self) -> Option<Vec<(usize, Vec<f64>)>> {
-        Some(super::linear_weights(&self.classes, &self.w))
     }
 }
 

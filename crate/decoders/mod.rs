@@ -426,17 +426,46 @@ pub fn check_counts(
         }))
 }
 
-/// Weights of a one-vs-rest (or single binary) linear model stored as rows of `p` weights then the intercept.
-pub(crate) fn linear_weights(classes: &[usize], w: &[Vec<f64>]) -> Vec<(usize, Vec<f64>)> {
-    let p = w[0].len() - 1;
-    if w.len() == 1 {
-        vec![(classes[1], w[0][..p].to_vec())]
-    } else {
-        classes
-            .iter()
-            .zip(w)
-            .map(|(&c, w)| (c, w[..p].to_vec()))
+/// A linear decoder's scores: one weight row per class (one-vs-rest, or softmax), or a single row for two classes
+/// whose positive side is the second class. Shared by the linear SVM and logistic regression.
+pub(crate) struct LinearModel {
+    pub classes: Vec<usize>,
+    /// Row per output: `p` weights then the intercept.
+    pub w: Vec<Vec<f64>>,
+    pub capped: bool,
+}
+
+impl Model for LinearModel {
+    fn predict(&self, x: &[f64]) -> Vec<usize> {
+        let p = self.w[0].len() - 1;
+        x.chunks_exact(p)
+            .map(|row| {
+                let decision = |w: &Vec<f64>| linalg::dot(&w[..p], row) + w[p];
+                if self.w.len() == 1 {
+                    self.classes[usize::from(decision(&self.w[0]) > 0.0)]
+                } else {
+                    let scores: Vec<f64> = self.w.iter().map(decision).collect();
+                    self.classes[argmax(&scores)]
+                }
+            })
             .collect()
+    }
+
+    fn hit_iteration_cap(&self) -> bool {
+        self.capped
+    }
+
+    fn weights(&self) -> Option<Vec<(usize, Vec<f64>)>> {
+        let p = self.w[0].len() - 1;
+        Some(if self.w.len() == 1 {
+            vec![(self.classes[1], self.w[0][..p].to_vec())]
+        } else {
+            self.classes
+                .iter()
+                .zip(&self.w)
+                .map(|(&c, w)| (c, w[..p].to_vec()))
+                .collect()
+        })
     }
 }
 

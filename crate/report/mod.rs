@@ -25,7 +25,7 @@ pub mod plots;
 pub mod text;
 
 use crate::decoders::tuning::Setting;
-use crate::protocol::{Headline, Outcome, Plan, Split, Task};
+use crate::protocol::{Headline, Outcome, Plan, Scheme, Split, Task};
 use crate::recipe::Recipe;
 use crate::stats::{self, binomial, Spread};
 use serde::{Deserialize, Serialize};
@@ -123,6 +123,33 @@ pub struct Design {
     pub folds: usize,
     pub trials_per_repeat: usize,
     pub headline: Headline,
+}
+
+impl Design {
+    pub fn of(scheme: &Scheme) -> Design {
+        Design {
+            split: scheme.split,
+            folds: scheme.folds(),
+            trials_per_repeat: scheme.trials_per_repeat,
+            headline: scheme.headline,
+        }
+    }
+}
+
+impl Chance {
+    /// Chance level and the binomial threshold for the trials tested in each repeat.
+    pub fn of(scheme: &Scheme, n_classes: usize) -> Chance {
+        Chance {
+            level: 1.0 / n_classes as f64,
+            threshold: binomial::chance_threshold(
+                scheme.trials_per_repeat as u64,
+                n_classes,
+                CHANCE_ALPHA,
+            ),
+            alpha: CHANCE_ALPHA,
+            test_trials: scheme.trials_per_repeat,
+        }
+    }
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -233,7 +260,6 @@ impl Report {
             null,
         };
 
-        let folds = plan.scheme.folds();
         let sum = |f: fn(&Outcome) -> u32| outcomes.iter().map(|o| f(o) as u64).sum::<u64>();
         let fits = Fits {
             total: sum(|o| o.fits),
@@ -274,22 +300,8 @@ impl Report {
             recipe: plan.recipe.clone(),
             classes: data.classes.clone(),
             class_counts: data.class_counts(),
-            design: Design {
-                split: plan.scheme.split,
-                folds,
-                trials_per_repeat: plan.scheme.trials_per_repeat,
-                headline: plan.scheme.headline,
-            },
-            chance: Chance {
-                level: 1.0 / n_classes as f64,
-                threshold: binomial::chance_threshold(
-                    plan.scheme.trials_per_repeat as u64,
-                    n_classes,
-                    CHANCE_ALPHA,
-                ),
-                alpha: CHANCE_ALPHA,
-                test_trials: plan.scheme.trials_per_repeat,
-            },
+            design: Design::of(&plan.scheme),
+            chance: Chance::of(&plan.scheme, n_classes),
             repeats: repeats
                 .iter()
                 .map(|o| RepeatRecord {

@@ -24,8 +24,8 @@ use super::data::{SourceFile, TimeDataset};
 use super::plan::{TimeOutcome, TimePlan};
 use crate::protocol::Task;
 use crate::recipe::{Recipe, TimeInput};
-use crate::report::{Chance, Design, Fits, Software, Tuning, CHANCE_ALPHA};
-use crate::stats::{self, binomial, Spread};
+use crate::report::{Chance, Design, Fits, Software, Tuning};
+use crate::stats::{self, Spread};
 use serde::{Deserialize, Serialize};
 
 pub const TIME_SCHEMA: &str = "popdecode-timecourse/1";
@@ -278,22 +278,8 @@ impl TimeReport {
             recipe: plan.recipe.clone(),
             classes: data.classes.clone(),
             class_counts: data.class_counts(),
-            design: Design {
-                split: plan.scheme.split,
-                folds: plan.scheme.folds(),
-                trials_per_repeat: plan.scheme.trials_per_repeat,
-                headline: plan.scheme.headline,
-            },
-            chance: Chance {
-                level: 1.0 / n_classes as f64,
-                threshold: binomial::chance_threshold(
-                    plan.scheme.trials_per_repeat as u64,
-                    n_classes,
-                    CHANCE_ALPHA,
-                ),
-                alpha: CHANCE_ALPHA,
-                test_trials: plan.scheme.trials_per_repeat,
-            },
+            design: Design::of(&plan.scheme),
+            chance: Chance::of(&plan.scheme, n_classes),
             windows,
             repeats: repeats
                 .iter()
