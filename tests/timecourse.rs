@@ -452,3 +452,38 @@ fn task_order_does_not_matter() {
     );
     assert_eq!(plan.fits_in(Task::Repeat(0)), 5 * data.windows.len());
 }
+
+/// Poisson naive Bayes on spike events gets the exact counts (rates × the window width), so it raises no warning
+/// about rates and decodes the informative period.
+#[test]
+fn poisson_bayes_on_events_uses_counts() {
+    let scenario = TimeScenario {
+        trials_per_class: 20,
+        ..TimeScenario::odours()
+    };
+    let mut recipe = events_recipe(0.0, 0.8, 4, 0);
+    recipe.classifier = Classifier::PoissonNb;
+    let files = spike_events(&scenario);
+    let data = load(
+        &[("spikes.csv", &files.events), ("trials.csv", &files.trials)],
+        &recipe,
+    )
+    .unwrap();
+    let plan = TimePlan::new(&data, &recipe).unwrap();
+    assert!(
+        plan.scheme
+            .warnings
+            .iter()
+            .all(|w| !w.contains("whole numbers")),
+        "{:?}",
+        plan.scheme.warnings
+    );
+    let r = run_all(&plan);
+    let at = |t: f64| {
+        r.windows
+            .iter()
+            .position(|w| (w.time - t).abs() < 1e-9)
+            .unwrap()
+    };
+    assert!(r.curve()[at(0.4)] > 0.6, "{:?}", r.curve());
+}

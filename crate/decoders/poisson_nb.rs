@@ -6,7 +6,8 @@
 //! A trial's log posterior is `ln πₖ + Σⱼ (xⱼ ln λₖⱼ − λₖⱼ)` (the `ln xⱼ!` term is the same for every class).
 //! The input must be counts, not standardised values, so this decoder asks the pipeline not to standardise. Rates
 //! (count / window) give the same decisions as counts when the classes are balanced (the scale only shifts every
-//! class's score alike, apart from the prior's weight).
+//! class's score alike, apart from the prior's weight). From spike events the window is known, and a time course
+//! hands this decoder the exact counts.
 
 use super::{argmax, present_classes, Decoder, Model};
 

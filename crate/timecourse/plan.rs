@@ -14,7 +14,7 @@ use super::data::TimeDataset;
 use crate::decoders::{check_counts, fit_folds, Decoder, FittedPipeline, FoldSet};
 use crate::error::{Error, Result};
 use crate::protocol::{accuracies, Draw, Scheme, Task};
-use crate::recipe::{Recipe, TimeSettings};
+use crate::recipe::{Recipe, TimeInput, TimeSettings};
 use crate::resample::permute_labels;
 use crate::rng::{task_rng, Stream};
 use serde::{Deserialize, Serialize};
@@ -45,6 +45,8 @@ pub struct TimePlan<'a> {
     pub settings: TimeSettings,
     pub scheme: Scheme,
     decoder: Box<dyn Decoder>,
+    /// For a decoder of counts on spike events: the window width, which turns the rates back into exact counts.
+    count_scale: Option<f64>,
 }
 
 impl<'a> TimePlan<'a> {
@@ -53,12 +55,17 @@ impl<'a> TimePlan<'a> {
             Error::Recipe("this recipe has no time settings; it is for a trial table".into())
         })?;
         let mut scheme = Scheme::resolve(&data.trials(), recipe)?;
+        let count_scale = match settings.input {
+            TimeInput::Events { width, .. } if recipe.classifier.needs_counts() => Some(width),
+            _ => None,
+        };
         let counts_note = check_counts(
             recipe.classifier,
             data.x.as_slice().expect("standard layout"),
             &data.neurons,
             &data.source,
-        )?;
+        )?
+        .filter(|_| count_scale.is_none());
         let mut warnings = data.warnings.clone();
         warnings.append(&mut scheme.warnings);
         warnings.extend(counts_note);
@@ -69,6 +76,7 @@ impl<'a> TimePlan<'a> {
             settings,
             scheme,
             decoder: recipe.classifier.build_tuned(recipe.c, recipe.tune),
+            count_scale,
         })
     }
 
@@ -162,6 +170,10 @@ impl<'a> TimePlan<'a> {
             for &pos in positions {
                 let i = draw.used[pos];
                 out.extend_from_slice(&x[i * p..(i + 1) * p]);
+            }
+            if let Some(width) = self.count_scale {
+                // Rates × width: spike counts, rounded to undo the division's round-off.
+                out.iter_mut().for_each(|v| *v = (*v * width).round());
             }
             out
         };
