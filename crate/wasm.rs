@@ -6,6 +6,7 @@
 
 use crate::data::table::{Cell, Table};
 use crate::data::{sha256_hex, Dataset};
+use crate::neurons::{plots as neuron_plots, NeuronOutcome, NeuronTask, NeuronsPlan};
 use crate::protocol::{Outcome, Plan, Task};
 use crate::recipe::Recipe;
 use crate::report::{methods, plots, text, Report};
@@ -303,6 +304,85 @@ pub fn finish_time(
         "csv": {
             "curve": tc_text::curve_csv(&report),
             "generalization": tc_text::generalization_csv(&report),
+        },
+    })
+    .to_string())
+}
+
+// ---------- neuron analyses ----------
+
+/// The neuron analyses' tasks with their cost in fits.
+#[wasm_bindgen]
+pub fn prepare_neurons(
+    name: &str,
+    bytes: &[u8],
+    recipe_json: &str,
+    draws: usize,
+) -> Result<String, JsValue> {
+    let (data, recipe) = load(name, bytes, recipe_json)?;
+    let plan = NeuronsPlan::new(&data, &recipe, draws).map_err(err)?;
+    let tasks = plan.tasks();
+    let fits: Vec<usize> = tasks.iter().map(|&t| plan.fits_in(t)).collect();
+    Ok(json!({ "tasks": tasks, "fits": fits, "sizes": plan.sizes }).to_string())
+}
+
+/// Runs neuron tasks in a worker.
+#[wasm_bindgen]
+pub struct NeuronsRunner {
+    data: Dataset,
+    recipe: Recipe,
+    draws: usize,
+}
+
+#[wasm_bindgen]
+impl NeuronsRunner {
+    #[wasm_bindgen(constructor)]
+    pub fn new(
+        name: &str,
+        bytes: &[u8],
+        recipe_json: &str,
+        draws: usize,
+    ) -> Result<NeuronsRunner, JsValue> {
+        let (data, recipe) = load(name, bytes, recipe_json)?;
+        NeuronsPlan::new(&data, &recipe, draws).map_err(err)?;
+        Ok(NeuronsRunner {
+            data,
+            recipe,
+            draws,
+        })
+    }
+
+    /// One task (as JSON, from `prepare_neurons`) run to its outcome (JSON).
+    pub fn run(&self, task_json: &str) -> Result<String, JsValue> {
+        let plan = NeuronsPlan::new(&self.data, &self.recipe, self.draws).map_err(err)?;
+        let task: NeuronTask =
+            serde_json::from_str(task_json).map_err(|e| err(format!("malformed task: {e}")))?;
+        Ok(serde_json::to_string(&plan.run(task)).expect("outcomes serialise"))
+    }
+}
+
+/// The neuron report with its text and figures.
+#[wasm_bindgen]
+pub fn finish_neurons(
+    name: &str,
+    bytes: &[u8],
+    recipe_json: &str,
+    draws: usize,
+    outcomes_json: &str,
+) -> Result<String, JsValue> {
+    let (data, recipe) = load(name, bytes, recipe_json)?;
+    let plan = NeuronsPlan::new(&data, &recipe, draws).map_err(err)?;
+    let outcomes: Vec<NeuronOutcome> = serde_json::from_str(outcomes_json)
+        .map_err(|e| err(format!("outcomes are malformed: {e}")))?;
+    let report = plan.report(&outcomes);
+    Ok(json!({
+        "report": report,
+        "report_json": report.to_json(),
+        "text": report.render(),
+        "plots": {
+            "dropping": neuron_plots::dropping(&report),
+            "single": neuron_plots::single(&report),
+            "weights": neuron_plots::weights(&report),
         },
     })
     .to_string())

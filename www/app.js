@@ -10,7 +10,7 @@
   // file/info: the trial table or binned table; events/eventsInfo: the spike events file (events only).
   const state = {
     kind: 'table', module: null, file: null, info: null, events: null, eventsInfo: null,
-    pool: [], run: null, result: null, lastRecipe: null,
+    pool: [], run: null, result: null, lastRecipe: null, neurons: null,
   };
   const WITH_C = ['linear-svm', 'logistic', 'rbf-svm'];
   const EXAMPLES = { table: ['odours.csv'], binned: ['odours_binned.csv'], events: ['odour_spikes.csv', 'odour_trials.csv'] };
@@ -86,6 +86,7 @@
     $('data-view').hidden = true;
     $('results').hidden = true;
     $('compare').hidden = true;
+    $('neurons').hidden = true;
     $('start').disabled = true;
     clearError('data-error');
     showKind();
@@ -458,11 +459,23 @@
     });
   }
 
+  // How a run's workers are set up and its outcomes assembled: a trial table, a time course, or the neuron analyses.
+  function mode(draws) {
+    if (draws !== undefined) {
+      return {
+        name: 'neurons', extra: draws,
+        finish: (recipe, outcomes) => wasm_bindgen.finish_neurons(state.file.name, state.file.bytes, recipe, draws, outcomes),
+      };
+    }
+    if (isTime()) return { name: 'time', finish: (recipe, outcomes) => wasm_bindgen.finish_time(...fileArgs(), recipe, outcomes) };
+    return { name: 'table', finish: (recipe, outcomes) => wasm_bindgen.finish(state.file.name, state.file.bytes, recipe, outcomes) };
+  }
+
   // Run a prepared recipe on a fresh worker pool; `done` receives the finished result.
-  function launch(recipe, plan, done) {
-    const queue = plan.tasks.map((t, i) => ({ kind: t.kind, index: t.index, fits: plan.fits[i] }));
+  function launch(recipe, plan, done, how = mode()) {
+    const queue = plan.tasks.map((task, i) => ({ task, fits: plan.fits[i] }));
     const run = {
-      recipe: JSON.stringify(recipe), queue, next: 0, outcomes: [], fitsDone: 0, done,
+      recipe: JSON.stringify(recipe), queue, next: 0, outcomes: [], fitsDone: 0, done, how,
       fitsTotal: plan.fits.reduce((a, b) => a + b, 0), started: performance.now(), failed: false,
     };
     state.run = run;
@@ -475,14 +488,14 @@
       state.pool.push(worker);
       worker.onmessage = (ev) => onWorkerMessage(run, worker, ev.data);
       worker.onerror = (ev) => fail(run, 'a worker stopped: ' + (ev.message || 'unknown error'));
-      worker.postMessage({ type: 'init', module: state.module, time: isTime(), files: fileArgs(), recipe: run.recipe });
+      worker.postMessage({ type: 'init', module: state.module, mode: how.name, extra: how.extra, files: fileArgs(), recipe: run.recipe });
     }
   }
 
   function give(run, worker) {
     if (run.next >= run.queue.length) return;
-    const t = run.queue[run.next++];
-    worker.postMessage({ type: 'task', kind: t.kind, index: t.index });
+    const id = run.next++;
+    worker.postMessage({ type: 'task', id, task: run.queue[id].task });
   }
 
   function onWorkerMessage(run, worker, msg) {
@@ -491,8 +504,7 @@
     if (msg.type === 'error') { fail(run, msg.message); return; }
     if (msg.type === 'done') {
       run.outcomes.push(msg.outcome);
-      const t = run.queue.find((q) => q.kind === msg.kind && q.index === msg.index);
-      run.fitsDone += t ? t.fits : 0;
+      run.fitsDone += run.queue[msg.id].fits;
       progress(run);
       if (run.outcomes.length === run.queue.length) finish(run); else give(run, worker);
     }
@@ -533,14 +545,33 @@
     endRun();
     let result;
     try {
-      const outcomes = '[' + run.outcomes.join(',') + ']';
-      result = JSON.parse(isTime()
-        ? wasm_bindgen.finish_time(...fileArgs(), run.recipe, outcomes)
-        : wasm_bindgen.finish(state.file.name, state.file.bytes, run.recipe, outcomes));
+      result = JSON.parse(run.how.finish(run.recipe, '[' + run.outcomes.join(',') + ']'));
     } catch (e) { showError('run-error', String(e)); return; }
     const seconds = ((performance.now() - run.started) / 1000).toFixed(1);
     $('progress-text').textContent = `Done: ${run.fitsTotal} fits in ${seconds} s on ${Math.min(poolSize(), run.queue.length)} workers.`;
     run.done(result);
+  }
+
+  // ---------- what each neuron contributes ----------
+  function neurons() {
+    if (!ready() || state.run || state.kind !== 'table') return;
+    clearError('run-error');
+    let recipe, plan;
+    const draws = Math.max(1, Number($('draws').value) || 10);
+    try {
+      recipe = readRecipe();
+      recipe.shuffles = 0;
+      plan = JSON.parse(wasm_bindgen.prepare_neurons(state.file.name, state.file.bytes, JSON.stringify(recipe), draws));
+    } catch (e) { showError('run-error', String(e)); return; }
+    launch(recipe, plan, (result) => {
+      state.neurons = result;
+      $('neurons').hidden = false;
+      svgImage('fig-dropping', result.plots.dropping, 'dropping');
+      svgImage('fig-single', result.plots.single, 'single');
+      svgImage('fig-weights', result.plots.weights, 'weights');
+      $('neurons-note').hidden = !result.plots.weights;
+      $('neurons').scrollIntoView({ behavior: 'smooth', block: 'start' });
+    }, mode(draws));
   }
 
   // ---------- exploratory comparison of decoders ----------
@@ -770,6 +801,8 @@
       .forEach((id) => $(id).addEventListener('change', refreshPlan));
     $('start').addEventListener('click', start);
     $('compare-start').addEventListener('click', compare);
+    $('neurons-start').addEventListener('click', neurons);
+    $('export-neurons').addEventListener('click', () => state.neurons && download(`${baseName()}-neurons.json`, state.neurons.report_json + '\n', 'application/json'));
     $('cancel').addEventListener('click', cancel);
     $('save-recipe').addEventListener('click', () => download(`${baseName()}.recipe.json`, JSON.stringify(readRecipe(), null, 2) + '\n', 'application/json'));
     $('recipe-file').addEventListener('change', async (e) => {

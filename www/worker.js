@@ -8,6 +8,7 @@ if (typeof wasm_bindgen === 'undefined') {
   importScripts('pkg/popdecode.js');
 }
 let runner = null;
+let mode = 'table';
 
 function failure(e) {
   // A trap (RuntimeError) means a bug in the core: report the panic message it recorded.
@@ -26,13 +27,14 @@ self.onmessage = async (event) => {
     if (msg.type === 'init') {
       await wasm_bindgen({ module_or_path: msg.module });
       wasm_bindgen.start();
-      runner = msg.time
-        ? new wasm_bindgen.TimeRunner(...msg.files, msg.recipe)
-        : new wasm_bindgen.Runner(msg.files[0], msg.files[1], msg.recipe);
+      mode = msg.mode;
+      if (mode === 'time') runner = new wasm_bindgen.TimeRunner(...msg.files, msg.recipe);
+      else if (mode === 'neurons') runner = new wasm_bindgen.NeuronsRunner(msg.files[0], msg.files[1], msg.recipe, msg.extra);
+      else runner = new wasm_bindgen.Runner(msg.files[0], msg.files[1], msg.recipe);
       self.postMessage({ type: 'ready' });
     } else if (msg.type === 'task') {
-      const outcome = runner.run(msg.kind, msg.index);
-      self.postMessage({ type: 'done', kind: msg.kind, index: msg.index, outcome });
+      const outcome = mode === 'neurons' ? runner.run(JSON.stringify(msg.task)) : runner.run(msg.task.kind, msg.task.index);
+      self.postMessage({ type: 'done', id: msg.id, outcome });
     }
   } catch (e) {
     self.postMessage({ type: 'error', message: failure(e) });

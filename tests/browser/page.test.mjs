@@ -231,3 +231,27 @@ test('decoders side by side, labelled exploratory', async () => {
   assert.deepEqual(b.errors, []);
   await b.context.close();
 });
+
+test('the neuron analyses in the page give the command line\'s bytes', async () => {
+  const b = await openPage();
+  await b.page.click('#example');
+  await b.page.waitForSelector('#data-view:not([hidden])');
+  await quickSettings(b.page, { repeats: 2, shuffles: 0 });
+  await b.page.fill('#draws', '2');
+  await b.page.click('#neurons-start');
+  await b.page.waitForSelector('#neurons:not([hidden])', { timeout: 120_000 });
+  await shot(b.page, 'neurons');
+  for (const fig of ['#fig-dropping img', '#fig-single img', '#fig-weights img']) assert.ok(await b.page.isVisible(fig), fig);
+  assert.match(await b.page.textContent('#neurons-note'), /Activation patterns \(Haufe/);
+  const json = await downloadText(b.page, '#export-neurons');
+  const report = JSON.parse(json);
+  const recipeFile = join(tmp, 'neurons.recipe.json');
+  writeFileSync(recipeFile, JSON.stringify(report.recipe));
+  const out = join(tmp, 'neurons-cli.json');
+  cli(['neurons', join(ROOT, 'samples', 'odours.csv'), '--recipe', recipeFile, '--draws', '2', '--quiet', '--json', out]);
+  assert.equal(json, readFileSync(out, 'utf8'), 'page JSON and CLI JSON differ');
+  assert.deepEqual(report.dropping.map((d) => d.size), [1, 2, 4, 8, 16, 32, 52]);
+  assertLocalOnly(assert, b.requests, server.origin);
+  assert.deepEqual(b.errors, []);
+  await b.context.close();
+});
