@@ -5,7 +5,8 @@
 //! the CLI can spread tasks over threads and the page over workers, in any order, and the numbers stay the same.
 //! [`crate::report::Report::build`] then assembles the outcomes, in task order, into the result.
 //!
-//! One repeat: (1) balance classes by undersampling, (2) split into stratified or grouped folds, (3)-(4) for each
+//! One repeat: (1) balance classes by undersampling, (2) split into stratified or grouped folds (or, for neurons
+//! recorded in separate sessions, build pseudo-trials within folds: [`crate::pseudo`]), (3)-(4) for each
 //! fold fit standardisation and decoder on the training trials only and predict the test trials, (5) pool the test
 //! predictions of all folds into one confusion matrix, accuracy and balanced accuracy.
 
@@ -17,10 +18,10 @@ use crate::recipe::{Folds, Recipe};
 use crate::resample::{balance, grouped_folds, permute_labels, stratified_folds};
 use crate::rng::{task_rng, Stream};
 use rand_core::RngCore;
+use serde::{Deserialize, Serialize};
 
 /// Kernel matrices above this size (256 MB per worker) are worth a warning on the page.
 const RBF_KERNEL_WARNING_BYTES: usize = 256 << 20;
-use serde::{Deserialize, Serialize};
 
 /// One independent piece of work.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]

@@ -1,6 +1,6 @@
 //! Standardisation fitted on the training fold only.
 //!
-//! The protocol never calls this directly: [`crate::decoders::fit_on_training_fold`] fits it together with the
+//! The protocol never calls this directly: [`crate::decoders::FittedPipeline::fit`] fits it together with the
 //! decoder and keeps it inside the fitted pipeline, so the test fold can only ever be transformed with training
 //! statistics. Means and population SDs (divisor n) follow the usual convention of scikit-learn's StandardScaler
 //! (scikit-learn 1.9 documentation); a feature that is constant in the training fold keeps scale 1, so it becomes 0
