@@ -200,6 +200,28 @@ pub struct Fits {
     pub single_class: u64,
 }
 
+impl Fits {
+    /// What the user should know about fits that did not go as planned.
+    pub fn warnings(&self) -> Vec<String> {
+        let mut out = Vec::new();
+        if self.capped > 0 {
+            out.push(format!(
+                "{} of {} fits stopped at the solver's iteration cap before reaching its tolerance; their decoders \
+                 may be slightly off (standardised data rarely causes this; a smaller C usually helps)",
+                self.capped, self.total
+            ));
+        }
+        if self.single_class > 0 {
+            out.push(format!(
+                "{} of {} training folds held a single class (groups with one condition each) and predicted it for \
+                 every test trial",
+                self.single_class, self.total
+            ));
+        }
+        out
+    }
+}
+
 impl Report {
     /// Assemble the report from every task's outcome (any order; they are sorted by task here).
     pub fn build(plan: &Plan, outcomes: &[Outcome]) -> Report {
@@ -267,20 +289,7 @@ impl Report {
             single_class: sum(|o| o.single_class_fits),
         };
         let mut warnings = plan.scheme.warnings.clone();
-        if fits.capped > 0 {
-            warnings.push(format!(
-                "{} of {} fits stopped at the solver's iteration cap before reaching its tolerance; their decoders \
-                 may be slightly off (standardised data rarely causes this; a smaller C usually helps)",
-                fits.capped, fits.total
-            ));
-        }
-        if fits.single_class > 0 {
-            warnings.push(format!(
-                "{} of {} training folds held a single class (groups with one condition each) and predicted it for \
-                 every test trial",
-                fits.single_class, fits.total
-            ));
-        }
+        warnings.extend(fits.warnings());
         Report {
             schema: RESULT_SCHEMA.into(),
             software: Software::current(),

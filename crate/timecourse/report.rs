@@ -236,18 +236,7 @@ impl TimeReport {
             single_class: sum(|o| o.single_class_fits),
         };
         let mut warnings = plan.scheme.warnings.clone();
-        if fits.capped > 0 {
-            warnings.push(format!(
-                "{} of {} fits stopped at the solver's iteration cap before reaching its tolerance",
-                fits.capped, fits.total
-            ));
-        }
-        if fits.single_class > 0 {
-            warnings.push(format!(
-                "{} of {} training folds held a single class and predicted it for every test trial",
-                fits.single_class, fits.total
-            ));
-        }
+        warnings.extend(fits.warnings());
         if has_null && plan.recipe.shuffles < 100 {
             warnings.push(format!(
                 "only {} shuffles: the cluster p-values cannot go below {:.3}, and the per-window 95th percentiles \
