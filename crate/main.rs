@@ -37,6 +37,8 @@ enum Command {
     Timecourse(Box<TimecourseArgs>),
     /// What each neuron contributes: neuron-dropping curve, each neuron alone, weights and activation patterns.
     Neurons(NeuronsArgs),
+    /// What an NWB file holds: units, spikes, trials and the trials table's columns.
+    Inspect(InspectArgs),
     /// Cross-validated predictions on fold numbers you supply in a column (no balancing, no repeats).
     Predict(PredictArgs),
 }
@@ -143,6 +145,10 @@ struct TimecourseArgs {
     /// Trial table CSV for --events: trial, label, optional group and alignment columns.
     #[arg(long, requires = "events")]
     trials: Option<PathBuf>,
+    /// An NWB 2.x file: spike times of its units table, trials from its trials table (--label and --group name
+    /// trials columns; --align one holding alignment times, default start_time).
+    #[arg(long, conflicts_with_all = ["csv", "events", "trials"])]
+    nwb: Option<PathBuf>,
     /// Trial id column (binned table; events file and trial table) [default: trial].
     #[arg(long)]
     trial: Option<String>,
@@ -192,6 +198,15 @@ struct NeuronsArgs {
 }
 
 #[derive(Args)]
+struct InspectArgs {
+    /// The NWB file.
+    file: PathBuf,
+    /// Also write every spike as read (unit, time in s) to this CSV.
+    #[arg(long)]
+    spikes: Option<PathBuf>,
+}
+
+#[derive(Args)]
 struct PredictArgs {
     #[command(flatten)]
     table: TableArgs,
@@ -223,6 +238,7 @@ fn main() -> ExitCode {
         Command::Decode(args) => decode(args),
         Command::Timecourse(args) => timecourse(*args),
         Command::Neurons(args) => neurons(args),
+        Command::Inspect(args) => inspect(args),
         Command::Predict(args) => predict(args),
     };
     match result {
@@ -372,6 +388,9 @@ fn time_settings(
     from_recipe: Option<TimeSettings>,
 ) -> Result<TimeSettings, String> {
     let trial = args.trial.clone();
+    if args.nwb.is_some() {
+        return nwb_settings(args, from_recipe);
+    }
     let mut settings = match (&args.events, &args.csv, from_recipe) {
         (Some(_), _, Some(t @ TimeSettings { input: TimeInput::Events { .. }, .. })) => t,
         (None, Some(_), Some(t @ TimeSettings { input: TimeInput::Binned { .. }, .. })) => t,
@@ -439,12 +458,97 @@ fn time_settings(
             *start = args.start.unwrap_or(*start);
             *end = args.end.unwrap_or(*end);
         }
+        TimeInput::Nwb { .. } => unreachable!("NWB settings are made by nwb_settings"),
     }
     settings.generalize |= args.generalize;
     if let Some(a) = args.alpha {
         settings.alpha = a;
     }
     Ok(settings)
+}
+
+/// Time settings for an NWB file: windows and alignment from the recipe or the flags.
+fn nwb_settings(
+    args: &TimecourseArgs,
+    from_recipe: Option<TimeSettings>,
+) -> Result<TimeSettings, String> {
+    let mut settings = match from_recipe {
+        Some(t @ TimeSettings {
+            input: TimeInput::Nwb { .. },
+            ..
+        }) => t,
+        _ => match (args.start, args.end) {
+            (Some(s), Some(e)) => TimeSettings::nwb(s, e),
+            _ => {
+                return Err(
+                    "with --nwb, give the analysis span with --start and --end (s from each trial's alignment time)"
+                        .into(),
+                )
+            }
+        },
+    };
+    if args.trial.is_some() || args.neuron.is_some() || args.time.is_some() {
+        return Err("--trial, --neuron and --time name CSV columns; an NWB file's tables are read as NWB lays \
+                    them out"
+            .into());
+    }
+    if let TimeInput::Nwb {
+        align,
+        width,
+        step,
+        start,
+        end,
+    } = &mut settings.input
+    {
+        if args.align.is_some() {
+            *align = args.align.clone();
+        }
+        *width = args.width.unwrap_or(*width);
+        *step = args.step.unwrap_or(*step);
+        *start = args.start.unwrap_or(*start);
+        *end = args.end.unwrap_or(*end);
+    }
+    settings.generalize |= args.generalize;
+    if let Some(a) = args.alpha {
+        settings.alpha = a;
+    }
+    Ok(settings)
+}
+
+/// `popdecode inspect FILE.nwb`: what the file holds, and optionally every spike as read.
+fn inspect(args: InspectArgs) -> Result<(), String> {
+    let bytes = read(&args.file)?;
+    let name = display_name(&args.file);
+    let rec = popdecode::timecourse::nwb::Recording::read(&name, &bytes).map_err(show)?;
+    let s = rec.summary();
+    println!(
+        "{name}: {} units, {} spikes, {} trials over {:.3} s",
+        s.units, s.spikes, s.trials, s.duration
+    );
+    println!("trials columns (candidate labels, groups and alignment times):");
+    for c in &s.columns {
+        let values: Vec<String> = c.values.iter().map(|(v, n)| format!("{v} ({n})")).collect();
+        println!(
+            "  {:<20} {:<7} {}",
+            c.name,
+            if c.numeric { "number" } else { "text" },
+            if values.is_empty() {
+                format!("{} distinct values", c.distinct)
+            } else {
+                values.join(", ")
+            }
+        );
+    }
+    if let Some(path) = &args.spikes {
+        let mut out = String::from("unit,time\n");
+        for (u, times) in rec.units.iter().zip(&rec.spikes) {
+            for t in times {
+                out.push_str(&format!("{u},{t:?}\n"));
+            }
+        }
+        write(path, &out)?;
+    }
+    Ok(())
 }
 
 fn timecourse(args: TimecourseArgs) -> Result<(), String> {
@@ -456,9 +560,10 @@ fn timecourse(args: TimecourseArgs) -> Result<(), String> {
     }
     recipe.time = Some(time_settings(&args, recipe.time.take())?);
     recipe.validate().map_err(show)?;
-    let paths: Vec<&PathBuf> = match (&args.events, &args.trials, &args.csv) {
-        (Some(e), Some(t), _) => vec![e, t],
-        (_, _, Some(c)) => vec![c],
+    let paths: Vec<&PathBuf> = match (&args.events, &args.trials, &args.csv, &args.nwb) {
+        (_, _, _, Some(n)) => vec![n],
+        (Some(e), Some(t), _, _) => vec![e, t],
+        (_, _, Some(c), _) => vec![c],
         _ => unreachable!("time_settings checked the inputs"),
     };
     let contents: Vec<(String, Vec<u8>)> = paths

@@ -130,6 +130,16 @@ pub enum TimeInput {
         /// No window extends past this, s.
         end: f64,
     },
+    /// An NWB file: units' spike times and the trials table; `align` names the trials column holding each
+    /// trial's alignment time (default `start_time`).
+    Nwb {
+        #[serde(default)]
+        align: Option<String>,
+        width: f64,
+        step: f64,
+        start: f64,
+        end: f64,
+    },
 }
 
 impl TimeSettings {
@@ -141,6 +151,21 @@ impl TimeSettings {
                 trial: "trial".into(),
                 neuron: "neuron".into(),
                 time: "time".into(),
+                align: None,
+                width: 0.1,
+                step: 0.05,
+                start,
+                end,
+            },
+            generalize: false,
+            alpha: 0.05,
+        }
+    }
+
+    /// Defaults for an NWB file: 0.1 s windows stepped by 0.05 s over the given span, aligned to `start_time`.
+    pub fn nwb(start: f64, end: f64) -> TimeSettings {
+        TimeSettings {
+            input: TimeInput::Nwb {
                 align: None,
                 width: 0.1,
                 step: 0.05,
@@ -248,6 +273,13 @@ impl Recipe {
                 )));
             }
             if let TimeInput::Events {
+                width,
+                step,
+                start,
+                end,
+                ..
+            }
+            | TimeInput::Nwb {
                 width,
                 step,
                 start,

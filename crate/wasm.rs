@@ -387,3 +387,10 @@ pub fn finish_neurons(
     })
     .to_string())
 }
+
+/// What an NWB file holds (units, spikes, trials, the trials table's columns), as JSON.
+#[wasm_bindgen]
+pub fn inspect_nwb(name: &str, bytes: &[u8]) -> Result<String, JsValue> {
+    let rec = crate::timecourse::nwb::Recording::read(name, bytes).map_err(err)?;
+    Ok(serde_json::to_string(&rec.summary()).expect("a summary serialises"))
+}

@@ -148,10 +148,38 @@
     showData();
   }
 
+  // An NWB file: its summary stands in for a table's preview; the trials table's columns fill the selects.
+  function loadNwb(name, bytes) {
+    clearError('data-error');
+    let s;
+    try { s = JSON.parse(wasm_bindgen.inspect_nwb(name, bytes)); } catch (e) {
+      state.file = null; showError('data-error', String(e)); $('data-view').hidden = true; return;
+    }
+    state.file = { name, bytes };
+    const headers = s.columns.map((c) => c.name);
+    const numeric = s.columns.map((c) => c.numeric);
+    const label = s.columns.find((c) => !c.numeric && c.distinct >= 2 && c.distinct <= 20)
+      || s.columns.find((c) => c.distinct >= 2 && c.distinct <= 20);
+    state.info = { headers, numeric, suggested_label: label ? label.name : headers[0] };
+    $('file-summary').textContent = `${name}: NWB, ${s.units} units, ${s.spikes} spikes, ${s.trials} trials over ${s.duration.toFixed(1)} s`;
+    const t = $('preview'); t.replaceChildren();
+    const head = el('tr'); ['trials column', 'kind', 'values (count)'].forEach((h) => head.appendChild(el('th', h, 'text'))); t.appendChild(head);
+    s.columns.forEach((c) => {
+      const tr = el('tr');
+      tr.appendChild(el('td', c.name, 'text')); tr.appendChild(el('td', c.numeric ? 'number' : 'text', 'text'));
+      tr.appendChild(el('td', c.values.length ? c.values.map(([v, n]) => `${v} (${n})`).join(', ') : `${c.distinct} distinct values`, 'text'));
+      t.appendChild(tr);
+    });
+    fillColumns(state.info);
+    $('align-col').value = headers.includes('start_time') ? 'start_time' : '';
+    showData();
+  }
+
   // In events mode a dropped file is the events file when its header has a neuron-like column.
   async function loadDropped(files) {
     for (const f of files) {
       const bytes = new Uint8Array(await f.arrayBuffer());
+      if (state.kind === 'nwb') { loadNwb(f.name, bytes); return; }
       if (state.kind !== 'events') { await loadFile(f.name, bytes); return; }
       let headers = [];
       try { headers = JSON.parse(wasm_bindgen.inspect(f.name, head(bytes))).headers; } catch (_) { headers = []; }
@@ -244,7 +272,7 @@
       recipe.columns.pseudo = $('pseudo').value;
       recipe.columns.group = null;
     }
-    if (state.kind !== 'events') {
+    if (state.kind === 'table' || state.kind === 'binned') {
       const opts = [...$('features').options];
       const feats = opts.filter((o) => o.selected).map((o) => o.value);
       const enabled = opts.filter((o) => !o.disabled).map((o) => o.value);
@@ -268,6 +296,13 @@
     recipe.seed = Number($('seed').value);
     if (state.kind === 'binned') {
       recipe.time = { input: { kind: 'binned', trial: $('trial-col').value, time: $('time-col').value } };
+    } else if (state.kind === 'nwb') {
+      recipe.time = {
+        input: {
+          kind: 'nwb', align: $('align-col').value || null, width: Number($('width').value), step: Number($('step').value),
+          start: Number($('t-start').value), end: Number($('t-end').value),
+        },
+      };
     } else if (state.kind === 'events') {
       recipe.time = {
         input: {
@@ -373,7 +408,7 @@
     const min = Math.min(...plan.class_counts);
     box.appendChild(el('h3', `Trials per class (${plan.trials} trials, ${plan.features} ${isTime() ? 'neurons' : 'features'}` +
       (isTime() ? `, ${plan.windows.length} windows from ${plan.windows[0].time} s to ${plan.windows[plan.windows.length - 1].time} s` : '') +
-      (state.kind === 'events' ? `, ${plan.spikes_total} spikes of which ${plan.spikes_outside} fall outside every window` : '') + ')'));
+      (['events', 'nwb'].includes(state.kind) ? `, ${plan.spikes_total} spikes of which ${plan.spikes_outside} fall outside every window` : '') + ')'));
     const bars = el('div', null, 'bars');
     plan.classes.forEach((c, i) => {
       const n = plan.class_counts[i];
@@ -407,6 +442,11 @@
     const t = r.time && r.time.input;
     if (!t) parts.push('popdecode decode', q(state.file ? state.file.name : 'FILE'));
     else if (t.kind === 'binned') parts.push('popdecode timecourse', q(state.file.name), '--trial', q(t.trial), '--time', q(t.time));
+    else if (t.kind === 'nwb') {
+      parts.push('popdecode timecourse --nwb', q(state.file ? state.file.name : 'FILE.nwb'));
+      if (t.align) parts.push('--align', q(t.align));
+      parts.push('--width', t.width, '--step', t.step, '--start', t.start, '--end', t.end);
+    }
     else {
       parts.push('popdecode timecourse --events', q(state.events ? state.events.name : 'EVENTS'), '--trials', q(state.file ? state.file.name : 'TRIALS'),
         '--trial', q(t.trial), '--neuron', q(t.neuron), '--time', q(t.time));
@@ -766,7 +806,7 @@
       if (f) await loadFile(f.name, new Uint8Array(await f.arrayBuffer()));
       e.target.value = '';
     });
-    for (const [id, load] of [['events-file', loadEvents], ['trials-file', loadFile]]) {
+    for (const [id, load] of [['events-file', loadEvents], ['trials-file', loadFile], ['nwb-file', loadNwb]]) {
       $(id).addEventListener('change', async (e) => {
         const f = e.target.files[0];
         if (f) await load(f.name, new Uint8Array(await f.arrayBuffer()));

@@ -8,6 +8,7 @@
 //!   ([`super::windows`]) and divided by the window width, giving rates in Hz. A neuron with no spike in a trial
 //!   has rate 0 there, never a missing value.
 
+use super::nwb::{Column, Recording};
 use super::windows::{containing, sliding, to_ns, Window};
 use crate::data::labels::{codes, sorted_levels};
 use crate::data::table::{self, is_missing_token, parse_number, quoted_list, Cell, Table};
@@ -127,6 +128,24 @@ impl TimeDataset {
                 ds.files = vec![source_file(events), source_file(trials)];
                 Ok(ds)
             }
+            (
+                TimeInput::Nwb {
+                    align,
+                    width,
+                    step,
+                    start,
+                    end,
+                },
+                [file],
+            ) => {
+                let windows = sliding(*start, *end, *width, *step)?;
+                let mut ds = from_nwb(file, columns, align.as_deref(), windows, *width)?;
+                ds.files = vec![source_file(file)];
+                Ok(ds)
+            }
+            (TimeInput::Nwb { .. }, _) => Err(Error::Recipe(
+                "an NWB time course reads one file (the .nwb file)".into(),
+            )),
             (TimeInput::Binned { .. }, _) => Err(Error::Recipe(
                 "a binned time course reads one file (the binned table)".into(),
             )),
@@ -517,40 +536,72 @@ pub fn from_events(
     // Neurons in natural order of their ids; the map's byte order is only the collection order.
     let names: Vec<String> = neuron_index.keys().cloned().collect();
     let neurons = sorted_levels(&names);
-    let p = neurons.len();
-    let mut x = Array3::<f64>::zeros((w, n, p));
-    for (j, name) in neurons.iter().enumerate() {
-        let c = &counts[neuron_index[name]];
-        for i in 0..n {
-            for k in 0..w {
-                x[[k, i, j]] = c[i * w + k] as f64 / width;
-            }
-        }
-    }
-    let mut warnings = Vec::new();
-    if outside == total {
+    let counts: Vec<Vec<u32>> = neurons
+        .iter()
+        .map(|name| std::mem::take(&mut counts[neuron_index[name]]))
+        .collect();
+    let spans = Spans {
+        source: events.name,
+        aligned: spec.align.is_some(),
+        total,
+        outside,
+    };
+    let (x, warnings) = rates(&counts, n, &windows, width, &spans)?;
+    let mut ds = assemble(src, trial_ids, tl, columns, windows, neurons, x, warnings)?;
+    ds.spikes_total = total;
+    ds.spikes_outside = outside;
+    Ok(ds)
+}
+
+/// Where spikes were counted, for messages.
+struct Spans<'a> {
+    source: &'a str,
+    aligned: bool,
+    total: u64,
+    outside: u64,
+}
+
+/// Rates (Hz) from spike counts (`counts[neuron][trial × windows + window]`), with the checks every spike source
+/// shares: some spike must fall inside the windows, and trials with none at all are worth a warning.
+fn rates(
+    counts: &[Vec<u32>],
+    n: usize,
+    windows: &[Window],
+    width: f64,
+    spans: &Spans,
+) -> Result<(Array3<f64>, Vec<String>)> {
+    let (w, p) = (windows.len(), counts.len());
+    if spans.outside == spans.total {
         return Err(Error::Design(format!(
-            "{}: none of the {total} spikes falls inside the windows ({} s to {} s{}); check the span and the \
+            "{}: none of the {} spikes falls inside the windows ({} s to {} s{}); check the span and the \
              alignment",
-            events.name,
+            spans.source,
+            spans.total,
             windows[0].start,
             windows[w - 1].end,
-            if spec.align.is_some() {
+            if spans.aligned {
                 " after alignment"
             } else {
                 ", times taken as already aligned"
             }
         )));
     }
+    let mut x = Array3::<f64>::zeros((w, n, p));
+    for (j, c) in counts.iter().enumerate() {
+        for i in 0..n {
+            for k in 0..w {
+                x[[k, i, j]] = c[i * w + k] as f64 / width;
+            }
+        }
+    }
     let silent = (0..n)
         .filter(|&i| {
-            neurons.iter().all(|name| {
-                counts[neuron_index[name]][i * w..(i + 1) * w]
-                    .iter()
-                    .all(|&c| c == 0)
-            })
+            counts
+                .iter()
+                .all(|c| c[i * w..(i + 1) * w].iter().all(|&v| v == 0))
         })
         .count();
+    let mut warnings = Vec::new();
     if silent > 0 {
         warnings.push(format!(
             "{silent} trial{} of the trial table {} no spike inside the windows (rates 0 throughout)",
@@ -558,8 +609,92 @@ pub fn from_events(
             if silent == 1 { "has" } else { "have" }
         ));
     }
-    let mut ds = assemble(src, trial_ids, tl, columns, windows, neurons, x, warnings)?;
-    ds.spikes_total = total;
-    ds.spikes_outside = outside;
+    Ok((x, warnings))
+}
+
+/// An NWB recording: every unit's spikes counted in windows around each trial's alignment time (default: its
+/// `start_time`). Labels and groups are trials-table columns.
+pub fn from_nwb(
+    file: &FileBytes,
+    columns: &Columns,
+    align: Option<&str>,
+    windows: Vec<Window>,
+    width: f64,
+) -> Result<TimeDataset> {
+    let src = file.name;
+    let rec = Recording::read(src, file.bytes)?;
+    let n = rec.n_trials();
+    let label = rec.require(src, &columns.label)?.texts();
+    let group = columns
+        .group
+        .as_deref()
+        .map(|g| rec.require(src, g).map(Column::texts))
+        .transpose()?;
+    let align_name = align.unwrap_or("start_time");
+    let align_times = match rec.require(src, align_name)? {
+        Column::Numbers(v) => v.clone(),
+        Column::Texts(_) => {
+            return Err(Error::Input(format!(
+                "{src}: the trials column '{align_name}' holds text, not times in seconds"
+            )))
+        }
+    };
+    if let Some(i) = align_times.iter().position(|t| !t.is_finite()) {
+        return Err(Error::Input(format!(
+            "{src}: trial {i} has no '{align_name}' time (NaN); every trial needs one to align to"
+        )));
+    }
+    let w = windows.len();
+    let (first, last) = (windows[0].start, windows[w - 1].end);
+    // Spikes counted inside some trial's analysis span (a spike near two trials can count in both).
+    let mut inside = 0u64;
+    let counts: Vec<Vec<u32>> = rec
+        .spikes
+        .iter()
+        .map(|times| {
+            let mut c = vec![0u32; n * w];
+            for (i, &a) in align_times.iter().enumerate() {
+                // Spikes of this trial's span, found by bisection in the unit's sorted times.
+                let lo = times.partition_point(|&t| to_ns(t - a) < first);
+                let hi = times.partition_point(|&t| to_ns(t - a) < last);
+                for &t in &times[lo..hi] {
+                    for k in containing(&windows, to_ns(t - a)) {
+                        c[i * w + k] += 1;
+                    }
+                }
+                inside += (hi - lo) as u64;
+            }
+            c
+        })
+        .collect();
+    let all: u64 = rec.spikes.iter().map(|s| s.len() as u64).sum();
+    let spans = Spans {
+        source: src,
+        aligned: true,
+        total: all,
+        outside: if inside == 0 {
+            all
+        } else {
+            all.saturating_sub(inside)
+        },
+    };
+    let (x, warnings) = rates(&counts, n, &windows, width, &spans)?;
+    let tl = TrialLabels {
+        labels: label,
+        groups: group.unwrap_or_else(|| vec![String::new(); n]),
+    };
+    let trial_ids = (0..n).map(|i| format!("trial {i}")).collect();
+    let mut ds = assemble(
+        src,
+        trial_ids,
+        tl,
+        columns,
+        windows,
+        rec.units.clone(),
+        x,
+        warnings,
+    )?;
+    ds.spikes_total = all;
+    ds.spikes_outside = spans.outside;
     Ok(ds)
 }

@@ -9,6 +9,7 @@
 
 pub mod clusters;
 pub mod data;
+pub mod nwb;
 pub mod plan;
 pub mod plots;
 pub mod report;

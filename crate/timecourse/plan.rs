@@ -56,7 +56,11 @@ impl<'a> TimePlan<'a> {
         })?;
         let mut scheme = Scheme::resolve(&data.trials(), recipe)?;
         let count_scale = match settings.input {
-            TimeInput::Events { width, .. } if recipe.classifier.needs_counts() => Some(width),
+            TimeInput::Events { width, .. } | TimeInput::Nwb { width, .. }
+                if recipe.classifier.needs_counts() =>
+            {
+                Some(width)
+            }
             _ => None,
         };
         let counts_note = check_counts(

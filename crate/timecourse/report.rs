@@ -3,7 +3,7 @@
 //! Schema `popdecode-timecourse/1` (same family as `popdecode-result/1`; fields are only ever added):
 //! * `schema`, `software`, `recipe`, `classes`, `class_counts`, `design`, `chance`, `fits`, `warnings`, `tuning`:
 //!   as in a trial-table result
-//! * `input` {`kind` ("binned" or "events"), `files` [{`file`, `sha256`}], `trials`, `neurons`, `label_column`,
+//! * `input` {`kind` ("binned", "events" or "nwb"), `files` [{`file`, `sha256`}], `trials`, `neurons`, `label_column`,
 //!   `group_column`, `groups`, `spikes_total`, `spikes_outside`}
 //! * `windows`: per window {`index`, `start`, `end`, `time` (centre, s), `accuracy` and `balanced_accuracy`
 //!   (each `mean`, `sd`, `p2_5`, `p97_5` over repeats), `null_mean`, `null_p95` (null when no shuffles),
@@ -253,6 +253,7 @@ impl TimeReport {
                 kind: match plan.settings.input {
                     TimeInput::Binned { .. } => "binned",
                     TimeInput::Events { .. } => "events",
+                    TimeInput::Nwb { .. } => "nwb",
                 }
                 .into(),
                 files: data.files.clone(),

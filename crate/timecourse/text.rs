@@ -210,6 +210,24 @@ pub fn methods(r: &TimeReport) -> String {
             },
             windows.len()
         )),
+        Some(TimeInput::Nwb {
+            width,
+            step,
+            start,
+            end,
+            align,
+        }) => out.push(format!(
+            "Spike times of {} units were read from the NWB file's units table and counted in windows of {} s \
+             stepped by {} s from {} s to {} s relative to each trial's '{}' time (trials table; each window \
+             covering [start, start + width)), giving {} windows, and converted to rates in Hz.",
+            r.input.neurons.len(),
+            s(*width),
+            s(*step),
+            s(*start),
+            s(*end),
+            align.as_deref().unwrap_or("start_time"),
+            windows.len()
+        )),
         _ => out.push(format!(
             "The activity was given in {} time bins from {} s to {} s, each decoded as one window.",
             windows.len(),

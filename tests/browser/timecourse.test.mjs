@@ -5,6 +5,7 @@ import assert from 'node:assert/strict';
 import { writeFileSync, readFileSync, mkdtempSync } from 'node:fs';
 import { join } from 'node:path';
 import { tmpdir } from 'node:os';
+import { execFileSync } from 'node:child_process';
 import { serve, browser, closeAll, assertLocalOnly, shot, quickSettings, runAndWait, downloadText, cli, ROOT } from './helpers.mjs';
 
 let server;
@@ -122,4 +123,37 @@ test('the offline file runs a time course from file:// like the served page', as
   await shot(offline.b.page, 'timecourse-offline');
   await offline.b.context.close();
   await served.b.context.close();
+});
+
+test('an NWB file written by pynwb decodes in the page with the command line\'s bytes', async () => {
+  // The reference venv (scripts/reference-venv.sh, made before the browser tests run) has pynwb.
+  const venv = process.env.POPDECODE_VENV || join(ROOT, 'target', 'reference-venv');
+  const nwb = join(tmp, 'odours.nwb');
+  execFileSync(join(venv, 'bin', 'python'), ['-c',
+    `import sys; sys.path.insert(0, ${JSON.stringify(join(ROOT, 'tests', 'reference'))}); ` +
+    `from test_nwb import write_nwb; write_nwb(${JSON.stringify(nwb)})`]);
+  const b = await openPage(`${server.origin}/index.html`);
+  await b.page.check('input[name=kind][value=nwb]');
+  await b.page.setInputFiles('#nwb-file', nwb);
+  await b.page.waitForFunction(() => /NWB, 12 units/.test(document.getElementById('file-summary').textContent));
+  assert.equal(await b.page.inputValue('#label'), 'odour');
+  assert.equal(await b.page.inputValue('#align-col'), 'start_time');
+  await quickSettings(b.page, { repeats: 3, shuffles: 9 });
+  await set(b.page, 'width', 0.2);
+  await set(b.page, 't-start', -0.5);
+  await set(b.page, 't-end', 1);
+  const headline = await runAndWait(b.page);
+  await shot(b.page, 'nwb-results');
+  const json = await downloadText(b.page, '#export-json');
+  const recipe = await downloadText(b.page, '#export-recipe');
+  const recipeFile = join(tmp, 'nwb.recipe.json');
+  writeFileSync(recipeFile, recipe);
+  const out = join(tmp, 'nwb-cli.json');
+  const stdout = cli(['timecourse', '--nwb', nwb, '--recipe', recipeFile, '--quiet', '--json', out]);
+  assert.equal(json, readFileSync(out, 'utf8'), 'page JSON and CLI JSON differ');
+  assert.equal(headline.trim(), stdout.split('\n')[0].trim());
+  assert.equal(JSON.parse(json).input.kind, 'nwb');
+  assertLocalOnly(assert, b.requests, server.origin);
+  assert.deepEqual(b.errors, []);
+  await b.context.close();
 });

@@ -1,0 +1,283 @@
+//! Neurodata Without Borders (NWB 2.x) recordings: spike times from the units table, trials from the trials table.
+//!
+//! NWB files are HDF5. They are read with `hdf5-pure`, a pure-Rust HDF5 reader that also builds for WebAssembly, so
+//! the page and the command line share one reader and give the same numbers. What is read (NWB 2.x layout):
+//! * `units/spike_times` with its ragged index `units/spike_times_index` (the end, exclusive, of each unit's run of
+//!   spike times), and `units/id` for the units' names;
+//! * every column of `intervals/trials`: `start_time`, `stop_time` and any other, each a candidate label, group or
+//!   alignment time. Ragged columns (those with a `<name>_index` companion) are skipped.
+//!
+//! Spike times in NWB are on the session clock; each trial's alignment time (default its `start_time`) is
+//! subtracted, and the spikes are then counted in windows exactly as for a spike-events file.
+
+use crate::error::{Error, Result};
+use serde::Serialize;
+
+/// One column of the trials table.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[serde(untagged)]
+pub enum Column {
+    Numbers(Vec<f64>),
+    Texts(Vec<String>),
+}
+
+impl Column {
+    /// The values as text, for labels and groups (numbers printed as the shortest round-trip form).
+    pub fn texts(&self) -> Vec<String> {
+        match self {
+            Column::Texts(t) => t.clone(),
+            Column::Numbers(v) => v.iter().map(|x| x.to_string()).collect(),
+        }
+    }
+}
+
+/// The parts of an NWB file a time course needs.
+#[derive(Debug, Clone)]
+pub struct Recording {
+    /// Unit names ("unit <id>").
+    pub units: Vec<String>,
+    /// Spike times of each unit, s on the session clock, ascending.
+    pub spikes: Vec<Vec<f64>>,
+    /// Trials-table columns in file order.
+    pub trials: Vec<(String, Column)>,
+}
+
+fn hdf(source: &str, what: &str, e: impl std::fmt::Display) -> Error {
+    Error::Input(format!("{source}: {what}: {e}"))
+}
+
+impl Recording {
+    pub fn read(source: &str, bytes: &[u8]) -> Result<Recording> {
+        if !hdf5_pure::is_hdf5_bytes(bytes) {
+            return Err(Error::Input(format!(
+                "{source}: not an HDF5 file, so not an NWB file (NWB 2.x files are HDF5)"
+            )));
+        }
+        let file = hdf5_pure::File::from_bytes(bytes.to_vec())
+            .map_err(|e| hdf(source, "the HDF5 structure cannot be read", e))?;
+        let missing = |table: &str, path: &str| {
+            Error::Input(format!(
+                "{source}: this NWB file has no {table} ('{path}'); a time course needs spike times in a units \
+                 table and a trials table"
+            ))
+        };
+        let times = file
+            .dataset("units/spike_times")
+            .map_err(|_| missing("units table", "units/spike_times"))?
+            .read_f64()
+            .map_err(|e| hdf(source, "units/spike_times", e))?;
+        let index_ds = file
+            .dataset("units/spike_times_index")
+            .map_err(|_| missing("units table index", "units/spike_times_index"))?;
+        let index: Vec<i64> = match index_ds.read_i64() {
+            Ok(v) => v,
+            Err(_) => index_ds
+                .read_u64()
+                .map_err(|e| hdf(source, "units/spike_times_index", e))?
+                .into_iter()
+                .map(|v| v as i64)
+                .collect(),
+        };
+        let ids: Vec<String> = match file.dataset("units/id").and_then(|d| d.read_i64()) {
+            Ok(ids) if ids.len() == index.len() => {
+                ids.iter().map(|i| format!("unit {i}")).collect()
+            }
+            _ => (0..index.len()).map(|i| format!("unit {i}")).collect(),
+        };
+        let mut spikes = Vec::with_capacity(index.len());
+        let mut start = 0usize;
+        for (u, &end) in index.iter().enumerate() {
+            let end = usize::try_from(end).unwrap_or(usize::MAX);
+            if end < start || end > times.len() {
+                return Err(Error::Input(format!(
+                    "{source}: units/spike_times_index is not a valid ragged index at unit {u} (end {end} after \
+                     {start}, {} spike times in all)",
+                    times.len()
+                )));
+            }
+            let mut unit = times[start..end].to_vec();
+            unit.sort_by(f64::total_cmp);
+            spikes.push(unit);
+            start = end;
+        }
+        let group = file
+            .group("intervals/trials")
+            .map_err(|_| missing("trials table", "intervals/trials"))?;
+        let names = group
+            .datasets()
+            .map_err(|e| hdf(source, "intervals/trials", e))?;
+        let mut trials = Vec::new();
+        for name in &names {
+            let ragged = names.contains(&format!("{name}_index"));
+            if name == "id" || name.ends_with("_index") || ragged {
+                continue;
+            }
+            let ds = file
+                .dataset(&format!("intervals/trials/{name}"))
+                .map_err(|e| hdf(source, name, e))?;
+            let column = match ds.read_f64() {
+                Ok(v) => Column::Numbers(v),
+                Err(_) => match ds.read_string() {
+                    Ok(t) => Column::Texts(t),
+                    Err(_) => continue, // references, compounds: not a label, group or time
+                },
+            };
+            trials.push((name.clone(), column));
+        }
+        if !trials.iter().any(|(n, _)| n == "start_time") {
+            return Err(missing("trial start times", "intervals/trials/start_time"));
+        }
+        Ok(Recording {
+            units: ids,
+            spikes,
+            trials,
+        })
+    }
+
+    pub fn n_trials(&self) -> usize {
+        self.column("start_time").map_or(0, |c| c.texts().len())
+    }
+
+    pub fn column(&self, name: &str) -> Option<&Column> {
+        self.trials.iter().find(|(n, _)| n == name).map(|(_, c)| c)
+    }
+
+    /// A trials column by name, or an error listing the columns there are.
+    pub fn require(&self, source: &str, name: &str) -> Result<&Column> {
+        self.column(name).ok_or_else(|| {
+            let names: Vec<String> = self.trials.iter().map(|(n, _)| format!("'{n}'")).collect();
+            Error::Input(format!(
+                "{source}: the trials table has no column '{name}'; its columns are: {}",
+                names.join(", ")
+            ))
+        })
+    }
+}
+
+/// What `popdecode inspect` and the page show after loading: units, trials, duration, and every trials column with
+/// its distinct values and counts (numbers with more than 20 distinct values are summarised by their range).
+#[derive(Debug, Clone, Serialize)]
+pub struct Summary {
+    pub units: usize,
+    pub spikes: usize,
+    pub trials: usize,
+    /// From the first trial's start to the last trial's stop, s.
+    pub duration: f64,
+    pub columns: Vec<ColumnSummary>,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct ColumnSummary {
+    pub name: String,
+    pub numeric: bool,
+    /// Distinct values with their counts, when there are at most 20.
+    pub values: Vec<(String, usize)>,
+    pub distinct: usize,
+}
+
+impl Recording {
+    pub fn summary(&self) -> Summary {
+        let number = |name: &str| match self.column(name) {
+            Some(Column::Numbers(v)) => v.clone(),
+            _ => Vec::new(),
+        };
+        let (starts, stops) = (number("start_time"), number("stop_time"));
+        let first = starts.iter().copied().fold(f64::INFINITY, f64::min);
+        let last = stops
+            .iter()
+            .chain(&starts)
+            .copied()
+            .fold(f64::NEG_INFINITY, f64::max);
+        Summary {
+            units: self.units.len(),
+            spikes: self.spikes.iter().map(Vec::len).sum(),
+            trials: self.n_trials(),
+            duration: if last > first { last - first } else { 0.0 },
+            columns: self
+                .trials
+                .iter()
+                .map(|(name, c)| {
+                    let texts = c.texts();
+                    let mut levels = crate::data::labels::sorted_levels(&texts);
+                    let distinct = levels.len();
+                    if distinct > 20 {
+                        levels.clear();
+                    }
+                    ColumnSummary {
+                        name: name.clone(),
+                        numeric: matches!(c, Column::Numbers(_)),
+                        values: levels
+                            .into_iter()
+                            .map(|l| {
+                                let n = texts.iter().filter(|t| **t == l).count();
+                                (l, n)
+                            })
+                            .collect(),
+                        distinct,
+                    }
+                })
+                .collect(),
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use hdf5_pure::FileBuilder;
+
+    /// A minimal file with the NWB layout: a units table, and (if asked) a trials table.
+    fn file(with_trials: bool) -> Vec<u8> {
+        let mut b = FileBuilder::new();
+        let mut units = b.create_group("units");
+        units
+            .create_dataset("spike_times")
+            .with_f64_data(&[0.5, 0.1, 0.2, 1.2, 1.5]);
+        units
+            .create_dataset("spike_times_index")
+            .with_i64_data(&[3, 5]);
+        units.create_dataset("id").with_i64_data(&[7, 9]);
+        b.add_group(units.finish());
+        if with_trials {
+            let mut intervals = b.create_group("intervals");
+            let mut trials = intervals.create_group("trials");
+            trials
+                .create_dataset("start_time")
+                .with_f64_data(&[0.0, 1.0]);
+            trials
+                .create_dataset("stop_time")
+                .with_f64_data(&[0.9, 1.9]);
+            trials.create_dataset("side").with_f64_data(&[1.0, 2.0]);
+            intervals.add_group(trials.finish());
+            b.add_group(intervals.finish());
+        }
+        b.finish().unwrap()
+    }
+
+    #[test]
+    fn reads_ragged_spike_times_and_trial_columns() {
+        let r = Recording::read("r.nwb", &file(true)).unwrap();
+        assert_eq!(r.units, vec!["unit 7", "unit 9"]);
+        assert_eq!(r.spikes, vec![vec![0.1, 0.2, 0.5], vec![1.2, 1.5]]);
+        assert_eq!(r.n_trials(), 2);
+        assert_eq!(r.column("side").unwrap().texts(), vec!["1", "2"]);
+        let s = r.summary();
+        assert_eq!((s.units, s.spikes, s.trials), (2, 5, 2));
+        assert!((s.duration - 1.9).abs() < 1e-12);
+    }
+
+    #[test]
+    fn missing_tables_are_named() {
+        let e = Recording::read("r.nwb", &file(false))
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.contains("r.nwb: this NWB file has no trials table ('intervals/trials')"),
+            "{e}"
+        );
+        let e = Recording::read("r.nwb", b"trial,neuron,time\n")
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("not an HDF5 file"), "{e}");
+    }
+}
