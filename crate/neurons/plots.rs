@@ -1,7 +1,7 @@
 //! The neuron figures as SVG: the dropping curve and the single-neuron ranking.
 
 use super::NeuronsReport;
-use crate::report::plots::{esc, open, BAR, BOTTOM, H, INK, LEFT, RIGHT, TOP, W};
+use crate::report::plots::{esc, open, percent_ticks, BAR, BOTTOM, H, INK, LEFT, RIGHT, TOP, W};
 use std::fmt::Write;
 
 /// The headline mean of a single-neuron result.
@@ -107,20 +107,7 @@ fn axes(
         l = esc(x_label)
     )
     .unwrap();
-    let step = if hi - lo > 0.5 { 0.1 } else { 0.05 };
-    let mut v = (lo / step).ceil() * step;
-    while v <= hi + 1e-9 {
-        write!(
-            svg,
-            r#"<path d="M{LEFT} {vy:.2} h-5" stroke="{INK}"/><text x="{tx}" y="{ty:.2}" text-anchor="end" fill="{INK}">{p:.0} %</text>"#,
-            vy = y(v),
-            tx = LEFT - 8.0,
-            ty = y(v) + 4.0,
-            p = v * 100.0
-        )
-        .unwrap();
-        v += step;
-    }
+    percent_ticks(svg, lo, hi, y);
 }
 
 /// Each neuron alone, best first, as horizontal bars with the score written beside each.

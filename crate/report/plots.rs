@@ -46,6 +46,24 @@ pub(crate) fn open(svg: &mut String, title: &str, w: f64, h: f64) {
     .unwrap();
 }
 
+/// Ticks and labels in percent on a vertical axis at `LEFT`, every 10 points (5 when the range is narrow).
+pub(crate) fn percent_ticks(svg: &mut String, lo: f64, hi: f64, y: &dyn Fn(f64) -> f64) {
+    let step = if hi - lo > 0.5 { 0.1 } else { 0.05 };
+    let mut v = (lo / step).ceil() * step;
+    while v <= hi + 1e-9 {
+        write!(
+            svg,
+            r#"<path d="M{LEFT} {vy:.2} h-5" stroke="{INK}"/><text x="{tx}" y="{ty:.2}" text-anchor="end" fill="{INK}">{p:.0} %</text>"#,
+            vy = y(v),
+            tx = LEFT - 8.0,
+            ty = y(v) + 4.0,
+            p = v * 100.0
+        )
+        .unwrap();
+        v += step;
+    }
+}
+
 /// A vertical marker line with its label.
 struct Marker {
     at: f64,

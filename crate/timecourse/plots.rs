@@ -6,7 +6,9 @@
 
 use super::report::TimeReport;
 use crate::protocol::Headline;
-use crate::report::plots::{esc, open, BAR, BOTTOM, H, INK, LEFT, NULL_BAR, RIGHT, TOP, W};
+use crate::report::plots::{
+    esc, open, percent_ticks, BAR, BOTTOM, H, INK, LEFT, NULL_BAR, RIGHT, TOP, W,
+};
 use std::fmt::Write;
 
 fn score_name(r: &TimeReport) -> &'static str {
@@ -182,20 +184,7 @@ pub fn curve(r: &TimeReport) -> String {
         .unwrap();
         t += step;
     }
-    let vstep = if hi - lo > 0.5 { 0.1 } else { 0.05 };
-    let mut v = (lo / vstep).ceil() * vstep;
-    while v <= hi + 1e-9 {
-        write!(
-            svg,
-            r#"<path d="M{LEFT} {vy:.2} h-5" stroke="{INK}"/><text x="{tx}" y="{ty:.2}" text-anchor="end" fill="{INK}">{l:.0} %</text>"#,
-            vy = y(v),
-            tx = LEFT - 8.0,
-            ty = y(v) + 4.0,
-            l = v * 100.0
-        )
-        .unwrap();
-        v += vstep;
-    }
+    percent_ticks(&mut svg, lo, hi, &y);
     write!(
         svg,
         r#"<text x="{cx}" y="{ly}" text-anchor="middle" fill="{INK}">time from alignment (s), window centres</text>"#,

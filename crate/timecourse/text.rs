@@ -1,7 +1,7 @@
 //! A time course in words and tables: the headline sentence, a per-window table, the methods paragraph, and the
 //! curve and matrix as CSV.
 
-use super::report::{TimeReport, ONSET_CAVEAT};
+use super::report::{TimeCluster, TimeReport, ONSET_CAVEAT};
 use crate::protocol::Headline;
 use crate::recipe::TimeInput;
 use crate::report::methods::{fitting, resampling};
@@ -23,6 +23,16 @@ fn s(v: f64) -> String {
     } else {
         t.into()
     }
+}
+
+/// "0.2 to 0.6 s (p = 0.010)": a cluster by its first and last window centres.
+fn span(c: &TimeCluster) -> String {
+    format!(
+        "{} to {} s (p = {})",
+        s(c.start),
+        s(c.end),
+        p_text(c.p_value)
+    )
 }
 
 /// The one sentence a reader needs first: the peak, and where information is significant.
@@ -49,17 +59,7 @@ pub fn headline_sentence(r: &TimeReport) -> String {
         )
         .unwrap();
     } else {
-        let spans: Vec<String> = sig
-            .iter()
-            .map(|c| {
-                format!(
-                    "{} to {} s (p = {})",
-                    s(c.start),
-                    s(c.end),
-                    p_text(c.p_value)
-                )
-            })
-            .collect();
+        let spans: Vec<String> = sig.iter().map(|c| span(c)).collect();
         write!(
             out,
             "; significant from {} ({} shuffles, cluster-corrected).",
@@ -287,14 +287,7 @@ pub fn methods(r: &TimeReport) -> String {
             .clusters
             .iter()
             .filter(|c| c.significant)
-            .map(|c| {
-                format!(
-                    "{} to {} s (p = {})",
-                    s(c.start),
-                    s(c.end),
-                    p_text(c.p_value)
-                )
-            })
+            .map(span)
             .collect();
         if sig.is_empty() {
             out.push("No cluster was significant.".into());
