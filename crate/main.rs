@@ -1,6 +1,7 @@
 //! The command-line face: parse flags into a recipe, run the core's tasks on threads, print and write results.
 
 use clap::{Args, Parser, Subcommand};
+use hdf5_pure::ReadSeekSource;
 use indicatif::{ProgressBar, ProgressStyle};
 use popdecode::data::Dataset;
 use popdecode::decoders::Classifier;
@@ -9,10 +10,13 @@ use popdecode::protocol::{predict_with_folds, Plan};
 use popdecode::recipe::{Folds, Recipe, TimeInput, TimeSettings};
 use popdecode::report::{methods, plots, text, Report};
 use popdecode::timecourse::data::{FileBytes, TimeDataset};
+use popdecode::timecourse::extract;
+use popdecode::timecourse::nwb::{ColumnSummary, Recording};
 use popdecode::timecourse::plan::TimePlan;
 use popdecode::timecourse::plots as tc_plots;
 use popdecode::timecourse::report::TimeReport;
 use popdecode::timecourse::text as tc_text;
+use popdecode::timecourse::unit_filter::UnitFilter;
 use popdecode::Error;
 use rayon::prelude::*;
 use std::path::{Path, PathBuf};
@@ -179,6 +183,10 @@ struct TimecourseArgs {
     /// Clusters with a permutation p below this are significant [default: 0.05].
     #[arg(long)]
     alpha: Option<f64>,
+    /// With --nwb: keep only the units passing this test on a units-table column, as COLUMN=VALUE[,VALUE...],
+    /// COLUMN!=VALUE or COLUMN>=NUMBER (also <=, >, <), e.g. quality=good; repeat to require several.
+    #[arg(long = "units", value_name = "FILTER")]
+    units: Vec<String>,
     #[command(flatten)]
     columns: ColumnArgs,
     #[command(flatten)]
@@ -391,6 +399,9 @@ fn time_settings(
     if args.nwb.is_some() {
         return nwb_settings(args, from_recipe);
     }
+    if !args.units.is_empty() {
+        return Err("--units keeps units of an NWB file's units table (--nwb)".into());
+    }
     let mut settings = match (&args.events, &args.csv, from_recipe) {
         (Some(_), _, Some(t @ TimeSettings { input: TimeInput::Events { .. }, .. })) => t,
         (None, Some(_), Some(t @ TimeSettings { input: TimeInput::Binned { .. }, .. })) => t,
@@ -498,8 +509,17 @@ fn nwb_settings(
         step,
         start,
         end,
+        units,
     } = &mut settings.input
     {
+        if !args.units.is_empty() {
+            *units = args
+                .units
+                .iter()
+                .map(|f| UnitFilter::parse(f))
+                .collect::<Result<_, _>>()
+                .map_err(show)?;
+        }
         if args.align.is_some() {
             *align = args.align.clone();
         }
@@ -517,27 +537,18 @@ fn nwb_settings(
 
 /// `popdecode inspect FILE.nwb`: what the file holds, and optionally every spike as read.
 fn inspect(args: InspectArgs) -> Result<(), String> {
-    let bytes = read(&args.file)?;
     let name = display_name(&args.file);
-    let rec = popdecode::timecourse::nwb::Recording::read(&name, &bytes).map_err(show)?;
+    let rec = Recording::read_from(&name, open_source(&args.file)?).map_err(show)?;
     let s = rec.summary();
     println!(
         "{name}: {} units, {} spikes, {} trials over {:.3} s",
         s.units, s.spikes, s.trials, s.duration
     );
     println!("trials columns (candidate labels, groups and alignment times):");
-    for c in &s.columns {
-        let values: Vec<String> = c.values.iter().map(|(v, n)| format!("{v} ({n})")).collect();
-        println!(
-            "  {:<20} {:<7} {}",
-            c.name,
-            if c.numeric { "number" } else { "text" },
-            if values.is_empty() {
-                format!("{} distinct values", c.distinct)
-            } else {
-                values.join(", ")
-            }
-        );
+    print_columns(&s.columns);
+    if !s.unit_columns.is_empty() {
+        println!("units columns (what --units can keep units by):");
+        print_columns(&s.unit_columns);
     }
     if let Some(path) = &args.spikes {
         let mut out = String::from("unit,time\n");
@@ -549,6 +560,29 @@ fn inspect(args: InspectArgs) -> Result<(), String> {
         write(path, &out)?;
     }
     Ok(())
+}
+
+fn print_columns(columns: &[ColumnSummary]) {
+    for c in columns {
+        let values: Vec<String> = c.values.iter().map(|(v, n)| format!("{v} ({n})")).collect();
+        let described = match (values.is_empty(), c.range) {
+            (false, _) => values.join(", "),
+            (true, Some((lo, hi))) => format!("{} distinct values from {lo} to {hi}", c.distinct),
+            (true, None) => format!("{} distinct values", c.distinct),
+        };
+        println!(
+            "  {:<20} {:<7} {described}",
+            c.name,
+            if c.numeric { "number" } else { "text" }
+        );
+    }
+}
+
+/// A file on disk as a random-access source, so that an NWB file is read only where its tables are.
+fn open_source(path: &Path) -> Result<ReadSeekSource<std::fs::File>, String> {
+    let file = std::fs::File::open(path)
+        .map_err(|e| format!("{}: cannot read the file: {e}", path.display()))?;
+    ReadSeekSource::new(file).map_err(|e| format!("{}: cannot read the file: {e}", path.display()))
 }
 
 fn timecourse(args: TimecourseArgs) -> Result<(), String> {
@@ -566,9 +600,17 @@ fn timecourse(args: TimecourseArgs) -> Result<(), String> {
         (_, _, Some(c), _) => vec![c],
         _ => unreachable!("time_settings checked the inputs"),
     };
+    // An NWB file is read lazily into its extract (units and trials only), exactly as the page does.
     let contents: Vec<(String, Vec<u8>)> = paths
         .iter()
-        .map(|p| Ok((display_name(p), read(p)?)))
+        .map(|p| {
+            let name = display_name(p);
+            let bytes = match args.nwb {
+                Some(_) => extract::read_nwb(&name, open_source(p)?).map_err(show)?,
+                None => read(p)?,
+            };
+            Ok((name, bytes))
+        })
         .collect::<Result<_, String>>()?;
     let files: Vec<FileBytes> = contents
         .iter()

@@ -6,6 +6,7 @@
 use crate::data::Columns;
 use crate::decoders::Classifier;
 use crate::error::{Error, Result};
+use crate::timecourse::unit_filter::UnitFilter;
 use serde::{Deserialize, Deserializer, Serialize, Serializer};
 
 /// Marks a file as a popdecode recipe and its version.
@@ -139,6 +140,9 @@ pub enum TimeInput {
         step: f64,
         start: f64,
         end: f64,
+        /// Keep only the units that pass all of these (none: every unit).
+        #[serde(default, skip_serializing_if = "Vec::is_empty")]
+        units: Vec<UnitFilter>,
     },
 }
 
@@ -171,6 +175,7 @@ impl TimeSettings {
                 step: 0.05,
                 start,
                 end,
+                units: Vec::new(),
             },
             generalize: false,
             alpha: 0.05,
@@ -288,6 +293,9 @@ impl Recipe {
             } = t.input
             {
                 crate::timecourse::windows::sliding(start, end, width, step)?;
+            }
+            if let TimeInput::Nwb { units, .. } = &t.input {
+                units.iter().try_for_each(UnitFilter::validate)?;
             }
         }
         Ok(())

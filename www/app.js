@@ -10,7 +10,7 @@
   // file/info: the trial table or binned table; events/eventsInfo: the spike events file (events only).
   const state = {
     kind: 'table', module: null, file: null, info: null, events: null, eventsInfo: null,
-    pool: [], run: null, result: null, lastRecipe: null, neurons: null,
+    pool: [], run: null, result: null, lastRecipe: null, neurons: null, reader: null, unitColumns: [],
   };
   const WITH_C = ['linear-svm', 'logistic', 'rbf-svm'];
   const EXAMPLES = { table: ['odours.csv'], binned: ['odours_binned.csv'], events: ['odour_spikes.csv', 'odour_trials.csv'] };
@@ -80,6 +80,7 @@
 
   function setKind(kind) {
     if (state.run) cancel();
+    if (state.reader) { state.reader.terminate(); state.reader = null; $('nwb-status').textContent = ''; }
     state.kind = kind;
     for (const r of document.querySelectorAll('input[name=kind]')) r.checked = r.value === kind;
     state.file = null; state.info = null; state.events = null; state.eventsInfo = null; state.result = null;
@@ -148,38 +149,88 @@
     showData();
   }
 
-  // An NWB file: its summary stands in for a table's preview; the trials table's columns fill the selects.
-  function loadNwb(name, bytes) {
+  // An NWB file is read in a worker, lazily (only its units and trials tables, and a chunked pass for its
+  // SHA-256), into the extract that the page and every decoding worker then use: the file itself is never held
+  // in memory, however much raw data it carries.
+  function readNwb(file) {
     clearError('data-error');
+    $('data-view').hidden = true;
+    $('start').disabled = true;
+    if (state.reader) state.reader.terminate();
+    const reader = makeWorker();
+    state.reader = reader;
+    $('nwb-status').textContent = `Reading ${file.name} (${(file.size / 1e6).toFixed(1)} MB)…`;
+    const done = () => { reader.terminate(); if (state.reader === reader) state.reader = null; $('nwb-status').textContent = ''; };
+    reader.onmessage = (ev) => {
+      if (state.reader !== reader) return;
+      done();
+      if (ev.data.type === 'extracted') showNwb(file.name, ev.data.bytes, ev.data.read, file.size);
+      else { state.file = null; showError('data-error', ev.data.message); }
+    };
+    reader.onerror = (ev) => { if (state.reader === reader) { done(); showError('data-error', `${file.name}: ${ev.message || 'the file could not be read'}`); } };
+    reader.postMessage({ type: 'extract', module: state.module, file });
+  }
+
+  // The NWB summary stands in for a table's preview; the trials table's columns fill the selects, the units
+  // table's the unit filter.
+  function showNwb(name, bytes, read, size) {
     let s;
     try { s = JSON.parse(wasm_bindgen.inspect_nwb(name, bytes)); } catch (e) {
       state.file = null; showError('data-error', String(e)); $('data-view').hidden = true; return;
     }
     state.file = { name, bytes };
+    state.unitColumns = s.unit_columns;
     const headers = s.columns.map((c) => c.name);
     const numeric = s.columns.map((c) => c.numeric);
     const label = s.columns.find((c) => !c.numeric && c.distinct >= 2 && c.distinct <= 20)
       || s.columns.find((c) => c.distinct >= 2 && c.distinct <= 20);
     state.info = { headers, numeric, suggested_label: label ? label.name : headers[0] };
-    $('file-summary').textContent = `${name}: NWB, ${s.units} units, ${s.spikes} spikes, ${s.trials} trials over ${s.duration.toFixed(1)} s`;
+    $('file-summary').textContent = `${name}: NWB, ${s.units} units, ${s.spikes} spikes, ${s.trials} trials over ${s.duration.toFixed(1)} s; ` +
+      `SHA-256 ${s.sha256.slice(0, 16)}…; read ${(read / 1e6).toFixed(2)} MB of ${(size / 1e6).toFixed(1)} MB for the units and trials tables`;
     const t = $('preview'); t.replaceChildren();
-    const head = el('tr'); ['trials column', 'kind', 'values (count)'].forEach((h) => head.appendChild(el('th', h, 'text'))); t.appendChild(head);
-    s.columns.forEach((c) => {
+    const head = el('tr'); ['table', 'column', 'kind', 'values (count)'].forEach((h) => head.appendChild(el('th', h, 'text'))); t.appendChild(head);
+    const describe = (c) => (c.values.length ? c.values.map(([v, n]) => `${v} (${n})`).join(', ')
+      : `${c.distinct} distinct values` + (c.range ? ` from ${c.range[0]} to ${c.range[1]}` : ''));
+    [['trials', s.columns], ['units', s.unit_columns]].forEach(([table, columns]) => columns.forEach((c) => {
       const tr = el('tr');
-      tr.appendChild(el('td', c.name, 'text')); tr.appendChild(el('td', c.numeric ? 'number' : 'text', 'text'));
-      tr.appendChild(el('td', c.values.length ? c.values.map(([v, n]) => `${v} (${n})`).join(', ') : `${c.distinct} distinct values`, 'text'));
+      [table, c.name, c.numeric ? 'number' : 'text', describe(c)].forEach((v) => tr.appendChild(el('td', v, 'text')));
       t.appendChild(tr);
-    });
+    }));
     fillColumns(state.info);
     $('align-col').value = headers.includes('start_time') ? 'start_time' : '';
+    const unitCol = $('unit-col');
+    unitCol.replaceChildren(option('', s.unit_columns.length ? '(every unit)' : '(every unit: the units table has no columns)', true));
+    s.unit_columns.forEach((c) => unitCol.appendChild(option(c.name, c.name, false)));
+    fillUnitFilter();
     showData();
+  }
+
+  // The comparisons a units column allows, and its values as suggestions.
+  function fillUnitFilter(op, value) {
+    const c = (state.unitColumns || []).find((u) => u.name === $('unit-col').value);
+    const ops = c && c.numeric ? ['>=', '<=', '>', '<', '=', '!='] : ['=', '!='];
+    const sel = $('unit-op');
+    sel.replaceChildren();
+    ops.forEach((o) => sel.appendChild(option(o, { '>=': '≥', '<=': '≤', '!=': '≠' }[o] || o, o === op)));
+    const list = $('unit-values');
+    list.replaceChildren();
+    if (c) c.values.forEach(([v]) => list.appendChild(option(v, v, false)));
+    $('unit-op').disabled = !c;
+    $('unit-value').disabled = !c;
+    $('unit-value').value = c ? (value ?? (c.values.length && !c.numeric ? c.values[0][0] : '')) : '';
+  }
+
+  function unitFilters() {
+    const column = $('unit-col').value;
+    const values = $('unit-value').value.split(',').map((v) => v.trim()).filter((v) => v !== '');
+    return column && values.length ? [{ column, op: $('unit-op').value, values }] : [];
   }
 
   // In events mode a dropped file is the events file when its header has a neuron-like column.
   async function loadDropped(files) {
     for (const f of files) {
+      if (state.kind === 'nwb') { readNwb(f); return; }
       const bytes = new Uint8Array(await f.arrayBuffer());
-      if (state.kind === 'nwb') { loadNwb(f.name, bytes); return; }
       if (state.kind !== 'events') { await loadFile(f.name, bytes); return; }
       let headers = [];
       try { headers = JSON.parse(wasm_bindgen.inspect(f.name, head(bytes))).headers; } catch (_) { headers = []; }
@@ -300,7 +351,7 @@
       recipe.time = {
         input: {
           kind: 'nwb', align: $('align-col').value || null, width: Number($('width').value), step: Number($('step').value),
-          start: Number($('t-start').value), end: Number($('t-end').value),
+          start: Number($('t-start').value), end: Number($('t-end').value), units: unitFilters(),
         },
       };
     } else if (state.kind === 'events') {
@@ -339,7 +390,7 @@
       $('generalize').checked = !!r.time.generalize;
       $('alpha').value = r.time.alpha;
       const t = r.time.input;
-      if (t.kind === 'events') {
+      if (t.kind === 'events' || t.kind === 'nwb') {
         $('width').value = t.width; $('step').value = t.step; $('t-start').value = t.start; $('t-end').value = t.end;
       }
     }
@@ -353,6 +404,10 @@
         pick('trial-col', r.time.input.trial, h);
         if (r.time.input.kind === 'binned') pick('time-col', r.time.input.time, h);
         if (r.time.input.kind === 'events') $('align-col').value = r.time.input.align && h.includes(r.time.input.align) ? r.time.input.align : '';
+        if (r.time.input.kind === 'nwb') {
+          $('align-col').value = h.includes(r.time.input.align || 'start_time') ? r.time.input.align || 'start_time' : '';
+          applyUnitFilters(r.time.input.units || []);
+        }
       }
       syncFeatureOptions();
       if (Array.isArray(r.columns.features)) {
@@ -362,6 +417,19 @@
     if (state.eventsInfo && r.time && r.time.input.kind === 'events') {
       pick('neuron-col', r.time.input.neuron, state.eventsInfo.headers);
       pick('time-col', r.time.input.time, state.eventsInfo.headers);
+    }
+  }
+
+  // The page shows one unit filter; a recipe with more is refused here rather than run with fewer.
+  function applyUnitFilters(filters) {
+    const f = filters[0];
+    const known = (state.unitColumns || []).some((u) => f && u.name === f.column);
+    $('unit-col').value = known ? f.column : '';
+    fillUnitFilter(known ? f.op : undefined, known ? f.values.join(',') : undefined);
+    if (filters.length > 1 || (f && !known)) {
+      $('recipe-status').textContent = filters.length > 1
+        ? 'This recipe keeps units by several filters; the page applies one: run it from the command line (--units, once per filter).'
+        : `This recipe keeps units by '${f.column}', which this file's units table does not have.`;
     }
   }
 
@@ -446,6 +514,7 @@
       parts.push('popdecode timecourse --nwb', q(state.file ? state.file.name : 'FILE.nwb'));
       if (t.align) parts.push('--align', q(t.align));
       parts.push('--width', t.width, '--step', t.step, '--start', t.start, '--end', t.end);
+      (t.units || []).forEach((f) => parts.push('--units', q(`${f.column}${f.op}${f.values.join(',')}`)));
     }
     else {
       parts.push('popdecode timecourse --events', q(state.events ? state.events.name : 'EVENTS'), '--trials', q(state.file ? state.file.name : 'TRIALS'),
@@ -806,7 +875,11 @@
       if (f) await loadFile(f.name, new Uint8Array(await f.arrayBuffer()));
       e.target.value = '';
     });
-    for (const [id, load] of [['events-file', loadEvents], ['trials-file', loadFile], ['nwb-file', loadNwb]]) {
+    $('nwb-file').addEventListener('change', (e) => {
+      if (e.target.files[0]) readNwb(e.target.files[0]);
+      e.target.value = '';
+    });
+    for (const [id, load] of [['events-file', loadEvents], ['trials-file', loadFile]]) {
       $(id).addEventListener('change', async (e) => {
         const f = e.target.files[0];
         if (f) await load(f.name, new Uint8Array(await f.arrayBuffer()));
@@ -837,7 +910,8 @@
     $('example').addEventListener('click', example);
     $('example-events').addEventListener('click', example);
     document.querySelectorAll('input[name=kind]').forEach((r) => r.addEventListener('change', () => setKind(r.value)));
-    ['label', 'group', 'pseudo', 'features', 'trial-col', 'time-col', 'neuron-col', 'align-col', ...SETTING_IDS]
+    $('unit-col').addEventListener('change', () => { fillUnitFilter(); refreshPlan(); });
+    ['label', 'group', 'pseudo', 'features', 'trial-col', 'time-col', 'neuron-col', 'align-col', 'unit-op', 'unit-value', ...SETTING_IDS]
       .forEach((id) => $(id).addEventListener('change', refreshPlan));
     $('start').addEventListener('click', start);
     $('compare-start').addEventListener('click', compare);

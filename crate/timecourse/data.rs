@@ -8,7 +8,9 @@
 //!   ([`super::windows`]) and divided by the window width, giving rates in Hz. A neuron with no spike in a trial
 //!   has rate 0 there, never a missing value.
 
+use super::extract;
 use super::nwb::{Column, Recording};
+use super::unit_filter::keep_units;
 use super::windows::{containing, sliding, to_ns, Window};
 use crate::data::labels::{codes, sorted_levels};
 use crate::data::table::{self, is_missing_token, parse_number, quoted_list, Cell, Table};
@@ -135,12 +137,18 @@ impl TimeDataset {
                     step,
                     start,
                     end,
+                    units,
                 },
                 [file],
             ) => {
                 let windows = sliding(*start, *end, *width, *step)?;
-                let mut ds = from_nwb(file, columns, align.as_deref(), windows, *width)?;
-                ds.files = vec![source_file(file)];
+                let (rec, origin) = extract::read_any(file.name, file.bytes)?;
+                let (rec, kept) = keep_units(file.name, rec, units)?;
+                let mut ds = from_nwb(file.name, &rec, columns, align.as_deref(), windows, *width)?;
+                ds.files = vec![origin];
+                if let Some(note) = kept {
+                    ds.warnings.insert(0, note);
+                }
                 Ok(ds)
             }
             (TimeInput::Nwb { .. }, _) => Err(Error::Recipe(
@@ -615,14 +623,13 @@ fn rates(
 /// An NWB recording: every unit's spikes counted in windows around each trial's alignment time (default: its
 /// `start_time`). Labels and groups are trials-table columns.
 pub fn from_nwb(
-    file: &FileBytes,
+    src: &str,
+    rec: &Recording,
     columns: &Columns,
     align: Option<&str>,
     windows: Vec<Window>,
     width: f64,
 ) -> Result<TimeDataset> {
-    let src = file.name;
-    let rec = Recording::read(src, file.bytes)?;
     let n = rec.n_trials();
     let label = rec.require(src, &columns.label)?.texts();
     let group = columns

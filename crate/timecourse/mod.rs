@@ -9,9 +9,11 @@
 
 pub mod clusters;
 pub mod data;
+pub mod extract;
 pub mod nwb;
 pub mod plan;
 pub mod plots;
 pub mod report;
 pub mod text;
+pub mod unit_filter;
 pub mod windows;

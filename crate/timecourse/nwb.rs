@@ -13,6 +13,12 @@
 use crate::error::{Error, Result};
 use serde::Serialize;
 
+fn not_hdf5(source: &str) -> Error {
+    Error::Input(format!(
+        "{source}: not an HDF5 file, so not an NWB file (NWB 2.x files are HDF5)"
+    ))
+}
+
 /// One column of the trials table.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 #[serde(untagged)]
@@ -32,12 +38,15 @@ impl Column {
 }
 
 /// The parts of an NWB file a time course needs.
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct Recording {
     /// Unit names ("unit <id>").
     pub units: Vec<String>,
     /// Spike times of each unit, s on the session clock, ascending.
     pub spikes: Vec<Vec<f64>>,
+    /// Per-unit columns of the units table (quality, brain area, ...: one value per unit), in file order; what
+    /// [`super::unit_filter`] keeps units by.
+    pub unit_columns: Vec<(String, Column)>,
     /// Trials-table columns in file order.
     pub trials: Vec<(String, Column)>,
 }
@@ -46,15 +55,122 @@ fn hdf(source: &str, what: &str, e: impl std::fmt::Display) -> Error {
     Error::Input(format!("{source}: {what}: {e}"))
 }
 
+/// Bytes hashed per read when a file is hashed through a [`hdf5_pure::Source`]: large enough that the page's
+/// reads from the dropped file stay few, small enough that hashing holds little memory.
+const HASH_CHUNK: usize = 8 << 20;
+
+/// The SHA-256 (hex) of everything a source holds, read a chunk at a time so that a file of any size can be
+/// hashed without being held in memory.
+pub fn sha256_of(source: &str, src: &dyn hdf5_pure::Source) -> Result<String> {
+    use sha2::{Digest, Sha256};
+    let mut hasher = Sha256::new();
+    let len = src.len();
+    let mut offset = 0u64;
+    while offset < len {
+        let n = HASH_CHUNK.min((len - offset) as usize);
+        let chunk = src
+            .read_exact_at(offset, n)
+            .map_err(|e| hdf(source, "the file cannot be read", e))?;
+        hasher.update(&chunk);
+        offset += n as u64;
+    }
+    Ok(hasher
+        .finalize()
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect())
+}
+
+/// The 1-D columns of an NWB dynamic table (a group of equal-length datasets), skipping `id`, ragged columns
+/// (those with a `<name>_index` companion) and their indexes, and anything not numbers or text. Only columns with
+/// `rows` values are kept when `rows` is given (a 2-D column such as a mean waveform reads as more values).
+/// Whether the HDF5 signature stands where the format allows it: at 0, 512, 1024, 2048, ... bytes.
+fn has_signature(src: &dyn hdf5_pure::Source) -> bool {
+    let mut offset = 0u64;
+    loop {
+        let mut bytes = [0u8; 8];
+        if offset + 8 > src.len() {
+            return false;
+        }
+        if src.read_at(offset, &mut bytes).is_ok() && &bytes == b"\x89HDF\r\n\x1a\n" {
+            return true;
+        }
+        offset = if offset == 0 { 512 } else { offset * 2 };
+    }
+}
+
+fn table_columns(
+    source: &str,
+    file: &hdf5_pure::File,
+    path: &str,
+    skip: &[&str],
+    rows: Option<usize>,
+) -> Result<Vec<(String, Column)>> {
+    let group = file.group(path).map_err(|e| hdf(source, path, e))?;
+    let names = group.datasets().map_err(|e| hdf(source, path, e))?;
+    let mut columns = Vec::new();
+    for name in &names {
+        let ragged = names.contains(&format!("{name}_index"));
+        if name == "id" || name.ends_with("_index") || ragged || skip.contains(&name.as_str()) {
+            continue;
+        }
+        let ds = file
+            .dataset(&format!("{path}/{name}"))
+            .map_err(|e| hdf(source, name, e))?;
+        let column = match ds.read_f64() {
+            Ok(v) => Column::Numbers(v),
+            Err(_) => match ds.read_string() {
+                Ok(t) => Column::Texts(t),
+                Err(_) => continue, // references, compounds: not a label, group, time or unit property
+            },
+        };
+        if rows.is_none_or(|n| column.len() == n) {
+            columns.push((name.clone(), column));
+        }
+    }
+    Ok(columns)
+}
+
+impl Column {
+    pub fn len(&self) -> usize {
+        match self {
+            Column::Numbers(v) => v.len(),
+            Column::Texts(t) => t.len(),
+        }
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+}
+
 impl Recording {
+    /// Read a whole NWB file held in memory.
     pub fn read(source: &str, bytes: &[u8]) -> Result<Recording> {
         if !hdf5_pure::is_hdf5_bytes(bytes) {
-            return Err(Error::Input(format!(
-                "{source}: not an HDF5 file, so not an NWB file (NWB 2.x files are HDF5)"
-            )));
+            return Err(not_hdf5(source));
         }
         let file = hdf5_pure::File::from_bytes(bytes.to_vec())
             .map_err(|e| hdf(source, "the HDF5 structure cannot be read", e))?;
+        Recording::from_file(source, &file)
+    }
+
+    /// Read an NWB file through a random-access source, touching only the units and trials tables: a file of
+    /// hundreds of MB of raw voltage traces costs the few MB of its spike times (the page's dropped file, the
+    /// command line's file on disk).
+    pub fn read_from(
+        source: &str,
+        src: impl hdf5_pure::Source + Send + Sync + 'static,
+    ) -> Result<Recording> {
+        if !has_signature(&src) {
+            return Err(not_hdf5(source));
+        }
+        let file = hdf5_pure::File::from_source(src)
+            .map_err(|e| hdf(source, "the HDF5 structure cannot be read", e))?;
+        Recording::from_file(source, &file)
+    }
+
+    fn from_file(source: &str, file: &hdf5_pure::File) -> Result<Recording> {
         let missing = |table: &str, path: &str| {
             Error::Input(format!(
                 "{source}: this NWB file has no {table} ('{path}'); a time course needs spike times in a units \
@@ -100,36 +216,18 @@ impl Recording {
             spikes.push(unit);
             start = end;
         }
-        let group = file
-            .group("intervals/trials")
+        let unit_columns =
+            table_columns(source, file, "units", &["spike_times"], Some(index.len()))?;
+        file.group("intervals/trials")
             .map_err(|_| missing("trials table", "intervals/trials"))?;
-        let names = group
-            .datasets()
-            .map_err(|e| hdf(source, "intervals/trials", e))?;
-        let mut trials = Vec::new();
-        for name in &names {
-            let ragged = names.contains(&format!("{name}_index"));
-            if name == "id" || name.ends_with("_index") || ragged {
-                continue;
-            }
-            let ds = file
-                .dataset(&format!("intervals/trials/{name}"))
-                .map_err(|e| hdf(source, name, e))?;
-            let column = match ds.read_f64() {
-                Ok(v) => Column::Numbers(v),
-                Err(_) => match ds.read_string() {
-                    Ok(t) => Column::Texts(t),
-                    Err(_) => continue, // references, compounds: not a label, group or time
-                },
-            };
-            trials.push((name.clone(), column));
-        }
+        let trials = table_columns(source, file, "intervals/trials", &[], None)?;
         if !trials.iter().any(|(n, _)| n == "start_time") {
             return Err(missing("trial start times", "intervals/trials/start_time"));
         }
         Ok(Recording {
             units: ids,
             spikes,
+            unit_columns,
             trials,
         })
     }
@@ -154,8 +252,9 @@ impl Recording {
     }
 }
 
-/// What `popdecode inspect` and the page show after loading: units, trials, duration, and every trials column with
-/// its distinct values and counts (numbers with more than 20 distinct values are summarised by their range).
+/// What `popdecode inspect` and the page show after loading: units, trials, duration, every trials column and every
+/// units column with its distinct values and counts (columns with more than 20 distinct values are summarised by
+/// their count; numbers also by their range).
 #[derive(Debug, Clone, Serialize)]
 pub struct Summary {
     pub units: usize,
@@ -164,6 +263,8 @@ pub struct Summary {
     /// From the first trial's start to the last trial's stop, s.
     pub duration: f64,
     pub columns: Vec<ColumnSummary>,
+    /// The units table's per-unit columns, which units can be kept by.
+    pub unit_columns: Vec<ColumnSummary>,
 }
 
 #[derive(Debug, Clone, Serialize)]
@@ -173,6 +274,44 @@ pub struct ColumnSummary {
     /// Distinct values with their counts, when there are at most 20.
     pub values: Vec<(String, usize)>,
     pub distinct: usize,
+    /// Smallest and largest value of a numeric column (NaN left out), null for text or no number.
+    pub range: Option<(f64, f64)>,
+}
+
+fn summarise(columns: &[(String, Column)]) -> Vec<ColumnSummary> {
+    columns
+        .iter()
+        .map(|(name, c)| {
+            let texts = c.texts();
+            let mut levels = crate::data::labels::sorted_levels(&texts);
+            let distinct = levels.len();
+            if distinct > 20 {
+                levels.clear();
+            }
+            let range = match c {
+                Column::Numbers(v) => {
+                    let finite = v.iter().copied().filter(|x| !x.is_nan());
+                    let lo = finite.clone().fold(f64::INFINITY, f64::min);
+                    let hi = finite.fold(f64::NEG_INFINITY, f64::max);
+                    (lo <= hi).then_some((lo, hi))
+                }
+                Column::Texts(_) => None,
+            };
+            ColumnSummary {
+                name: name.clone(),
+                numeric: matches!(c, Column::Numbers(_)),
+                values: levels
+                    .into_iter()
+                    .map(|l| {
+                        let n = texts.iter().filter(|t| **t == l).count();
+                        (l, n)
+                    })
+                    .collect(),
+                distinct,
+                range,
+            }
+        })
+        .collect()
 }
 
 impl Recording {
@@ -193,30 +332,8 @@ impl Recording {
             spikes: self.spikes.iter().map(Vec::len).sum(),
             trials: self.n_trials(),
             duration: if last > first { last - first } else { 0.0 },
-            columns: self
-                .trials
-                .iter()
-                .map(|(name, c)| {
-                    let texts = c.texts();
-                    let mut levels = crate::data::labels::sorted_levels(&texts);
-                    let distinct = levels.len();
-                    if distinct > 20 {
-                        levels.clear();
-                    }
-                    ColumnSummary {
-                        name: name.clone(),
-                        numeric: matches!(c, Column::Numbers(_)),
-                        values: levels
-                            .into_iter()
-                            .map(|l| {
-                                let n = texts.iter().filter(|t| **t == l).count();
-                                (l, n)
-                            })
-                            .collect(),
-                        distinct,
-                    }
-                })
-                .collect(),
+            columns: summarise(&self.trials),
+            unit_columns: summarise(&self.unit_columns),
         }
     }
 }

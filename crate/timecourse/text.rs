@@ -216,11 +216,18 @@ pub fn methods(r: &TimeReport) -> String {
             start,
             end,
             align,
+            units,
         }) => out.push(format!(
-            "Spike times of {} units were read from the NWB file's units table and counted in windows of {} s \
+            "Spike times of {} units{} were read from the NWB file's units table and counted in windows of {} s \
              stepped by {} s from {} s to {} s relative to each trial's '{}' time (trials table; each window \
              covering [start, start + width)), giving {} windows, and converted to rates in Hz.",
             r.input.neurons.len(),
+            if units.is_empty() {
+                String::new()
+            } else {
+                let rule: Vec<String> = units.iter().map(ToString::to_string).collect();
+                format!(" (those with {})", rule.join(" and "))
+            },
             s(*width),
             s(*step),
             s(*start),

@@ -6,6 +6,7 @@ import { writeFileSync, readFileSync, mkdtempSync } from 'node:fs';
 import { join } from 'node:path';
 import { tmpdir } from 'node:os';
 import { execFileSync } from 'node:child_process';
+import { createHash } from 'node:crypto';
 import { serve, browser, closeAll, assertLocalOnly, shot, quickSettings, runAndWait, downloadText, cli, ROOT } from './helpers.mjs';
 
 let server;
@@ -131,13 +132,22 @@ test('an NWB file written by pynwb decodes in the page with the command line\'s 
   const nwb = join(tmp, 'odours.nwb');
   execFileSync(join(venv, 'bin', 'python'), ['-c',
     `import sys; sys.path.insert(0, ${JSON.stringify(join(ROOT, 'tests', 'reference'))}); ` +
-    `from test_nwb import write_nwb; write_nwb(${JSON.stringify(nwb)})`]);
+    `from test_nwb import write_nwb; write_nwb(${JSON.stringify(nwb)}, raw_mb=40)`]);
   const b = await openPage(`${server.origin}/index.html`);
   await b.page.check('input[name=kind][value=nwb]');
   await b.page.setInputFiles('#nwb-file', nwb);
   await b.page.waitForFunction(() => /NWB, 12 units/.test(document.getElementById('file-summary').textContent));
+  // Read lazily: of the 40 MB of raw voltage beside the tables, next to nothing is read (only the hash sees it).
+  const summary = await b.page.textContent('#file-summary');
+  const [, read, size] = summary.match(/read ([\d.]+) MB of ([\d.]+) MB for the units and trials tables/);
+  assert.ok(Number(size) > 40 && Number(read) < 2, summary);
+  assert.ok(summary.includes(createHash('sha256').update(readFileSync(nwb)).digest('hex').slice(0, 16)), summary);
   assert.equal(await b.page.inputValue('#label'), 'odour');
   assert.equal(await b.page.inputValue('#align-col'), 'start_time');
+  // Keep the units the sorter called good (the first 8 of 12).
+  await b.page.selectOption('#unit-col', 'quality');
+  await b.page.selectOption('#unit-op', '=');
+  await set(b.page, 'unit-value', 'good');
   await quickSettings(b.page, { repeats: 3, shuffles: 9 });
   await set(b.page, 'width', 0.2);
   await set(b.page, 't-start', -0.5);
@@ -153,6 +163,8 @@ test('an NWB file written by pynwb decodes in the page with the command line\'s 
   assert.equal(json, readFileSync(out, 'utf8'), 'page JSON and CLI JSON differ');
   assert.equal(headline.trim(), stdout.split('\n')[0].trim());
   assert.equal(JSON.parse(json).input.kind, 'nwb');
+  assert.equal(JSON.parse(json).input.neurons.length, 8);
+  assert.deepEqual(JSON.parse(recipe).time.input.units, [{ column: 'quality', op: '=', values: ['good'] }]);
   assertLocalOnly(assert, b.requests, server.origin);
   assert.deepEqual(b.errors, []);
   await b.context.close();

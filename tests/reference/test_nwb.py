@@ -10,11 +10,17 @@ from datetime import datetime, timezone
 import numpy as np
 import pytest
 from pynwb import NWBHDF5IO, NWBFile
+from pynwb.ecephys import ElectricalSeries
 
 from test_sklearn_agreement import BIN
 
 
-def write_nwb(path, with_trials=True, with_units=True, seed=5):
+QUALITY = ["good"] * 8 + ["mua"] * 2 + ["noise"] * 2  # a spike sorter's labels of the 12 invented units
+
+
+def write_nwb(path, with_trials=True, with_units=True, seed=5, raw_mb=0):
+    """raw_mb: also store that many MB of invented raw voltage (int16, 32 channels) in the acquisition group, as a
+    recording session's file would; popdecode must not read it."""
     rng = np.random.default_rng(seed)
     nwb = NWBFile(
         session_description="invented odour responses",
@@ -29,7 +35,23 @@ def write_nwb(path, with_trials=True, with_units=True, seed=5):
         nwb.add_trial_column(name="odour", description="odour presented")
         for start, odour in zip(starts, odours):
             nwb.add_trial(start_time=start, stop_time=start + 1.5, odour=str(odour))
+    if raw_mb:
+        device = nwb.create_device(name="probe")
+        shank = nwb.create_electrode_group(
+            name="shank0", description="invented shank", location="piriform cortex", device=device
+        )
+        channels = 32
+        for _ in range(channels):
+            nwb.add_electrode(group=shank, location="piriform cortex")
+        region = nwb.create_electrode_table_region(region=list(range(channels)), description="every channel")
+        samples = int(raw_mb * 1e6) // (2 * channels)
+        voltage = rng.integers(-500, 500, (samples, channels), dtype=np.int16)
+        nwb.add_acquisition(
+            ElectricalSeries(name="raw", data=voltage, electrodes=region, starting_time=0.0, rate=30000.0)
+        )
     if with_units:
+        nwb.add_unit_column(name="quality", description="spike sorter's label")
+        nwb.add_unit_column(name="snr", description="signal-to-noise ratio of the mean waveform")
         for u in range(12):
             times = []
             for start, odour in zip(starts, odours):
@@ -37,7 +59,7 @@ def write_nwb(path, with_trials=True, with_units=True, seed=5):
                 for a, b, rate in [(-0.5, 0.2, 8.0), (0.2, 0.6, 8.0 * gains[k, u]), (0.6, 1.0, 8.0)]:
                     n = rng.poisson(rate * (b - a))
                     times.extend(start + rng.uniform(a, b, n))
-            nwb.add_unit(spike_times=np.sort(np.array(times)))
+            nwb.add_unit(spike_times=np.sort(np.array(times)), quality=QUALITY[u], snr=float(2.0 + u % 5))
     with NWBHDF5IO(str(path), "w") as io:
         io.write(nwb)
 
@@ -76,6 +98,45 @@ def test_time_course_from_nwb_finds_the_information(tmp_path):
     curve = {round(w["time"], 3): w["accuracy"]["mean"] for w in r["windows"]}
     assert curve[0.4] > 0.6, curve  # window [0.3, 0.5): inside the informative period (chance 1/3)
     assert curve[-0.3] < 0.55, curve  # before odour onset
+
+
+def test_units_kept_by_a_units_column(tmp_path):
+    path = tmp_path / "odours.nwb"
+    write_nwb(path, raw_mb=4)
+    out = subprocess.run([BIN, "inspect", path], capture_output=True, text=True, check=True)
+    assert "units columns" in out.stdout and "good (8), mua (2), noise (2)" in out.stdout, out.stdout
+    result = tmp_path / "result.json"
+    run = subprocess.run(
+        [BIN, "timecourse", "--nwb", path, "--label", "odour", "--start", "-0.5", "--end", "1", "--width", "0.2",
+         "--step", "0.1", "--units", "quality=good,mua", "--units", "snr>=3", "--repeats", "2", "--shuffles",
+         "0", "--quiet", "--json", result],
+        check=True, capture_output=True, text=True,
+    )
+    import json
+
+    r = json.loads(result.read_text())
+    with NWBHDF5IO(str(path), "r") as io:
+        units = io.read().units
+        expected = [
+            f"unit {units.id[u]}"
+            for u in range(len(units))
+            if units["quality"][u] in ("good", "mua") and units["snr"][u] >= 3
+        ]
+    assert r["input"]["neurons"] == expected and len(expected) == 8
+    assert r["recipe"]["time"]["input"]["units"][1] == {"column": "snr", "op": ">=", "values": ["3"]}
+    assert f"{len(expected)} of 12 units kept (quality = good,mua and snr >= 3)" in r["warnings"]
+    assert "those with quality = good,mua and snr >= 3" in run.stdout
+    # The file's hash is of the whole file, though only its tables were read.
+    import hashlib
+
+    assert r["input"]["files"][0]["sha256"] == hashlib.sha256(path.read_bytes()).hexdigest()
+    bad = subprocess.run(
+        [BIN, "timecourse", "--nwb", path, "--label", "odour", "--start", "0", "--end", "1", "--units",
+         "area=piriform", "--quiet"],
+        capture_output=True, text=True,
+    )
+    assert bad.returncode == 2
+    assert "odours.nwb: the units table has no column 'area'" in bad.stderr, bad.stderr
 
 
 @pytest.mark.parametrize("missing,words", [("trials", "no trials table"), ("units", "no units table")])
