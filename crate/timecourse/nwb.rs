@@ -57,7 +57,7 @@ fn hdf(source: &str, what: &str, e: impl std::fmt::Display) -> Error {
 
 /// Bytes hashed per read when a file is hashed through a [`hdf5_pure::Source`]: large enough that the page's
 /// reads from the dropped file stay few, small enough that hashing holds little memory.
-const HASH_CHUNK: usize = 8 << 20;
+const HASH_CHUNK: usize = 1 << 20;
 
 /// The SHA-256 (hex) of everything a source holds, read a chunk at a time so that a file of any size can be
 /// hashed without being held in memory.

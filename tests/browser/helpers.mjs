@@ -52,7 +52,7 @@ export async function browser() {
   const errors = [];
   page.on('pageerror', (e) => errors.push(String(e)));
   page.on('dialog', (d) => { errors.push('dialog: ' + d.message()); d.dismiss(); });
-  return { context, page, requests, errors };
+  return { context, page, requests, errors, profile };
 }
 
 /// Every request must stay on the page's own origin (served) or on file:, blob:, data: (offline).
