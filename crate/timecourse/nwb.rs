@@ -84,6 +84,73 @@ pub fn sha256_of(source: &str, src: &dyn hdf5_pure::Source) -> Result<String> {
 /// The 1-D columns of an NWB dynamic table (a group of equal-length datasets), skipping `id`, ragged columns
 /// (those with a `<name>_index` companion) and their indexes, and anything not numbers or text. Only columns with
 /// `rows` values are kept when `rows` is given (a 2-D column such as a mean waveform reads as more values).
+/// An integer dataset (indexes and ragged ends are stored signed or unsigned, by writer).
+fn integers(ds: &hdf5_pure::Dataset) -> std::result::Result<Vec<i64>, hdf5_pure::Error> {
+    match ds.read_i64() {
+        Ok(v) => Ok(v),
+        Err(_) => Ok(ds.read_u64()?.into_iter().map(|v| v as i64).collect()),
+    }
+}
+
+/// Where each unit was recorded, from the electrodes table: for every text column of
+/// `general/extracellular_ephys/electrodes` (`location`, `group_name`, ...), a unit column `electrode <name>`
+/// holding the distinct values of the unit's electrodes (joined by " + " when it spans several). NWB keeps a unit's
+/// brain area there, through the units table's `electrodes` region, rather than in the units table itself. Files
+/// without that region or table get none.
+fn electrode_columns(
+    source: &str,
+    file: &hdf5_pure::File,
+    n_units: usize,
+) -> Result<Vec<(String, Column)>> {
+    const TABLE: &str = "general/extracellular_ephys/electrodes";
+    let (Ok(region), Ok(ends), Ok(_)) = (
+        file.dataset("units/electrodes"),
+        file.dataset("units/electrodes_index"),
+        file.group(TABLE),
+    ) else {
+        return Ok(Vec::new());
+    };
+    let bad = |what: &str| {
+        Error::Input(format!(
+            "{source}: units/electrodes is not a valid reference into the electrodes table ({what})"
+        ))
+    };
+    let rows = integers(&region).map_err(|e| hdf(source, "units/electrodes", e))?;
+    let ends = integers(&ends).map_err(|e| hdf(source, "units/electrodes_index", e))?;
+    if ends.len() != n_units {
+        return Err(bad("one run of electrodes per unit"));
+    }
+    let mut columns = Vec::new();
+    for (name, column) in table_columns(source, file, TABLE, &[], None)? {
+        let Column::Texts(values) = column else {
+            continue; // positions and impedances: not a place to keep units by
+        };
+        let mut per_unit = Vec::with_capacity(n_units);
+        let mut start = 0usize;
+        for &end in &ends {
+            let end = usize::try_from(end).map_err(|_| bad("a negative end"))?;
+            let run = rows
+                .get(start..end)
+                .ok_or_else(|| bad("an end past the region"))?;
+            let mut here = run
+                .iter()
+                .map(|&r| {
+                    usize::try_from(r)
+                        .ok()
+                        .and_then(|r| values.get(r).cloned())
+                        .ok_or_else(|| bad("a row the table does not have"))
+                })
+                .collect::<Result<Vec<String>>>()?;
+            here.sort();
+            here.dedup();
+            per_unit.push(here.join(" + "));
+            start = end;
+        }
+        columns.push((format!("electrode {name}"), Column::Texts(per_unit)));
+    }
+    Ok(columns)
+}
+
 /// Whether the HDF5 signature stands where the format allows it: at 0, 512, 1024, 2048, ... bytes.
 fn has_signature(src: &dyn hdf5_pure::Source) -> bool {
     let mut offset = 0u64;
@@ -185,15 +252,7 @@ impl Recording {
         let index_ds = file
             .dataset("units/spike_times_index")
             .map_err(|_| missing("units table index", "units/spike_times_index"))?;
-        let index: Vec<i64> = match index_ds.read_i64() {
-            Ok(v) => v,
-            Err(_) => index_ds
-                .read_u64()
-                .map_err(|e| hdf(source, "units/spike_times_index", e))?
-                .into_iter()
-                .map(|v| v as i64)
-                .collect(),
-        };
+        let index = integers(&index_ds).map_err(|e| hdf(source, "units/spike_times_index", e))?;
         let ids: Vec<String> = match file.dataset("units/id").and_then(|d| d.read_i64()) {
             Ok(ids) if ids.len() == index.len() => {
                 ids.iter().map(|i| format!("unit {i}")).collect()
@@ -216,8 +275,9 @@ impl Recording {
             spikes.push(unit);
             start = end;
         }
-        let unit_columns =
+        let mut unit_columns =
             table_columns(source, file, "units", &["spike_times"], Some(index.len()))?;
+        unit_columns.extend(electrode_columns(source, file, index.len())?);
         file.group("intervals/trials")
             .map_err(|_| missing("trials table", "intervals/trials"))?;
         let trials = table_columns(source, file, "intervals/trials", &[], None)?;

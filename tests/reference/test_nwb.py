@@ -16,6 +16,10 @@ from test_sklearn_agreement import BIN
 
 
 QUALITY = ["good"] * 8 + ["mua"] * 2 + ["noise"] * 2  # a spike sorter's labels of the 12 invented units
+LOCATIONS = ["piriform cortex", "olfactory tubercle"]
+# Each unit's electrodes: unit u on channels 2u and 2u + 1, so units 0-7 in piriform cortex, 8-11 in the tubercle;
+# unit 7 also on channel 16, spanning both.
+ELECTRODES = [[2 * u, 2 * u + 1] + ([16] if u == 7 else []) for u in range(12)]
 
 
 def write_nwb(path, with_trials=True, with_units=True, seed=5, raw_mb=0):
@@ -35,14 +39,15 @@ def write_nwb(path, with_trials=True, with_units=True, seed=5, raw_mb=0):
         nwb.add_trial_column(name="odour", description="odour presented")
         for start, odour in zip(starts, odours):
             nwb.add_trial(start_time=start, stop_time=start + 1.5, odour=str(odour))
+    # A 32-channel probe whose first 16 channels sit in piriform cortex and the rest in the olfactory tubercle.
+    device = nwb.create_device(name="probe")
+    shank = nwb.create_electrode_group(
+        name="shank0", description="invented shank", location="piriform cortex", device=device
+    )
+    channels = 32
+    for ch in range(channels):
+        nwb.add_electrode(group=shank, location=LOCATIONS[ch // 16])
     if raw_mb:
-        device = nwb.create_device(name="probe")
-        shank = nwb.create_electrode_group(
-            name="shank0", description="invented shank", location="piriform cortex", device=device
-        )
-        channels = 32
-        for _ in range(channels):
-            nwb.add_electrode(group=shank, location="piriform cortex")
         region = nwb.create_electrode_table_region(region=list(range(channels)), description="every channel")
         samples = int(raw_mb * 1e6) // (2 * channels)
         voltage = rng.integers(-500, 500, (samples, channels), dtype=np.int16)
@@ -59,7 +64,8 @@ def write_nwb(path, with_trials=True, with_units=True, seed=5, raw_mb=0):
                 for a, b, rate in [(-0.5, 0.2, 8.0), (0.2, 0.6, 8.0 * gains[k, u]), (0.6, 1.0, 8.0)]:
                     n = rng.poisson(rate * (b - a))
                     times.extend(start + rng.uniform(a, b, n))
-            nwb.add_unit(spike_times=np.sort(np.array(times)), quality=QUALITY[u], snr=float(2.0 + u % 5))
+            nwb.add_unit(spike_times=np.sort(np.array(times)), quality=QUALITY[u], snr=float(2.0 + u % 5),
+                         electrodes=ELECTRODES[u])
     with NWBHDF5IO(str(path), "w") as io:
         io.write(nwb)
 
@@ -130,6 +136,17 @@ def test_units_kept_by_a_units_column(tmp_path):
     import hashlib
 
     assert r["input"]["files"][0]["sha256"] == hashlib.sha256(path.read_bytes()).hexdigest()
+    # Units kept by brain area, read through the units' electrodes from the electrodes table.
+    assert "electrode location" in out.stdout and "olfactory tubercle (4)" in out.stdout, out.stdout
+    assert "olfactory tubercle + piriform cortex (1), piriform cortex (7)" in out.stdout, out.stdout
+    subprocess.run(
+        [BIN, "timecourse", "--nwb", path, "--label", "odour", "--start", "-0.5", "--end", "1", "--width", "0.2",
+         "--units", "electrode location=piriform cortex", "--repeats", "2", "--shuffles", "0", "--quiet",
+         "--json", result],
+        check=True, capture_output=True, text=True,
+    )
+    r = json.loads(result.read_text())
+    assert r["input"]["neurons"] == [f"unit {u}" for u in range(7)]
     bad = subprocess.run(
         [BIN, "timecourse", "--nwb", path, "--label", "odour", "--start", "0", "--end", "1", "--units",
          "area=piriform", "--quiet"],
