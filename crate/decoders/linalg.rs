@@ -29,6 +29,26 @@ pub fn dot(a: &[f64], b: &[f64]) -> f64 {
     total
 }
 
+/// `(x − centre)·w`, in [`dot`]'s order of partial sums, without a centred copy of `x`.
+#[inline]
+pub fn dot_centred(x: &[f64], centre: &[f64], w: &[f64]) -> f64 {
+    let n = x.len().min(centre.len()).min(w.len());
+    let (x, c, w) = (&x[..n], &centre[..n], &w[..n]);
+    let mut s = [0.0f64; 4];
+    let chunks = n / 4;
+    for k in 0..chunks {
+        for (l, sl) in s.iter_mut().enumerate() {
+            let i = 4 * k + l;
+            *sl += (x[i] - c[i]) * w[i];
+        }
+    }
+    let mut total = (s[0] + s[1]) + (s[2] + s[3]);
+    for i in 4 * chunks..n {
+        total += (x[i] - c[i]) * w[i];
+    }
+    total
+}
+
 /// `y += a * x`.
 #[inline]
 pub fn axpy(a: f64, x: &[f64], y: &mut [f64]) {

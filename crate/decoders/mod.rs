@@ -34,8 +34,10 @@ pub trait Decoder: Sync {
 
     /// A shortcut for fitting every fold of a split at once, for decoders whose training statistics are sums over
     /// trials (each trial's share is then computed once, and a fold is left out by subtraction). Rows are raw, not
-    /// standardised: a decoder may only offer this when it is exactly invariant to per-feature shifts and scales,
-    /// so that the pipeline's standardisation would change nothing but rounding. Returns a model for every fold
+    /// standardised, and the pipeline will not standardise what the models predict: a decoder may only offer this
+    /// when it is exactly invariant to per-feature shifts and scales (shrinkage LDA), or when its models carry the
+    /// training fold's standardisation, computed from the same sums (nearest mean), so that the result differs from
+    /// the pipeline's only by rounding. Returns a model for every fold
     /// with `wanted[f]`, each fitted on the rows outside fold f only; `None` (the default) means no shortcut.
     fn fit_folds_raw(
         &self,

@@ -4,15 +4,29 @@
 //! Parameter-free and robust with few trials per class, where a covariance cannot be estimated. The correlation is
 //! Pearson's r between the two p-vectors; a pattern with no spread (all neurons equal) correlates 0 with everything.
 
-use super::linalg::dot;
-use super::{argmax, present_classes, Decoder, Model};
+use super::linalg::{dot, dot_centred};
+use super::standardise::Standardiser;
+use super::{argmax, present_classes, Decoder, FoldSet, Model};
 
 pub struct NearestMean;
 
+/// Scoring a trial: its correlation with class c's pattern m_c is `(z − z̄)·m_c / ‖z − z̄‖`. The patterns are
+/// centred (Σ m_c = 0), so `(z − z̄)·m_c = z·m_c`, and the division is the same for every class, so the class with
+/// the largest `z·m_c` is the best correlated: no per-trial centring or copy is needed. A trial with no spread
+/// across neurons scores 0 (to rounding) for every class.
 struct MeanModel {
     classes: Vec<usize>,
     /// Per class: the mean pattern, centred across neurons and scaled to unit length (zero if it has no spread).
     patterns: Vec<Vec<f64>>,
+    /// Fitted from a split's sums on raw rows (see [`NearestMean::fit_folds_raw`]): the training fold's means and
+    /// each class's weights `m_c / scale`, so that `(x − mean)·weights = z·m_c` scores raw rows directly; `None`
+    /// when the pipeline standardised the rows.
+    raw: Option<RawScoring>,
+}
+
+struct RawScoring {
+    mean: Vec<f64>,
+    weights: Vec<Vec<f64>>,
 }
 
 /// Centre a pattern across its entries and scale it to unit length; all zeros when it has no spread.
@@ -45,17 +59,152 @@ impl Decoder for NearestMean {
                 unit_centred(&mean)
             })
             .collect();
-        Box::new(MeanModel { classes, patterns })
+        Box::new(MeanModel {
+            classes,
+            patterns,
+            raw: None,
+        })
     }
+
+    /// Every fold of a split from one pass over its rows: per (fold, class) the count and the sum of the rows, per
+    /// fold the sum of squares, all of rows shifted by the first row so that the sums keep their digits. A
+    /// training fold's standardisation and class means are then totals minus the fold's share: the same numbers as
+    /// standardising a copy of the training rows and averaging them (to rounding; a test compares the two), without
+    /// the copy, which is most of the cost of this decoder.
+    fn fit_folds_raw(&self, set: &FoldSet, wanted: &[bool]) -> Option<Vec<Option<Box<dyn Model>>>> {
+        if set.y.is_empty() {
+            return None;
+        }
+        Some(
+            fold_models(set, wanted)
+                .into_iter()
+                .map(|m| m.map(|m| Box::new(m) as Box<dyn Model>))
+                .collect(),
+        )
+    }
+}
+
+/// The model of every wanted fold of a split, from the split's sums (see [`NearestMean::fit_folds_raw`]).
+fn fold_models(set: &FoldSet, wanted: &[bool]) -> Vec<Option<MeanModel>> {
+    let (p, k) = (set.p, set.n_classes);
+    // Any value typical of each feature conditions the sums; the first trial's saves a pass over the rows.
+    let offset = set.x[..p].to_vec();
+    // [fold][class] counts and sums; [fold] sums of squares.
+    let mut count = vec![vec![0usize; k]; set.folds];
+    let mut sum = vec![vec![vec![0.0; p]; k]; set.folds];
+    let mut square = vec![vec![0.0; p]; set.folds];
+    for (i, row) in set.x.chunks_exact(p).enumerate() {
+        let (f, c) = (set.fold[i], set.y[i]);
+        count[f][c] += 1;
+        for (((s, q), v), o) in sum[f][c]
+            .iter_mut()
+            .zip(&mut square[f])
+            .zip(row)
+            .zip(&offset)
+        {
+            let z = v - o;
+            *s += z;
+            *q += z * z;
+        }
+    }
+    let count_total: Vec<usize> = (0..k).map(|c| count.iter().map(|f| f[c]).sum()).collect();
+    let sum_total: Vec<Vec<f64>> = (0..k)
+        .map(|c| {
+            let mut t = vec![0.0; p];
+            for share in &sum {
+                t.iter_mut().zip(&share[c]).for_each(|(t, v)| *t += v);
+            }
+            t
+        })
+        .collect();
+    let mut square_total = vec![0.0; p];
+    for share in &square {
+        square_total
+            .iter_mut()
+            .zip(share)
+            .for_each(|(t, v)| *t += v);
+    }
+    (0..set.folds)
+        .map(|f| {
+            if !wanted[f] {
+                return None;
+            }
+            // A training fold is the split's totals less the fold's own share.
+            let n_c: Vec<usize> = (0..k).map(|c| count_total[c] - count[f][c]).collect();
+            let n_train: usize = n_c.iter().sum();
+            let class_sum: Vec<Vec<f64>> = (0..k)
+                .map(|c| {
+                    sum_total[c]
+                        .iter()
+                        .zip(&sum[f][c])
+                        .map(|(t, v)| t - v)
+                        .collect()
+                })
+                .collect();
+            let mut shifted_mean = vec![0.0; p];
+            let sq: Vec<f64> = square_total
+                .iter()
+                .zip(&square[f])
+                .map(|(t, v)| t - v)
+                .collect();
+            for t in &class_sum {
+                shifted_mean.iter_mut().zip(t).for_each(|(m, v)| *m += v);
+            }
+            shifted_mean.iter_mut().for_each(|m| *m /= n_train as f64);
+            let mean: Vec<f64> = shifted_mean
+                .iter()
+                .zip(&offset)
+                .map(|(m, o)| m + o)
+                .collect();
+            let scale: Vec<f64> = (0..p)
+                .map(|j| {
+                    let var = (sq[j] / n_train as f64 - shifted_mean[j] * shifted_mean[j]).max(0.0);
+                    Standardiser::scale_of(var.sqrt(), mean[j])
+                })
+                .collect();
+            let classes: Vec<usize> = (0..k).filter(|&c| n_c[c] > 0).collect();
+            let patterns: Vec<Vec<f64>> = classes
+                .iter()
+                .map(|&c| {
+                    let z: Vec<f64> = (0..p)
+                        .map(|j| (class_sum[c][j] / n_c[c] as f64 - shifted_mean[j]) / scale[j])
+                        .collect();
+                    unit_centred(&z)
+                })
+                .collect();
+            Some(MeanModel {
+                classes,
+                raw: Some(RawScoring {
+                    weights: patterns
+                        .iter()
+                        .map(|m| m.iter().zip(&scale).map(|(v, s)| v / s).collect())
+                        .collect(),
+                    mean,
+                }),
+                patterns,
+            })
+        })
+        .collect()
 }
 
 impl Model for MeanModel {
     fn predict(&self, x: &[f64]) -> Vec<usize> {
         let p = self.patterns[0].len();
+        let mut scores = vec![0.0; self.patterns.len()];
         x.chunks_exact(p)
             .map(|row| {
-                let r = unit_centred(row);
-                let scores: Vec<f64> = self.patterns.iter().map(|m| dot(&r, m)).collect();
+                match &self.raw {
+                    Some(raw) => {
+                        for (s, w) in scores.iter_mut().zip(&raw.weights) {
+                            *s = dot_centred(row, &raw.mean, w);
+                        }
+                    }
+                    None => {
+                        for (s, m) in scores.iter_mut().zip(&self.patterns) {
+                            *s = dot(row, m);
+                        }
+                    }
+                }
                 self.classes[argmax(&scores)]
             })
             .collect()
@@ -74,6 +223,65 @@ mod tests {
         let y = [0, 0, 1, 1];
         let m = NearestMean.fit(&x, 4, 3, &y, 2);
         assert_eq!(m.predict(&[10.0, 20.0, 30.0, 3.0, 2.0, 1.0]), vec![0, 1]);
+    }
+
+    #[test]
+    fn folds_from_sums_equal_fits_on_standardised_copies() {
+        use crate::decoders::FittedPipeline;
+        // Invented rows with a large mean (firing rates near 80 Hz) and a constant neuron, four folds, three classes.
+        let (n, p, k, folds) = (40, 6, 3, 4);
+        let x: Vec<f64> = (0..n * p)
+            .map(|i| match i % p {
+                5 => 7.0,
+                j => 80.0 + ((i * 7919 % 113) as f64) / 9.0 + (j * (i / p % k)) as f64,
+            })
+            .collect();
+        let y: Vec<usize> = (0..n).map(|i| i % k).collect();
+        let fold: Vec<usize> = (0..n).map(|i| (i / k) % folds).collect();
+        let set = FoldSet {
+            x: &x,
+            p,
+            y: &y,
+            fold: &fold,
+            folds,
+            n_classes: k,
+        };
+        let fast = fold_models(&set, &[true; 4]);
+        for (f, model) in fast.iter().enumerate() {
+            let (train, test) = set.partition(f);
+            let y_train: Vec<usize> = train.iter().map(|&i| y[i]).collect();
+            let direct = FittedPipeline::fit(&NearestMean, &set.rows(&train), p, &y_train, k);
+            let rows = set.rows(&test);
+            assert_eq!(
+                model.as_ref().unwrap().predict(&rows),
+                direct.predict(rows.clone()),
+                "fold {f}"
+            );
+            // The patterns themselves agree to rounding.
+            let scaled = Standardiser::fit(&set.rows(&train), train.len(), p);
+            for c in 0..k {
+                let mut z: Vec<f64> = train
+                    .iter()
+                    .filter(|&&i| y[i] == c)
+                    .flat_map(|&i| x[i * p..(i + 1) * p].to_vec())
+                    .collect();
+                scaled.apply(&mut z);
+                let rows_c = z.len() / p;
+                let mean: Vec<f64> = (0..p)
+                    .map(|j| (0..rows_c).map(|r| z[r * p + j]).sum::<f64>() / rows_c as f64)
+                    .collect();
+                let want = unit_centred(&mean);
+                let patterns = &model.as_ref().unwrap().patterns;
+                assert!(
+                    patterns[c]
+                        .iter()
+                        .zip(&want)
+                        .all(|(a, b)| (a - b).abs() < 1e-12),
+                    "fold {f} class {c}: {:?} vs {want:?}",
+                    patterns[c]
+                );
+            }
+        }
     }
 
     #[test]

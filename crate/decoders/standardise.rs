@@ -34,17 +34,19 @@ impl Standardiser {
         let scale = var
             .iter()
             .zip(&mean)
-            .map(|(s, m)| {
-                let sd = (s / n as f64).sqrt();
-                // Treat round-off noise around a constant as constant (relative to the feature's size).
-                if sd <= 1e-12 * m.abs().max(1.0) {
-                    1.0
-                } else {
-                    sd
-                }
-            })
+            .map(|(s, m)| Standardiser::scale_of((s / n as f64).sqrt(), *m))
             .collect();
         Standardiser { mean, scale }
+    }
+
+    /// The scale of a feature with this SD and mean: the SD, or 1 for a constant feature. Round-off noise around
+    /// a constant counts as constant (relative to the feature's size).
+    pub fn scale_of(sd: f64, mean: f64) -> f64 {
+        if sd <= 1e-12 * mean.abs().max(1.0) {
+            1.0
+        } else {
+            sd
+        }
     }
 
     /// Transform row-major `x` in place.

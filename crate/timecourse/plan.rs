@@ -214,20 +214,22 @@ impl<'a> TimePlan<'a> {
             if models.iter().all(|m| m[f].is_none()) {
                 continue;
             }
+            let mut tally = |w: usize, w_test: usize, rows: Vec<f64>| {
+                let Some(model) = &models[w][f] else { return };
+                let cell = if generalize { w * nw + w_test } else { w };
+                let c = &mut confusion[cell * k * k..(cell + 1) * k * k];
+                for (&pos, q) in test.iter().zip(model.predict(rows)) {
+                    c[draw.y[pos] * k + q] += 1;
+                }
+            };
             for w_test in 0..nw {
                 let rows = gather(w_test, &test);
-                let trained_at: Vec<usize> = if generalize {
-                    (0..nw).collect()
-                } else {
-                    vec![w_test]
-                };
-                for w in trained_at {
-                    let Some(model) = &models[w][f] else { continue };
-                    let cell = if generalize { w * nw + w_test } else { w };
-                    let c = &mut confusion[cell * k * k..(cell + 1) * k * k];
-                    for (&pos, q) in test.iter().zip(model.predict(rows.clone())) {
-                        c[draw.y[pos] * k + q] += 1;
+                if generalize {
+                    for w in 0..nw {
+                        tally(w, w_test, rows.clone());
                     }
+                } else {
+                    tally(w_test, w_test, rows);
                 }
             }
         }
