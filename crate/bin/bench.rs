@@ -9,7 +9,8 @@
 //! units, 4 odours, 10 repeats × 5 folds, one thread (`scripts/bench_sklearn.py TABLE rbf` times SVC on it).
 //!
 //! `popdecode-bench timecourse [--trials N] [--units N] [--windows N] [--repeats N] [--shuffles N]
-//! [--shuffle-repeats N] [--classifier NAME] [--threads N] [--generalize]`: the time-resolved protocol on an invented recording built in
+//! [--shuffle-repeats N] [--classifier NAME] [--threads N] [--generalize] [--binned-csv PATH]`: the time-resolved
+//! protocol on an invented recording built in
 //! memory (defaults: the target case, 1000 trials × 300 units × 40 windows, 5 folds × 10 repeats,
 //! 200 shuffles × 10 repeats, shrinkage LDA, every core). Prints the time and the fits per second.
 
@@ -157,6 +158,28 @@ fn recording(trials: usize, units: usize, windows: usize) -> TimeDataset {
     }
 }
 
+/// The recording as a binned table (one row per trial × window), for timing the page on the same case
+/// (scripts/bench-page-timecourse.sh); rates with 3 decimals.
+fn binned_csv(data: &TimeDataset) -> String {
+    let mut out = String::from("trial,time,odour");
+    for u in &data.neurons {
+        out.push(',');
+        out.push_str(u);
+    }
+    out.push('\n');
+    for (w, window) in data.windows.iter().enumerate() {
+        let x = data.window(w);
+        for (i, &c) in data.y.iter().enumerate() {
+            out.push_str(&format!("{i},{},{}", window.time, data.classes[c]));
+            for v in &x[i * data.n_neurons()..(i + 1) * data.n_neurons()] {
+                out.push_str(&format!(",{v:.3}"));
+            }
+            out.push('\n');
+        }
+    }
+    out
+}
+
 fn timecourse(args: &[String]) {
     let (trials, units, windows) = (
         flag(args, "--trials", 1000),
@@ -171,6 +194,10 @@ fn timecourse(args: &[String]) {
             Classifier::from_name(n).expect("a decoder name")
         });
     let data = recording(trials, units, windows);
+    if let Some(i) = args.iter().position(|a| a == "--binned-csv") {
+        let path = args.get(i + 1).expect("--binned-csv needs a path");
+        std::fs::write(path, binned_csv(&data)).expect("write the binned table");
+    }
     let mut recipe = Recipe::new("odour");
     recipe.classifier = classifier;
     recipe.repeats = flag(args, "--repeats", 10);
