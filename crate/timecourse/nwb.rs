@@ -28,6 +28,17 @@ pub enum Column {
 }
 
 impl Column {
+    pub fn len(&self) -> usize {
+        match self {
+            Column::Numbers(v) => v.len(),
+            Column::Texts(t) => t.len(),
+        }
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
     /// The values as text, for labels and groups (numbers printed as the shortest round-trip form).
     pub fn texts(&self) -> Vec<String> {
         match self {
@@ -81,9 +92,6 @@ pub fn sha256_of(source: &str, src: &dyn hdf5_pure::Source) -> Result<String> {
         .collect())
 }
 
-/// The 1-D columns of an NWB dynamic table (a group of equal-length datasets), skipping `id`, ragged columns
-/// (those with a `<name>_index` companion) and their indexes, and anything not numbers or text. Only columns with
-/// `rows` values are kept when `rows` is given (a 2-D column such as a mean waveform reads as more values).
 /// An integer dataset (indexes and ragged ends are stored signed or unsigned, by writer).
 fn integers(ds: &hdf5_pure::Dataset) -> std::result::Result<Vec<i64>, hdf5_pure::Error> {
     match ds.read_i64() {
@@ -121,7 +129,7 @@ fn electrode_columns(
         return Err(bad("one run of electrodes per unit"));
     }
     let mut columns = Vec::new();
-    for (name, column) in table_columns(source, file, TABLE, &[], None)? {
+    for (name, column) in table_columns(source, file, TABLE, None)? {
         let Column::Texts(values) = column else {
             continue; // positions and impedances: not a place to keep units by
         };
@@ -166,11 +174,14 @@ fn has_signature(src: &dyn hdf5_pure::Source) -> bool {
     }
 }
 
+/// The 1-D columns of an NWB dynamic table (a group of equal-length datasets), skipping `id`, ragged columns
+/// (those with a `<name>_index` companion, such as the units' spike times) and their indexes, and anything not
+/// numbers or text. Only columns with `rows` values are kept when `rows` is given (a 2-D column such as a mean
+/// waveform reads as more values).
 fn table_columns(
     source: &str,
     file: &hdf5_pure::File,
     path: &str,
-    skip: &[&str],
     rows: Option<usize>,
 ) -> Result<Vec<(String, Column)>> {
     let group = file.group(path).map_err(|e| hdf(source, path, e))?;
@@ -178,7 +189,7 @@ fn table_columns(
     let mut columns = Vec::new();
     for name in &names {
         let ragged = names.contains(&format!("{name}_index"));
-        if name == "id" || name.ends_with("_index") || ragged || skip.contains(&name.as_str()) {
+        if name == "id" || name.ends_with("_index") || ragged {
             continue;
         }
         let ds = file
@@ -196,19 +207,6 @@ fn table_columns(
         }
     }
     Ok(columns)
-}
-
-impl Column {
-    pub fn len(&self) -> usize {
-        match self {
-            Column::Numbers(v) => v.len(),
-            Column::Texts(t) => t.len(),
-        }
-    }
-
-    pub fn is_empty(&self) -> bool {
-        self.len() == 0
-    }
 }
 
 impl Recording {
@@ -275,12 +273,11 @@ impl Recording {
             spikes.push(unit);
             start = end;
         }
-        let mut unit_columns =
-            table_columns(source, file, "units", &["spike_times"], Some(index.len()))?;
+        let mut unit_columns = table_columns(source, file, "units", Some(index.len()))?;
         unit_columns.extend(electrode_columns(source, file, index.len())?);
         file.group("intervals/trials")
             .map_err(|_| missing("trials table", "intervals/trials"))?;
-        let trials = table_columns(source, file, "intervals/trials", &[], None)?;
+        let trials = table_columns(source, file, "intervals/trials", None)?;
         if !trials.iter().any(|(n, _)| n == "start_time") {
             return Err(missing("trial start times", "intervals/trials/start_time"));
         }

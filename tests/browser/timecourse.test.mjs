@@ -169,3 +169,36 @@ test('an NWB file written by pynwb decodes in the page with the command line\'s 
   assert.deepEqual(b.errors, []);
   await b.context.close();
 });
+
+test('the offline file reads an NWB file too, and a file that is not NWB or lacks its trials gets a clear message', async () => {
+  const venv = process.env.POPDECODE_VENV || join(ROOT, 'target', 'reference-venv');
+  const good = join(tmp, 'offline.nwb');
+  const partial = join(tmp, 'no-trials.nwb');
+  execFileSync(join(venv, 'bin', 'python'), ['-c',
+    `import sys; sys.path.insert(0, ${JSON.stringify(join(ROOT, 'tests', 'reference'))}); ` +
+    `from test_nwb import write_nwb; write_nwb(${JSON.stringify(good)}); ` +
+    `write_nwb(${JSON.stringify(partial)}, with_trials=False)`]);
+  const notNwb = join(tmp, 'table.nwb');
+  writeFileSync(notNwb, 'trial,odour\n1,citral\n');
+  const b = await openPage('file://' + join(ROOT, 'dist', 'popdecode.html'));
+  await b.page.check('input[name=kind][value=nwb]');
+  const error = () => b.page.waitForFunction(() => !document.getElementById('data-error').hidden)
+    .then(() => b.page.textContent('#data-error'));
+  await b.page.setInputFiles('#nwb-file', notNwb);
+  assert.match(await error(), /table\.nwb: not an HDF5 file, so not an NWB file/);
+  await b.page.setInputFiles('#nwb-file', partial);
+  await b.page.waitForFunction(() => /no-trials\.nwb/.test(document.getElementById('data-error').textContent));
+  assert.match(await b.page.textContent('#data-error'), /no-trials\.nwb: this NWB file has no trials table \('intervals\/trials'\)/);
+  // The page keeps working: the good file loads and decodes.
+  await b.page.setInputFiles('#nwb-file', good);
+  await b.page.waitForFunction(() => /NWB, 12 units/.test(document.getElementById('file-summary').textContent));
+  assert.equal(await b.page.isHidden('#data-error'), true);
+  await quickSettings(b.page, { repeats: 2, shuffles: 0 });
+  await set(b.page, 'width', 0.2);
+  const headline = await runAndWait(b.page);
+  assert.match(headline, /'odour' decoded/);
+  assertLocalOnly(assert, b.requests, null);
+  assert.deepEqual(b.errors, []);
+  await shot(b.page, 'nwb-offline');
+  await b.context.close();
+});
