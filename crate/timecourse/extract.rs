@@ -12,7 +12,7 @@
 //! kind byte (0 numbers, 1 texts), a u32 length and the values (f64, or strings).
 
 use super::data::SourceFile;
-use super::nwb::{sha256_of, Column, Recording};
+use super::nwb::{require_hdf5, sha256_of, Column, Recording};
 use crate::error::{Error, Result};
 
 pub const MAGIC: &[u8] = b"popdecode-extract/1\n";
@@ -23,6 +23,8 @@ pub fn read_nwb(
     name: &str,
     src: impl hdf5_pure::Source + Send + Sync + 'static,
 ) -> Result<Vec<u8>> {
+    // A dropped file that is not NWB is refused before the hash reads all of it.
+    require_hdf5(name, &src)?;
     let sha256 = sha256_of(name, &src)?;
     let rec = Recording::read_from(name, src)?;
     Ok(encode(

@@ -159,6 +159,15 @@ fn electrode_columns(
     Ok(columns)
 }
 
+/// Refuse, at once and by name, a source that is not HDF5 (so not NWB): before anything reads the rest of it.
+pub fn require_hdf5(source: &str, src: &dyn hdf5_pure::Source) -> Result<()> {
+    if has_signature(src) {
+        Ok(())
+    } else {
+        Err(not_hdf5(source))
+    }
+}
+
 /// Whether the HDF5 signature stands where the format allows it: at 0, 512, 1024, 2048, ... bytes.
 fn has_signature(src: &dyn hdf5_pure::Source) -> bool {
     let mut offset = 0u64;
@@ -227,9 +236,7 @@ impl Recording {
         source: &str,
         src: impl hdf5_pure::Source + Send + Sync + 'static,
     ) -> Result<Recording> {
-        if !has_signature(&src) {
-            return Err(not_hdf5(source));
-        }
+        require_hdf5(source, &src)?;
         let file = hdf5_pure::File::from_source(src)
             .map_err(|e| hdf(source, "the HDF5 structure cannot be read", e))?;
         Recording::from_file(source, &file)
