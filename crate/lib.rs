@@ -1,34 +1,43 @@
 //! popdecode: cross-validated decoding of task conditions from neural population activity.
 //!
-//! One core, several faces. The core reads a trial table from bytes ([`data`]), checks it against a [`recipe`],
-//! splits the analysis into independent tasks ([`protocol`]), and assembles their outcomes into a [`report`]. It
-//! touches no filesystem and starts no threads: the CLI (`main.rs`) runs tasks on threads, the page on Web Workers.
+//! One core, several faces. The layers, each importing only from those listed before it:
+//!
+//! 1. foundation: [`error`], [`rng`], the [`recipe`] (plain data every layer may read), [`simulate`] (invented data)
+//! 2. [`data`]: the in-memory data every analysis works on
+//! 3. [`input`]: readers of every input format, producing `data`
+//! 4. [`resample`]: balancing, folds, permutations, pseudo-trials, scoring
+//! 5. [`decoders`]: the fitted pipeline and every decoder
+//! 6. [`stats`]: summaries, permutation p-values, the binomial threshold, cluster tests
+//! 7. [`report`]: what every report shares (text and SVG primitives, methods sentences)
+//! 8. [`analyses`]: one folder per analysis
+//! 9. faces: the CLI (`crate/cli/`, a binary of its own) and the page's bindings (`wasm`)
+//!
+//! The core touches no filesystem and starts no threads: faces read files and decide where tasks run.
 //!
 //! ```
-//! use popdecode::{data::Dataset, protocol::Plan, recipe::Recipe, report, simulate};
+//! use popdecode::analyses::trial_table::{run_all, Plan};
+//! use popdecode::{input, recipe::Recipe, simulate};
 //! let csv = simulate::csv(&simulate::Scenario::odours());
 //! let mut recipe = Recipe::new("odour");
 //! recipe.repeats = 2;
 //! recipe.shuffles = 0;
-//! let data = Dataset::from_csv("odours.csv", csv.as_bytes(), &recipe.columns).unwrap();
-//! let plan = Plan::new(&data, &recipe).unwrap();
-//! let result = report::run_all(&plan);
+//! let data = input::trial_table("odours.csv", csv.as_bytes(), &recipe.columns).unwrap();
+//! let plan = Plan::new(data, &recipe).unwrap();
+//! let result = run_all(&plan);
 //! assert!(result.summary.accuracy.mean > 0.5); // four odours: chance is 0.25
 //! ```
 
+pub mod analyses;
 pub mod data;
 pub mod decoders;
 pub mod error;
-pub mod neurons;
-pub mod protocol;
-pub mod pseudo;
+pub mod input;
 pub mod recipe;
 pub mod report;
 pub mod resample;
 pub mod rng;
 pub mod simulate;
 pub mod stats;
-pub mod timecourse;
 
 pub use error::{Error, Result};
 

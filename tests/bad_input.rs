@@ -1,8 +1,9 @@
 //! Every malformed input gets a message that names the file, the line and the column where it can, and says what
 //! to change. One row per case: (what is wrong, file text, options, words the message must contain).
 
-use popdecode::data::{Columns, Dataset};
-use popdecode::protocol::Plan;
+use popdecode::analyses::trial_table::Plan;
+use popdecode::input;
+use popdecode::recipe::Columns;
 use popdecode::recipe::{Folds, Recipe};
 
 fn columns(label: &str) -> Columns {
@@ -13,7 +14,7 @@ fn columns(label: &str) -> Columns {
 }
 
 fn read_error(text: &[u8], cols: &Columns) -> String {
-    Dataset::from_csv("rec.csv", text, cols)
+    input::trial_table("rec.csv", text, cols)
         .expect_err("the file must be refused")
         .to_string()
 }
@@ -119,7 +120,7 @@ fn unknown_columns_list_the_real_ones() {
 fn drop_missing_reports_the_dropped_lines() {
     let mut cols = columns("odour");
     cols.drop_missing = true;
-    let ds = Dataset::from_csv(
+    let ds = input::trial_table(
         "rec.csv",
         b"odour,n1,n2\na,1,2\nb,,4\na,5,6\nb,7,n/a\nb,1,1\n",
         &cols,
@@ -132,9 +133,12 @@ fn drop_missing_reports_the_dropped_lines() {
 #[test]
 fn too_few_trials_for_the_folds_says_what_to_change() {
     let text = b"odour,n1\na,1\na,2\na,3\nb,4\nb,5\nb,6\nb,7\nb,8\nb,9\nb,10\n";
-    let ds = Dataset::from_csv("rec.csv", text, &columns("odour")).unwrap();
+    let ds = input::trial_table("rec.csv", text, &columns("odour")).unwrap();
     let recipe = Recipe::new("odour");
-    let message = Plan::new(&ds, &recipe).err().expect("refused").to_string();
+    let message = Plan::new(ds.clone(), &recipe)
+        .err()
+        .expect("refused")
+        .to_string();
     for w in [
         "class 'a'",
         "3 trials",
@@ -146,7 +150,7 @@ fn too_few_trials_for_the_folds_says_what_to_change() {
     }
     let mut loo = recipe.clone();
     loo.folds = Folds::LeaveOneOut;
-    assert!(Plan::new(&ds, &loo).is_ok());
+    assert!(Plan::new(ds.clone(), &loo).is_ok());
 }
 
 #[test]
@@ -154,20 +158,26 @@ fn group_problems_are_explained() {
     let text = b"odour,day,n1\na,d1,1\nb,d1,2\na,d1,3\nb,d1,4\n";
     let mut recipe = Recipe::new("odour");
     recipe.columns.group = Some("day".into());
-    let ds = Dataset::from_csv("rec.csv", text, &recipe.columns).unwrap();
-    let message = Plan::new(&ds, &recipe).err().expect("refused").to_string();
+    let ds = input::trial_table("rec.csv", text, &recipe.columns).unwrap();
+    let message = Plan::new(ds.clone(), &recipe)
+        .err()
+        .expect("refused")
+        .to_string();
     assert!(message.contains("single group"), "{message}");
 
     // Each day holds one condition: leaving a day out leaves one class to train on.
     let text = b"odour,day,n1\na,d1,1\na,d1,3\nb,d2,2\nb,d2,4\n";
-    let ds = Dataset::from_csv("rec.csv", text, &recipe.columns).unwrap();
-    let message = Plan::new(&ds, &recipe).err().expect("refused").to_string();
+    let ds = input::trial_table("rec.csv", text, &recipe.columns).unwrap();
+    let message = Plan::new(ds.clone(), &recipe)
+        .err()
+        .expect("refused")
+        .to_string();
     assert!(message.contains("leaving out group 'd1'"), "{message}");
 }
 
 #[test]
 fn a_trial_counter_column_is_flagged() {
-    let ds = Dataset::from_csv(
+    let ds = input::trial_table(
         "rec.csv",
         b"trial,odour,n1\n1,a,0.3\n2,b,0.1\n3,a,0.7\n4,b,0.2\n",
         &columns("odour"),

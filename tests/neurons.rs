@@ -1,8 +1,10 @@
 //! What each neuron contributes: weights against activation patterns, the dropping curve, single neurons.
 
-use popdecode::data::Dataset;
-use popdecode::decoders::Classifier;
-use popdecode::neurons::{linear, run_all, NeuronsPlan};
+use popdecode::analyses::neurons::report::linear;
+use popdecode::analyses::neurons::report::NeuronsReport;
+use popdecode::analyses::neurons::{run_all, NeuronsPlan};
+use popdecode::input;
+use popdecode::recipe::Classifier;
 use popdecode::recipe::Recipe;
 use popdecode::rng::{normal, task_rng, unit, Stream};
 use popdecode::simulate::{csv, Scenario};
@@ -38,7 +40,7 @@ fn a_noise_cancelling_neuron_has_a_large_weight_and_no_pattern() {
     ] {
         let mut recipe = Recipe::new("side");
         recipe.classifier = classifier;
-        let data = Dataset::from_csv("two.csv", text.as_bytes(), &recipe.columns).unwrap();
+        let data = input::trial_table("two.csv", text.as_bytes(), &recipe.columns).unwrap();
         let l = linear(&data, &recipe).expect("a linear decoder");
         assert_eq!(l.weights.len(), 2, "one row per neuron");
         // Two classes: one output per neuron for SVM and logistic; LDA has one per class, use the difference.
@@ -68,7 +70,7 @@ fn a_noise_cancelling_neuron_has_a_large_weight_and_no_pattern() {
         classifier: Classifier::NearestMean,
         ..Recipe::new("side")
     };
-    let data = Dataset::from_csv("two.csv", text.as_bytes(), &recipe.columns).unwrap();
+    let data = input::trial_table("two.csv", text.as_bytes(), &recipe.columns).unwrap();
     assert!(
         linear(&data, &recipe).is_none(),
         "nearest-mean has no weights"
@@ -92,8 +94,8 @@ fn dropping_curve_rises_with_independent_informative_neurons() {
     recipe.repeats = 10;
     recipe.columns.ignore = vec!["session".into()];
     let text = csv(&scenario);
-    let data = Dataset::from_csv("pop.csv", text.as_bytes(), &recipe.columns).unwrap();
-    let plan = NeuronsPlan::new(&data, &recipe, 12).unwrap();
+    let data = input::trial_table("pop.csv", text.as_bytes(), &recipe.columns).unwrap();
+    let plan = NeuronsPlan::new(data.clone(), &recipe, 12).unwrap();
     let r = run_all(&plan);
     let sizes: Vec<usize> = r.dropping.iter().map(|d| d.size).collect();
     assert_eq!(sizes, vec![1, 2, 4, 8, 16]);
@@ -122,8 +124,8 @@ fn outcome_order_does_not_matter() {
         units: 6,
         ..Scenario::odours()
     });
-    let data = Dataset::from_csv("o.csv", text.as_bytes(), &recipe.columns).unwrap();
-    let plan = NeuronsPlan::new(&data, &recipe, 3).unwrap();
+    let data = input::trial_table("o.csv", text.as_bytes(), &recipe.columns).unwrap();
+    let plan = NeuronsPlan::new(data.clone(), &recipe, 3).unwrap();
     let forward: Vec<_> = plan.tasks().into_iter().map(|t| plan.run(t)).collect();
     let mut backward: Vec<_> = plan
         .tasks()
@@ -132,8 +134,8 @@ fn outcome_order_does_not_matter() {
         .map(|t| plan.run(t))
         .collect();
     assert_eq!(
-        plan.report(&forward).to_json(),
-        plan.report(&backward).to_json()
+        NeuronsReport::build(&plan, &forward).to_json(),
+        NeuronsReport::build(&plan, &backward).to_json()
     );
     backward.reverse();
     assert_eq!(forward, backward);

@@ -3,11 +3,11 @@
 mod common;
 
 use common::{analyse, no_information, recipe};
-use popdecode::data::Dataset;
-use popdecode::decoders::Classifier;
-use popdecode::protocol::{Outcome, Plan};
+use popdecode::analyses::trial_table::report::Report;
+use popdecode::analyses::trial_table::{Outcome, Plan};
+use popdecode::input;
+use popdecode::recipe::Classifier;
 use popdecode::recipe::Folds;
-use popdecode::report::Report;
 use popdecode::simulate::{self, Scenario};
 use popdecode::stats::binomial;
 
@@ -121,8 +121,8 @@ fn odour_plan_outcomes(reverse: bool) -> Report {
     let mut r = recipe(Classifier::LinearSvm, 6, 5);
     r.columns.group = Some("session".into());
     r.folds = Folds::K(3);
-    let data = Dataset::from_csv("odours.csv", csv.as_bytes(), &r.columns).unwrap();
-    let plan = Plan::new(&data, &r).unwrap();
+    let data = input::trial_table("odours.csv", csv.as_bytes(), &r.columns).unwrap();
+    let plan = Plan::new(data.clone(), &r).unwrap();
     let mut tasks = plan.tasks();
     if reverse {
         tasks.reverse();
@@ -156,9 +156,9 @@ fn leave_one_out_with_a_constant_feature() {
     for classifier in Classifier::ALL {
         let mut r = recipe(classifier, 1, 9);
         r.folds = Folds::LeaveOneOut;
-        let data = Dataset::from_csv("t.csv", csv.as_bytes(), &r.columns).unwrap();
-        let plan = Plan::new(&data, &r).unwrap();
-        let report = popdecode::report::run_all(&plan);
+        let data = input::trial_table("t.csv", csv.as_bytes(), &r.columns).unwrap();
+        let plan = Plan::new(data.clone(), &r).unwrap();
+        let report = popdecode::analyses::trial_table::run_all(&plan);
         assert_eq!(report.design.folds, 12);
         assert!(
             report.summary.accuracy.mean > 0.9,

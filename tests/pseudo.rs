@@ -1,11 +1,12 @@
 //! Pseudo-populations from neurons recorded in separate sessions.
 
-use popdecode::data::Dataset;
-use popdecode::decoders::Classifier;
-use popdecode::protocol::{Plan, Split};
-use popdecode::pseudo;
+use popdecode::analyses::trial_table::run_all;
+use popdecode::analyses::trial_table::Plan;
+use popdecode::input;
+use popdecode::recipe::Classifier;
 use popdecode::recipe::Recipe;
-use popdecode::report::run_all;
+use popdecode::resample::pseudo;
+use popdecode::resample::Split;
 use popdecode::rng::{normal, task_rng, Stream};
 use std::fmt::Write;
 
@@ -56,9 +57,9 @@ fn recipe() -> Recipe {
 fn sessions_combine_into_a_better_decoder() {
     let text = sessions_table(0.5);
     let r = recipe();
-    let data = Dataset::from_csv("sessions.csv", text.as_bytes(), &r.columns).unwrap();
+    let data = input::trial_table("sessions.csv", text.as_bytes(), &r.columns).unwrap();
     assert_eq!(data.pseudo.as_ref().unwrap().len(), 18);
-    let plan = Plan::new(&data, &r).unwrap();
+    let plan = Plan::new(data.clone(), &r).unwrap();
     assert_eq!(plan.scheme.split, Split::Pseudo { folds: 5 });
     // 30 trials per (session, condition) in 5 folds: 6 per fold, so 6 × 5 × 2 = 60 pseudo-trials per repeat.
     assert_eq!(plan.scheme.trials_per_repeat, 60);
@@ -73,8 +74,8 @@ fn sessions_combine_into_a_better_decoder() {
     single.shuffles = 0;
     single.columns.pseudo = None;
     single.columns.ignore = vec!["session".into()];
-    let one_session = Dataset::from_csv("s0.csv", s0.as_bytes(), &single.columns).unwrap();
-    let one = run_all(&Plan::new(&one_session, &single).unwrap());
+    let one_session = input::trial_table("s0.csv", s0.as_bytes(), &single.columns).unwrap();
+    let one = run_all(&Plan::new(one_session.clone(), &single).unwrap());
     assert!(
         all.summary.accuracy.mean > one.summary.accuracy.mean + 0.05,
         "{} vs {}",
@@ -86,7 +87,7 @@ fn sessions_combine_into_a_better_decoder() {
         .warnings
         .iter()
         .any(|w| w.contains("noise correlations")));
-    let methods = popdecode::report::methods::paragraph(&all);
+    let methods = popdecode::analyses::trial_table::methods::paragraph(&all);
     assert!(methods.contains("pseudo-trials"), "{methods}");
 }
 
@@ -96,7 +97,7 @@ fn sessions_combine_into_a_better_decoder() {
 fn folds_use_disjoint_real_trials() {
     let text = sessions_table(0.5);
     let r = recipe();
-    let data = Dataset::from_csv("sessions.csv", text.as_bytes(), &r.columns).unwrap();
+    let data = input::trial_table("sessions.csv", text.as_bytes(), &r.columns).unwrap();
     let x: Vec<f64> = data.x.iter().copied().collect();
     let (rows, labels, folds) = pseudo::build(
         &data,
@@ -133,7 +134,7 @@ fn folds_use_disjoint_real_trials() {
 fn bad_session_layouts_are_named() {
     let r = recipe();
     let shared = "session,cond,n1,n2\nS0,a,1,\nS1,b,2,3\n";
-    let e = Dataset::from_csv("x.csv", shared.as_bytes(), &r.columns)
+    let e = input::trial_table("x.csv", shared.as_bytes(), &r.columns)
         .unwrap_err()
         .to_string();
     assert!(
@@ -141,7 +142,7 @@ fn bad_session_layouts_are_named() {
         "{e}"
     );
     let gap = "session,cond,n1,n2\nS0,a,1,\nS0,b,,\nS1,a,,3\nS1,b,,4\n";
-    let e = Dataset::from_csv("x.csv", gap.as_bytes(), &r.columns)
+    let e = input::trial_table("x.csv", gap.as_bytes(), &r.columns)
         .unwrap_err()
         .to_string();
     assert!(
@@ -151,8 +152,8 @@ fn bad_session_layouts_are_named() {
     let text = sessions_table(0.5);
     let mut few = r.clone();
     few.folds = popdecode::recipe::Folds::K(40);
-    let data = Dataset::from_csv("sessions.csv", text.as_bytes(), &few.columns).unwrap();
-    let e = Plan::new(&data, &few).err().unwrap().to_string();
+    let data = input::trial_table("sessions.csv", text.as_bytes(), &few.columns).unwrap();
+    let e = Plan::new(data.clone(), &few).err().unwrap().to_string();
     assert!(
         e.contains("session 'S0' has 30 trials of 'a', fewer than the 40 folds"),
         "{e}"

@@ -1,15 +1,17 @@
 //! Time-resolved decoding on invented recordings: windows, clusters, generalization, and agreement with the
 //! trial-table protocol.
 
-use popdecode::data::Dataset;
-use popdecode::decoders::Classifier;
-use popdecode::protocol::{Plan, Task};
+use popdecode::analyses::time_course::TimePlan;
+use popdecode::analyses::time_course::{run_all, TimeReport};
+use popdecode::analyses::trial_table::report::Report;
+use popdecode::analyses::trial_table::Plan;
+use popdecode::data::time::TimeDataset;
+use popdecode::input;
+use popdecode::input::FileBytes;
+use popdecode::recipe::Classifier;
 use popdecode::recipe::{Recipe, TimeSettings};
-use popdecode::report::Report;
+use popdecode::resample::Task;
 use popdecode::simulate::{binned, spike_events, TimeScenario};
-use popdecode::timecourse::data::{FileBytes, TimeDataset};
-use popdecode::timecourse::plan::TimePlan;
-use popdecode::timecourse::report::{run_all, TimeReport};
 use std::fmt::Write;
 
 fn events_recipe(start: f64, end: f64, repeats: usize, shuffles: usize) -> Recipe {
@@ -29,7 +31,7 @@ fn load(files: &[(&str, &str)], recipe: &Recipe) -> popdecode::Result<TimeDatase
             bytes: text.as_bytes(),
         })
         .collect();
-    TimeDataset::load(&f, &recipe.columns, &recipe.time.as_ref().unwrap().input)
+    popdecode::input::time_course(&f, &recipe.columns, &recipe.time.as_ref().unwrap().input)
 }
 
 fn analyse(scenario: &TimeScenario, recipe: &Recipe) -> TimeReport {
@@ -39,7 +41,7 @@ fn analyse(scenario: &TimeScenario, recipe: &Recipe) -> TimeReport {
         recipe,
     )
     .expect("valid recording");
-    run_all(&TimePlan::new(&data, recipe).expect("valid plan"))
+    run_all(&TimePlan::new(data.clone(), recipe).expect("valid plan"))
 }
 
 /// The acceptance case (our own invented scenario): information only from 0.2 s to 0.6 s after onset.
@@ -238,7 +240,7 @@ fn each_window_equals_a_trial_table_analysis_of_that_window() {
         &recipe,
     )
     .unwrap();
-    let plan = TimePlan::new(&data, &recipe).unwrap();
+    let plan = TimePlan::new(data.clone(), &recipe).unwrap();
     let report = run_all(&plan);
     for w in [0, 3, data.windows.len() - 1] {
         let mut csv = String::from("odour,session");
@@ -263,8 +265,8 @@ fn each_window_equals_a_trial_table_analysis_of_that_window() {
         }
         let mut flat = recipe.clone();
         flat.time = None;
-        let table = Dataset::from_csv("window.csv", csv.as_bytes(), &flat.columns).unwrap();
-        let single = Plan::new(&table, &flat).unwrap();
+        let table = input::trial_table("window.csv", csv.as_bytes(), &flat.columns).unwrap();
+        let single = Plan::new(table.clone(), &flat).unwrap();
         let outcomes: Vec<_> = single.tasks().into_iter().map(|t| single.run(t)).collect();
         let r = Report::build(&single, &outcomes);
         let by_repeat: Vec<f64> = report.repeats.iter().map(|t| t.accuracy[w]).collect();
@@ -329,7 +331,7 @@ fn binned_table_reads_and_decodes() {
     assert_eq!(data.n_trials(), 120);
     assert_eq!(data.n_neurons(), 24);
     assert_eq!(data.windows[0].time, -0.45);
-    let r = run_all(&TimePlan::new(&data, &recipe).unwrap());
+    let r = run_all(&TimePlan::new(data.clone(), &recipe).unwrap());
     let curve = r.curve();
     // Inside the informative period the scenario is well above chance (1/3); before onset it is not.
     assert!(curve[7] > 0.6, "{curve:?}"); // 0.25 s
@@ -436,7 +438,7 @@ fn task_order_does_not_matter() {
         &recipe,
     )
     .unwrap();
-    let plan = TimePlan::new(&data, &recipe).unwrap();
+    let plan = TimePlan::new(data.clone(), &recipe).unwrap();
     let forward: Vec<_> = plan.tasks().into_iter().map(|t| plan.run(t)).collect();
     let mut backward: Vec<_> = plan
         .tasks()
@@ -469,7 +471,7 @@ fn poisson_bayes_on_events_uses_counts() {
         &recipe,
     )
     .unwrap();
-    let plan = TimePlan::new(&data, &recipe).unwrap();
+    let plan = TimePlan::new(data.clone(), &recipe).unwrap();
     assert!(
         plan.scheme
             .warnings

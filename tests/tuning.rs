@@ -1,11 +1,13 @@
 //! Nested selection of C: the outer test trials are never seen, and the choices are reported.
 
-use popdecode::data::Dataset;
-use popdecode::decoders::tuning::{Setting, Tuned};
-use popdecode::decoders::{fit_folds, Classifier, Decoder, FoldSet, Model};
-use popdecode::protocol::Plan;
+use popdecode::analyses::trial_table::run_all;
+use popdecode::analyses::trial_table::Plan;
+use popdecode::decoders::tuning::Tuned;
+use popdecode::decoders::{fit_folds, Decoder, FoldSet, Model};
+use popdecode::input;
+use popdecode::recipe::Classifier;
 use popdecode::recipe::Recipe;
-use popdecode::report::run_all;
+use popdecode::recipe::Setting;
 use std::sync::{Arc, Mutex};
 
 /// A decoder that writes down every training row it is given (rows carry a unique id in their only feature).
@@ -90,8 +92,8 @@ fn chosen_settings_are_reported() {
     recipe.repeats = 3;
     recipe.shuffles = 2;
     recipe.columns.ignore = vec!["session".into()];
-    let data = Dataset::from_csv("o.csv", text.as_bytes(), &recipe.columns).unwrap();
-    let report = run_all(&Plan::new(&data, &recipe).unwrap());
+    let data = input::trial_table("o.csv", text.as_bytes(), &recipe.columns).unwrap();
+    let report = run_all(&Plan::new(data.clone(), &recipe).unwrap());
     let t = report.tuning.as_ref().expect("a tuning summary");
     assert_eq!(t.grid.len(), 7);
     let total: usize = t.chosen.iter().map(|c| c.fits).sum();
@@ -100,11 +102,11 @@ fn chosen_settings_are_reported() {
     recipe.classifier = Classifier::RbfSvm;
     recipe.shuffles = 0;
     recipe.repeats = 1;
-    let report = run_all(&Plan::new(&data, &recipe).unwrap());
+    let report = run_all(&Plan::new(data.clone(), &recipe).unwrap());
     let t = report.tuning.as_ref().unwrap();
     assert_eq!(t.grid.len(), 21);
     assert!(t.grid.iter().all(|s| s.gamma_factor.is_some()));
     assert_eq!(t.chosen.iter().map(|c| c.fits).sum::<usize>(), 5);
     recipe.classifier = Classifier::ShrinkageLda;
-    assert!(Plan::new(&data, &recipe).is_err());
+    assert!(Plan::new(data.clone(), &recipe).is_err());
 }

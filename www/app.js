@@ -501,7 +501,7 @@
 
   function prepare(recipe) {
     const text = JSON.stringify(recipe);
-    return JSON.parse(isTime() ? wasm_bindgen.prepare_time(...fileArgs(), text) : wasm_bindgen.prepare(state.file.name, state.file.bytes, text));
+    return JSON.parse(wasm_bindgen.prepare(isTime() ? 'time' : 'table', ...fileArgs(), text, ''));
   }
 
   function cliLine(r) {
@@ -568,16 +568,13 @@
     });
   }
 
-  // How a run's workers are set up and its outcomes assembled: a trial table, a time course, or the neuron analyses.
+  // Which analysis a run is (a trial table, a time course, or the neuron analyses) and its options; the core's
+  // bridge has one prepare / run / finish shape for all of them.
   function mode(draws) {
-    if (draws !== undefined) {
-      return {
-        name: 'neurons', extra: draws,
-        finish: (recipe, outcomes) => wasm_bindgen.finish_neurons(state.file.name, state.file.bytes, recipe, draws, outcomes),
-      };
-    }
-    if (isTime()) return { name: 'time', finish: (recipe, outcomes) => wasm_bindgen.finish_time(...fileArgs(), recipe, outcomes) };
-    return { name: 'table', finish: (recipe, outcomes) => wasm_bindgen.finish(state.file.name, state.file.bytes, recipe, outcomes) };
+    const how = draws !== undefined ? { name: 'neurons', options: JSON.stringify({ draws }) }
+      : { name: isTime() ? 'time' : 'table', options: '' };
+    how.finish = (recipe, outcomes) => wasm_bindgen.finish(how.name, ...fileArgs(), recipe, how.options, outcomes);
+    return how;
   }
 
   // Run a prepared recipe on a fresh worker pool; `done` receives the finished result.
@@ -597,7 +594,7 @@
       state.pool.push(worker);
       worker.onmessage = (ev) => onWorkerMessage(run, worker, ev.data);
       worker.onerror = (ev) => fail(run, 'a worker stopped: ' + (ev.message || 'unknown error'));
-      worker.postMessage({ type: 'init', module: state.module, mode: how.name, extra: how.extra, files: fileArgs(), recipe: run.recipe });
+      worker.postMessage({ type: 'init', module: state.module, kind: how.name, options: how.options, files: fileArgs(), recipe: run.recipe });
     }
   }
 
@@ -670,7 +667,7 @@
     try {
       recipe = readRecipe();
       recipe.shuffles = 0;
-      plan = JSON.parse(wasm_bindgen.prepare_neurons(state.file.name, state.file.bytes, JSON.stringify(recipe), draws));
+      plan = JSON.parse(wasm_bindgen.prepare('neurons', ...fileArgs(), JSON.stringify(recipe), JSON.stringify({ draws })));
     } catch (e) { showError('run-error', String(e)); return; }
     launch(recipe, plan, (result) => {
       state.neurons = result;

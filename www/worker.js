@@ -1,5 +1,5 @@
-// One decoding worker: its own wasm instance, running tasks (repeat i / shuffle j) the pool hands it, for a trial
-// table or a time course; or, once, reading a dropped NWB file into the extract the page and the pool decode from.
+// One decoding worker: its own wasm instance, running the tasks the pool hands it for any kind of analysis; or,
+// once, reading a dropped NWB file into the extract the page and the pool decode from.
 // Served page: the wasm-bindgen glue is loaded with importScripts. Offline file: the glue is concatenated in
 // front of this script inside a Blob, so `wasm_bindgen` already exists.
 /* global wasm_bindgen, importScripts */
@@ -8,7 +8,6 @@ if (typeof wasm_bindgen === 'undefined') {
   importScripts('pkg/popdecode.js');
 }
 let runner = null;
-let mode = 'table';
 
 // An NWB file is read lazily from the dropped File (FileReaderSync works in workers only): the core asks for the
 // pieces it needs through popdecodeReadAt. The HDF5 reader asks for many small pieces of metadata, so small reads
@@ -59,10 +58,7 @@ self.onmessage = async (event) => {
     if (msg.type === 'init') {
       await wasm_bindgen({ module_or_path: msg.module });
       wasm_bindgen.start();
-      mode = msg.mode;
-      if (mode === 'time') runner = new wasm_bindgen.TimeRunner(...msg.files, msg.recipe);
-      else if (mode === 'neurons') runner = new wasm_bindgen.NeuronsRunner(msg.files[0], msg.files[1], msg.recipe, msg.extra);
-      else runner = new wasm_bindgen.Runner(msg.files[0], msg.files[1], msg.recipe);
+      runner = new wasm_bindgen.Runner(msg.kind, ...msg.files, msg.recipe, msg.options);
       self.postMessage({ type: 'ready' });
     } else if (msg.type === 'extract') {
       // One NWB file into its extract; `read` is what the tables took (the hash reads every byte once more).
@@ -72,7 +68,7 @@ self.onmessage = async (event) => {
       const bytes = wasm_bindgen.extract_nwb(dropped.name, dropped.size);
       self.postMessage({ type: 'extracted', bytes, read: bytesRead - dropped.size }, [bytes.buffer]);
     } else if (msg.type === 'task') {
-      const outcome = mode === 'neurons' ? runner.run(JSON.stringify(msg.task)) : runner.run(msg.task.kind, msg.task.index);
+      const outcome = runner.run(JSON.stringify(msg.task));
       self.postMessage({ type: 'done', id: msg.id, outcome });
     }
   } catch (e) {

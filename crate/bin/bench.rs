@@ -14,16 +14,13 @@
 //! memory (defaults: the issue's target case, 1000 trials × 300 units × 40 windows, 5 folds × 10 repeats,
 //! 200 shuffles × 10 repeats, shrinkage LDA, every core). Prints the time and the fits per second.
 
-use popdecode::data::Dataset;
-use popdecode::decoders::Classifier;
-use popdecode::protocol::Plan;
-use popdecode::recipe::{Recipe, TimeSettings};
-use popdecode::report::run_all;
+use popdecode::analyses::time_course::{TimePlan, TimeReport};
+use popdecode::analyses::trial_table::{run_all, Plan};
+use popdecode::data::time::TimeDataset;
+use popdecode::input;
+use popdecode::recipe::windows::Window;
+use popdecode::recipe::{Classifier, Recipe, TimeSettings};
 use popdecode::simulate::{binned_trials, csv, Scenario, TimeScenario};
-use popdecode::timecourse::data::TimeDataset;
-use popdecode::timecourse::plan::TimePlan;
-use popdecode::timecourse::report::TimeReport;
-use popdecode::timecourse::windows::Window;
 use rayon::prelude::*;
 use std::time::Instant;
 
@@ -51,9 +48,9 @@ fn trial_table(args: &[String]) {
         recipe.columns.ignore = vec!["session".into()];
         recipe.classifier = classifier;
         recipe.shuffles = 0;
-        let data =
-            Dataset::from_csv("bench.csv", table.as_bytes(), &recipe.columns).expect("valid table");
-        let plan = Plan::new(&data, &recipe).expect("valid plan");
+        let data = input::trial_table("bench.csv", table.as_bytes(), &recipe.columns)
+            .expect("valid table");
+        let plan = Plan::new(data, &recipe).expect("valid plan");
         let start = Instant::now();
         let report = run_all(&plan);
         let seconds = start.elapsed().as_secs_f64();
@@ -61,8 +58,8 @@ fn trial_table(args: &[String]) {
             "{:<14} {:>8.3} s for {} trials x {} units, {} repeats x 5 folds (accuracy {:.3})",
             classifier.name(),
             seconds,
-            data.n_trials(),
-            data.n_features(),
+            plan.data.n_trials(),
+            plan.data.n_features(),
             recipe.repeats,
             report.summary.accuracy.mean
         );
@@ -87,15 +84,15 @@ fn rbf(args: &[String]) {
     recipe.repeats = 10;
     recipe.shuffles = 0;
     let data =
-        Dataset::from_csv("bench.csv", table.as_bytes(), &recipe.columns).expect("valid table");
-    let plan = Plan::new(&data, &recipe).expect("valid plan");
+        input::trial_table("bench.csv", table.as_bytes(), &recipe.columns).expect("valid table");
+    let plan = Plan::new(data, &recipe).expect("valid plan");
     let start = Instant::now();
     let report = run_all(&plan);
     println!(
         "rbf-svm        {:>8.3} s for {} trials x {} units, {} repeats x 5 folds (accuracy {:.3})",
         start.elapsed().as_secs_f64(),
-        data.n_trials(),
-        data.n_features(),
+        plan.data.n_trials(),
+        plan.data.n_features(),
         recipe.repeats,
         report.summary.accuracy.mean
     );
@@ -208,7 +205,8 @@ fn timecourse(args: &[String]) {
     let mut settings = TimeSettings::binned("trial", "time");
     settings.generalize = args.iter().any(|a| a == "--generalize");
     recipe.time = Some(settings);
-    let plan = TimePlan::new(&data, &recipe).expect("valid plan");
+    let (n_trials, units_kept) = (data.n_trials(), data.n_neurons());
+    let plan = TimePlan::new(data, &recipe).expect("valid plan");
     let tasks = plan.tasks();
     let fits: usize = tasks.iter().map(|&t| plan.fits_in(t)).sum();
     let pool = rayon::ThreadPoolBuilder::new()
@@ -225,8 +223,8 @@ fn timecourse(args: &[String]) {
          {} fits ({:.0} fits/s, {} threads; peak accuracy {:.3})",
         classifier.name(),
         seconds,
-        data.n_trials(),
-        units,
+        n_trials,
+        units_kept,
         windows,
         recipe.repeats,
         recipe.shuffles,

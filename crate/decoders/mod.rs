@@ -1,8 +1,8 @@
 //! Decoders: one trait, a registry, and the fitted pipeline that keeps standardisation inside the training fold.
 //!
 //! Adding a decoder: write a module with a type implementing [`Decoder`] (fit on standardised training rows, return
-//! a [`Model`] that predicts class indices), then add one variant to [`Classifier`] and one arm to
-//! [`Classifier::build`]. The protocol, the reports and every face pick it up from there.
+//! a [`Model`] that predicts class indices), then add one variant to the recipe's [`Classifier`] and one arm to
+//! [`build`] and [`describe`] here. The protocol, the reports and every face pick it up from there.
 
 pub mod gaussian_nb;
 pub mod linalg;
@@ -15,7 +15,7 @@ pub mod shrinkage_lda;
 pub mod standardise;
 pub mod tuning;
 
-use serde::{Deserialize, Serialize};
+use crate::recipe::{Classifier, Setting};
 use standardise::Standardiser;
 
 /// Something that learns from a training fold.
@@ -120,6 +120,59 @@ pub fn fit_folds(decoder: &dyn Decoder, set: &FoldSet) -> Vec<Option<FittedPipel
         .collect()
 }
 
+/// Test predictions of one split, every fold predicted by the pipeline fitted without it.
+pub struct CrossValidated {
+    /// Predicted class of each row of the set (`usize::MAX` for a row whose fold had no model).
+    pub labels: Vec<usize>,
+    pub fits: u32,
+    /// Fits whose solver stopped at its iteration cap.
+    pub capped: u32,
+    /// Fits whose training fold held a single class.
+    pub single_class: u32,
+    /// With tuning, the setting chosen in each fit, in fold order.
+    pub chosen: Vec<Setting>,
+}
+
+/// Fit on every fold but one, predict that one: a prediction for every row of the set.
+pub fn cross_validate(decoder: &dyn Decoder, set: &FoldSet) -> CrossValidated {
+    let mut out = CrossValidated {
+        labels: vec![usize::MAX; set.y.len()],
+        fits: 0,
+        capped: 0,
+        single_class: 0,
+        chosen: Vec::new(),
+    };
+    for (f, model) in fit_folds(decoder, set).into_iter().enumerate() {
+        let Some(model) = model else { continue };
+        let (_, test) = set.partition(f);
+        let predicted = model.predict(set.rows(&test));
+        for (&pos, c) in test.iter().zip(predicted) {
+            out.labels[pos] = c;
+        }
+        out.fits += 1;
+        out.capped += u32::from(model.hit_iteration_cap());
+        out.single_class += u32::from(model.single_class());
+        out.chosen.extend(model.chosen());
+    }
+    out
+}
+
+/// Kernel matrices above this size (256 MB per worker) are worth a warning on the page.
+const RBF_KERNEL_WARNING_BYTES: usize = 256 << 20;
+
+/// A warning when a decoder will need more memory per fit than a browser tab comfortably gives, for training
+/// folds of up to `trials` trials.
+pub fn memory_warning(classifier: Classifier, trials: usize) -> Option<String> {
+    let bytes = rbf_svm::kernel_bytes(trials);
+    (classifier == Classifier::RbfSvm && bytes > RBF_KERNEL_WARNING_BYTES).then(|| {
+        format!(
+            "the RBF SVM keeps a kernel matrix of up to {} MB per training fold; in a browser tab with several \
+             workers this can run out of memory (the command line has no such limit)",
+            bytes >> 20
+        )
+    })
+}
+
 /// A fitted decoder.
 pub trait Model: Send {
     /// Class index for each row of row-major `x` (standardised like the training data).
@@ -134,170 +187,95 @@ pub trait Model: Send {
         None
     }
     /// The setting chosen by nested cross-validation, for a tuned decoder.
-    fn chosen(&self) -> Option<tuning::Setting> {
+    fn chosen(&self) -> Option<Setting> {
         None
     }
 }
 
-/// The decoders a recipe can name.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum Classifier {
-    LinearSvm,
-    ShrinkageLda,
-    NearestMean,
-    GaussianNb,
-    PoissonNb,
-    Logistic,
-    RbfSvm,
+/// The decoder a recipe names, with its setting chosen inside each training fold when `tune` is set.
+pub fn build(classifier: Classifier, c: f64, tune: bool) -> Box<dyn Decoder> {
+    match (tune, classifier.grid()) {
+        (true, Some(grid)) => Box::new(tuning::Tuned {
+            build: Box::new(move |s: Setting| build_setting(classifier, s)),
+            grid,
+            standardise: !classifier.needs_counts(),
+        }),
+        _ => build_plain(classifier, c),
+    }
 }
 
-impl Classifier {
-    pub const ALL: [Classifier; 7] = [
-        Classifier::LinearSvm,
-        Classifier::ShrinkageLda,
-        Classifier::NearestMean,
-        Classifier::GaussianNb,
-        Classifier::PoissonNb,
-        Classifier::Logistic,
-        Classifier::RbfSvm,
-    ];
-
-    /// The spelling used in recipes and on the command line.
-    pub fn name(self) -> &'static str {
-        match self {
-            Classifier::LinearSvm => "linear-svm",
-            Classifier::ShrinkageLda => "shrinkage-lda",
-            Classifier::NearestMean => "nearest-mean",
-            Classifier::GaussianNb => "gaussian-nb",
-            Classifier::PoissonNb => "poisson-nb",
-            Classifier::Logistic => "logistic",
-            Classifier::RbfSvm => "rbf-svm",
-        }
+/// The decoder at one grid point.
+pub fn build_setting(classifier: Classifier, s: Setting) -> Box<dyn Decoder> {
+    match classifier {
+        Classifier::RbfSvm => Box::new(rbf_svm::RbfSvm {
+            c: s.c,
+            gamma_factor: s.gamma_factor.unwrap_or(1.0),
+        }),
+        other => build_plain(other, s.c),
     }
+}
 
-    pub fn from_name(name: &str) -> Option<Classifier> {
-        Classifier::ALL.into_iter().find(|c| c.name() == name)
+fn build_plain(classifier: Classifier, c: f64) -> Box<dyn Decoder> {
+    match classifier {
+        Classifier::LinearSvm => Box::new(linear_svm::LinearSvm { c }),
+        Classifier::ShrinkageLda => Box::new(shrinkage_lda::ShrinkageLda),
+        Classifier::NearestMean => Box::new(nearest_mean::NearestMean),
+        Classifier::GaussianNb => Box::new(gaussian_nb::GaussianNb),
+        Classifier::PoissonNb => Box::new(poisson_nb::PoissonNb),
+        Classifier::Logistic => Box::new(logistic::Logistic { c }),
+        Classifier::RbfSvm => Box::new(rbf_svm::RbfSvm {
+            c,
+            gamma_factor: 1.0,
+        }),
     }
+}
 
-    /// Whether the regularisation constant C means anything for this decoder.
-    pub fn uses_c(self) -> bool {
-        matches!(
-            self,
-            Classifier::LinearSvm | Classifier::Logistic | Classifier::RbfSvm
-        )
-    }
-
-    /// Whether the decoder models raw spike counts (and so needs non-negative values and no standardisation).
-    pub fn needs_counts(self) -> bool {
-        matches!(self, Classifier::PoissonNb)
-    }
-
-    /// One sentence for the methods paragraph.
-    /// `c` is `None` when C was chosen by nested cross-validation.
-    pub fn describe(self, c: Option<f64>) -> String {
-        let c = c.map_or("C chosen within each training fold".to_string(), |c| {
-            format!("C = {c}")
-        });
-        match self {
-            Classifier::LinearSvm => format!(
-                "a linear support vector machine (L2-regularised squared hinge loss with the intercept as a \
-                 constant feature, {c}, one-vs-rest for more than two classes), minimised in the primal by the \
-                 finite Newton method (Keerthi & DeCoste, 2005) when a training fold had more trials than features \
-                 and otherwise in the dual by coordinate descent (Hsieh et al., 2008; stopping tolerance {} on the \
-                 projected gradient, at most {} passes)",
-                linear_svm::TOLERANCE,
-                linear_svm::MAX_PASSES
-            ),
-            Classifier::ShrinkageLda => "linear discriminant analysis with a pooled within-class covariance \
-                 regularised by Ledoit–Wolf analytic shrinkage (Ledoit & Wolf, 2004) and class priors equal to the \
-                 training-fold class proportions"
-                .to_string(),
-            Classifier::NearestMean => "a nearest-class-mean decoder assigning each test trial to the class whose \
-                 mean training pattern correlated best with it across features (Pearson correlation)"
-                .to_string(),
-            Classifier::GaussianNb => format!(
-                "Gaussian naive Bayes (independent normal features per class, maximum-likelihood class variances \
-                 increased by {} times the largest feature variance, priors equal to the training-fold class \
-                 proportions, as scikit-learn's GaussianNB)",
-                gaussian_nb::VAR_SMOOTHING
-            ),
-            Classifier::PoissonNb => "Poisson naive Bayes on the values as given, without standardisation \
-                 (independent Poisson counts per neuron and class, rates (sum + 0.5)/n, priors equal to the \
-                 training-fold class proportions)"
-                .to_string(),
-            Classifier::Logistic => format!(
-                "logistic regression with an L2 penalty ({c}; binary for two classes, multinomial otherwise; \
-                 unpenalised intercepts), minimised by limited-memory BFGS to a relative gradient norm of {} (at \
-                 most {} iterations)",
-                logistic::TOLERANCE,
-                logistic::MAX_ITERATIONS
-            ),
-            Classifier::RbfSvm => format!(
-                "a support vector machine with a Gaussian kernel ({c}; kernel width γ = 1/(features × variance of \
-                 the standardised training values)), one machine per pair of classes with voting, solved by SMO \
-                 with second-order working-set selection (Fan, Chen & Lin, 2005; tolerance {})",
-                rbf_svm::TOLERANCE
-            ),
-        }
-    }
-
-    /// The setting grid nested cross-validation searches, for decoders that have a setting.
-    pub fn grid(self) -> Option<Vec<tuning::Setting>> {
-        let gammas: &[Option<f64>] = if self == Classifier::RbfSvm {
-            &[Some(0.1), Some(1.0), Some(10.0)]
-        } else {
-            &[None]
-        };
-        debug_assert!(self != Classifier::RbfSvm || gammas.len() == tuning::GAMMA_FACTORS.len());
-        self.uses_c().then(|| {
-            tuning::C_GRID
-                .iter()
-                .flat_map(|&c| {
-                    gammas
-                        .iter()
-                        .map(move |&gamma_factor| tuning::Setting { c, gamma_factor })
-                })
-                .collect()
-        })
-    }
-
-    /// The decoder, with its setting chosen inside each training fold when `tune` is set.
-    pub fn build_tuned(self, c: f64, tune: bool) -> Box<dyn Decoder> {
-        match (tune, self.grid()) {
-            (true, Some(grid)) => Box::new(tuning::Tuned {
-                build: Box::new(move |s: tuning::Setting| self.build_setting(s)),
-                grid,
-                standardise: !self.needs_counts(),
-            }),
-            _ => self.build(c),
-        }
-    }
-
-    /// The decoder at one grid point.
-    pub fn build_setting(self, s: tuning::Setting) -> Box<dyn Decoder> {
-        match self {
-            Classifier::RbfSvm => Box::new(rbf_svm::RbfSvm {
-                c: s.c,
-                gamma_factor: s.gamma_factor.unwrap_or(1.0),
-            }),
-            other => other.build(s.c),
-        }
-    }
-
-    pub fn build(self, c: f64) -> Box<dyn Decoder> {
-        match self {
-            Classifier::LinearSvm => Box::new(linear_svm::LinearSvm { c }),
-            Classifier::ShrinkageLda => Box::new(shrinkage_lda::ShrinkageLda),
-            Classifier::NearestMean => Box::new(nearest_mean::NearestMean),
-            Classifier::GaussianNb => Box::new(gaussian_nb::GaussianNb),
-            Classifier::PoissonNb => Box::new(poisson_nb::PoissonNb),
-            Classifier::Logistic => Box::new(logistic::Logistic { c }),
-            Classifier::RbfSvm => Box::new(rbf_svm::RbfSvm {
-                c,
-                gamma_factor: 1.0,
-            }),
-        }
+/// One sentence for the methods paragraph: the decoder, its setting and its citation. `c` is `None` when C was
+/// chosen by nested cross-validation.
+pub fn describe(classifier: Classifier, c: Option<f64>) -> String {
+    let c = c.map_or("C chosen within each training fold".to_string(), |c| {
+        format!("C = {c}")
+    });
+    match classifier {
+        Classifier::LinearSvm => format!(
+            "a linear support vector machine (L2-regularised squared hinge loss with the intercept as a \
+             constant feature, {c}, one-vs-rest for more than two classes), minimised in the primal by the \
+             finite Newton method (Keerthi & DeCoste, 2005) when a training fold had more trials than features \
+             and otherwise in the dual by coordinate descent (Hsieh et al., 2008; stopping tolerance {} on the \
+             projected gradient, at most {} passes)",
+            linear_svm::TOLERANCE,
+            linear_svm::MAX_PASSES
+        ),
+        Classifier::ShrinkageLda => "linear discriminant analysis with a pooled within-class covariance \
+             regularised by Ledoit–Wolf analytic shrinkage (Ledoit & Wolf, 2004) and class priors equal to the \
+             training-fold class proportions"
+            .to_string(),
+        Classifier::NearestMean => "a nearest-class-mean decoder assigning each test trial to the class whose \
+             mean training pattern correlated best with it across features (Pearson correlation)"
+            .to_string(),
+        Classifier::GaussianNb => format!(
+            "Gaussian naive Bayes (independent normal features per class, maximum-likelihood class variances \
+             increased by {} times the largest feature variance, priors equal to the training-fold class \
+             proportions, as scikit-learn's GaussianNB)",
+            gaussian_nb::VAR_SMOOTHING
+        ),
+        Classifier::PoissonNb => "Poisson naive Bayes on the values as given, without standardisation \
+             (independent Poisson counts per neuron and class, rates (sum + 0.5)/n, priors equal to the \
+             training-fold class proportions)"
+            .to_string(),
+        Classifier::Logistic => format!(
+            "logistic regression with an L2 penalty ({c}; binary for two classes, multinomial otherwise; \
+             unpenalised intercepts), minimised by limited-memory BFGS to a relative gradient norm of {} (at \
+             most {} iterations)",
+            logistic::TOLERANCE,
+            logistic::MAX_ITERATIONS
+        ),
+        Classifier::RbfSvm => format!(
+            "a support vector machine with a Gaussian kernel ({c}; kernel width γ = 1/(features × variance of \
+             the standardised training values)), one machine per pair of classes with voting, solved by SMO \
+             with second-order working-set selection (Fan, Chen & Lin, 2005; tolerance {})",
+            rbf_svm::TOLERANCE
+        ),
     }
 }
 
@@ -373,7 +351,7 @@ impl FittedPipeline {
     }
 
     /// The setting chosen inside the training fold, when the decoder was tuned.
-    pub fn chosen(&self) -> Option<tuning::Setting> {
+    pub fn chosen(&self) -> Option<Setting> {
         match &self.fitted {
             Fitted::Model(m) => m.chosen(),
             Fitted::OnlyClass(_) => None,

@@ -13,33 +13,11 @@
 //! turn, so the choice is reproducible and needs no random stream. Ties go to the smaller C (the simpler decoder).
 
 use super::{fit_folds, Decoder, FoldSet, Model};
-use crate::protocol::accuracies;
-use serde::{Deserialize, Serialize};
+use crate::recipe::Setting;
+use crate::resample::score::accuracies;
 
-/// The grid of C values tried (10⁻³ … 10³).
-pub const C_GRID: [f64; 7] = [1e-3, 1e-2, 1e-1, 1.0, 1e1, 1e2, 1e3];
-/// Factors on the default kernel width tried for the Gaussian-kernel SVM.
-pub const GAMMA_FACTORS: [f64; 3] = [0.1, 1.0, 10.0];
 /// Inner folds (fewer when a class has fewer training trials).
 pub const INNER_FOLDS: usize = 5;
-
-/// One point of a grid: C, and for the Gaussian-kernel SVM the factor on its default γ.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
-pub struct Setting {
-    pub c: f64,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub gamma_factor: Option<f64>,
-}
-
-impl std::fmt::Display for Setting {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        write!(f, "C = {}", self.c)?;
-        if let Some(g) = self.gamma_factor {
-            write!(f, ", γ × {g}")?;
-        }
-        Ok(())
-    }
-}
 
 /// A decoder whose setting is chosen by inner cross-validation on each training fold.
 pub struct Tuned {

@@ -11,8 +11,8 @@
 //! (each a u32 count; each a name and a column). A string is a u32 byte length and its UTF-8 bytes; a column is a
 //! kind byte (0 numbers, 1 texts), a u32 length and the values (f64, or strings).
 
-use super::data::SourceFile;
 use super::nwb::{require_hdf5, sha256_of, Column, Recording};
+use crate::data::SourceFile;
 use crate::error::{Error, Result};
 
 pub const MAGIC: &[u8] = b"popdecode-extract/1\n";
@@ -87,7 +87,7 @@ pub fn read_any(name: &str, bytes: &[u8]) -> Result<(Recording, SourceFile)> {
             Recording::read(name, bytes)?,
             SourceFile {
                 file: name.to_string(),
-                sha256: crate::data::sha256_hex(bytes),
+                sha256: super::sha256_hex(bytes),
             },
         )),
     }

@@ -56,7 +56,7 @@ pub struct Recording {
     /// Spike times of each unit, s on the session clock, ascending.
     pub spikes: Vec<Vec<f64>>,
     /// Per-unit columns of the units table (quality, brain area, ...: one value per unit), in file order; what
-    /// [`super::unit_filter`] keeps units by.
+    /// [`super::units`] keeps units by.
     pub unit_columns: Vec<(String, Column)>,
     /// Trials-table columns in file order.
     pub trials: Vec<(String, Column)>,

@@ -2,11 +2,23 @@
 //!
 //! The CLI writes it next to its results and reads it back with `--recipe`; the page saves and loads the same file.
 //! Two runs with equal recipes on files with equal SHA-256 give identical results on every face.
+//!
+//! The recipe is plain data at the bottom of the layers: every layer may read it, and it imports nothing but the
+//! error type. What a setting *means* lives with the layer that acts on it (a decoder's name here, its fitting in
+//! `decoders/`; a unit filter's rule here, its application to a recording in `input/`).
 
-use crate::data::Columns;
-use crate::decoders::Classifier;
+pub mod classifier;
+pub mod columns;
+pub mod time;
+pub mod units;
+pub mod windows;
+
+pub use classifier::{Classifier, Setting};
+pub use columns::Columns;
+pub use time::{TimeInput, TimeSettings};
+pub use units::UnitFilter;
+
 use crate::error::{Error, Result};
-use crate::timecourse::unit_filter::UnitFilter;
 use serde::{Deserialize, Deserializer, Serialize, Serializer};
 
 /// Marks a file as a popdecode recipe and its version.
@@ -94,105 +106,6 @@ pub struct Recipe {
     /// Time-resolved analyses only: where the windows come from, and the time-course statistics.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub time: Option<TimeSettings>,
-}
-
-/// Settings of a time-resolved analysis. Times are in seconds, relative to each trial's alignment event.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub struct TimeSettings {
-    pub input: TimeInput,
-    /// Also train at every window and test at every other (temporal generalization).
-    #[serde(default)]
-    pub generalize: bool,
-    /// Clusters with a permutation p below this are significant.
-    pub alpha: f64,
-}
-
-/// Where the windows come from.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-#[serde(tag = "kind", rename_all = "snake_case", deny_unknown_fields)]
-pub enum TimeInput {
-    /// One row per trial × bin: the trial id column and the bin time column (s); every bin is a window.
-    Binned { trial: String, time: String },
-    /// Spike events (trial, neuron, time columns) and a trial table (the trial column again, label, group, and an
-    /// optional alignment column holding each trial's alignment time, for events given in absolute time).
-    Events {
-        trial: String,
-        neuron: String,
-        time: String,
-        #[serde(default)]
-        align: Option<String>,
-        /// Window width, s.
-        width: f64,
-        /// Step between window starts, s.
-        step: f64,
-        /// Start of the first window, s.
-        start: f64,
-        /// No window extends past this, s.
-        end: f64,
-    },
-    /// An NWB file: units' spike times and the trials table; `align` names the trials column holding each
-    /// trial's alignment time (default `start_time`).
-    Nwb {
-        #[serde(default)]
-        align: Option<String>,
-        width: f64,
-        step: f64,
-        start: f64,
-        end: f64,
-        /// Keep only the units that pass all of these (none: every unit).
-        #[serde(default, skip_serializing_if = "Vec::is_empty")]
-        units: Vec<UnitFilter>,
-    },
-}
-
-impl TimeSettings {
-    /// Defaults for spike events: 0.1 s windows stepped by 0.05 s over the given span, events columns named
-    /// `trial`, `neuron` and `time`.
-    pub fn events(start: f64, end: f64) -> TimeSettings {
-        TimeSettings {
-            input: TimeInput::Events {
-                trial: "trial".into(),
-                neuron: "neuron".into(),
-                time: "time".into(),
-                align: None,
-                width: 0.1,
-                step: 0.05,
-                start,
-                end,
-            },
-            generalize: false,
-            alpha: 0.05,
-        }
-    }
-
-    /// Defaults for an NWB file: 0.1 s windows stepped by 0.05 s over the given span, aligned to `start_time`.
-    pub fn nwb(start: f64, end: f64) -> TimeSettings {
-        TimeSettings {
-            input: TimeInput::Nwb {
-                align: None,
-                width: 0.1,
-                step: 0.05,
-                start,
-                end,
-                units: Vec::new(),
-            },
-            generalize: false,
-            alpha: 0.05,
-        }
-    }
-
-    /// Defaults for a binned table with the given trial and time columns.
-    pub fn binned(trial: &str, time: &str) -> TimeSettings {
-        TimeSettings {
-            input: TimeInput::Binned {
-                trial: trial.into(),
-                time: time.into(),
-            },
-            generalize: false,
-            alpha: 0.05,
-        }
-    }
 }
 
 impl Recipe {
@@ -292,7 +205,7 @@ impl Recipe {
                 ..
             } = t.input
             {
-                crate::timecourse::windows::sliding(start, end, width, step)?;
+                windows::sliding(start, end, width, step)?;
             }
             if let TimeInput::Nwb { units, .. } = &t.input {
                 units.iter().try_for_each(UnitFilter::validate)?;

@@ -1,24 +1,22 @@
-//! Figures as SVG text, drawn by the core so that the page, the offline file and the CLI show the same picture.
+//! SVG primitives every analysis's figures share: the canvas, escaping, axes in percent, round tick steps and a
+//! histogram with labelled markers.
 //!
-//! Plain SVG written here rather than a plotting crate: the figures are three simple kinds (a histogram with marker
-//! lines, and a heatmap), SVG needs no font metrics from the DOM, and the output is byte-identical on every face.
-//! Every string from the user's file is escaped. Information never rides on colour alone: bars and lines are
-//! labelled, heatmap cells carry their percentage as text.
+//! Figures are drawn by the core as SVG text, so that the page, the offline file and the CLI show the same picture
+//! byte for byte. Plain SVG written here rather than a plotting crate: the figures are simple, SVG needs no font
+//! metrics from the DOM, and nothing depends on a library's layout. Every string from the user's file is escaped.
+//! Information never rides on colour alone: bars and lines are labelled, heatmap cells carry their value as text.
 
-use super::text::{p_text, pct};
-use super::Report;
-use crate::protocol::Headline;
 use std::fmt::Write;
 
-pub(crate) const W: f64 = 560.0;
-pub(crate) const H: f64 = 340.0;
-pub(crate) const LEFT: f64 = 56.0;
-pub(crate) const RIGHT: f64 = 20.0;
-pub(crate) const TOP: f64 = 44.0;
-pub(crate) const BOTTOM: f64 = 52.0;
-pub(crate) const INK: &str = "#1f2933";
-pub(crate) const BAR: &str = "#5b7fa6";
-pub(crate) const NULL_BAR: &str = "#a7a9ac";
+pub const W: f64 = 560.0;
+pub const H: f64 = 340.0;
+pub const LEFT: f64 = 56.0;
+pub const RIGHT: f64 = 20.0;
+pub const TOP: f64 = 44.0;
+pub const BOTTOM: f64 = 52.0;
+pub const INK: &str = "#1f2933";
+pub const BAR: &str = "#5b7fa6";
+pub const NULL_BAR: &str = "#a7a9ac";
 
 /// Escape text for SVG content and attribute values.
 pub fn esc(s: &str) -> String {
@@ -36,7 +34,8 @@ pub fn esc(s: &str) -> String {
     out
 }
 
-pub(crate) fn open(svg: &mut String, title: &str, w: f64, h: f64) {
+/// Start an SVG of `w` × `h` with a white background and the title at the top.
+pub fn open(svg: &mut String, title: &str, w: f64, h: f64) {
     write!(
         svg,
         r#"<svg xmlns="http://www.w3.org/2000/svg" width="{w}" height="{h}" viewBox="0 0 {w} {h}" font-family="system-ui, sans-serif" font-size="12" role="img"><title>{t}</title><rect width="{w}" height="{h}" fill="white"/><text x="{x}" y="22" font-size="14" font-weight="600" fill="{INK}">{t}</text>"#,
@@ -47,7 +46,7 @@ pub(crate) fn open(svg: &mut String, title: &str, w: f64, h: f64) {
 }
 
 /// Ticks and labels in percent on a vertical axis at `LEFT`, every 10 points (5 when the range is narrow).
-pub(crate) fn percent_ticks(svg: &mut String, lo: f64, hi: f64, y: &dyn Fn(f64) -> f64) {
+pub fn percent_ticks(svg: &mut String, lo: f64, hi: f64, y: &dyn Fn(f64) -> f64) {
     let step = if hi - lo > 0.5 { 0.1 } else { 0.05 };
     let mut v = (lo / step).ceil() * step;
     while v <= hi + 1e-9 {
@@ -65,15 +64,21 @@ pub(crate) fn percent_ticks(svg: &mut String, lo: f64, hi: f64, y: &dyn Fn(f64) 
 }
 
 /// A vertical marker line with its label.
-struct Marker {
-    at: f64,
-    label: String,
-    dash: &'static str,
-    colour: &'static str,
+pub struct Marker {
+    pub at: f64,
+    pub label: String,
+    pub dash: &'static str,
+    pub colour: &'static str,
 }
 
 /// Histogram of scores in [0, 1] with labelled vertical markers.
-fn histogram(title: &str, x_label: &str, values: &[f64], markers: &[Marker], bar: &str) -> String {
+pub fn histogram(
+    title: &str,
+    x_label: &str,
+    values: &[f64],
+    markers: &[Marker],
+    bar: &str,
+) -> String {
     let mut lo = markers
         .iter()
         .map(|m| m.at)
@@ -171,171 +176,15 @@ fn histogram(title: &str, x_label: &str, values: &[f64], markers: &[Marker], bar
     svg
 }
 
-fn headline_name(r: &Report) -> &'static str {
-    match r.design.headline {
-        Headline::Accuracy => "accuracy",
-        Headline::BalancedAccuracy => "balanced accuracy",
-    }
-}
-
-/// Distribution of the headline score over repeats, with chance and the binomial threshold.
-pub fn score_distribution(r: &Report) -> String {
-    let values: Vec<f64> = r
-        .repeats
+/// Round tick step for a span: 1, 2 or 5 times a power of ten, about `target` ticks.
+pub fn tick_step(span: f64, target: f64) -> f64 {
+    let raw = (span / target).max(1e-9);
+    let mag = 10f64.powf(raw.log10().floor());
+    [1.0, 2.0, 5.0, 10.0]
         .iter()
-        .map(|x| {
-            if r.design.headline == Headline::Accuracy {
-                x.accuracy
-            } else {
-                x.balanced_accuracy
-            }
-        })
-        .collect();
-    let markers = [
-        Marker {
-            at: r.chance.level,
-            label: format!("chance {}", pct(r.chance.level)),
-            dash: "6 4",
-            colour: INK,
-        },
-        Marker {
-            at: r.chance.threshold,
-            label: format!(
-                "binomial α = {} threshold {}",
-                r.chance.alpha,
-                pct(r.chance.threshold)
-            ),
-            dash: "2 3",
-            colour: "#7a4f9a",
-        },
-        Marker {
-            at: r.headline().mean,
-            label: format!("mean {}", pct(r.headline().mean)),
-            dash: "none",
-            colour: "#1d4e89",
-        },
-    ];
-    let name = headline_name(r);
-    histogram(
-        &format!("Decoding {name} over {} repeats", values.len()),
-        name,
-        &values,
-        &markers,
-        BAR,
-    )
-}
-
-/// The shuffle null distribution with the observed score marked, or `None` without shuffles.
-pub fn null_distribution(r: &Report) -> Option<String> {
-    let p = r.shuffle.p_value?;
-    let markers = [
-        Marker {
-            at: r.shuffle.observed,
-            label: format!("observed {} (p = {})", pct(r.shuffle.observed), p_text(p)),
-            dash: "none",
-            colour: "#1d4e89",
-        },
-        Marker {
-            at: r.shuffle.null_p95.unwrap_or(f64::NAN),
-            label: format!(
-                "null 95th pct {}",
-                pct(r.shuffle.null_p95.unwrap_or(f64::NAN))
-            ),
-            dash: "2 3",
-            colour: INK,
-        },
-    ];
-    let title = format!(
-        "Shuffled labels: {} permutations × {} repeats",
-        r.shuffle.count, r.shuffle.repeats_each
-    );
-    Some(histogram(
-        &title,
-        headline_name(r),
-        &r.shuffle.null,
-        &markers,
-        NULL_BAR,
-    ))
-}
-
-/// Sequential light-to-dark blue (ColorBrewer "Blues" end points, Brewer 2003), readable by colour-blind viewers.
-fn blue(v: f64) -> (String, &'static str) {
-    let (a, b) = ([247.0, 251.0, 255.0], [8.0, 48.0, 107.0]);
-    let t = v.clamp(0.0, 1.0);
-    let c: Vec<u8> = (0..3)
-        .map(|i| (a[i] + (b[i] - a[i]) * t).round() as u8)
-        .collect();
-    (
-        format!("#{:02x}{:02x}{:02x}", c[0], c[1], c[2]),
-        if t > 0.55 { "#ffffff" } else { INK },
-    )
-}
-
-/// Row-normalised confusion matrix as a heatmap with percentages in the cells.
-pub fn confusion(r: &Report) -> String {
-    let k = r.classes.len();
-    let cell = (360.0 / k as f64).clamp(28.0, 72.0);
-    let label_w = 130.0;
-    let (w, h) = (
-        (label_w + cell * k as f64 + 30.0).max(400.0), // at least as wide as the title
-        TOP + 30.0 + cell * k as f64 + 40.0,
-    );
-    let x0 = label_w;
-    let y0 = TOP + 30.0;
-    let mut svg = String::new();
-    open(&mut svg, "Confusion matrix (% of each true class)", w, h);
-    let short = |s: &str| {
-        if s.chars().count() > 16 {
-            format!("{}…", s.chars().take(15).collect::<String>())
-        } else {
-            s.to_string()
-        }
-    };
-    for (j, c) in r.classes.iter().enumerate() {
-        write!(
-            svg,
-            r#"<text x="{:.1}" y="{:.1}" text-anchor="middle" fill="{INK}"><title>{full}</title>{}</text>"#,
-            x0 + cell * (j as f64 + 0.5),
-            y0 - 8.0,
-            esc(&short(c)),
-            full = esc(c)
-        )
-        .unwrap();
-    }
-    for (i, row) in r.summary.confusion.iter().enumerate() {
-        write!(
-            svg,
-            r#"<text x="{:.1}" y="{:.1}" text-anchor="end" fill="{INK}"><title>{full}</title>{}</text>"#,
-            x0 - 8.0,
-            y0 + cell * (i as f64 + 0.5) + 4.0,
-            esc(&short(&r.classes[i])),
-            full = esc(&r.classes[i])
-        )
-        .unwrap();
-        for (j, &v) in row.iter().enumerate() {
-            let (fill, ink) = blue(v);
-            write!(
-                svg,
-                r#"<rect x="{:.1}" y="{:.1}" width="{cell:.1}" height="{cell:.1}" fill="{fill}" stroke="white"/><text x="{:.1}" y="{:.1}" text-anchor="middle" fill="{ink}"{bold}>{:.0}</text>"#,
-                x0 + cell * j as f64,
-                y0 + cell * i as f64,
-                x0 + cell * (j as f64 + 0.5),
-                y0 + cell * (i as f64 + 0.5) + 4.0,
-                100.0 * v,
-                bold = if i == j { r#" font-weight="700""# } else { "" }
-            )
-            .unwrap();
-        }
-    }
-    write!(
-        svg,
-        r#"<text x="{:.1}" y="{:.1}" text-anchor="middle" fill="{INK}">predicted class</text><text transform="translate(14 {:.1}) rotate(-90)" text-anchor="middle" fill="{INK}">true class</text></svg>"#,
-        x0 + cell * k as f64 / 2.0,
-        h - 10.0,
-        y0 + cell * k as f64 / 2.0
-    )
-    .unwrap();
-    svg
+        .map(|m| m * mag)
+        .find(|&s| s >= raw)
+        .unwrap_or(10.0 * mag)
 }
 
 #[cfg(test)]
@@ -351,8 +200,8 @@ mod tests {
     }
 
     #[test]
-    fn colour_scale_runs_light_to_dark() {
-        assert_eq!(blue(0.0).0, "#f7fbff");
-        assert_eq!(blue(1.0).0, "#08306b");
+    fn ticks_are_round() {
+        assert_eq!(tick_step(1.0, 6.0), 0.2);
+        assert_eq!(tick_step(2.6, 6.0), 0.5);
     }
 }

@@ -1,8 +1,4 @@
-//! The plain-text summary printed by the CLI: one headline sentence, then tables.
-
-use super::Report;
-use crate::protocol::Headline;
-use std::fmt::Write;
+//! Text pieces every analysis's summary uses: percentages, p-values, seconds, the tuning line.
 
 /// Percent with one decimal.
 pub fn pct(v: f64) -> String {
@@ -16,126 +12,6 @@ pub fn p_text(p: f64) -> String {
     } else {
         format!("{p:.3}")
     }
-}
-
-/// The one sentence a reader needs first.
-pub fn headline_sentence(r: &Report) -> String {
-    let h = r.headline();
-    let what = match r.design.headline {
-        Headline::Accuracy => "accuracy",
-        Headline::BalancedAccuracy => "balanced accuracy",
-    };
-    let mut s = format!(
-        "'{}' decoded at {} ± {} {what} (mean ± SD over {} repeats; chance {})",
-        r.input.label_column,
-        pct(h.mean),
-        pct(h.sd),
-        r.repeats.len(),
-        pct(r.chance.level)
-    );
-    match r.shuffle.p_value {
-        Some(p) => write!(s, ", p = {} over {} shuffles", p_text(p), r.shuffle.count).unwrap(),
-        None => s.push_str(", no shuffle control run"),
-    }
-    s.push('.');
-    s
-}
-
-/// Headline, score table, per-class recall and confusion matrix.
-pub fn render(r: &Report) -> String {
-    let mut out = String::new();
-    writeln!(out, "{}\n", headline_sentence(r)).unwrap();
-    writeln!(
-        out,
-        "{:<20} {:>8} {:>8} {:>17}",
-        "score", "mean", "SD", "2.5–97.5 pct"
-    )
-    .unwrap();
-    for (name, s) in [
-        ("accuracy", &r.summary.accuracy),
-        ("balanced accuracy", &r.summary.balanced_accuracy),
-    ] {
-        writeln!(
-            out,
-            "{name:<20} {:>8} {:>8} {:>8}–{:<8}",
-            pct(s.mean),
-            pct(s.sd),
-            pct(s.p2_5),
-            pct(s.p97_5)
-        )
-        .unwrap();
-    }
-    writeln!(
-        out,
-        "{:<20} {:>8}   (binomial {} threshold for {} test trials: {})",
-        "chance",
-        pct(r.chance.level),
-        r.chance.alpha,
-        r.chance.test_trials,
-        pct(r.chance.threshold)
-    )
-    .unwrap();
-    if let (Some(mean), Some(sd), Some(p95), Some(p)) = (
-        r.shuffle.null_mean,
-        r.shuffle.null_sd,
-        r.shuffle.null_p95,
-        r.shuffle.p_value,
-    ) {
-        writeln!(
-            out,
-            "{:<20} {:>8} {:>8}   95th pct {}, p = {} ({} shuffles × {} repeats{})",
-            "shuffled labels",
-            pct(mean),
-            pct(sd),
-            pct(p95),
-            p_text(p),
-            r.shuffle.count,
-            r.shuffle.repeats_each,
-            if r.shuffle.within_groups {
-                ", within groups"
-            } else {
-                ""
-            }
-        )
-        .unwrap();
-    }
-    let width = r
-        .classes
-        .iter()
-        .map(|c| c.chars().count())
-        .max()
-        .unwrap_or(5)
-        .clamp(5, 24);
-    writeln!(
-        out,
-        "\nper-class recall and confusion (rows = true class, % of the row, mean over repeats):"
-    )
-    .unwrap();
-    write!(out, "{:<width$} {:>8} |", "class", "recall").unwrap();
-    for c in &r.classes {
-        write!(out, " {:>7}", clip(c, 7)).unwrap();
-    }
-    out.push('\n');
-    for (i, c) in r.classes.iter().enumerate() {
-        write!(
-            out,
-            "{:<width$} {:>8} |",
-            clip(c, width),
-            pct(r.summary.recall[i])
-        )
-        .unwrap();
-        for v in &r.summary.confusion[i] {
-            write!(out, " {:>7}", format!("{:.1}", 100.0 * v)).unwrap();
-        }
-        out.push('\n');
-    }
-    if let Some(t) = &r.tuning {
-        out.push_str(&tuning_line(t));
-    }
-    for w in &r.warnings {
-        writeln!(out, "\nnote: {w}").unwrap();
-    }
-    out
 }
 
 /// "C chosen in nested cross-validation: 0.1 in 12 fits, 1 in 488 fits".
@@ -159,12 +35,24 @@ pub fn tuning_line(t: &super::Tuning) -> String {
     )
 }
 
-fn clip(s: &str, n: usize) -> String {
+/// At most `n` characters, the last one an ellipsis when cut.
+pub fn clip(s: &str, n: usize) -> String {
     if s.chars().count() <= n {
         s.to_string()
     } else {
         let mut t: String = s.chars().take(n - 1).collect();
         t.push('…');
         t
+    }
+}
+
+/// Seconds as written in text and figures: at most three decimals, no trailing zeros, never "-0".
+pub fn seconds(v: f64) -> String {
+    let t = format!("{v:.3}");
+    let t = t.trim_end_matches('0').trim_end_matches('.');
+    if t == "-0" {
+        "0".into()
+    } else {
+        t.into()
     }
 }

@@ -1,7 +1,15 @@
-//! Resampling: which trials enter a repeat, how they are split into folds, and how labels are permuted.
+//! Resampling: which trials enter a repeat, how they are split into folds, and how labels are permuted; the scheme
+//! that resolves a recipe's resampling against the trials ([`scheme`]); pseudo-trials for neurons recorded in
+//! separate sessions ([`pseudo`]); and scoring pooled predictions ([`score`]).
 //!
 //! Every function takes the task's own random stream, so a repeat's trials and folds depend only on
 //! (seed, task coordinates) — never on which thread or worker runs it.
+
+pub mod pseudo;
+pub mod scheme;
+pub mod score;
+
+pub use scheme::{Draw, Headline, Scheme, Split, Task};
 
 use crate::rng::{below, shuffle};
 use rand_core::RngCore;

@@ -13,7 +13,7 @@
 //! The test says that the curve holds information somewhere in a cluster; it does not localise an onset to the
 //! window (Sassenhagen & Draschkow, 2019).
 
-use crate::stats::{percentile, permutation_p};
+use super::{percentile, permutation_p};
 use serde::{Deserialize, Serialize};
 
 /// Percentile of the null that each cell's score must exceed to enter a cluster.

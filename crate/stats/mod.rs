@@ -1,6 +1,7 @@
 //! Summaries across repeats, permutation p-values and the binomial chance threshold.
 
 pub mod binomial;
+pub mod clusters;
 
 use serde::{Deserialize, Serialize};
 

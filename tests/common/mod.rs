@@ -1,11 +1,12 @@
 //! Helpers shared by the integration tests: invented data and one-call analyses.
 #![allow(dead_code)]
 
-use popdecode::data::Dataset;
-use popdecode::decoders::Classifier;
-use popdecode::protocol::Plan;
+use popdecode::analyses::trial_table::report::Report;
+use popdecode::analyses::trial_table::run_all;
+use popdecode::analyses::trial_table::Plan;
+use popdecode::input;
+use popdecode::recipe::Classifier;
 use popdecode::recipe::Recipe;
-use popdecode::report::{run_all, Report};
 use popdecode::simulate::Scenario;
 
 /// Invented trials with no information about the label: every unit has the same rate in every class.
@@ -44,7 +45,7 @@ pub fn analyse(scenario: &Scenario, recipe: &Recipe) -> Report {
         }
     }
     let data =
-        Dataset::from_csv("invented.csv", csv.as_bytes(), &recipe.columns).expect("valid table");
-    let plan = Plan::new(&data, &recipe).expect("valid plan");
+        input::trial_table("invented.csv", csv.as_bytes(), &recipe.columns).expect("valid table");
+    let plan = Plan::new(data.clone(), &recipe).expect("valid plan");
     run_all(&plan)
 }

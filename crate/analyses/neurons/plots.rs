@@ -1,11 +1,11 @@
 //! The neuron figures as SVG: the dropping curve and the single-neuron ranking.
 
-use super::NeuronsReport;
-use crate::report::plots::{esc, open, percent_ticks, BAR, BOTTOM, H, INK, LEFT, RIGHT, TOP, W};
+use super::report::{NeuronsReport, SingleResult};
+use crate::report::svg::{esc, open, percent_ticks, BAR, BOTTOM, H, INK, LEFT, RIGHT, TOP, W};
 use std::fmt::Write;
 
 /// The headline mean of a single-neuron result.
-fn lead(r: &NeuronsReport, s: &super::SingleResult) -> f64 {
+fn lead(r: &NeuronsReport, s: &SingleResult) -> f64 {
     if r.headline == "accuracy" {
         s.accuracy.mean
     } else {

@@ -10,12 +10,13 @@
 //! A shuffle permutes the labels once (within groups when groups are set) and runs the recipe's repeats per
 //! shuffle over every window, so one permutation is used at every window: what the cluster test needs.
 
-use super::data::TimeDataset;
-use crate::decoders::{check_counts, fit_folds, Decoder, FittedPipeline, FoldSet};
+use crate::analyses::resolve_scheme;
+use crate::data::time::TimeDataset;
+use crate::decoders::{self, check_counts, fit_folds, Decoder, FittedPipeline, FoldSet};
 use crate::error::{Error, Result};
-use crate::protocol::{accuracies, Draw, Scheme, Task};
-use crate::recipe::{Recipe, TimeInput, TimeSettings};
-use crate::resample::permute_labels;
+use crate::recipe::{Recipe, Setting, TimeInput, TimeSettings};
+use crate::resample::score::accuracies;
+use crate::resample::{permute_labels, Draw, Scheme, Task};
 use crate::rng::{task_rng, Stream};
 use serde::{Deserialize, Serialize};
 
@@ -35,12 +36,12 @@ pub struct TimeOutcome {
     pub single_class_fits: u32,
     /// With tuning, the setting chosen in each fit of an observed repeat (window by window, folds in order).
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
-    pub chosen: Vec<crate::decoders::tuning::Setting>,
+    pub chosen: Vec<Setting>,
 }
 
-/// A time-resolved recipe checked against a recording.
-pub struct TimePlan<'a> {
-    pub data: &'a TimeDataset,
+/// A time-resolved recipe checked against a recording (which it owns, like the trial-table plan).
+pub struct TimePlan {
+    pub data: TimeDataset,
     pub recipe: Recipe,
     pub settings: TimeSettings,
     pub scheme: Scheme,
@@ -49,12 +50,12 @@ pub struct TimePlan<'a> {
     count_scale: Option<f64>,
 }
 
-impl<'a> TimePlan<'a> {
-    pub fn new(data: &'a TimeDataset, recipe: &Recipe) -> Result<TimePlan<'a>> {
+impl TimePlan {
+    pub fn new(data: TimeDataset, recipe: &Recipe) -> Result<TimePlan> {
         let settings = recipe.time.clone().ok_or_else(|| {
             Error::Recipe("this recipe has no time settings; it is for a trial table".into())
         })?;
-        let mut scheme = Scheme::resolve(&data.trials(), recipe)?;
+        let mut scheme = resolve_scheme(&data.trials(), recipe)?;
         let count_scale = match settings.input {
             TimeInput::Events { width, .. } | TimeInput::Nwb { width, .. }
                 if recipe.classifier.needs_counts() =>
@@ -79,7 +80,7 @@ impl<'a> TimePlan<'a> {
             recipe: recipe.clone(),
             settings,
             scheme,
-            decoder: recipe.classifier.build_tuned(recipe.c, recipe.tune),
+            decoder: decoders::build(recipe.classifier, recipe.c, recipe.tune),
             count_scale,
         })
     }
@@ -90,10 +91,7 @@ impl<'a> TimePlan<'a> {
 
     /// Every task, repeats first, in index order.
     pub fn tasks(&self) -> Vec<Task> {
-        (0..self.recipe.repeats)
-            .map(Task::Repeat)
-            .chain((0..self.recipe.shuffles).map(Task::Shuffle))
-            .collect()
+        Task::all(self.recipe.repeats, self.recipe.shuffles)
     }
 
     /// Fits one task performs (for progress): folds × windows, times the repeats of a shuffle.
@@ -165,7 +163,7 @@ impl<'a> TimePlan<'a> {
     /// Cross-validate one draw at every window (and, with generalization, test every window's decoder at every
     /// window). All folds of a window are fitted together, so a decoder with a fold shortcut can use it.
     fn one_repeat(&self, draw: &Draw) -> TimeOutcome {
-        let data = self.data;
+        let data = &self.data;
         let (nw, k, p) = (self.n_windows(), data.classes.len(), data.n_neurons());
         let generalize = self.settings.generalize;
         let gather = |w: usize, positions: &[usize]| {

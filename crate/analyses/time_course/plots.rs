@@ -5,38 +5,15 @@
 //! cells are outlined.
 
 use super::report::TimeReport;
-use crate::protocol::Headline;
-use crate::report::plots::{
-    esc, open, percent_ticks, BAR, BOTTOM, H, INK, LEFT, NULL_BAR, RIGHT, TOP, W,
+use crate::report::svg::{
+    esc, open, percent_ticks, tick_step, BAR, BOTTOM, H, INK, LEFT, NULL_BAR, RIGHT, TOP, W,
 };
+use crate::report::text::{p_text, seconds};
+use crate::resample::Headline;
 use std::fmt::Write;
 
 fn score_name(r: &TimeReport) -> &'static str {
-    match r.design.headline {
-        Headline::Accuracy => "accuracy",
-        Headline::BalancedAccuracy => "balanced accuracy",
-    }
-}
-
-/// Round tick step for a span: 1, 2 or 5 times a power of ten, about `target` ticks.
-fn tick_step(span: f64, target: f64) -> f64 {
-    let raw = (span / target).max(1e-9);
-    let mag = 10f64.powf(raw.log10().floor());
-    [1.0, 2.0, 5.0, 10.0]
-        .iter()
-        .map(|m| m * mag)
-        .find(|&s| s >= raw)
-        .unwrap_or(10.0 * mag)
-}
-
-fn seconds(v: f64) -> String {
-    let s = format!("{:.3}", v);
-    let s = s.trim_end_matches('0').trim_end_matches('.');
-    if s == "-0" {
-        "0".into()
-    } else {
-        s.into()
-    }
+    r.design.headline.name()
 }
 
 /// Mean score ± SD over time, the null's 95th percentile, chance, and the significant clusters.
@@ -158,7 +135,7 @@ pub fn curve(r: &TimeReport) -> String {
             b - a,
             seconds(c.start),
             seconds(c.end),
-            crate::report::text::p_text(c.p_value)
+            p_text(c.p_value)
         )
         .unwrap();
     }
@@ -398,9 +375,7 @@ mod tests {
     }
 
     #[test]
-    fn ticks_are_round() {
-        assert_eq!(tick_step(1.0, 6.0), 0.2);
-        assert_eq!(tick_step(2.6, 6.0), 0.5);
+    fn seconds_are_short() {
         assert_eq!(seconds(-0.0), "0");
         assert_eq!(seconds(0.25), "0.25");
     }

@@ -19,12 +19,13 @@
 //!   `train_end`, `test_start`, `test_end` (window centres, s), `cells`, `mass`, `p_value`, `significant`}],
 //!   `significant` (same shape, cells inside a significant cluster)}
 
-use super::clusters::{self, ClusterTest, CLUSTER_PERCENTILE};
-use super::data::{SourceFile, TimeDataset};
 use super::plan::{TimeOutcome, TimePlan};
-use crate::protocol::Task;
+use crate::data::time::TimeDataset;
+use crate::data::SourceFile;
 use crate::recipe::{Recipe, TimeInput};
-use crate::report::{Chance, Design, Fits, Software, Tuning};
+use crate::report::{by_task, Chance, Design, Fits, Software, Tuning};
+use crate::resample::Headline;
+use crate::stats::clusters::{self, ClusterTest, CLUSTER_PERCENTILE};
 use crate::stats::{self, Spread};
 use serde::{Deserialize, Serialize};
 
@@ -140,12 +141,6 @@ pub struct GridCluster {
     pub significant: bool,
 }
 
-fn index_of(t: Task) -> usize {
-    match t {
-        Task::Repeat(i) | Task::Shuffle(i) => i,
-    }
-}
-
 fn rows(flat: &[f64], n: usize) -> Vec<Vec<f64>> {
     flat.chunks(n).map(<[f64]>::to_vec).collect()
 }
@@ -153,18 +148,10 @@ fn rows(flat: &[f64], n: usize) -> Vec<Vec<f64>> {
 impl TimeReport {
     /// Assemble the report from every task's outcome (any order; sorted by task here).
     pub fn build(plan: &TimePlan, outcomes: &[TimeOutcome]) -> TimeReport {
-        let data: &TimeDataset = plan.data;
+        let data: &TimeDataset = &plan.data;
         let nw = plan.n_windows();
         let alpha = plan.settings.alpha;
-        let sorted = |shuffle: bool| {
-            let mut v: Vec<&TimeOutcome> = outcomes
-                .iter()
-                .filter(|o| matches!(o.task, Task::Shuffle(_)) == shuffle)
-                .collect();
-            v.sort_by_key(|o| index_of(o.task));
-            v
-        };
-        let (repeats, shuffles) = (sorted(false), sorted(true));
+        let (repeats, shuffles) = by_task(outcomes, |o| o.task);
         let observed_by_repeat: Vec<Vec<f64>> =
             repeats.iter().map(|o| plan.headline_scores(o)).collect();
         let observed: Vec<f64> = (0..nw)
@@ -229,14 +216,12 @@ impl TimeReport {
             .generalize
             .then(|| generalization(plan, &repeats, &shuffles, alpha));
 
-        let sum = |f: fn(&TimeOutcome) -> u32| outcomes.iter().map(|o| f(o) as u64).sum::<u64>();
-        let fits = Fits {
-            total: sum(|o| o.fits),
-            capped: sum(|o| o.capped_fits),
-            single_class: sum(|o| o.single_class_fits),
-        };
-        let mut warnings = plan.scheme.warnings.clone();
-        warnings.extend(fits.warnings());
+        let fits = Fits::sum(
+            outcomes
+                .iter()
+                .map(|o| (o.fits, o.capped_fits, o.single_class_fits)),
+        );
+        let mut warnings = fits.with_warnings(&plan.scheme.warnings);
         if has_null && plan.recipe.shuffles < 100 {
             warnings.push(format!(
                 "only {} shuffles: the cluster p-values cannot go below {:.3}, and the per-window 95th percentiles \
@@ -274,7 +259,7 @@ impl TimeReport {
             repeats: repeats
                 .iter()
                 .map(|o| TimeRepeat {
-                    index: index_of(o.task),
+                    index: o.task.index(),
                     accuracy: o.accuracy.clone(),
                     balanced_accuracy: o.balanced_accuracy.clone(),
                 })
@@ -309,8 +294,8 @@ impl TimeReport {
         self.windows
             .iter()
             .map(|w| match self.design.headline {
-                crate::protocol::Headline::Accuracy => w.accuracy.mean,
-                crate::protocol::Headline::BalancedAccuracy => w.balanced_accuracy.mean,
+                Headline::Accuracy => w.accuracy.mean,
+                Headline::BalancedAccuracy => w.balanced_accuracy.mean,
             })
             .collect()
     }

@@ -1,0 +1,170 @@
+//! The methods paragraph of a time course.
+
+use super::report::{TimeReport, ONSET_CAVEAT};
+use super::text::span;
+use crate::recipe::TimeInput;
+use crate::report::methods::{fitting, resampling};
+use crate::report::text::{pct, seconds as s};
+
+fn score_name(r: &TimeReport) -> &'static str {
+    r.design.headline.name()
+}
+
+/// A methods paragraph for a time course.
+pub fn paragraph(r: &TimeReport) -> String {
+    let rc = &r.recipe;
+    let mut out = Vec::new();
+    let files: Vec<String> = r
+        .input
+        .files
+        .iter()
+        .map(|f| format!("{} (SHA-256 {})", f.file, f.sha256))
+        .collect();
+    let counts: Vec<String> = r
+        .classes
+        .iter()
+        .zip(&r.class_counts)
+        .map(|(c, n)| format!("{c}: {n}"))
+        .collect();
+    out.push(format!(
+        "Time-resolved population decoding was performed with {} {} on {} trials of {} conditions of '{}' ({}) \
+         recorded from {} neurons (data: {}).",
+        r.software.name,
+        r.software.version,
+        r.input.trials,
+        r.classes.len(),
+        r.input.label_column,
+        counts.join(", "),
+        r.input.neurons.len(),
+        files.join("; ")
+    ));
+    let windows = &r.windows;
+    match rc.time.as_ref().map(|t| &t.input) {
+        Some(TimeInput::Events {
+            width,
+            step,
+            start,
+            end,
+            align,
+            ..
+        }) => out.push(format!(
+            "Spikes were counted in windows of {} s stepped by {} s from {} s to {} s relative to {} (each window \
+             covering [start, start + width)), giving {} windows, and converted to rates in Hz.",
+            s(*width),
+            s(*step),
+            s(*start),
+            s(*end),
+            match align {
+                Some(a) => format!("each trial's '{a}' time"),
+                None => "the alignment event the spike times were given relative to".to_string(),
+            },
+            windows.len()
+        )),
+        Some(TimeInput::Nwb {
+            width,
+            step,
+            start,
+            end,
+            align,
+            units,
+        }) => out.push(format!(
+            "Spike times of {} units{} were read from the NWB file's units table and counted in windows of {} s \
+             stepped by {} s from {} s to {} s relative to each trial's '{}' time (trials table; each window \
+             covering [start, start + width)), giving {} windows, and converted to rates in Hz.",
+            r.input.neurons.len(),
+            if units.is_empty() {
+                String::new()
+            } else {
+                let rule: Vec<String> = units.iter().map(ToString::to_string).collect();
+                format!(" (those with {})", rule.join(" and "))
+            },
+            s(*width),
+            s(*step),
+            s(*start),
+            s(*end),
+            align.as_deref().unwrap_or("start_time"),
+            windows.len()
+        )),
+        _ => out.push(format!(
+            "The activity was given in {} time bins from {} s to {} s, each decoded as one window.",
+            windows.len(),
+            s(windows[0].time),
+            s(windows[windows.len() - 1].time)
+        )),
+    }
+    let group = r.input.group_column.as_deref().unwrap_or("");
+    out.push(format!(
+        "{} The same balancing and folds were applied at every window.",
+        resampling(rc, &r.design, r.classes.len(), group, r.input.groups.len())
+    ));
+    out.push(fitting(rc).replace(
+        "Within each training fold,",
+        "Within each training fold and window,",
+    ));
+    if r.generalization.is_some() {
+        out.push(
+            "For temporal generalization (King & Dehaene, 2014), the decoder trained at each window was tested on \
+             the same held-out trials at every window."
+                .to_string(),
+        );
+    }
+    out.push(format!(
+        "The {} of pooled test predictions was averaged over repeats at each window; chance was {} (binomial \
+         threshold {} for {} test trials at α = {}; Combrisson & Jerbi, 2015).",
+        score_name(r),
+        pct(r.chance.level),
+        pct(r.chance.threshold),
+        r.chance.test_trials,
+        r.chance.alpha
+    ));
+    if r.shuffle.count > 0 {
+        let alpha = rc.time.as_ref().map_or(0.05, |t| t.alpha);
+        out.push(format!(
+            "Significance was assessed by cluster-based permutation inference (Maris & Oostenveld, 2007): condition \
+             labels were permuted{} {} times, each permutation analysed with the identical protocol at every window \
+             over {} repeats; windows{} whose score exceeded the {}th percentile of their own null formed clusters \
+             of adjacent windows, a cluster's mass was its summed excess over those thresholds, and its p = \
+             (b + 1)/(m + 1), b the number of the m permutations whose largest cluster mass was at least as large \
+             (Phipson & Smyth, 2010). Clusters with p < {alpha} are reported as significant.",
+            if r.shuffle.within_groups {
+                format!(" within levels of '{group}'")
+            } else {
+                String::new()
+            },
+            r.shuffle.count,
+            r.shuffle.repeats_each,
+            if r.generalization.is_some() {
+                " (and cells of the generalization matrix, adjacent when sharing an edge)"
+            } else {
+                ""
+            },
+            r.shuffle.cluster_percentile
+        ));
+        let sig: Vec<String> = r
+            .clusters
+            .iter()
+            .filter(|c| c.significant)
+            .map(span)
+            .collect();
+        if sig.is_empty() {
+            out.push("No cluster was significant.".into());
+        } else {
+            out.push(format!(
+                "Significant clusters (window centres): {}.",
+                sig.join("; ")
+            ));
+        }
+        if let Some(o) = &r.onset {
+            out.push(format!(
+                "The first window of the earliest significant cluster was centred at {} s; {ONSET_CAVEAT}.",
+                s(o.time)
+            ));
+        }
+    }
+    out.push(format!(
+        "Resampling used ChaCha20 random streams derived from seed {} and each task's index, so the analysis is \
+         reproducible exactly.",
+        rc.seed
+    ));
+    out.join(" ")
+}

@@ -1,0 +1,208 @@
+//! The result of a trial-table analysis: a stable JSON schema.
+//!
+//! Schema `popdecode-result/1` (every face writes exactly this; fields are only ever added):
+//! * `schema`, `software` {`name`, `version`}
+//! * `input` {`file`, `sha256`, `delimiter`, `decimal_comma`, `trials`, `dropped_lines`, `label_column`,
+//!   `group_column`, `groups`, `features`, `skipped_columns`}
+//! * `recipe`: the recipe, as a recipe file holds it
+//! * `classes` (the order of every per-class array and of the confusion matrix), `class_counts`
+//! * `design` {`split`, `folds`, `trials_per_repeat`, `headline`}
+//! * `chance` {`level`, `threshold`, `alpha`, `test_trials`}
+//! * `repeats`: per observed repeat {`index`, `accuracy`, `balanced_accuracy`, `confusion` (counts)}
+//! * `summary` {`accuracy`, `balanced_accuracy` (each `mean`, `sd`, `p2_5`, `p97_5`), `confusion` (rows = true
+//!   class, each row normalised to sum 1, averaged over repeats), `recall` (per class)}
+//! * `shuffle` {`count`, `repeats_each`, `within_groups`, `observed`, `null` (one headline score per shuffle),
+//!   `null_mean`, `null_sd`, `null_p95`, `p_value`}; the statistics are null when there are no shuffles
+//! * `fits` {`total`, `capped`, `single_class`}, `warnings`
+//! * `tuning` (only with nested selection): {`grid`, `chosen` [{`c`, `gamma_factor` (kernel SVM only), `fits`}]},
+//!   how often each setting was
+//!   chosen across the folds of the observed repeats
+//!
+//! Nothing time- or machine-dependent is written, so equal recipes and files give byte-identical JSON.
+
+use super::plan::{Outcome, Plan};
+use crate::recipe::Recipe;
+use crate::report::{by_task, Chance, Design, Fits, Software, Tuning};
+use crate::resample::Headline;
+use crate::stats::{self, Spread};
+use serde::{Deserialize, Serialize};
+
+pub const RESULT_SCHEMA: &str = "popdecode-result/1";
+
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Report {
+    pub schema: String,
+    pub software: Software,
+    pub input: Input,
+    pub recipe: Recipe,
+    pub classes: Vec<String>,
+    pub class_counts: Vec<usize>,
+    pub design: Design,
+    pub chance: Chance,
+    pub repeats: Vec<RepeatRecord>,
+    pub summary: Summary,
+    pub shuffle: Shuffle,
+    pub fits: Fits,
+    pub warnings: Vec<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub tuning: Option<Tuning>,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Input {
+    pub file: String,
+    pub sha256: String,
+    pub delimiter: String,
+    pub decimal_comma: bool,
+    /// Trials used (after dropping those with missing values).
+    pub trials: usize,
+    pub dropped_lines: Vec<u64>,
+    pub label_column: String,
+    pub group_column: Option<String>,
+    pub groups: Vec<String>,
+    pub features: Vec<String>,
+    pub skipped_columns: Vec<String>,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct RepeatRecord {
+    pub index: usize,
+    pub accuracy: f64,
+    pub balanced_accuracy: f64,
+    pub confusion: Vec<Vec<u32>>,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Summary {
+    pub accuracy: Spread,
+    pub balanced_accuracy: Spread,
+    pub confusion: Vec<Vec<f64>>,
+    pub recall: Vec<f64>,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Shuffle {
+    pub count: usize,
+    pub repeats_each: usize,
+    pub within_groups: bool,
+    /// The observed headline score the null is compared with (mean over observed repeats).
+    pub observed: f64,
+    pub null: Vec<f64>,
+    pub null_mean: Option<f64>,
+    pub null_sd: Option<f64>,
+    pub null_p95: Option<f64>,
+    pub p_value: Option<f64>,
+}
+
+impl Report {
+    /// Assemble the report from every task's outcome (any order; they are sorted by task here).
+    pub fn build(plan: &Plan, outcomes: &[Outcome]) -> Report {
+        let data = &plan.data;
+        let n_classes = data.classes.len();
+        let (repeats, shuffles) = by_task(outcomes, |o| o.task);
+
+        let acc: Vec<f64> = repeats.iter().map(|o| o.accuracy).collect();
+        let bacc: Vec<f64> = repeats.iter().map(|o| o.balanced_accuracy).collect();
+        let mut confusion = vec![vec![0.0; n_classes]; n_classes];
+        for o in &repeats {
+            for (t, row) in o.confusion.iter().enumerate() {
+                let total: u32 = row.iter().sum();
+                if total > 0 {
+                    for (p, &c) in row.iter().enumerate() {
+                        confusion[t][p] += c as f64 / total as f64;
+                    }
+                }
+            }
+        }
+        for row in &mut confusion {
+            for v in row.iter_mut() {
+                *v /= repeats.len() as f64;
+            }
+        }
+        let recall = (0..n_classes).map(|c| confusion[c][c]).collect();
+
+        let observed = stats::mean(
+            &repeats
+                .iter()
+                .map(|o| plan.headline_score(o))
+                .collect::<Vec<_>>(),
+        );
+        let null: Vec<f64> = shuffles.iter().map(|o| plan.headline_score(o)).collect();
+        let some = |v: f64| (!null.is_empty()).then_some(v);
+        let shuffle = Shuffle {
+            count: null.len(),
+            repeats_each: if null.is_empty() {
+                0
+            } else {
+                plan.recipe.shuffle_repeats()
+            },
+            within_groups: data.groups.is_some(),
+            observed,
+            null_mean: some(stats::mean(&null)),
+            null_sd: some(stats::sd(&null)),
+            null_p95: some(stats::percentile(&null, 95.0)),
+            p_value: some(stats::permutation_p(observed, &null)),
+            null,
+        };
+
+        let fits = Fits::sum(
+            outcomes
+                .iter()
+                .map(|o| (o.fits, o.capped_fits, o.single_class_fits)),
+        );
+        let warnings = fits.with_warnings(&plan.scheme.warnings);
+        Report {
+            schema: RESULT_SCHEMA.into(),
+            software: Software::current(),
+            input: Input {
+                file: data.source.clone(),
+                sha256: data.sha256.clone(),
+                delimiter: data.delimiter.clone(),
+                decimal_comma: data.decimal_comma,
+                trials: data.n_trials(),
+                dropped_lines: data.dropped_lines.clone(),
+                label_column: data.label_column.clone(),
+                group_column: data.group_column.clone(),
+                groups: data.group_names.clone(),
+                features: data.feature_names.clone(),
+                skipped_columns: data.skipped_columns.clone(),
+            },
+            recipe: plan.recipe.clone(),
+            classes: data.classes.clone(),
+            class_counts: data.class_counts(),
+            design: Design::of(&plan.scheme),
+            chance: Chance::of(&plan.scheme, n_classes),
+            repeats: repeats
+                .iter()
+                .map(|o| RepeatRecord {
+                    index: o.task.index(),
+                    accuracy: o.accuracy,
+                    balanced_accuracy: o.balanced_accuracy,
+                    confusion: o.confusion.clone(),
+                })
+                .collect(),
+            summary: Summary {
+                accuracy: Spread::of(&acc),
+                balanced_accuracy: Spread::of(&bacc),
+                confusion,
+                recall,
+            },
+            shuffle,
+            fits,
+            warnings,
+            tuning: Tuning::of(&plan.recipe, repeats.iter().flat_map(|o| &o.chosen)),
+        }
+    }
+
+    /// The headline score's spread across repeats.
+    pub fn headline(&self) -> &Spread {
+        match self.design.headline {
+            Headline::Accuracy => &self.summary.accuracy,
+            Headline::BalancedAccuracy => &self.summary.balanced_accuracy,
+        }
+    }
+
+    pub fn to_json(&self) -> String {
+        serde_json::to_string_pretty(self).expect("a report always serialises")
+    }
+}

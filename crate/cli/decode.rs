@@ -1,0 +1,29 @@
+//! `popdecode decode`: cross-validated decoding of a trial table.
+
+use crate::args::{base_recipe, show, RunArgs, TableArgs};
+use crate::files::{display_name, read};
+use crate::run::analyse;
+use clap::Args;
+use popdecode::analyses::trial_table::Plan;
+use popdecode::input;
+
+#[derive(Args)]
+pub struct DecodeArgs {
+    #[command(flatten)]
+    pub table: TableArgs,
+    #[command(flatten)]
+    pub run: RunArgs,
+}
+
+pub fn run(args: DecodeArgs) -> Result<(), String> {
+    let recipe = base_recipe(&args.run, &args.table.columns)?;
+    if recipe.time.is_some() {
+        return Err("this recipe is for a time course; run it with 'popdecode timecourse'".into());
+    }
+    recipe.validate().map_err(show)?;
+    let bytes = read(&args.table.csv)?;
+    let data = input::trial_table(&display_name(&args.table.csv), &bytes, &recipe.columns)
+        .map_err(show)?;
+    let plan = Plan::new(data, &recipe).map_err(show)?;
+    analyse(&plan, &args.run)
+}

@@ -1,0 +1,28 @@
+//! Files on disk: what the core never touches.
+
+use hdf5_pure::ReadSeekSource;
+use std::path::Path;
+
+pub fn read(path: &Path) -> Result<Vec<u8>, String> {
+    std::fs::read(path).map_err(|e| format!("{}: cannot read the file: {e}", path.display()))
+}
+
+pub fn write(path: &Path, contents: &str) -> Result<(), String> {
+    std::fs::write(path, contents)
+        .map_err(|e| format!("{}: cannot write the file: {e}", path.display()))
+}
+
+/// The name a file is reported under: as given on the command line's last component, like the page shows it.
+pub fn display_name(path: &Path) -> String {
+    path.file_name().map_or_else(
+        || path.display().to_string(),
+        |n| n.to_string_lossy().into_owned(),
+    )
+}
+
+/// A file on disk as a random-access source, so that an NWB file is read only where its tables are.
+pub fn open_source(path: &Path) -> Result<ReadSeekSource<std::fs::File>, String> {
+    let file = std::fs::File::open(path)
+        .map_err(|e| format!("{}: cannot read the file: {e}", path.display()))?;
+    ReadSeekSource::new(file).map_err(|e| format!("{}: cannot read the file: {e}", path.display()))
+}

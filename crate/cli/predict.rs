@@ -1,0 +1,79 @@
+//! `popdecode predict`: cross-validated predictions on folds the user assigns.
+
+use crate::args::{apply_column_flags, show, TableArgs};
+use crate::files::{display_name, read, write};
+use clap::Args;
+use popdecode::analyses::trial_table::predict::predict_with_folds;
+use popdecode::input::{table::Table, trial_table};
+use popdecode::recipe::Recipe;
+use std::path::PathBuf;
+
+#[derive(Args)]
+pub struct PredictArgs {
+    #[command(flatten)]
+    pub table: TableArgs,
+    /// Column holding each trial's fold number.
+    #[arg(long)]
+    pub fold_column: String,
+    /// Write predictions here as CSV (line, fold, true, predicted) instead of standard output.
+    #[arg(long)]
+    pub out: Option<PathBuf>,
+}
+
+pub fn run(args: PredictArgs) -> Result<(), String> {
+    let mut recipe = Recipe::new(
+        args.table
+            .columns
+            .label
+            .as_deref()
+            .ok_or("name the label column with --label <COLUMN>")?,
+    );
+    apply_column_flags(&mut recipe, &args.table.columns);
+    recipe.columns.ignore.push(args.fold_column.clone());
+    let bytes = read(&args.table.csv)?;
+    let name = display_name(&args.table.csv);
+    let table = Table::parse(&name, &bytes).map_err(show)?;
+    if recipe.columns.drop_missing {
+        return Err(
+            "predict keeps every trial, so that each has its fold; fill in missing values first"
+                .into(),
+        );
+    }
+    let data = trial_table::from_table(&table, &recipe.columns).map_err(show)?;
+    let fold_col = table.column(&args.fold_column).map_err(show)?;
+    let folds: Vec<usize> = (0..table.rows.len())
+        .map(|r| {
+            table.rows[r][fold_col]
+                .trim()
+                .parse::<usize>()
+                .map_err(|_| {
+                    format!(
+                        "{}: '{}' is not a fold number",
+                        table.at(r, fold_col),
+                        table.rows[r][fold_col]
+                    )
+                })
+        })
+        .collect::<Result<_, _>>()?;
+    let predicted = predict_with_folds(&data, &recipe, &folds).map_err(show)?;
+    let mut writer = csv::Writer::from_writer(Vec::new());
+    let csv_err = |e: csv::Error| e.to_string();
+    writer
+        .write_record(["line", "fold", "true", "predicted"])
+        .map_err(csv_err)?;
+    for (i, &p) in predicted.iter().enumerate() {
+        let (line, fold) = (table.lines[i].to_string(), folds[i].to_string());
+        writer
+            .write_record([&line, &fold, &data.classes[data.y[i]], &data.classes[p]])
+            .map_err(csv_err)?;
+    }
+    let out = String::from_utf8(writer.into_inner().map_err(|e| e.to_string())?)
+        .expect("UTF-8 in, UTF-8 out");
+    match &args.out {
+        Some(path) => write(path, &out),
+        None => {
+            print!("{out}");
+            Ok(())
+        }
+    }
+}

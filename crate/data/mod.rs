@@ -1,0 +1,96 @@
+//! The in-memory data every analysis works on: trials × features ([`Dataset`]), trials × windows × neurons
+//! ([`time::TimeDataset`]), their labels and groups ([`trials::Trials`]), and how labels are ordered
+//! ([`labels`]). Readers of files (`input/`) produce these; nothing here reads a file.
+
+pub mod labels;
+pub mod time;
+pub mod trials;
+
+use ndarray::Array2;
+use serde::{Deserialize, Serialize};
+use trials::Trials;
+
+/// Trials × features with their labels, ready for the protocol.
+#[derive(Debug, Clone)]
+pub struct Dataset {
+    pub source: String,
+    /// SHA-256 of the file's bytes as read, in lower-case hex; goes into every report.
+    pub sha256: String,
+    pub delimiter: String,
+    pub decimal_comma: bool,
+    /// Trials × features.
+    pub x: Array2<f64>,
+    /// Class index of each trial into `classes`.
+    pub y: Vec<usize>,
+    pub classes: Vec<String>,
+    /// Group index of each trial into `group_names`, when a group column is set.
+    pub groups: Option<Vec<usize>>,
+    pub group_names: Vec<String>,
+    pub feature_names: Vec<String>,
+    pub label_column: String,
+    pub group_column: Option<String>,
+    /// File lines of the trials left out for missing values.
+    pub dropped_lines: Vec<u64>,
+    /// Columns left out of the features because they hold text.
+    pub skipped_columns: Vec<String>,
+    /// Things the user should know about the file that do not stop the analysis.
+    pub warnings: Vec<String>,
+    /// Pseudo-populations: the session (index into `group_names`) each feature was recorded in.
+    pub pseudo: Option<Vec<usize>>,
+}
+
+impl Dataset {
+    pub fn n_trials(&self) -> usize {
+        self.y.len()
+    }
+
+    /// The trials' labels and groups, as resampling sees them.
+    pub fn trials(&self) -> Trials<'_> {
+        Trials {
+            source: &self.source,
+            y: &self.y,
+            classes: &self.classes,
+            groups: self.groups.as_deref(),
+            group_names: &self.group_names,
+            group_column: self.group_column.as_deref(),
+            pseudo: self.pseudo.is_some(),
+        }
+    }
+
+    pub fn n_features(&self) -> usize {
+        self.x.ncols()
+    }
+
+    /// The same trials with only the feature columns `cols` (in that order).
+    pub fn with_features(&self, cols: &[usize]) -> Dataset {
+        Dataset {
+            x: self.x.select(ndarray::Axis(1), cols),
+            feature_names: cols
+                .iter()
+                .map(|&c| self.feature_names[c].clone())
+                .collect(),
+            warnings: Vec::new(),
+            pseudo: self
+                .pseudo
+                .as_ref()
+                .map(|s| cols.iter().map(|&c| s[c]).collect()),
+            ..self.clone()
+        }
+    }
+
+    /// Trials per class, in class order.
+    pub fn class_counts(&self) -> Vec<usize> {
+        let mut counts = vec![0; self.classes.len()];
+        for &c in &self.y {
+            counts[c] += 1;
+        }
+        counts
+    }
+}
+
+/// One input file as a report names it.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SourceFile {
+    pub file: String,
+    pub sha256: String,
+}
