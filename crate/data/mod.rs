@@ -80,11 +80,7 @@ impl Dataset {
 
     /// Trials per class, in class order.
     pub fn class_counts(&self) -> Vec<usize> {
-        let mut counts = vec![0; self.classes.len()];
-        for &c in &self.y {
-            counts[c] += 1;
-        }
-        counts
+        self.trials().class_counts()
     }
 }
 

@@ -52,11 +52,7 @@ impl TimeDataset {
     }
 
     pub fn class_counts(&self) -> Vec<usize> {
-        let mut counts = vec![0; self.classes.len()];
-        for &c in &self.y {
-            counts[c] += 1;
-        }
-        counts
+        self.trials().class_counts()
     }
 
     /// Row-major trials × neurons matrix of window `w`.

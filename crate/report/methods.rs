@@ -7,6 +7,16 @@ use crate::recipe::classifier::C_GRID;
 use crate::recipe::{Classifier, Recipe};
 use crate::resample::{pseudo, Split};
 
+/// "a: 58, b: 58": trials per class, for the paragraph's first sentence.
+pub fn class_counts(classes: &[String], counts: &[usize]) -> String {
+    classes
+        .iter()
+        .zip(counts)
+        .map(|(c, n)| format!("{c}: {n}"))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
 /// "In each of R repeats, classes were balanced …, and trials were split …": the resampling sentence shared by
 /// every kind of analysis.
 pub fn resampling(

@@ -3,7 +3,7 @@
 use super::report::{TimeReport, ONSET_CAVEAT};
 use super::text::span;
 use crate::recipe::TimeInput;
-use crate::report::methods::{fitting, resampling};
+use crate::report::methods::{class_counts, fitting, resampling};
 use crate::report::text::{pct, seconds as s};
 
 fn score_name(r: &TimeReport) -> &'static str {
@@ -20,12 +20,6 @@ pub fn paragraph(r: &TimeReport) -> String {
         .iter()
         .map(|f| format!("{} (SHA-256 {})", f.file, f.sha256))
         .collect();
-    let counts: Vec<String> = r
-        .classes
-        .iter()
-        .zip(&r.class_counts)
-        .map(|(c, n)| format!("{c}: {n}"))
-        .collect();
     out.push(format!(
         "Time-resolved population decoding was performed with {} {} on {} trials of {} conditions of '{}' ({}) \
          recorded from {} neurons (data: {}).",
@@ -34,7 +28,7 @@ pub fn paragraph(r: &TimeReport) -> String {
         r.input.trials,
         r.classes.len(),
         r.input.label_column,
-        counts.join(", "),
+        class_counts(&r.classes, &r.class_counts),
         r.input.neurons.len(),
         files.join("; ")
     ));

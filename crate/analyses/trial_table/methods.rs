@@ -2,7 +2,7 @@
 //! and the data's SHA-256, so a reader can re-run the identical analysis.
 
 use super::report::Report;
-use crate::report::methods::{fitting, resampling};
+use crate::report::methods::{class_counts, fitting, resampling};
 use crate::report::text::{p_text, pct};
 use crate::resample::Headline;
 
@@ -10,12 +10,6 @@ use crate::resample::Headline;
 pub fn paragraph(r: &Report) -> String {
     let rc = &r.recipe;
     let mut s = Vec::new();
-    let counts: Vec<String> = r
-        .classes
-        .iter()
-        .zip(&r.class_counts)
-        .map(|(c, n)| format!("{c}: {n}"))
-        .collect();
     s.push(format!(
         "Population decoding was performed with {} {}. The data (file {}, SHA-256 {}) comprised {} trials of {} \
          conditions of '{}' ({}) with {} features per trial.",
@@ -26,7 +20,7 @@ pub fn paragraph(r: &Report) -> String {
         r.input.trials,
         r.classes.len(),
         r.input.label_column,
-        counts.join(", "),
+        class_counts(&r.classes, &r.class_counts),
         r.input.features.len()
     ));
     if !r.input.dropped_lines.is_empty() {
