@@ -31,7 +31,7 @@ pub fn run(args: DecodeArgs) -> Result<(), String> {
         options: serde_json::json!({}),
         paths: vec![args.table.csv],
     };
-    analyse(&load(&inputs)?, &inputs, &args.run)
+    analyse(&inputs, load, &args.run)
 }
 
 /// Read the trial table and build the plan (also how `combine` builds it again).

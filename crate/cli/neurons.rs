@@ -46,7 +46,7 @@ pub fn run(args: NeuronsArgs) -> Result<(), String> {
         options: serde_json::to_value(options).expect("options serialise"),
         paths: vec![args.table.csv],
     };
-    analyse(&load(&inputs)?, &inputs, &args.run)
+    analyse(&inputs, load, &args.run)
 }
 
 /// Read the trial table and build the plan (also how `combine` builds it again).

@@ -199,7 +199,7 @@ pub fn check_set(mut parts: Vec<Read>) -> Result<Vec<Read>, String> {
             ));
         }
     }
-    let (n, total) = (first_of(&parts).parts, first_of(&parts).tasks_total);
+    let (n, total) = (parts[0].file.parts, parts[0].file.tasks_total);
     let missing: Vec<String> = (1..=n)
         .filter(|k| !parts.iter().any(|p| p.file.part == *k))
         .map(|k| {
@@ -229,10 +229,6 @@ pub fn check_set(mut parts: Vec<Read>) -> Result<Vec<Read>, String> {
         }
     }
     Ok(parts)
-}
-
-fn first_of(parts: &[Read]) -> &PartFile {
-    &parts[0].file
 }
 
 /// Why two part files cannot be combined, or `None` when they belong to one analysis.

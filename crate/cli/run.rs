@@ -40,16 +40,18 @@ pub struct Outputs<'a> {
     pub plots: Option<&'a Path>,
 }
 
-/// Run every task of an analysis (or, with `--part`, that part's tasks), then print and write the result (or the
-/// part file).
+/// Build the plan with the subcommand's `load` (the one `combine` calls too), run every task (or, with `--part`,
+/// that part's tasks), then print and write the result (or the part file).
 pub fn analyse<P: Analysis>(
-    loaded: &Loaded<P>,
     inputs: &Inputs,
+    load: fn(&Inputs) -> Result<Loaded<P>, String>,
     run: &RunArgs,
 ) -> Result<(), String> {
+    let part = run.part.map(|p| part_output(run, p)).transpose()?;
+    let loaded = load(inputs)?;
     let plan = &loaded.plan;
     let tasks = plan.tasks();
-    let Some(part) = run.part else {
+    let Some((part, path)) = part else {
         let costs: Vec<usize> = tasks.iter().map(|&t| plan.fits_in(t)).collect();
         let outcomes = run_tasks(&tasks, &costs, |t| plan.run(t), run)?;
         let outputs = Outputs {
@@ -59,7 +61,6 @@ pub fn analyse<P: Analysis>(
         };
         return deliver(&plan.finish(&outcomes), plan.recipe(), &outputs);
     };
-    let path = part_output(run)?;
     let indices: Vec<usize> = part.indices(tasks.len()).collect();
     let mine: Vec<P::Task> = indices.iter().map(|&i| tasks[i]).collect();
     let costs: Vec<usize> = mine.iter().map(|&t| plan.fits_in(t)).collect();
@@ -90,17 +91,20 @@ pub fn analyse<P: Analysis>(
     Ok(())
 }
 
-/// Where a part file goes; the flags a part cannot honour are refused before any work starts.
-fn part_output(run: &RunArgs) -> Result<&Path, String> {
+/// The part and where its file goes; the flags a part cannot honour are refused before any work starts.
+fn part_output(run: &RunArgs, part: Part) -> Result<(Part, &Path), String> {
     if run.plots.is_some() {
         return Err(
             "--plots is for the whole result: give it to 'popdecode combine', not to a part".into(),
         );
     }
-    run.json.as_deref().ok_or_else(|| {
-        let Part { k, n } = run.part.expect("called for a part");
-        format!("--part writes a part file: name it with --json, e.g. --json part-{k}-of-{n}.json")
-    })
+    let path = run.json.as_deref().ok_or_else(|| {
+        format!(
+            "--part writes a part file: name it with --json, e.g. --json part-{}-of-{}.json",
+            part.k, part.n
+        )
+    })?;
+    Ok((part, path))
 }
 
 /// Print a finished analysis's text (and methods paragraph), and write the JSON, the recipe and the figures the

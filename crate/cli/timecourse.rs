@@ -233,7 +233,7 @@ pub fn run(args: TimecourseArgs) -> Result<(), String> {
         options: serde_json::json!({}),
         paths,
     };
-    analyse(&load(&inputs)?, &inputs, &args.run)
+    analyse(&inputs, load, &args.run)
 }
 
 /// Read the recording (a binned table; spike events and trials; or an NWB file, as the recipe's time input says)
@@ -251,9 +251,10 @@ pub fn load(inputs: &Inputs) -> Result<Loaded<TimePlan>, String> {
         .iter()
         .map(|p| {
             let name = display_name(p);
-            let bytes = match nwb {
-                true => extract::read_nwb(&name, open_source(p)?).map_err(show)?,
-                false => read(p)?,
+            let bytes = if nwb {
+                extract::read_nwb(&name, open_source(p)?).map_err(show)?
+            } else {
+                read(p)?
             };
             Ok((name, bytes))
         })
