@@ -434,6 +434,11 @@ fn parts_that_do_not_belong_together_are_refused() {
         "{err}"
     );
 
+    v["part"] = 0.into();
+    std::fs::write(&damaged, v.to_string()).unwrap();
+    let err = refused(&["combine", a, p(&damaged), c]);
+    assert!(err.contains("a damaged part file: part 0 of 3"), "{err}");
+
     // A result is not a part.
     let result = dir.join("result.json");
     ok(&["combine", a, b, c, "--json", p(&result)]);

@@ -148,8 +148,16 @@ impl Read {
                 path.display()
             ));
         }
-        let file = serde_json::from_value(value)
+        let file: PartFile = serde_json::from_value(value)
             .map_err(|e| format!("{}: a damaged part file: {e}", path.display()))?;
+        if file.part == 0 || file.part > file.parts {
+            return Err(format!(
+                "{}: a damaged part file: part {} of {}",
+                path.display(),
+                file.part,
+                file.parts
+            ));
+        }
         Ok(Read {
             path: path.to_path_buf(),
             file,
