@@ -4,6 +4,8 @@
 #   reference agreement with scikit-learn (pytest, in the venv made by scripts/reference-venv.sh)
 #   formatting and lint (cargo fmt --check, cargo clippy -D warnings), one check each
 #   browser tests (node --test), when scripts/build-web.sh exists
+#   a real one-node SLURM running scripts/slurm/ (tests/slurm.sh), one check; skipped, saying so, without root or
+#   without slurm-wlm and munge
 set -uo pipefail
 cd "$(dirname "$0")/.."
 mkdir -p test-output
@@ -42,6 +44,14 @@ source scripts/reference-venv.sh
 p=$(grep -Eo '[0-9]+ passed' test-output/pytest.log | tail -1 | grep -Eo '[0-9]+'); passed=$((passed + ${p:-0}))
 f=$(grep -Eo '[0-9]+ (failed|error)' test-output/pytest.log | grep -Eo '[0-9]+' | awk '{s+=$1} END {print s+0}'); failed=$((failed + ${f:-0}))
 [ "${p:-0}" -gt 0 ] || [ "${f:-0}" -gt 0 ] || { echo "pytest ran no test"; failed=$((failed + 1)); }
+
+echo "== a real SLURM (one node, started and stopped by tests/slurm.sh)"
+if [ "$(id -u)" -ne 0 ] || ! command -v slurmctld >/dev/null 2>&1 || ! command -v munged >/dev/null 2>&1; then
+  echo "SKIPPED: slurm (needs root and Debian's slurm-wlm and munge: apt-get install slurm-wlm munge)"
+else
+  cargo build --release --quiet --bin popdecode
+  check slurm tests/slurm.sh
+fi
 
 if [ -x scripts/build-web.sh ] && [ -d tests/browser ]; then
   echo "== browser tests"

@@ -87,6 +87,41 @@ pub struct RunArgs {
     /// Print no progress bar.
     #[arg(long)]
     pub quiet: bool,
+    /// Run only part K of N (tasks whose index i in the plan's task list has i mod N = K-1) and write a part file
+    /// to --json instead of the result; `popdecode combine` joins the N parts into the result.
+    #[arg(long, value_name = "K/N", value_parser = parse_part)]
+    pub part: Option<Part>,
+}
+
+/// Part K of N of an analysis's tasks (`--part K/N`).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Part {
+    /// 1 to `n`.
+    pub k: usize,
+    pub n: usize,
+}
+
+impl Part {
+    /// The task indices of this part among `total` tasks, in increasing order. The fixed rule that splits tasks:
+    /// task index `i` (counted from 0 in the plan's task list) belongs to part `i mod n + 1`. Dealing tasks out in
+    /// turn gives every part a similar mix of cheap and costly tasks (observed repeats and shuffles, small and
+    /// large neuron subsets).
+    pub fn indices(self, total: usize) -> impl Iterator<Item = usize> {
+        (self.k - 1..total).step_by(self.n)
+    }
+}
+
+fn parse_part(s: &str) -> Result<Part, String> {
+    let bad = || format!("'{s}' is not a part: give K/N with 1 <= K <= N, e.g. --part 2/8");
+    let (k, n) = s.split_once('/').ok_or_else(bad)?;
+    let (k, n): (usize, usize) = (
+        k.trim().parse().map_err(|_| bad())?,
+        n.trim().parse().map_err(|_| bad())?,
+    );
+    if k == 0 || k > n {
+        return Err(bad());
+    }
+    Ok(Part { k, n })
 }
 
 fn parse_classifier(s: &str) -> Result<Classifier, String> {

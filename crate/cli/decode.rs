@@ -2,10 +2,14 @@
 
 use crate::args::{base_recipe, show, RunArgs, TableArgs};
 use crate::files::{display_name, read};
-use crate::run::analyse;
+use crate::run::{analyse, Inputs, Loaded};
 use clap::Args;
 use popdecode::analyses::trial_table::Plan;
+use popdecode::data::SourceFile;
 use popdecode::input;
+
+/// The subcommand's name, as part files record it.
+pub const NAME: &str = "decode";
 
 #[derive(Args)]
 pub struct DecodeArgs {
@@ -21,9 +25,25 @@ pub fn run(args: DecodeArgs) -> Result<(), String> {
         return Err("this recipe is for a time course; run it with 'popdecode timecourse'".into());
     }
     recipe.validate().map_err(show)?;
-    let bytes = read(&args.table.csv)?;
-    let data = input::trial_table(&display_name(&args.table.csv), &bytes, &recipe.columns)
-        .map_err(show)?;
-    let plan = Plan::new(data, &recipe).map_err(show)?;
-    analyse(&plan, &args.run)
+    let inputs = Inputs {
+        analysis: NAME.into(),
+        recipe,
+        options: serde_json::json!({}),
+        paths: vec![args.table.csv],
+    };
+    analyse(&inputs, load, &args.run)
+}
+
+/// Read the trial table and build the plan (also how `combine` builds it again).
+pub fn load(inputs: &Inputs) -> Result<Loaded<Plan>, String> {
+    let path = &inputs.paths[0];
+    let bytes = read(path)?;
+    let data =
+        input::trial_table(&display_name(path), &bytes, &inputs.recipe.columns).map_err(show)?;
+    let files = vec![SourceFile {
+        file: data.source.clone(),
+        sha256: data.sha256.clone(),
+    }];
+    let plan = Plan::new(data, &inputs.recipe).map_err(show)?;
+    Ok(Loaded { plan, files })
 }

@@ -3,10 +3,12 @@
 //! to [`run::analyse`]; the core does the rest.
 
 mod args;
+mod combine;
 mod decode;
 mod files;
 mod inspect;
 mod neurons;
+mod part;
 mod predict;
 mod run;
 mod timecourse;
@@ -37,6 +39,8 @@ enum Command {
     Inspect(inspect::InspectArgs),
     /// Cross-validated predictions on fold numbers you supply in a column (no balancing, no repeats).
     Predict(predict::PredictArgs),
+    /// Join the part files of a run split with --part K/N into the result a single run writes.
+    Combine(combine::CombineArgs),
 }
 
 fn main() -> ExitCode {
@@ -47,6 +51,7 @@ fn main() -> ExitCode {
         Command::Neurons(args) => neurons::run(args),
         Command::Inspect(args) => inspect::run(args),
         Command::Predict(args) => predict::run(args),
+        Command::Combine(args) => combine::run(args),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

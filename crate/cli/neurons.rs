@@ -2,10 +2,22 @@
 
 use crate::args::{base_recipe, show, RunArgs, TableArgs};
 use crate::files::{display_name, read};
-use crate::run::analyse;
+use crate::run::{analyse, Inputs, Loaded};
 use clap::Args;
 use popdecode::analyses::neurons::NeuronsPlan;
+use popdecode::data::SourceFile;
 use popdecode::input;
+use serde::{Deserialize, Serialize};
+
+/// The subcommand's name, as part files record it.
+pub const NAME: &str = "neurons";
+
+/// The neuron analyses' settings outside the recipe (a part file's `options`).
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct Options {
+    draws: usize,
+}
 
 /// The neuron analyses run the decoding protocol without shuffles; --shuffles and --shuffle-repeats are ignored.
 #[derive(Args)]
@@ -27,9 +39,28 @@ pub fn run(args: NeuronsArgs) -> Result<(), String> {
         );
     }
     recipe.validate().map_err(show)?;
-    let bytes = read(&args.table.csv)?;
-    let data = input::trial_table(&display_name(&args.table.csv), &bytes, &recipe.columns)
-        .map_err(show)?;
-    let plan = NeuronsPlan::new(data, &recipe, args.draws).map_err(show)?;
-    analyse(&plan, &args.run)
+    let options = Options { draws: args.draws };
+    let inputs = Inputs {
+        analysis: NAME.into(),
+        recipe,
+        options: serde_json::to_value(options).expect("options serialise"),
+        paths: vec![args.table.csv],
+    };
+    analyse(&inputs, load, &args.run)
+}
+
+/// Read the trial table and build the plan (also how `combine` builds it again).
+pub fn load(inputs: &Inputs) -> Result<Loaded<NeuronsPlan>, String> {
+    let options: Options = serde_json::from_value(inputs.options.clone())
+        .map_err(|e| format!("the neuron analyses' options are damaged: {e}"))?;
+    let path = &inputs.paths[0];
+    let bytes = read(path)?;
+    let data =
+        input::trial_table(&display_name(path), &bytes, &inputs.recipe.columns).map_err(show)?;
+    let files = vec![SourceFile {
+        file: data.source.clone(),
+        sha256: data.sha256.clone(),
+    }];
+    let plan = NeuronsPlan::new(data, &inputs.recipe, options.draws).map_err(show)?;
+    Ok(Loaded { plan, files })
 }

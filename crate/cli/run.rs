@@ -1,34 +1,126 @@
-//! Where tasks run on the command line: a rayon pool with a progress bar; then the result is printed and written.
+//! Where tasks run on the command line: a rayon pool with a progress bar; then the result is printed and written,
+//! or, with `--part K/N`, only that part's tasks run and their outcomes go to a part file (`part.rs`) that
+//! `popdecode combine` joins with the others.
 
-use crate::args::RunArgs;
+use crate::args::{Part, RunArgs};
 use crate::files::write;
+use crate::part;
 use indicatif::{ProgressBar, ProgressStyle};
 use popdecode::analyses::{Analysis, Finished};
+use popdecode::data::SourceFile;
 use popdecode::recipe::Recipe;
 use rayon::prelude::*;
+use serde::{Deserialize, Serialize};
+use std::path::{Path, PathBuf};
 
-/// Run every task of an analysis, print its text (and methods paragraph), and write what the flags ask for.
-pub fn analyse(plan: &impl Analysis, run: &RunArgs) -> Result<(), String> {
+/// What a subcommand builds its plan from. A part file records it, so that `combine` can build the same plan
+/// again with the subcommand's own `load` and call `finish` on it.
+#[derive(Clone, Debug, Serialize, Deserialize)]
+pub struct Inputs {
+    /// The subcommand (`decode`, `timecourse`, `neurons`).
+    pub analysis: String,
+    /// The recipe the plan is built from, after the flags were applied.
+    pub recipe: Recipe,
+    /// Settings of the analysis that are not in the recipe (the neuron analyses' draws), as a JSON object.
+    pub options: serde_json::Value,
+    /// The input files in the order the subcommand's `load` expects them.
+    pub paths: Vec<PathBuf>,
+}
+
+/// A plan and the files it was read from, as its report names them (file name and SHA-256).
+pub struct Loaded<P> {
+    pub plan: P,
+    pub files: Vec<SourceFile>,
+}
+
+/// Where a finished result goes: the output flags a single run and `combine` share.
+pub struct Outputs<'a> {
+    pub json: Option<&'a Path>,
+    pub save_recipe: Option<&'a Path>,
+    pub plots: Option<&'a Path>,
+}
+
+/// Build the plan with the subcommand's `load` (the one `combine` calls too), run every task (or, with `--part`,
+/// that part's tasks), then print and write the result (or the part file).
+pub fn analyse<P: Analysis>(
+    inputs: &Inputs,
+    load: fn(&Inputs) -> Result<Loaded<P>, String>,
+    run: &RunArgs,
+) -> Result<(), String> {
+    let part = run.part.map(|p| part_output(run, p)).transpose()?;
+    let loaded = load(inputs)?;
+    let plan = &loaded.plan;
     let tasks = plan.tasks();
-    let costs: Vec<usize> = tasks.iter().map(|&t| plan.fits_in(t)).collect();
-    let outcomes = run_tasks(&tasks, &costs, |t| plan.run(t), run)?;
-    let finished = plan.finish(&outcomes);
+    let Some((part, path)) = part else {
+        let costs: Vec<usize> = tasks.iter().map(|&t| plan.fits_in(t)).collect();
+        let outcomes = run_tasks(&tasks, &costs, |t| plan.run(t), run)?;
+        let outputs = Outputs {
+            json: run.json.as_deref(),
+            save_recipe: run.save_recipe.as_deref(),
+            plots: run.plots.as_deref(),
+        };
+        return deliver(&plan.finish(&outcomes), plan.recipe(), &outputs);
+    };
+    let indices: Vec<usize> = part.indices(tasks.len()).collect();
+    let mine: Vec<P::Task> = indices.iter().map(|&i| tasks[i]).collect();
+    let costs: Vec<usize> = mine.iter().map(|&t| plan.fits_in(t)).collect();
+    let outcomes = run_tasks(&mine, &costs, |t| plan.run(t), run)?;
+    part::write(
+        path,
+        &part::Contents {
+            inputs,
+            files: &loaded.files,
+            part,
+            total: tasks.len(),
+            indices: &indices,
+            tasks: &mine,
+            outcomes: &outcomes,
+        },
+    )?;
+    if let Some(recipe_path) = &run.save_recipe {
+        write(recipe_path, &(plan.recipe().to_json() + "\n"))?;
+    }
+    println!(
+        "Part {} of {}: {} of the {} tasks, written to {}.",
+        part.k,
+        part.n,
+        indices.len(),
+        tasks.len(),
+        path.display()
+    );
+    Ok(())
+}
+
+/// The part and where its file goes; the flags a part cannot honour are refused before any work starts.
+fn part_output(run: &RunArgs, part: Part) -> Result<(Part, &Path), String> {
+    if run.plots.is_some() {
+        return Err(
+            "--plots is for the whole result: give it to 'popdecode combine', not to a part".into(),
+        );
+    }
+    let path = run.json.as_deref().ok_or_else(|| {
+        format!(
+            "--part writes a part file: name it with --json, e.g. --json part-{}-of-{}.json",
+            part.k, part.n
+        )
+    })?;
+    Ok((part, path))
+}
+
+/// Print a finished analysis's text (and methods paragraph), and write the JSON, the recipe and the figures the
+/// flags ask for. A single run and `combine` both end here, so they write the same bytes.
+pub fn deliver(finished: &Finished, recipe: &Recipe, outputs: &Outputs) -> Result<(), String> {
     print!("{}", finished.text);
     if let Some(methods) = &finished.methods {
         println!("\nMethods:\n{methods}");
     }
-    write_outputs(run, plan.recipe(), &finished)
-}
-
-/// Write the JSON, the recipe and the figures a run asked for.
-fn write_outputs(run: &RunArgs, recipe: &Recipe, finished: &Finished) -> Result<(), String> {
-    if let Some(path) = &run.json {
+    if let Some(path) = outputs.json {
         write(path, &(finished.json.clone() + "\n"))?;
     }
-    if let Some(path) = &run.save_recipe {
+    if let Some(path) = outputs.save_recipe {
         write(path, &(recipe.to_json() + "\n"))?;
     }
-    if let Some(dir) = &run.plots {
+    if let Some(dir) = outputs.plots {
         std::fs::create_dir_all(dir)
             .map_err(|e| format!("{}: cannot create the folder: {e}", dir.display()))?;
         for (name, contents) in &finished.files {

@@ -2,12 +2,15 @@
 
 use crate::args::{base_recipe, show, ColumnArgs, RunArgs};
 use crate::files::{display_name, open_source, read};
-use crate::run::analyse;
+use crate::run::{analyse, Inputs, Loaded};
 use clap::Args;
 use popdecode::analyses::time_course::TimePlan;
 use popdecode::input::{self, extract, FileBytes};
 use popdecode::recipe::{TimeInput, TimeSettings, UnitFilter};
 use std::path::PathBuf;
+
+/// The subcommand's name, as part files record it.
+pub const NAME: &str = "timecourse";
 
 /// Decoding at every time window: a binned table (one row per trial × bin), or spike events with a trial table.
 #[derive(Args)]
@@ -218,20 +221,40 @@ pub fn run(args: TimecourseArgs) -> Result<(), String> {
     }
     recipe.time = Some(time_settings(&args, recipe.time.take())?);
     recipe.validate().map_err(show)?;
-    let paths: Vec<&PathBuf> = match (&args.events, &args.trials, &args.csv, &args.nwb) {
+    let paths: Vec<PathBuf> = match (args.events, args.trials, args.csv, args.nwb) {
         (_, _, _, Some(n)) => vec![n],
         (Some(e), Some(t), _, _) => vec![e, t],
         (_, _, Some(c), _) => vec![c],
         _ => unreachable!("time_settings checked the inputs"),
     };
+    let inputs = Inputs {
+        analysis: NAME.into(),
+        recipe,
+        options: serde_json::json!({}),
+        paths,
+    };
+    analyse(&inputs, load, &args.run)
+}
+
+/// Read the recording (a binned table; spike events and trials; or an NWB file, as the recipe's time input says)
+/// and build the plan (also how `combine` builds it again).
+pub fn load(inputs: &Inputs) -> Result<Loaded<TimePlan>, String> {
+    let recipe = &inputs.recipe;
+    let settings = recipe
+        .time
+        .as_ref()
+        .ok_or("a time course's recipe has time settings")?;
+    let nwb = matches!(settings.input, TimeInput::Nwb { .. });
     // An NWB file is read lazily into its extract (units and trials only), exactly as the page does.
-    let contents: Vec<(String, Vec<u8>)> = paths
+    let contents: Vec<(String, Vec<u8>)> = inputs
+        .paths
         .iter()
         .map(|p| {
             let name = display_name(p);
-            let bytes = match args.nwb {
-                Some(_) => extract::read_nwb(&name, open_source(p)?).map_err(show)?,
-                None => read(p)?,
+            let bytes = if nwb {
+                extract::read_nwb(&name, open_source(p)?).map_err(show)?
+            } else {
+                read(p)?
             };
             Ok((name, bytes))
         })
@@ -240,8 +263,8 @@ pub fn run(args: TimecourseArgs) -> Result<(), String> {
         .iter()
         .map(|(name, bytes)| FileBytes { name, bytes })
         .collect();
-    let settings = recipe.time.as_ref().expect("set above");
     let data = input::time_course(&files, &recipe.columns, &settings.input).map_err(show)?;
-    let plan = TimePlan::new(data, &recipe).map_err(show)?;
-    analyse(&plan, &args.run)
+    let files = data.files.clone();
+    let plan = TimePlan::new(data, recipe).map_err(show)?;
+    Ok(Loaded { plan, files })
 }
