@@ -296,23 +296,39 @@ impl Recording {
         })
     }
 
+    /// Trials: as many as `start_time` has values.
     pub fn n_trials(&self) -> usize {
-        self.column("start_time").map_or(0, |c| c.texts().len())
+        self.column("start_time").map_or(0, Column::len)
     }
 
     pub fn column(&self, name: &str) -> Option<&Column> {
         self.trials.iter().find(|(n, _)| n == name).map(|(_, c)| c)
     }
 
-    /// A trials column by name, or an error listing the columns there are.
+    /// A trials column by name, holding one value per trial (as many as `start_time`), or an error listing the
+    /// columns there are or saying how many values it has.
     pub fn require(&self, source: &str, name: &str) -> Result<&Column> {
-        self.column(name).ok_or_else(|| {
+        let column = self.column(name).ok_or_else(|| {
             let names: Vec<String> = self.trials.iter().map(|(n, _)| format!("'{n}'")).collect();
             Error::Input(format!(
                 "{source}: the trials table has no column '{name}'; its columns are: {}",
                 names.join(", ")
             ))
-        })
+        })?;
+        let n = self.n_trials();
+        if n == 0 {
+            return Err(Error::Input(format!(
+                "{source}: the trials table has no trials (intervals/trials/start_time is empty)"
+            )));
+        }
+        if column.len() != n {
+            return Err(Error::Input(format!(
+                "{source}: the trials column '{name}' holds {} values for {n} trials (one per start_time); every \
+                 trials column needs one value per trial",
+                column.len()
+            )));
+        }
+        Ok(column)
     }
 }
 
