@@ -1,7 +1,7 @@
 //! Where tasks run on the command line: a rayon pool with a progress bar; then the result is printed and written.
 
 use crate::args::RunArgs;
-use crate::files::write;
+use crate::files::{print, write};
 use indicatif::{ProgressBar, ProgressStyle};
 use popdecode::analyses::{Analysis, Finished};
 use popdecode::recipe::Recipe;
@@ -13,10 +13,11 @@ pub fn analyse(plan: &impl Analysis, run: &RunArgs) -> Result<(), String> {
     let costs: Vec<usize> = tasks.iter().map(|&t| plan.fits_in(t)).collect();
     let outcomes = run_tasks(&tasks, &costs, |t| plan.run(t), run)?;
     let finished = plan.finish(&outcomes);
-    print!("{}", finished.text);
+    let mut text = finished.text.clone();
     if let Some(methods) = &finished.methods {
-        println!("\nMethods:\n{methods}");
+        text.push_str(&format!("\nMethods:\n{methods}\n"));
     }
+    print(&text)?;
     write_outputs(run, plan.recipe(), &finished)
 }
 
