@@ -167,7 +167,10 @@ fn window_counts_are_checked_before_anything_is_allocated() {
     let e = events(-1e308, 1e308, 0.05, false).unwrap_err();
     assert!(e.contains("reaches beyond ±1e6 s"), "{e}");
     let e = events(0.0, 1e5, 1e-9, false).unwrap_err();
-    assert!(e.contains(&format!("windows are more than the {MAX_WINDOWS}")), "{e}");
+    assert!(
+        e.contains(&format!("windows are more than the {MAX_WINDOWS}")),
+        "{e}"
+    );
     let e = events(-0.5, 1.0, 1.5e-5, false).unwrap_err();
     assert!(e.contains("windows are more than the 10000"), "{e}");
     let e = events(-0.5, 1.0, 1e-3, true).unwrap_err();
