@@ -1,10 +1,23 @@
 //! Files on disk: what the core never touches.
 
 use hdf5_pure::ReadSeekSource;
+use std::io::Write;
 use std::path::Path;
 
 pub fn read(path: &Path) -> Result<Vec<u8>, String> {
     std::fs::read(path).map_err(|e| format!("{}: cannot read the file: {e}", path.display()))
+}
+
+/// Print text on standard output. A reader that has gone away (`popdecode ... | head`) is not an error: the rest
+/// of the text is dropped quietly and the run goes on to write its files.
+pub fn print(text: &str) -> Result<(), String> {
+    let mut out = std::io::stdout().lock();
+    match out.write_all(text.as_bytes()).and_then(|()| out.flush()) {
+        Err(e) if e.kind() != std::io::ErrorKind::BrokenPipe => {
+            Err(format!("cannot write to the standard output: {e}"))
+        }
+        _ => Ok(()),
+    }
 }
 
 pub fn write(path: &Path, contents: &str) -> Result<(), String> {

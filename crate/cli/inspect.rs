@@ -1,7 +1,7 @@
 //! `popdecode inspect`: what an NWB file holds.
 
 use crate::args::show;
-use crate::files::{display_name, open_source, write};
+use crate::files::{display_name, open_source, print, write};
 use clap::Args;
 use popdecode::input::nwb::{ColumnSummary, Recording};
 use std::path::PathBuf;
@@ -20,16 +20,17 @@ pub fn run(args: InspectArgs) -> Result<(), String> {
     let name = display_name(&args.file);
     let rec = Recording::read_from(&name, open_source(&args.file)?).map_err(show)?;
     let s = rec.summary();
-    println!(
-        "{name}: {} units, {} spikes, {} trials over {:.3} s",
+    let mut text = format!(
+        "{name}: {} units, {} spikes, {} trials over {:.3} s\n",
         s.units, s.spikes, s.trials, s.duration
     );
-    println!("trials columns (candidate labels, groups and alignment times):");
-    print_columns(&s.columns);
+    text.push_str("trials columns (candidate labels, groups and alignment times):\n");
+    describe_columns(&s.columns, &mut text);
     if !s.unit_columns.is_empty() {
-        println!("units columns (what --units can keep units by):");
-        print_columns(&s.unit_columns);
+        text.push_str("units columns (what --units can keep units by):\n");
+        describe_columns(&s.unit_columns, &mut text);
     }
+    print(&text)?;
     if let Some(path) = &args.spikes {
         let mut out = String::from("unit,time\n");
         for (u, times) in rec.units.iter().zip(&rec.spikes) {
@@ -42,7 +43,7 @@ pub fn run(args: InspectArgs) -> Result<(), String> {
     Ok(())
 }
 
-fn print_columns(columns: &[ColumnSummary]) {
+fn describe_columns(columns: &[ColumnSummary], text: &mut String) {
     for c in columns {
         let values: Vec<String> = c.values.iter().map(|(v, n)| format!("{v} ({n})")).collect();
         let described = match (values.is_empty(), c.range) {
@@ -50,10 +51,10 @@ fn print_columns(columns: &[ColumnSummary]) {
             (true, Some((lo, hi))) => format!("{} distinct values from {lo} to {hi}", c.distinct),
             (true, None) => format!("{} distinct values", c.distinct),
         };
-        println!(
-            "  {:<20} {:<7} {described}",
+        text.push_str(&format!(
+            "  {:<20} {:<7} {described}\n",
             c.name,
             if c.numeric { "number" } else { "text" }
-        );
+        ));
     }
 }

@@ -14,6 +14,7 @@ mod run;
 mod timecourse;
 
 use clap::{Parser, Subcommand};
+use std::io::Write;
 use std::process::ExitCode;
 
 #[derive(Parser)]
@@ -56,7 +57,8 @@ fn main() -> ExitCode {
     match result {
         Ok(()) => ExitCode::SUCCESS,
         Err(message) => {
-            eprintln!("popdecode: error: {message}");
+            // Not eprintln!, which panics when the standard error is closed too.
+            let _ = writeln!(std::io::stderr(), "popdecode: error: {message}");
             ExitCode::from(2)
         }
     }

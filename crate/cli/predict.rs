@@ -1,7 +1,7 @@
 //! `popdecode predict`: cross-validated predictions on folds the user assigns.
 
 use crate::args::{apply_column_flags, show, TableArgs};
-use crate::files::{display_name, read, write};
+use crate::files::{display_name, print, read, write};
 use clap::Args;
 use popdecode::analyses::trial_table::predict::predict_with_folds;
 use popdecode::input::{table::Table, trial_table};
@@ -71,9 +71,6 @@ pub fn run(args: PredictArgs) -> Result<(), String> {
         .expect("UTF-8 in, UTF-8 out");
     match &args.out {
         Some(path) => write(path, &out),
-        None => {
-            print!("{out}");
-            Ok(())
-        }
+        None => print(&out),
     }
 }

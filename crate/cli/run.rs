@@ -3,7 +3,7 @@
 //! `popdecode combine` joins with the others.
 
 use crate::args::{Part, RunArgs};
-use crate::files::write;
+use crate::files::{print, write};
 use crate::part;
 use indicatif::{ProgressBar, ProgressStyle};
 use popdecode::analyses::{Analysis, Finished};
@@ -80,15 +80,14 @@ pub fn analyse<P: Analysis>(
     if let Some(recipe_path) = &run.save_recipe {
         write(recipe_path, &(plan.recipe().to_json() + "\n"))?;
     }
-    println!(
-        "Part {} of {}: {} of the {} tasks, written to {}.",
+    print(&format!(
+        "Part {} of {}: {} of the {} tasks, written to {}.\n",
         part.k,
         part.n,
         indices.len(),
         tasks.len(),
         path.display()
-    );
-    Ok(())
+    ))
 }
 
 /// The part and where its file goes; the flags a part cannot honour are refused before any work starts.
@@ -110,10 +109,11 @@ fn part_output(run: &RunArgs, part: Part) -> Result<(Part, &Path), String> {
 /// Print a finished analysis's text (and methods paragraph), and write the JSON, the recipe and the figures the
 /// flags ask for. A single run and `combine` both end here, so they write the same bytes.
 pub fn deliver(finished: &Finished, recipe: &Recipe, outputs: &Outputs) -> Result<(), String> {
-    print!("{}", finished.text);
+    let mut text = finished.text.clone();
     if let Some(methods) = &finished.methods {
-        println!("\nMethods:\n{methods}");
+        text.push_str(&format!("\nMethods:\n{methods}\n"));
     }
+    print(&text)?;
     if let Some(path) = outputs.json {
         write(path, &(finished.json.clone() + "\n"))?;
     }

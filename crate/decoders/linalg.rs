@@ -191,6 +191,11 @@ pub fn cholesky_rank_one(u: &mut [f64], p: usize, x: &mut [f64], s: f64) -> bool
 
 /// Factor a symmetric positive semi-definite matrix, adding the smallest ridge (relative to its mean diagonal) that
 /// makes it positive definite. Returns the factor and the ridge that was added (0 in the ordinary case).
+///
+/// A finite matrix is positive definite once the ridge passes its largest absolute row sum (Gershgorin), so the
+/// ridge stops growing long before it could overflow. A matrix with a NaN or infinite entry never factors, whatever
+/// the ridge: it gets the factor of its scale times the identity and an infinite ridge, so that a fit finishes
+/// instead of looping for ever. (Checked input never gets there: `recipe::limits::MAX_MAGNITUDE`.)
 pub fn cholesky_with_ridge(a: &[f64], p: usize) -> (Vec<f64>, f64) {
     if let Some(l) = cholesky(a, p) {
         return (l, 0.0);
@@ -202,7 +207,8 @@ pub fn cholesky_with_ridge(a: &[f64], p: usize) -> (Vec<f64>, f64) {
         1.0
     };
     let mut ridge = scale * 1e-12;
-    loop {
+    let finite = a.iter().all(|v| v.is_finite());
+    while finite && ridge.is_finite() {
         let mut b = a.to_vec();
         for i in 0..p {
             b[i * p + i] += ridge;
@@ -212,6 +218,11 @@ pub fn cholesky_with_ridge(a: &[f64], p: usize) -> (Vec<f64>, f64) {
         }
         ridge *= 10.0;
     }
+    let mut l = vec![0.0; p * p];
+    for i in 0..p {
+        l[i * p + i] = scale.sqrt();
+    }
+    (l, f64::INFINITY)
 }
 
 #[cfg(test)]
@@ -259,5 +270,22 @@ mod tests {
         assert!(cholesky(&a, 2).is_none());
         let (_, ridge) = cholesky_with_ridge(&a, 2);
         assert!(ridge > 0.0 && ridge < 1e-6);
+    }
+
+    #[test]
+    fn a_non_finite_matrix_ends_with_a_scaled_identity() {
+        // Before the guard the ridge grew for ever (issue 12, item 1: values near ±1e308).
+        for bad in [f64::NAN, f64::INFINITY, f64::NEG_INFINITY] {
+            let a = [4.0, bad, bad, 4.0];
+            let (l, ridge) = cholesky_with_ridge(&a, 2);
+            assert_eq!(ridge, f64::INFINITY);
+            assert_eq!(l, vec![2.0, 0.0, 0.0, 2.0]);
+        }
+        // Finite but enormous: still factored, with a finite ridge.
+        let (l, ridge) = cholesky_with_ridge(&[1e300, 1e300, 1e300, 1e300], 2);
+        assert!(
+            ridge.is_finite() && l.iter().all(|v| v.is_finite()),
+            "{ridge} {l:?}"
+        );
     }
 }

@@ -5,6 +5,7 @@ use super::table::{quoted_list, Cell, Table};
 use super::trial_labels::{assemble, number_cell, text_cell, TrialLabels};
 use crate::data::time::TimeDataset;
 use crate::error::{Error, Result};
+use crate::recipe::limits::beyond_magnitude;
 use crate::recipe::windows::Window;
 use crate::recipe::Columns;
 use ndarray::Array3;
@@ -94,6 +95,26 @@ pub fn read(t: &Table, columns: &Columns, trial: &str, time: &str) -> Result<Tim
         }
     }
     let (n, w, p) = (trial_ids.len(), times.len(), neuron_cols.len());
+    if n.saturating_mul(w) > t.rows.len() {
+        // Fewer rows than trials × bins: some trial lacks a bin. Found per trial here, before anything of size
+        // trials × bins is allocated (a table of distinct trials at distinct times would otherwise ask for rows²).
+        let mut per_trial: Vec<Vec<f64>> = vec![Vec::new(); n];
+        for (r, &v) in row_time.iter().enumerate() {
+            per_trial[trial_index[&t.rows[r][trial_c]]].push(v);
+        }
+        for (i, mut own) in per_trial.into_iter().enumerate() {
+            own.sort_by(f64::total_cmp);
+            own.dedup();
+            if let Some(k) = (0..w).find(|&k| own.get(k) != Some(&times[k])) {
+                return Err(lacks_bin(
+                    src,
+                    &trial_ids[i],
+                    t.lines[first_row[i]],
+                    times[k],
+                ));
+            }
+        }
+    }
     let mut x = Array3::<f64>::from_elem((w, n, p), f64::NAN);
     let mut seen_at: Vec<Option<usize>> = vec![None; w * n];
     for r in 0..t.rows.len() {
@@ -123,6 +144,13 @@ pub fn read(t: &Table, columns: &Columns, trial: &str, time: &str) -> Result<Tim
                         }
                     )))
                 }
+                Cell::TooLarge(v) => {
+                    return Err(Error::Input(format!(
+                        "{}: {}",
+                        t.at(r, c),
+                        beyond_magnitude(v)
+                    )))
+                }
                 Cell::NotNumber => {
                     return Err(Error::Input(format!(
                         "{}: '{}' is not a number",
@@ -135,10 +163,12 @@ pub fn read(t: &Table, columns: &Columns, trial: &str, time: &str) -> Result<Tim
     }
     for i in 0..n {
         if let Some(k) = (0..w).find(|&k| seen_at[k * n + i].is_none()) {
-            return Err(Error::Input(format!(
-                "{src}: trial '{}' (first on line {}) has no row for time {}; every trial needs the same bins",
-                trial_ids[i], t.lines[first_row[i]], times[k]
-            )));
+            return Err(lacks_bin(
+                src,
+                &trial_ids[i],
+                t.lines[first_row[i]],
+                times[k],
+            ));
         }
     }
     // Bin times are window centres; a bin's extent is unknown, so each window is the point at its time.
@@ -152,4 +182,10 @@ pub fn read(t: &Table, columns: &Columns, trial: &str, time: &str) -> Result<Tim
         .collect();
     let neurons = neuron_cols.iter().map(|&c| t.headers[c].clone()).collect();
     assemble(src, trial_ids, tl, columns, windows, neurons, x, Vec::new())
+}
+
+fn lacks_bin(src: &str, trial: &str, line: u64, time: f64) -> Error {
+    Error::Input(format!(
+        "{src}: trial '{trial}' (first on line {line}) has no row for time {time}; every trial needs the same bins"
+    ))
 }

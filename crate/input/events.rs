@@ -9,6 +9,7 @@ use super::FileBytes;
 use crate::data::labels::sorted_levels;
 use crate::data::time::TimeDataset;
 use crate::error::{Error, Result};
+use crate::recipe::limits::{self, beyond_magnitude};
 use crate::recipe::windows::{containing, to_ns, Window};
 use crate::recipe::Columns;
 use std::collections::BTreeMap;
@@ -121,6 +122,9 @@ pub fn read(
                         at(2)
                     )))
                 }
+                Cell::TooLarge(v) => {
+                    return Err(Error::Input(format!("{}: {}", at(2), beyond_magnitude(v))))
+                }
                 Cell::NotNumber => {
                     return Err(Error::Input(format!(
                         "{}: '{}' is not a time in seconds{}",
@@ -137,6 +141,9 @@ pub fn read(
             let u = match neuron_index.get(unit) {
                 Some(&u) => u,
                 None => {
+                    // Checked as each neuron appears: a small events file can name more neurons than trials ×
+                    // windows × neurons can be held for.
+                    limits::check_time_values(events.name, n, counts.len() + 1, w)?;
                     neuron_index.insert(unit.to_string(), counts.len());
                     counts.push(vec![0; n * w]);
                     counts.len() - 1

@@ -92,11 +92,69 @@ pub fn sha256_of(source: &str, src: &dyn hdf5_pure::Source) -> Result<String> {
         .collect())
 }
 
-/// An integer dataset (indexes and ragged ends are stored signed or unsigned, by writer).
-fn integers(ds: &hdf5_pure::Dataset) -> std::result::Result<Vec<i64>, hdf5_pure::Error> {
+/// Deflate's largest compression ratio, 1032:1 (zlib's technical details, "Maximum compression factor"): the
+/// most bytes a compressed dataset's stored bytes can stand for.
+const MAX_INFLATION: u64 = 1032;
+
+/// Check, from a dataset's header alone and before anything is read, that the values it claims can be backed by
+/// the file: their bytes may not exceed the file's length (times [`MAX_INFLATION`] when the dataset is
+/// compressed). hdf5-pure sizes some buffers from the claim itself (a dataset whose storage was never written reads
+/// as its fill value: a damaged dataspace asked for 72 PB), so a damaged file is refused here instead. Returns the
+/// number of values.
+fn claim(source: &str, path: &str, ds: &hdf5_pure::Dataset, file_len: u64) -> Result<u64> {
+    let read = |e| hdf(source, path, e);
+    let shape = ds.shape().map_err(read)?;
+    let size = ds.element_size().map_err(read)?;
+    let values = shape.iter().try_fold(1u64, |a, &d| a.checked_mul(d));
+    let backed = if ds.filters().is_empty() {
+        file_len
+    } else {
+        file_len.saturating_mul(MAX_INFLATION)
+    };
+    match values {
+        Some(v) if v.checked_mul(size).is_some_and(|b| b <= backed) => Ok(v),
+        _ => Err(Error::Input(format!(
+            "{source}: {path} claims {} values of {size} bytes, more than a file of {file_len} bytes can hold; the \
+             file is damaged",
+            values.map_or_else(|| format!("{shape:?}"), |v| v.to_string())
+        ))),
+    }
+}
+
+/// A dataset's values as numbers, after [`claim`].
+fn numbers(source: &str, path: &str, ds: &hdf5_pure::Dataset, file_len: u64) -> Result<Vec<f64>> {
+    claim(source, path, ds, file_len)?;
+    ds.read_f64().map_err(|e| hdf(source, path, e))
+}
+
+/// An integer dataset (indexes and ragged ends are stored signed or unsigned, by writer), after [`claim`].
+fn integers(source: &str, path: &str, ds: &hdf5_pure::Dataset, file_len: u64) -> Result<Vec<i64>> {
+    claim(source, path, ds, file_len)?;
     match ds.read_i64() {
         Ok(v) => Ok(v),
-        Err(_) => Ok(ds.read_u64()?.into_iter().map(|v| v as i64).collect()),
+        Err(_) => Ok(ds
+            .read_u64()
+            .map_err(|e| hdf(source, path, e))?
+            .into_iter()
+            .map(|v| v as i64)
+            .collect()),
+    }
+}
+
+/// A text dataset, after [`claim`]; variable-length strings with their payload (kept in the file's heaps, never
+/// compressed) held to the file's length too, since each element claims its own length.
+fn texts(
+    ds: &hdf5_pure::Dataset,
+    values: u64,
+    file_len: u64,
+) -> std::result::Result<Vec<String>, hdf5_pure::Error> {
+    if matches!(ds.datatype()?, hdf5_pure::Datatype::VariableLength { .. }) {
+        let limits = hdf5_pure::VlenStringReadOptions::new()
+            .with_max_elements(usize::try_from(values).unwrap_or(usize::MAX))
+            .with_max_payload_bytes(usize::try_from(file_len).unwrap_or(usize::MAX));
+        ds.read_vlen_strings(limits)
+    } else {
+        ds.read_string()
     }
 }
 
@@ -123,8 +181,9 @@ fn electrode_columns(
             "{source}: units/electrodes is not a valid reference into the electrodes table ({what})"
         ))
     };
-    let rows = integers(&region).map_err(|e| hdf(source, "units/electrodes", e))?;
-    let ends = integers(&ends).map_err(|e| hdf(source, "units/electrodes_index", e))?;
+    let len = file.file_size();
+    let rows = integers(source, "units/electrodes", &region, len)?;
+    let ends = integers(source, "units/electrodes_index", &ends, len)?;
     if ends.len() != n_units {
         return Err(bad("one run of electrodes per unit"));
     }
@@ -201,12 +260,15 @@ fn table_columns(
         if name == "id" || name.ends_with("_index") || ragged {
             continue;
         }
-        let ds = file
-            .dataset(&format!("{path}/{name}"))
-            .map_err(|e| hdf(source, name, e))?;
+        let full = format!("{path}/{name}");
+        let ds = file.dataset(&full).map_err(|e| hdf(source, name, e))?;
+        let values = claim(source, &full, &ds, file.file_size())?;
+        if rows.is_some_and(|n| values != n as u64) {
+            continue; // a 2-D column (or a damaged one) is not a per-row property: not read at all
+        }
         let column = match ds.read_f64() {
             Ok(v) => Column::Numbers(v),
-            Err(_) => match ds.read_string() {
+            Err(_) => match texts(&ds, values, file.file_size()) {
                 Ok(t) => Column::Texts(t),
                 Err(_) => continue, // references, compounds: not a label, group, time or unit property
             },
@@ -219,14 +281,14 @@ fn table_columns(
 }
 
 impl Recording {
-    /// Read a whole NWB file held in memory.
+    /// Read a whole NWB file held in memory, through the same random-access route as a file on disk or the
+    /// page's dropped file ([`Recording::read_from`]): hdf5-pure's in-memory constructor and its source
+    /// constructor disagreed on some damaged files (one found the units table, the other did not), and every face
+    /// must give a file the same verdict.
     pub fn read(source: &str, bytes: &[u8]) -> Result<Recording> {
-        if !hdf5_pure::is_hdf5_bytes(bytes) {
-            return Err(not_hdf5(source));
-        }
-        let file = hdf5_pure::File::from_bytes(bytes.to_vec())
-            .map_err(|e| hdf(source, "the HDF5 structure cannot be read", e))?;
-        Recording::from_file(source, &file)
+        let src = hdf5_pure::ReadSeekSource::new(std::io::Cursor::new(bytes.to_vec()))
+            .map_err(|e| hdf(source, "the file cannot be read", e))?;
+        Recording::read_from(source, src)
     }
 
     /// Read an NWB file through a random-access source, touching only the units and trials tables: a file of
@@ -249,16 +311,20 @@ impl Recording {
                  table and a trials table"
             ))
         };
-        let times = file
+        let len = file.file_size();
+        let times_ds = file
             .dataset("units/spike_times")
-            .map_err(|_| missing("units table", "units/spike_times"))?
-            .read_f64()
-            .map_err(|e| hdf(source, "units/spike_times", e))?;
+            .map_err(|_| missing("units table", "units/spike_times"))?;
+        let times = numbers(source, "units/spike_times", &times_ds, len)?;
         let index_ds = file
             .dataset("units/spike_times_index")
             .map_err(|_| missing("units table index", "units/spike_times_index"))?;
-        let index = integers(&index_ds).map_err(|e| hdf(source, "units/spike_times_index", e))?;
-        let ids: Vec<String> = match file.dataset("units/id").and_then(|d| d.read_i64()) {
+        let index = integers(source, "units/spike_times_index", &index_ds, len)?;
+        let ids = file
+            .dataset("units/id")
+            .map_err(|e| hdf(source, "units/id", e))
+            .and_then(|d| integers(source, "units/id", &d, len));
+        let ids: Vec<String> = match ids {
             Ok(ids) if ids.len() == index.len() => {
                 ids.iter().map(|i| format!("unit {i}")).collect()
             }
@@ -296,23 +362,39 @@ impl Recording {
         })
     }
 
+    /// Trials: as many as `start_time` has values.
     pub fn n_trials(&self) -> usize {
-        self.column("start_time").map_or(0, |c| c.texts().len())
+        self.column("start_time").map_or(0, Column::len)
     }
 
     pub fn column(&self, name: &str) -> Option<&Column> {
         self.trials.iter().find(|(n, _)| n == name).map(|(_, c)| c)
     }
 
-    /// A trials column by name, or an error listing the columns there are.
+    /// A trials column by name, holding one value per trial (as many as `start_time`), or an error listing the
+    /// columns there are or saying how many values it has.
     pub fn require(&self, source: &str, name: &str) -> Result<&Column> {
-        self.column(name).ok_or_else(|| {
+        let column = self.column(name).ok_or_else(|| {
             let names: Vec<String> = self.trials.iter().map(|(n, _)| format!("'{n}'")).collect();
             Error::Input(format!(
                 "{source}: the trials table has no column '{name}'; its columns are: {}",
                 names.join(", ")
             ))
-        })
+        })?;
+        let n = self.n_trials();
+        if n == 0 {
+            return Err(Error::Input(format!(
+                "{source}: the trials table has no trials (intervals/trials/start_time is empty)"
+            )));
+        }
+        if column.len() != n {
+            return Err(Error::Input(format!(
+                "{source}: the trials column '{name}' holds {} values for {n} trials (one per start_time); every \
+                 trials column needs one value per trial",
+                column.len()
+            )));
+        }
+        Ok(column)
     }
 }
 

@@ -6,7 +6,7 @@ use super::trial_labels::{assemble, TrialLabels};
 use crate::data::time::TimeDataset;
 use crate::error::{Error, Result};
 use crate::recipe::windows::{containing, to_ns, Window};
-use crate::recipe::Columns;
+use crate::recipe::{limits, Columns};
 
 /// An NWB recording: every unit's spikes counted in windows around each trial's alignment time (default: its
 /// `start_time`). Labels and groups are trials-table columns.
@@ -40,6 +40,7 @@ pub fn read(
         )));
     }
     let w = windows.len();
+    limits::check_time_values(src, n, rec.spikes.len(), w)?;
     let (first, last) = (windows[0].start, windows[w - 1].end);
     // Spikes counted inside some trial's analysis span (a spike near two trials can count in both).
     let mut inside = 0u64;

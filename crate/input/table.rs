@@ -11,6 +11,7 @@
 //! spreadsheet does.
 
 use crate::error::{Error, Result};
+use crate::recipe::limits::MAX_MAGNITUDE;
 
 /// The text of a table with its header, each record remembered with the file line it started on.
 #[derive(Debug, Clone)]
@@ -31,6 +32,9 @@ pub enum Cell {
     Number(f64),
     Missing,
     NotNumber,
+    /// A number beyond [`MAX_MAGNITUDE`]: counted as a number when columns are sorted into numeric and text, and
+    /// refused wherever it would be used ([`crate::recipe::limits::beyond_magnitude`] says why).
+    TooLarge(f64),
 }
 
 /// The header and delimiter of a file read row by row with [`stream`].
@@ -177,7 +181,8 @@ pub fn is_missing_token(s: &str) -> bool {
             .any(|m| t.eq_ignore_ascii_case(m))
 }
 
-/// Parse a number; infinities and text are `NotNumber`, missing tokens are `Missing`.
+/// Parse a number; infinities and text are `NotNumber`, missing tokens are `Missing`, magnitudes beyond
+/// [`MAX_MAGNITUDE`] are `TooLarge`.
 pub fn parse_number(s: &str, decimal_comma: bool) -> Cell {
     let t = s.trim();
     if is_missing_token(t) {
@@ -189,7 +194,8 @@ pub fn parse_number(s: &str, decimal_comma: bool) -> Cell {
         t.parse::<f64>()
     };
     match parsed {
-        Ok(v) if v.is_finite() => Cell::Number(v),
+        Ok(v) if v.abs() <= MAX_MAGNITUDE => Cell::Number(v),
+        Ok(v) if v.is_finite() => Cell::TooLarge(v),
         _ => Cell::NotNumber,
     }
 }
@@ -318,6 +324,9 @@ mod tests {
         assert_eq!(parse_number("NaN", false), Cell::Missing);
         assert_eq!(parse_number("", false), Cell::Missing);
         assert_eq!(parse_number("inf", false), Cell::NotNumber);
+        assert_eq!(parse_number("1e400", false), Cell::NotNumber);
+        assert_eq!(parse_number("-1e100", false), Cell::Number(-1e100));
+        assert_eq!(parse_number("1.5e200", false), Cell::TooLarge(1.5e200));
         assert_eq!(parse_number("1,5", false), Cell::NotNumber);
         assert_eq!(parse_number("-2.5e1", false), Cell::Number(-25.0));
     }

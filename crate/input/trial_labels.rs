@@ -5,6 +5,7 @@ use super::table::{is_missing_token, Cell, Table};
 use crate::data::labels::{codes, sorted_levels};
 use crate::data::time::TimeDataset;
 use crate::error::{Error, Result};
+use crate::recipe::limits::beyond_magnitude;
 use crate::recipe::windows::Window;
 use crate::recipe::Columns;
 use ndarray::Array3;
@@ -38,6 +39,11 @@ pub(super) fn number_cell(t: &Table, r: usize, c: usize, what: &str) -> Result<f
             "{}: the {what} is missing",
             t.at(r, c)
         ))),
+        Cell::TooLarge(v) => Err(Error::Input(format!(
+            "{}: {}",
+            t.at(r, c),
+            beyond_magnitude(v)
+        ))),
         Cell::NotNumber => Err(Error::Input(format!(
             "{}: '{}' is not a number ({what})",
             t.at(r, c),
@@ -59,10 +65,13 @@ pub(super) fn assemble(
     warnings: Vec<String>,
 ) -> Result<TimeDataset> {
     let classes = sorted_levels(&tl.labels);
-    if classes.len() < 2 {
+    if let [] | [_] = classes.as_slice() {
         return Err(Error::Design(format!(
-            "{source}: column '{}' holds only one class ('{}'); decoding needs at least two conditions",
-            columns.label, classes[0]
+            "{source}: column '{}' holds {}; decoding needs at least two conditions",
+            columns.label,
+            classes.first().map_or("no class".to_string(), |c| format!(
+                "only one class ('{c}')"
+            ))
         )));
     }
     let y = codes(&tl.labels, &classes);

@@ -7,6 +7,7 @@ use super::sha256_hex;
 use super::table::{self, quoted_list, Cell, Table};
 use crate::data::{labels, Dataset};
 use crate::error::{Error, Result};
+use crate::recipe::limits::beyond_magnitude;
 use crate::recipe::Columns;
 use ndarray::Array2;
 
@@ -66,6 +67,13 @@ pub fn from_table(table: &Table, columns: &Columns) -> Result<Dataset> {
                     continue 'rows;
                 }
                 Cell::Missing => return Err(missing(table, r, c)),
+                Cell::TooLarge(v) => {
+                    return Err(Error::Input(format!(
+                        "{}: {}",
+                        table.at(r, c),
+                        beyond_magnitude(v)
+                    )))
+                }
                 Cell::NotNumber => {
                     return Err(Error::Input(format!(
                         "{}: '{}' is not a number{}",
@@ -257,7 +265,7 @@ fn choose_features(
         let (mut numbers, mut text) = (0usize, 0usize);
         for r in 0..table.rows.len() {
             match table.cell(r, c) {
-                Cell::Number(_) => numbers += 1,
+                Cell::Number(_) | Cell::TooLarge(_) => numbers += 1,
                 Cell::NotNumber => text += 1,
                 Cell::Missing => {}
             }

@@ -9,6 +9,7 @@
 
 pub mod classifier;
 pub mod columns;
+pub mod limits;
 pub mod time;
 pub mod units;
 pub mod windows;
@@ -158,16 +159,16 @@ impl Recipe {
         if self.repeats == 0 {
             return Err(Error::Recipe("repeats must be at least 1".into()));
         }
-        if !(self.c.is_finite() && self.c > 0.0) {
-            return Err(Error::Recipe(format!(
-                "C must be a positive number; got {}",
-                self.c
-            )));
-        }
-        if self.shuffles > 0 && self.shuffle_repeats() == 0 {
-            return Err(Error::Recipe(
-                "repeats per shuffle must be at least 1".into(),
-            ));
+        limits::check_count("repeats", self.repeats)?;
+        limits::check_count("shuffles", self.shuffles)?;
+        limits::check_c(self.c)?;
+        if self.shuffles > 0 {
+            if self.shuffle_repeats() == 0 {
+                return Err(Error::Recipe(
+                    "repeats per shuffle must be at least 1".into(),
+                ));
+            }
+            limits::check_count("repeats per shuffle", self.shuffle_repeats())?;
         }
         if self.columns.label.trim().is_empty() {
             return Err(Error::Recipe("name the label column".into()));
@@ -205,7 +206,8 @@ impl Recipe {
                 ..
             } = t.input
             {
-                windows::sliding(start, end, width, step)?;
+                let count = windows::sliding(start, end, width, step)?.len();
+                limits::check_windows(count as f64, t.generalize)?;
             }
             if let TimeInput::Nwb { units, .. } = &t.input {
                 units.iter().try_for_each(UnitFilter::validate)?;

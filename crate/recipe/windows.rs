@@ -7,6 +7,7 @@
 //! alignment time, are rounded to the nearest nanosecond ([`to_ns`]): `0.2 + 0.1` is not `0.3` in binary floating
 //! point, and without the rounding a spike written as `0.3` in a file would fall in the window that ends at 0.3.
 
+use super::limits::{check_windows, MAX_SPAN_TIME, MIN_WINDOW};
 use crate::error::{Error, Result};
 use serde::{Deserialize, Serialize};
 
@@ -24,12 +25,25 @@ pub fn to_ns(seconds: f64) -> f64 {
     (seconds * 1e9).round() / 1e9
 }
 
-/// Windows of `width` stepped by `step` from `start`, as many as fit entirely before `end`.
+/// Windows of `width` stepped by `step` from `start`, as many as fit entirely before `end`. The count is checked
+/// against [`super::limits::MAX_WINDOWS`] as a float, before anything is allocated.
 pub fn sliding(start: f64, end: f64, width: f64, step: f64) -> Result<Vec<Window>> {
     let finite = [start, end, width, step].iter().all(|v| v.is_finite());
     if !finite || width <= 0.0 || step <= 0.0 {
         return Err(Error::Recipe(format!(
             "window width and step must be positive numbers of seconds; got width {width}, step {step}"
+        )));
+    }
+    if width < MIN_WINDOW || step < MIN_WINDOW {
+        return Err(Error::Recipe(format!(
+            "window width and step must be at least 1e-9 s (window edges are kept to the nanosecond); got width \
+             {width}, step {step}"
+        )));
+    }
+    if start.abs() > MAX_SPAN_TIME || end.abs() > MAX_SPAN_TIME {
+        return Err(Error::Recipe(format!(
+            "the analysis span {start:?} s to {end:?} s reaches beyond ±1e6 s from alignment, where window edges can no \
+             longer be kept to the nanosecond"
         )));
     }
     if end - start < width {
@@ -40,13 +54,9 @@ pub fn sliding(start: f64, end: f64, width: f64, step: f64) -> Result<Vec<Window
     }
     // A tolerance of a millionth of a step lets "0 to 1 s in 0.1 s windows" end with the window [0.9, 1.0).
     let slack = 1e-6 * step;
-    let count = ((end - start - width + slack) / step).floor() as usize + 1;
-    if count > 100_000 {
-        return Err(Error::Recipe(format!(
-            "{count} windows is more than this tool handles; use a larger step"
-        )));
-    }
-    Ok((0..count)
+    let count = ((end - start - width + slack) / step).floor() + 1.0;
+    check_windows(count, false)?;
+    Ok((0..count as usize)
         .map(|k| {
             let s = to_ns(start + k as f64 * step);
             Window {

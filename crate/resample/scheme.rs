@@ -118,6 +118,14 @@ impl Scheme {
         if t.pseudo {
             return Scheme::resolve_pseudo(t, recipe, n_classes);
         }
+        if smallest < 2 {
+            // Its one trial is tested only when held out, and then no training trial of its class exists.
+            return Err(Error::Design(format!(
+                "{}: class '{}' has a single trial; cross-validation needs at least two trials of every class, so \
+                 that a held-out trial's class is among the training trials (leave the class out, or add trials)",
+                t.source, t.classes[smallest_class]
+            )));
+        }
         let split = match (&t.groups, recipe.folds) {
             (Some(_), folds) => {
                 let n_groups = t.group_names.len();
@@ -170,6 +178,9 @@ impl Scheme {
                 }
             }
         }
+        if let (Some(groups), true) = (t.groups, recipe.balance) {
+            Scheme::check_draws_span_groups(t, groups, smallest)?;
+        }
         if recipe.shuffles > 0 {
             if let Some(groups) = t.groups {
                 let varies = (0..t.group_names.len()).any(|g| {
@@ -210,6 +221,25 @@ impl Scheme {
             n_classes,
             n_groups: t.group_names.len(),
         })
+    }
+
+    /// With balancing, every class is undersampled to `smallest` trials; if one group alone holds that many of
+    /// every class, a repeat can draw all its trials from that group and be left with nothing to test on.
+    fn check_draws_span_groups(t: &Trials, groups: &[usize], smallest: usize) -> Result<()> {
+        let (n_groups, n_classes) = (t.group_names.len(), t.classes.len());
+        let mut count = vec![0usize; n_groups * n_classes];
+        for (&g, &c) in groups.iter().zip(t.y) {
+            count[g * n_classes + c] += 1;
+        }
+        match (0..n_groups).find(|&g| (0..n_classes).all(|c| count[g * n_classes + c] >= smallest)) {
+            None => Ok(()),
+            Some(g) => Err(Error::Design(format!(
+                "{}: balancing keeps {smallest} trials of every class, and group '{}' alone holds that many of \
+                 every class, so a repeat could draw all its trials from that one group and have no other group to \
+                 test on; add trials of the smallest class in other groups, or turn class balancing off",
+                t.source, t.group_names[g]
+            ))),
+        }
     }
 
     /// Pseudo-populations: k folds of every session's trials; every (session, condition) needs k trials.

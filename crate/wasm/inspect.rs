@@ -15,7 +15,7 @@ pub fn inspect(name: &str, bytes: &[u8]) -> Result<String, JsValue> {
             let (mut num, mut txt) = (0, 0);
             for r in 0..t.rows.len() {
                 match t.cell(r, c) {
-                    Cell::Number(_) => num += 1,
+                    Cell::Number(_) | Cell::TooLarge(_) => num += 1,
                     Cell::NotNumber => txt += 1,
                     Cell::Missing => {}
                 }

@@ -3,7 +3,7 @@
 use crate::analyses::trial_table::Plan;
 use crate::data::Dataset;
 use crate::error::{Error, Result};
-use crate::recipe::Recipe;
+use crate::recipe::{limits, Recipe};
 use crate::resample::Task;
 use crate::rng::{shuffle, task_rng, Stream};
 use crate::stats;
@@ -68,10 +68,17 @@ impl NeuronsPlan {
         if draws == 0 {
             return Err(Error::Recipe("draws per size must be at least 1".into()));
         }
+        limits::check_count("draws per size", draws)?;
         let mut recipe = recipe.clone();
         recipe.shuffles = 0;
         let p = data.n_features();
         let plan = Plan::new(data, &recipe)?;
+        // Each task runs every repeat; each outcome keeps two means and two SDs.
+        let tasks = (sizes(p).len() * draws + p) as f64;
+        limits::check_work(
+            recipe.repeats as f64 * plan.scheme.folds() as f64,
+            tasks * 4.0,
+        )?;
         Ok(NeuronsPlan {
             sizes: sizes(p),
             recipe,

@@ -14,7 +14,7 @@ use crate::analyses::resolve_scheme;
 use crate::data::time::TimeDataset;
 use crate::decoders::{self, check_counts, fit_folds, Decoder, FittedPipeline, FoldSet};
 use crate::error::{Error, Result};
-use crate::recipe::{Recipe, Setting, TimeInput, TimeSettings};
+use crate::recipe::{limits, Recipe, Setting, TimeInput, TimeSettings};
 use crate::resample::score::accuracies;
 use crate::resample::{permute_labels, Draw, Scheme, Task};
 use crate::rng::{task_rng, Stream};
@@ -56,6 +56,15 @@ impl TimePlan {
             Error::Recipe("this recipe has no time settings; it is for a trial table".into())
         })?;
         let mut scheme = resolve_scheme(&data.trials(), recipe)?;
+        // A binned table's windows are its bins, known only now; spike events' and NWB windows were checked with
+        // the recipe already.
+        let w = data.windows.len() as f64;
+        limits::check_windows(w, settings.generalize)?;
+        let per_task = w * (2.0 + if settings.generalize { w } else { 0.0 });
+        limits::check_work(
+            scheme.folds() as f64 * w * recipe.shuffle_repeats().max(1) as f64,
+            (recipe.repeats + recipe.shuffles) as f64 * per_task,
+        )?;
         let count_scale = match settings.input {
             TimeInput::Events { width, .. } | TimeInput::Nwb { width, .. }
                 if recipe.classifier.needs_counts() =>

@@ -4,7 +4,7 @@ use crate::analyses::resolve_scheme;
 use crate::data::Dataset;
 use crate::decoders::{self, check_counts, cross_validate, CrossValidated, Decoder, FoldSet};
 use crate::error::Result;
-use crate::recipe::{Recipe, Setting};
+use crate::recipe::{limits, Recipe, Setting};
 use crate::resample::score::accuracies;
 use crate::resample::{permute_labels, pseudo, Scheme, Split, Task};
 use crate::rng::{task_rng, Stream};
@@ -43,6 +43,13 @@ pub struct Plan {
 impl Plan {
     pub fn new(data: Dataset, recipe: &Recipe) -> Result<Plan> {
         let mut scheme = resolve_scheme(&data.trials(), recipe)?;
+        let (folds, classes) = (scheme.folds() as f64, data.classes.len() as f64);
+        // Kept per observed repeat: two scores, the confusion counts and, with tuning, a setting per fold.
+        let per_repeat = 2.0 + classes * classes + if recipe.tune { folds } else { 0.0 };
+        limits::check_work(
+            folds * recipe.shuffle_repeats().max(1) as f64,
+            recipe.repeats as f64 * per_repeat + recipe.shuffles as f64 * 2.0,
+        )?;
         let mut warnings = data.warnings.clone();
         warnings.append(&mut scheme.warnings);
         scheme.warnings = warnings;
