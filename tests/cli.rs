@@ -271,3 +271,30 @@ fn timecourse_without_a_span_says_what_to_add() {
     let stderr = String::from_utf8_lossy(&out.stderr);
     assert!(stderr.contains("--start and --end"), "{stderr}");
 }
+
+/// Help names every decoder (the kernel SVM included, and where C and tuning apply to it) and prints each default
+/// once (issue 13, item 13).
+#[test]
+fn help_names_every_decoder_and_each_default_once() {
+    let help = |sub: &str| {
+        let out = bin().args([sub, "--help"]).output().unwrap();
+        succeeded(&out);
+        String::from_utf8(out.stdout).unwrap()
+    };
+    for sub in ["decode", "timecourse", "neurons"] {
+        let text = help(sub);
+        for c in popdecode::recipe::Classifier::ALL {
+            assert!(text.contains(c.name()), "{sub} --help omits {}", c.name());
+        }
+        let c_help = text.split("--c <C>").nth(1).unwrap();
+        assert!(
+            c_help[..c_help.find("--tune").unwrap()].contains("kernel SVM"),
+            "{sub}: --c"
+        );
+        let tune_help = text.split("--tune").nth(1).unwrap();
+        assert!(tune_help[..300].contains("kernel"), "{sub}: --tune");
+        for line in text.lines() {
+            assert!(line.matches("[default:").count() <= 1, "{sub}: {line}");
+        }
+    }
+}

@@ -12,7 +12,7 @@ use popdecode::input;
 pub struct NeuronsArgs {
     #[command(flatten)]
     pub table: TableArgs,
-    /// Random subsets drawn per population size for the dropping curve [default: 10].
+    /// Random subsets drawn per population size for the dropping curve.
     #[arg(long, default_value_t = 10)]
     pub draws: usize,
     #[command(flatten)]
