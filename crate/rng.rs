@@ -23,6 +23,10 @@ pub enum Stream {
     Simulation = 4,
     /// Random subsets of neurons (the neuron-dropping curve).
     Subset = 5,
+    /// Inner folds of nested tuning, per outer training fold.
+    InnerFolds = 6,
+    /// The balanced draw of trials a neuron analysis fits its weights on.
+    Weights = 7,
 }
 
 /// A generator for task `(a, b)` of kind `kind` under `seed`.

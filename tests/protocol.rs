@@ -177,3 +177,81 @@ fn leave_one_out_with_a_constant_feature() {
             .all(|v| v.is_finite()));
     }
 }
+
+/// Leave-one-out on classes of equal size (and leave-one-group-out when every trial is kept) has nothing random
+/// left: one repeat is run, and one per shuffle, and the report says why; leave-one-out always carries its caution.
+/// With unequal classes, balancing draws other trials in every repeat, so the repeats run (issue 13, item 5).
+#[test]
+fn identical_splits_run_once_and_leave_one_out_is_cautioned() {
+    let equal = no_information(vec![12, 12], 3, 21);
+    let mut r = recipe(Classifier::ShrinkageLda, 30, 9);
+    r.folds = Folds::LeaveOneOut;
+    let report = analyse(&equal, &r);
+    assert_eq!(report.repeats.len(), 1);
+    assert_eq!(report.shuffle.repeats_each, 1);
+    assert!(
+        report
+            .warnings
+            .iter()
+            .any(|w| w.contains("single repeat was run")),
+        "{:?}",
+        report.warnings
+    );
+    assert!(
+        report
+            .warnings
+            .iter()
+            .any(|w| w.contains("biased below chance")),
+        "{:?}",
+        report.warnings
+    );
+    let methods = popdecode::analyses::trial_table::methods::paragraph(&report);
+    assert!(
+        methods.contains("In one repeat") && methods.contains("biased below chance"),
+        "{methods}"
+    );
+
+    let mut blocks = Scenario {
+        blocks_per_class: 2,
+        ..no_information(vec![12, 12], 3, 22)
+    };
+    let mut grouped = recipe(Classifier::ShrinkageLda, 30, 0);
+    grouped.columns.group = Some("block".into());
+    assert_eq!(
+        analyse(&blocks, &grouped).repeats.len(),
+        1,
+        "four blocks, leave-one-group-out"
+    );
+
+    blocks.trials_per_class = vec![12, 14];
+    assert_eq!(
+        analyse(&blocks, &grouped).repeats.len(),
+        30,
+        "unequal classes: balancing varies"
+    );
+    let unequal = no_information(vec![12, 14], 3, 23);
+    let report = analyse(&unequal, &r);
+    assert_eq!(report.repeats.len(), 30);
+    assert!(report
+        .warnings
+        .iter()
+        .any(|w| w.contains("biased below chance")));
+}
+
+/// The caution's claim, on invented data without information (Kohavi 1995 describes the mechanism): with
+/// leave-one-out, a decoder with class priors scores well below chance on average, and repeated 5-fold does not.
+#[test]
+fn leave_one_out_is_biased_below_chance_without_information() {
+    let (mut loo, mut kfold) = (Vec::new(), Vec::new());
+    for d in 0..40 {
+        let scenario = no_information(vec![10, 10], 3, 300 + d);
+        let mut r = recipe(Classifier::Logistic, 10, 0);
+        r.seed = d;
+        kfold.push(analyse(&scenario, &r).summary.accuracy.mean);
+        r.folds = Folds::LeaveOneOut;
+        loo.push(analyse(&scenario, &r).summary.accuracy.mean);
+    }
+    let (loo, kfold) = (popdecode::stats::mean(&loo), popdecode::stats::mean(&kfold));
+    assert!(loo < 0.45, "leave-one-out {loo}");
+    assert!(kfold > loo + 0.03, "5-fold {kfold} vs leave-one-out {loo}");
+}

@@ -93,7 +93,7 @@ impl NeuronsPlan {
 
     /// Fits a task performs: repeats × folds.
     pub fn fits_in(&self, _task: NeuronTask) -> usize {
-        self.recipe.repeats * self.plan.scheme.folds()
+        self.plan.recipe.repeats * self.plan.scheme.folds()
     }
 
     pub fn run(&self, task: NeuronTask) -> NeuronOutcome {
@@ -113,7 +113,8 @@ impl NeuronsPlan {
         };
         let sub = self.plan.data.with_features(&cols);
         let plan = Plan::new(sub, &self.recipe).expect("a subset of a valid dataset is valid");
-        let outcomes: Vec<_> = (0..self.recipe.repeats)
+        // The subset's plan may run fewer repeats than asked (when every repeat would split alike).
+        let outcomes: Vec<_> = (0..plan.recipe.repeats)
             .map(|i| plan.run(Task::Repeat(i)))
             .collect();
         NeuronOutcome {

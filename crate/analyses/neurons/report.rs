@@ -3,8 +3,9 @@
 
 use super::plan::{MeanSd, NeuronOutcome, NeuronTask, NeuronsPlan};
 use crate::data::Dataset;
+use crate::decoders::nearest_mean::MIN_CORRELATION_FEATURES;
 use crate::decoders::{self, linalg, standardise::Standardiser, FittedPipeline};
-use crate::recipe::Recipe;
+use crate::recipe::{Classifier, Recipe};
 use crate::report::Software;
 use serde::{Deserialize, Serialize};
 
@@ -108,6 +109,16 @@ impl NeuronsReport {
         // Best first; ties by neuron order, so the order never depends on the order of outcomes.
         single.sort_by(|a, b| lead(b.1).total_cmp(&lead(a.1)).then(a.0.cmp(&b.0)));
         let linear = linear(data, &plan.recipe);
+        let mut warnings = plan.plan.scheme.warnings.clone();
+        if plan.recipe.classifier == Classifier::NearestMean
+            && data.n_features() >= MIN_CORRELATION_FEATURES
+        {
+            warnings.push(format!(
+                "nearest-mean correlates patterns across neurons, which needs at least {MIN_CORRELATION_FEATURES}; \
+                 single neurons and subsets of fewer were decoded by the class mean nearest in Euclidean distance \
+                 instead, so the first points of the dropping curve and the single-neuron ranking use that rule"
+            ));
+        }
         NeuronsReport {
             schema: NEURONS_SCHEMA.into(),
             software: Software::current(),
@@ -136,7 +147,7 @@ impl NeuronsReport {
             weights: linear.as_ref().map(|l| l.weights.clone()),
             patterns: linear.map(|l| l.patterns),
             patterns_note: PATTERNS_NOTE.into(),
-            warnings: plan.plan.scheme.warnings.clone(),
+            warnings,
         }
     }
 

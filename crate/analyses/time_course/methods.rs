@@ -91,7 +91,7 @@ pub fn paragraph(r: &TimeReport) -> String {
         "{} The same balancing and folds were applied at every window.",
         resampling(rc, &r.design, r.classes.len(), group, r.input.groups.len())
     ));
-    out.push(fitting(rc).replace(
+    out.push(fitting(rc, r.input.neurons.len()).replace(
         "Within each training fold,",
         "Within each training fold and window,",
     ));

@@ -12,12 +12,15 @@
 
 use crate::analyses::resolve_scheme;
 use crate::data::time::TimeDataset;
-use crate::decoders::{self, check_counts, fit_folds, Decoder, FittedPipeline, FoldSet};
+use crate::decoders::{
+    self, check_counts, fit_folds_with, Decoder, FittedPipeline, FoldSet, Nesting,
+};
 use crate::error::{Error, Result};
 use crate::recipe::{Recipe, Setting, TimeInput, TimeSettings};
 use crate::resample::score::accuracies;
-use crate::resample::{permute_labels, Draw, Scheme, Task};
+use crate::resample::{permute_labels, single_group_folds, Draw, Scheme, Task};
 use crate::rng::{task_rng, Stream};
+use rand_core::RngCore;
 use serde::{Deserialize, Serialize};
 
 /// What a task produced at every window. For a shuffle, scores are means over its repeats.
@@ -37,6 +40,14 @@ pub struct TimeOutcome {
     /// With tuning, the setting chosen in each fit of an observed repeat (window by window, folds in order).
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub chosen: Vec<Setting>,
+    /// With tuning and groups: fits whose training fold held a single group, so that its inner folds could not be
+    /// grouped.
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub ungrouped_inner: u32,
+}
+
+fn is_zero(v: &u32) -> bool {
+    *v == 0
 }
 
 /// A time-resolved recipe checked against a recording (which it owns, like the trial-table plan).
@@ -74,10 +85,11 @@ impl TimePlan {
         let mut warnings = data.warnings.clone();
         warnings.append(&mut scheme.warnings);
         warnings.extend(counts_note);
+        warnings.extend(decoders::features_note(recipe.classifier, data.n_neurons()));
         scheme.warnings = warnings;
         Ok(TimePlan {
             data,
-            recipe: recipe.clone(),
+            recipe: scheme.repeats_to_run(recipe),
             settings,
             scheme,
             decoder: decoders::build(recipe.classifier, recipe.c, recipe.tune),
@@ -110,7 +122,7 @@ impl TimePlan {
             Task::Repeat(i) => {
                 let mut rng = task_rng(seed, Stream::Repeat, i as u64, 0);
                 let draw = self.scheme.draw(&self.data.y, groups, &mut rng);
-                let mut out = self.one_repeat(&draw);
+                let mut out = self.one_repeat(&draw, rng.next_u64());
                 out.task = task;
                 out
             }
@@ -122,7 +134,7 @@ impl TimePlan {
                 for i in 0..r {
                     let mut rng = task_rng(seed, Stream::ShuffleRepeat, j as u64, i as u64);
                     let draw = self.scheme.draw(&labels, groups, &mut rng);
-                    let o = self.one_repeat(&draw);
+                    let o = self.one_repeat(&draw, rng.next_u64());
                     match &mut total {
                         None => total = Some(o),
                         Some(t) => {
@@ -132,6 +144,7 @@ impl TimePlan {
                             t.fits += o.fits;
                             t.capped_fits += o.capped_fits;
                             t.single_class_fits += o.single_class_fits;
+                            t.ungrouped_inner += o.ungrouped_inner;
                         }
                     }
                 }
@@ -161,9 +174,19 @@ impl TimePlan {
     }
 
     /// Cross-validate one draw at every window (and, with generalization, test every window's decoder at every
-    /// window). All folds of a window are fitted together, so a decoder with a fold shortcut can use it.
-    fn one_repeat(&self, draw: &Draw) -> TimeOutcome {
+    /// window). All folds of a window are fitted together, so a decoder with a fold shortcut can use it. Nested
+    /// tuning's inner folds come from the stream keyed by `inner_key` (the same at every window).
+    fn one_repeat(&self, draw: &Draw, inner_key: u64) -> TimeOutcome {
         let data = &self.data;
+        let groups: Option<Vec<usize>> = data
+            .groups
+            .as_ref()
+            .map(|g| draw.used.iter().map(|&i| g[i]).collect());
+        let nesting = Nesting {
+            groups: groups.as_deref(),
+            seed: self.recipe.seed,
+            key: inner_key,
+        };
         let (nw, k, p) = (self.n_windows(), data.classes.len(), data.n_neurons());
         let generalize = self.settings.generalize;
         let gather = |w: usize, positions: &[usize]| {
@@ -192,7 +215,7 @@ impl TimePlan {
                     folds: draw.folds,
                     n_classes: k,
                 };
-                fit_folds(self.decoder.as_ref(), &set)
+                fit_folds_with(self.decoder.as_ref(), &set, &nesting)
             })
             .collect();
         let fitted = models.iter().flatten().flatten();
@@ -258,6 +281,11 @@ impl TimePlan {
             capped_fits: capped,
             single_class_fits: single,
             chosen,
+            ungrouped_inner: if self.recipe.tune {
+                (single_group_folds(groups.as_deref(), &draw.fold, draw.folds) * nw) as u32
+            } else {
+                0
+            },
         }
     }
 }

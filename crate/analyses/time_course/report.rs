@@ -23,7 +23,7 @@ use super::plan::{TimeOutcome, TimePlan};
 use crate::data::time::TimeDataset;
 use crate::data::SourceFile;
 use crate::recipe::{Recipe, TimeInput};
-use crate::report::{by_task, Chance, Design, Fits, Software, Tuning};
+use crate::report::{by_task, ungrouped_inner_warning, Chance, Design, Fits, Software, Tuning};
 use crate::resample::Headline;
 use crate::stats::clusters::{self, ClusterTest, CLUSTER_PERCENTILE};
 use crate::stats::{self, Spread};
@@ -222,6 +222,10 @@ impl TimeReport {
                 .map(|o| (o.fits, o.capped_fits, o.single_class_fits)),
         );
         let mut warnings = fits.with_warnings(&plan.scheme.warnings);
+        let ungrouped: u64 = outcomes.iter().map(|o| u64::from(o.ungrouped_inner)).sum();
+        if ungrouped > 0 {
+            warnings.push(ungrouped_inner_warning(ungrouped, fits.total));
+        }
         if has_null && plan.recipe.shuffles < 100 {
             warnings.push(format!(
                 "only {} shuffles: the cluster p-values cannot go below {:.3}, and the per-window 95th percentiles \

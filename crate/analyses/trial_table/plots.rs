@@ -2,11 +2,12 @@
 
 use super::report::Report;
 use crate::report::svg::{esc, histogram, open, Marker, BAR, INK, NULL_BAR, TOP};
-use crate::report::text::{p_text, pct};
+use crate::report::text::{p_phrase, pct, pct_range};
 use crate::resample::Headline;
 use std::fmt::Write;
 
-/// Distribution of the headline score over repeats, with chance and the binomial threshold.
+/// Distribution of the headline score over cross-validation repeats (its variability from the splits, not a
+/// confidence interval), with chance, the binomial threshold, and the mean with its confidence interval.
 pub fn score_distribution(r: &Report) -> String {
     let values: Vec<f64> = r
         .repeats
@@ -38,14 +39,24 @@ pub fn score_distribution(r: &Report) -> String {
         },
         Marker {
             at: r.headline().mean,
-            label: format!("mean {}", pct(r.headline().mean)),
+            label: match r.headline().ci {
+                Some(ci) => format!(
+                    "mean {} (95 % CI {})",
+                    pct(r.headline().mean),
+                    pct_range(ci)
+                ),
+                None => format!("mean {}", pct(r.headline().mean)),
+            },
             dash: "none",
             colour: "#1d4e89",
         },
     ];
     let name = r.design.headline.name();
     histogram(
-        &format!("Decoding {name} over {} repeats", values.len()),
+        &format!(
+            "Variability of {name} over {} cross-validation repeats",
+            values.len()
+        ),
         name,
         &values,
         &markers,
@@ -59,7 +70,11 @@ pub fn null_distribution(r: &Report) -> Option<String> {
     let markers = [
         Marker {
             at: r.shuffle.observed,
-            label: format!("observed {} (p = {})", pct(r.shuffle.observed), p_text(p)),
+            label: format!(
+                "observed {} ({})",
+                pct(r.shuffle.observed),
+                p_phrase(p, r.shuffle.count)
+            ),
             dash: "none",
             colour: "#1d4e89",
         },

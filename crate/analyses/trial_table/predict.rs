@@ -1,7 +1,7 @@
 //! Cross-validated predictions on folds the user assigns (`popdecode predict`).
 
 use crate::data::Dataset;
-use crate::decoders::{self, fit_folds, FoldSet};
+use crate::decoders::{self, fit_folds_with, FoldSet, Nesting};
 use crate::error::{Error, Result};
 use crate::recipe::Recipe;
 
@@ -48,7 +48,10 @@ pub fn predict_with_folds(
         n_classes: data.classes.len(),
     };
     let mut predicted = vec![0; data.n_trials()];
-    for (f, model) in fit_folds(decoder.as_ref(), &set).into_iter().enumerate() {
+    for (f, model) in fit_folds_with(decoder.as_ref(), &set, &Nesting::plain(recipe.seed))
+        .into_iter()
+        .enumerate()
+    {
         let model = model.expect("every fold has training and test trials");
         let (_, test) = set.partition(f);
         for (&i, c) in test.iter().zip(model.predict(set.rows(&test))) {

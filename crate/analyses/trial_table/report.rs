@@ -22,7 +22,7 @@
 
 use super::plan::{Outcome, Plan};
 use crate::recipe::Recipe;
-use crate::report::{by_task, Chance, Design, Fits, Software, Tuning};
+use crate::report::{by_task, ungrouped_inner_warning, Chance, Design, Fits, Software, Tuning};
 use crate::resample::Headline;
 use crate::stats::{self, Spread};
 use serde::{Deserialize, Serialize};
@@ -78,7 +78,34 @@ pub struct Summary {
     pub balanced_accuracy: Spread,
     pub confusion: Vec<Vec<f64>>,
     pub recall: Vec<f64>,
+    /// The headline score above chance.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub effect_size: Option<EffectSize>,
+    /// Two classes only: the area under the ROC curve over repeats, and how each repeat's was computed.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub auc: Option<Spread>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub auc_pooling: Option<String>,
 }
+
+/// The headline score above chance, as a difference and chance-corrected.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct EffectSize {
+    /// Which score: "accuracy" or "balanced_accuracy".
+    pub score: Headline,
+    /// Mean score − chance level.
+    pub above_chance: f64,
+    /// (score − chance)/(1 − chance): 0 at chance, 1 for perfect decoding; Cohen's κ (Cohen, 1960) for balanced
+    /// test sets.
+    pub kappa: f64,
+    /// The score's confidence interval on the same scale.
+    pub kappa_ci: [f64; 2],
+}
+
+/// How the AUC of a repeat pools its folds (the JSON's `summary.auc_pooling`).
+pub const AUC_POOLING: &str =
+    "decision values of every test fold of a repeat pooled into one ROC curve, the \
+     second class positive; mean over repeats";
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Shuffle {
@@ -92,6 +119,13 @@ pub struct Shuffle {
     pub null_sd: Option<f64>,
     pub null_p95: Option<f64>,
     pub p_value: Option<f64>,
+    /// Per class: the shuffle p-value of its recall, `(b + 1)/(m + 1)` with b the shuffles whose mean recall of that
+    /// class reached the observed one (one test per class, not corrected across classes); null without shuffles.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub recall_p_values: Option<Vec<f64>>,
+    /// Per shuffle, the mean recall of each class over its repeats.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub recall_null: Vec<Vec<f64>>,
 }
 
 impl Report {
@@ -119,7 +153,7 @@ impl Report {
                 *v /= repeats.len() as f64;
             }
         }
-        let recall = (0..n_classes).map(|c| confusion[c][c]).collect();
+        let recall: Vec<f64> = (0..n_classes).map(|c| confusion[c][c]).collect();
 
         let observed = stats::mean(
             &repeats
@@ -129,6 +163,15 @@ impl Report {
         );
         let null: Vec<f64> = shuffles.iter().map(|o| plan.headline_score(o)).collect();
         let some = |v: f64| (!null.is_empty()).then_some(v);
+        let recall_null: Vec<Vec<f64>> = shuffles.iter().map(|o| o.recall.clone()).collect();
+        let recall_p_values = (!null.is_empty()).then(|| {
+            (0..n_classes)
+                .map(|c| {
+                    let at: Vec<f64> = recall_null.iter().map(|r| r[c]).collect();
+                    stats::permutation_p(recall[c], &at)
+                })
+                .collect()
+        });
         let shuffle = Shuffle {
             count: null.len(),
             repeats_each: if null.is_empty() {
@@ -143,6 +186,8 @@ impl Report {
             null_p95: some(stats::percentile(&null, 95.0)),
             p_value: some(stats::permutation_p(observed, &null)),
             null,
+            recall_p_values,
+            recall_null,
         };
 
         let fits = Fits::sum(
@@ -150,7 +195,26 @@ impl Report {
                 .iter()
                 .map(|o| (o.fits, o.capped_fits, o.single_class_fits)),
         );
-        let warnings = fits.with_warnings(&plan.scheme.warnings);
+        let mut warnings = fits.with_warnings(&plan.scheme.warnings);
+        let ungrouped: u64 = outcomes.iter().map(|o| u64::from(o.ungrouped_inner)).sum();
+        if ungrouped > 0 {
+            warnings.push(ungrouped_inner_warning(ungrouped, fits.total));
+        }
+        let (accuracy, balanced_accuracy) = intervals(plan, &repeats, &acc, &bacc);
+        let headline = match plan.scheme.headline {
+            Headline::Accuracy => &accuracy,
+            Headline::BalancedAccuracy => &balanced_accuracy,
+        };
+        let chance = 1.0 / n_classes as f64;
+        let kappa = |v: f64| (v - chance) / (1.0 - chance);
+        let effect_size = headline.ci.map(|[lo, hi]| EffectSize {
+            score: plan.scheme.headline,
+            above_chance: headline.mean - chance,
+            kappa: kappa(headline.mean),
+            kappa_ci: [kappa(lo), kappa(hi)],
+        });
+        let aucs: Vec<f64> = repeats.iter().filter_map(|o| o.auc).collect();
+        let auc = (!aucs.is_empty()).then(|| Spread::of(&aucs));
         Report {
             schema: RESULT_SCHEMA.into(),
             software: Software::current(),
@@ -182,10 +246,13 @@ impl Report {
                 })
                 .collect(),
             summary: Summary {
-                accuracy: Spread::of(&acc),
-                balanced_accuracy: Spread::of(&bacc),
+                accuracy,
+                balanced_accuracy,
                 confusion,
                 recall,
+                effect_size,
+                auc_pooling: auc.as_ref().map(|_| AUC_POOLING.to_string()),
+                auc,
             },
             shuffle,
             fits,
@@ -205,4 +272,38 @@ impl Report {
     pub fn to_json(&self) -> String {
         serde_json::to_string_pretty(self).expect("a report always serialises")
     }
+}
+
+/// Accuracy and balanced accuracy over repeats, each with its confidence interval
+/// ([`crate::stats::intervals::score_interval`]) from the fold scores of every observed repeat. The Wilson part
+/// counts the test trials of a repeat (every trial is tested once per repeat); for balanced accuracy, the effective
+/// count `K²/Σ 1/n_c` of the K classes' test trials n_c.
+fn intervals(plan: &Plan, repeats: &[&Outcome], acc: &[f64], bacc: &[f64]) -> (Spread, Spread) {
+    let folds = plan.scheme.folds().max(2);
+    let test_over_train = 1.0 / (folds - 1) as f64;
+    let per_class: Vec<f64> = repeats
+        .first()
+        .map(|o| {
+            o.confusion
+                .iter()
+                .map(|row| row.iter().sum::<u32>() as f64)
+                .collect()
+        })
+        .unwrap_or_default();
+    let n_test: f64 = per_class.iter().sum();
+    let present: Vec<f64> = per_class.into_iter().filter(|&n| n > 0.0).collect();
+    let k = present.len() as f64;
+    let n_balanced = k * k / present.iter().map(|n| 1.0 / n).sum::<f64>();
+    let gather = |f: fn(&Outcome) -> &Vec<f64>| -> Vec<f64> {
+        repeats.iter().flat_map(|o| f(o).iter().copied()).collect()
+    };
+    (
+        Spread::with_interval(acc, &gather(|o| &o.fold_accuracy), test_over_train, n_test),
+        Spread::with_interval(
+            bacc,
+            &gather(|o| &o.fold_balanced_accuracy),
+            test_over_train,
+            n_balanced,
+        ),
+    )
 }
