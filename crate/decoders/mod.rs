@@ -258,6 +258,14 @@ pub fn cross_validate(
     out
 }
 
+/// Whether a decoder is linear with weights per neuron (weights and activation patterns in the neuron analyses).
+pub fn has_weights(classifier: Classifier) -> bool {
+    matches!(
+        classifier,
+        Classifier::LinearSvm | Classifier::ShrinkageLda | Classifier::Logistic
+    )
+}
+
 /// What a report must say when a decoder cannot work as described on `features` features (nearest-mean's
 /// correlation below three features).
 pub fn features_note(classifier: Classifier, features: usize) -> Option<String> {

@@ -15,7 +15,7 @@ pub mod windows;
 
 pub use classifier::{Classifier, Setting};
 pub use columns::Columns;
-pub use time::{TimeInput, TimeSettings};
+pub use time::{GeneralizationNull, TimeInput, TimeSettings};
 pub use units::UnitFilter;
 
 use crate::error::{Error, Result};

@@ -16,7 +16,7 @@ use crate::decoders::{
     self, check_counts, fit_folds_with, Decoder, FittedPipeline, FoldSet, Nesting,
 };
 use crate::error::{Error, Result};
-use crate::recipe::{Recipe, Setting, TimeInput, TimeSettings};
+use crate::recipe::{GeneralizationNull, Recipe, Setting, TimeInput, TimeSettings};
 use crate::resample::score::accuracies;
 use crate::resample::{permute_labels, single_group_folds, Draw, Scheme, Task};
 use crate::rng::{task_rng, Stream};
@@ -87,12 +87,21 @@ impl TimePlan {
         warnings.extend(counts_note);
         warnings.extend(decoders::features_note(recipe.classifier, data.n_neurons()));
         scheme.warnings = warnings;
+        // The recipe as it runs: the generalization matrix's null is written out when the matrix is made, so that
+        // a saved recipe keeps its meaning whatever the default.
+        let decoder = decoders::build(recipe.classifier, recipe.c, recipe.tune);
+        let mut recipe = scheme.repeats_to_run(recipe);
+        let mut settings = settings;
+        if settings.generalize {
+            settings.generalization_null = Some(settings.generalization_null());
+        }
+        recipe.time = Some(settings.clone());
         Ok(TimePlan {
             data,
-            recipe: scheme.repeats_to_run(recipe),
+            recipe,
             settings,
             scheme,
-            decoder: decoders::build(recipe.classifier, recipe.c, recipe.tune),
+            decoder,
             count_scale,
         })
     }
@@ -106,13 +115,24 @@ impl TimePlan {
         Task::all(self.recipe.repeats, self.recipe.shuffles)
     }
 
-    /// Fits one task performs (for progress): folds × windows, times the repeats of a shuffle.
+    /// Fits one task performs (for progress): folds × windows, times the repeats of a shuffle (twice with the
+    /// generalization matrix's training-label null, which fits its own decoders).
     pub fn fits_in(&self, task: Task) -> usize {
         let per_repeat = self.scheme.folds() * self.n_windows();
         match task {
             Task::Repeat(_) => per_repeat,
+            Task::Shuffle(_) if self.training_label_null() => {
+                2 * per_repeat * self.recipe.shuffle_repeats()
+            }
             Task::Shuffle(_) => per_repeat * self.recipe.shuffle_repeats(),
         }
+    }
+
+    /// Whether the generalization matrix's null permutes only the training labels (and so is run apart from the
+    /// curve's).
+    fn training_label_null(&self) -> bool {
+        self.settings.generalize
+            && self.settings.generalization_null() == GeneralizationNull::TrainingLabels
     }
 
     pub fn run(&self, task: Task) -> TimeOutcome {
@@ -122,7 +142,8 @@ impl TimePlan {
             Task::Repeat(i) => {
                 let mut rng = task_rng(seed, Stream::Repeat, i as u64, 0);
                 let draw = self.scheme.draw(&self.data.y, groups, &mut rng);
-                let mut out = self.one_repeat(&draw, rng.next_u64());
+                let mut out =
+                    self.one_repeat(&draw, rng.next_u64(), self.settings.generalize, None);
                 out.task = task;
                 out
             }
@@ -130,11 +151,21 @@ impl TimePlan {
                 let mut rng = task_rng(seed, Stream::Permutation, j as u64, 0);
                 let labels = permute_labels(&mut rng, &self.data.y, groups);
                 let r = self.recipe.shuffle_repeats();
+                let training_null = self.training_label_null();
                 let mut total: Option<TimeOutcome> = None;
                 for i in 0..r {
                     let mut rng = task_rng(seed, Stream::ShuffleRepeat, j as u64, i as u64);
                     let draw = self.scheme.draw(&labels, groups, &mut rng);
-                    let o = self.one_repeat(&draw, rng.next_u64());
+                    let matrix = self.settings.generalize && !training_null;
+                    let mut o = self.one_repeat(&draw, rng.next_u64(), matrix, None);
+                    if training_null {
+                        let g = self.training_label_repeat(j, i);
+                        o.generalization = g.generalization;
+                        o.fits += g.fits;
+                        o.capped_fits += g.capped_fits;
+                        o.single_class_fits += g.single_class_fits;
+                        o.ungrouped_inner += g.ungrouped_inner;
+                    }
                     match &mut total {
                         None => total = Some(o),
                         Some(t) => {
@@ -164,6 +195,36 @@ impl TimePlan {
         }
     }
 
+    /// One repeat of a shuffle of the generalization matrix's training-label null: balancing and folds drawn from
+    /// the observed labels (stream `TrainingShuffle` (j, i)), then one permutation of the labels within each fold
+    /// (within each group when the recipe has groups, whose trials never straddle folds) from the same stream.
+    /// Every fold's decoder at every window is fitted on the permuted labels of its training trials, and tested
+    /// against the observed labels of its test trials.
+    ///
+    /// Why this is the null of "what was learnt at the training window generalizes": when a training window
+    /// carries no information, its trials' activity is independent of their labels, so a decoder fitted on
+    /// permuted labels is distributed as the observed one, while the test trials it meets, and their information
+    /// at the testing window, are the observed ones; a chance alignment of a decoder trained on noise with the
+    /// information at the testing window is thus in the null too. One permutation is shared by the folds (as the
+    /// observed labels are), so the fold decoders' chance alignments are as correlated as the observed ones; it
+    /// never moves a label out of its fold, so every training fold keeps its observed class counts.
+    fn training_label_repeat(&self, j: usize, i: usize) -> TimeOutcome {
+        let groups = self.data.groups.as_deref();
+        let mut rng = task_rng(
+            self.recipe.seed,
+            Stream::TrainingShuffle,
+            j as u64,
+            i as u64,
+        );
+        let draw = self.scheme.draw(&self.data.y, groups, &mut rng);
+        let blocks: Vec<usize> = match groups {
+            Some(g) => draw.used.iter().map(|&t| g[t]).collect(),
+            None => draw.fold.clone(),
+        };
+        let permuted = permute_labels(&mut rng, &draw.y, Some(&blocks));
+        self.one_repeat(&draw, rng.next_u64(), true, Some(&permuted))
+    }
+
     /// The headline score at each window of an outcome.
     pub fn headline_scores(&self, o: &TimeOutcome) -> Vec<f64> {
         o.accuracy
@@ -173,10 +234,17 @@ impl TimePlan {
             .collect()
     }
 
-    /// Cross-validate one draw at every window (and, with generalization, test every window's decoder at every
-    /// window). All folds of a window are fitted together, so a decoder with a fold shortcut can use it. Nested
-    /// tuning's inner folds come from the stream keyed by `inner_key` (the same at every window).
-    fn one_repeat(&self, draw: &Draw, inner_key: u64) -> TimeOutcome {
+    /// Cross-validate one draw at every window (and, with `matrix`, test every window's decoder at every window).
+    /// All folds of a window are fitted together, so a decoder with a fold shortcut can use it. Decoders are fitted
+    /// on `train_y` when given (the training-label null) and on `draw.y` otherwise; tests always score against
+    /// `draw.y`. Nested tuning's inner folds come from the stream keyed by `inner_key` (the same at every window).
+    fn one_repeat(
+        &self,
+        draw: &Draw,
+        inner_key: u64,
+        matrix: bool,
+        train_y: Option<&[usize]>,
+    ) -> TimeOutcome {
         let data = &self.data;
         let groups: Option<Vec<usize>> = data
             .groups
@@ -188,7 +256,7 @@ impl TimePlan {
             key: inner_key,
         };
         let (nw, k, p) = (self.n_windows(), data.classes.len(), data.n_neurons());
-        let generalize = self.settings.generalize;
+        let generalize = matrix;
         let gather = |w: usize, positions: &[usize]| {
             let x = data.window(w);
             let mut out = Vec::with_capacity(positions.len() * p);
@@ -210,7 +278,7 @@ impl TimePlan {
                 let set = FoldSet {
                     x: &x,
                     p,
-                    y: &draw.y,
+                    y: train_y.unwrap_or(&draw.y),
                     fold: &draw.fold,
                     folds: draw.folds,
                     n_classes: k,
