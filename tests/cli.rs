@@ -298,3 +298,42 @@ fn help_names_every_decoder_and_each_default_once() {
         }
     }
 }
+
+/// `decode --pairwise` writes the pairs in the JSON (key `pairwise`), a table in the text and the heatmap with the
+/// other figures (issue 13, item 15).
+#[test]
+fn pairwise_decoding_reaches_every_output() {
+    let dir = temp_dir("pairwise");
+    let json = dir.join("r.json");
+    let plots = dir.join("plots");
+    let out = bin()
+        .args(["decode", sample().to_str().unwrap(), "--label", "odour"])
+        .args([
+            "--ignore",
+            "session",
+            "--pairwise",
+            "--repeats",
+            "3",
+            "--shuffles",
+            "4",
+        ])
+        .args(["--classifier", "shrinkage-lda", "--quiet"])
+        .args([
+            "--json",
+            json.to_str().unwrap(),
+            "--plots",
+            plots.to_str().unwrap(),
+        ])
+        .output()
+        .unwrap();
+    succeeded(&out);
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("pairwise decoding"), "{text}");
+    let v: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(json).unwrap()).unwrap();
+    assert_eq!(v["pairwise"]["pairs"].as_array().unwrap().len(), 6);
+    assert_eq!(v["recipe"]["pairwise"], true);
+    assert!(std::fs::read_to_string(plots.join("pairwise.svg"))
+        .unwrap()
+        .contains("Pairwise decoding"));
+}

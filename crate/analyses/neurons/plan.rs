@@ -72,6 +72,10 @@ impl NeuronsPlan {
         if draws == 0 {
             return Err(Error::Recipe("draws per size must be at least 1".into()));
         }
+        // Pairs of classes are an analysis of the trial table, not of its neurons.
+        let mut recipe = recipe.clone();
+        recipe.pairwise = false;
+        let recipe = &recipe;
         let mut without_shuffles = recipe.clone();
         without_shuffles.shuffles = 0;
         let p = data.n_features();

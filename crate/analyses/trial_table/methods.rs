@@ -135,6 +135,39 @@ pub fn paragraph(r: &Report) -> String {
             ));
         }
     }
+    if let Some(pw) = &r.pairwise {
+        let means: Vec<f64> = pw
+            .pairs
+            .iter()
+            .map(|p| match p.headline {
+                Headline::Accuracy => p.accuracy.mean,
+                Headline::BalancedAccuracy => p.balanced_accuracy.mean,
+            })
+            .collect();
+        let (lo, hi) = means
+            .iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| {
+                (a.min(v), b.max(v))
+            });
+        s.push(format!(
+            "Every pair of conditions ({} pairs) was also decoded on its own, on the trials of its two conditions \
+             only, with the identical protocol (balancing, folds, repeats{}); pair scores ranged from {} to {} \
+             (chance 50 %){}.",
+            pw.pairs.len(),
+            if r.shuffle.count > 0 { " and permutations" } else { "" },
+            pct(lo),
+            pct(hi),
+            match pw.fdr {
+                Some(q) => format!(
+                    ", and each pair's permutation p-value was adjusted across pairs for a false-discovery rate \
+                     of {q} (Benjamini & Hochberg, 1995); {} of {} pairs were discoveries",
+                    pw.pairs.iter().filter(|p| p.discovery == Some(true)).count(),
+                    pw.pairs.len()
+                ),
+                None => String::new(),
+            }
+        ));
+    }
     s.push(format!(
         "Resampling used ChaCha20 random streams derived from seed {} and each task's index, so the analysis is \
          reproducible exactly.",

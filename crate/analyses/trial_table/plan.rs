@@ -5,7 +5,7 @@ use crate::data::Dataset;
 use crate::decoders::{
     self, check_counts, cross_validate, CrossValidated, Decoder, FoldSet, Nesting,
 };
-use crate::error::Result;
+use crate::error::{Error, Result};
 use crate::recipe::{Recipe, Setting};
 use crate::resample::score::accuracies;
 use crate::resample::{permute_labels, pseudo, single_group_folds, Scheme, Split, Task};
@@ -14,10 +14,33 @@ use crate::stats::roc;
 use rand_core::RngCore;
 use serde::{Deserialize, Serialize};
 
+/// One task of a trial-table analysis: a repeat or shuffle of the analysis of every class, or of one pair of
+/// classes decoded on its own (with pairwise decoding). Serialised untagged, so that a task of the whole analysis
+/// reads exactly as a [`Task`] does.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(untagged)]
+pub enum TableTask {
+    Whole(Task),
+    /// `pair` indexes [`Plan::pairs`].
+    Pair {
+        pair: usize,
+        task: Task,
+    },
+}
+
+impl From<Task> for TableTask {
+    fn from(task: Task) -> TableTask {
+        TableTask::Whole(task)
+    }
+}
+
 /// What a task produced. For a shuffle, scores are means over its repeats and the confusion matrix is left empty.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Outcome {
     pub task: Task,
+    /// The pair of classes (index into [`Plan::pairs`]) whose analysis ran the task; none for the whole analysis.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pair: Option<usize>,
     pub accuracy: f64,
     pub balanced_accuracy: f64,
     /// Counts, rows = true class, columns = predicted class.
@@ -54,12 +77,21 @@ fn is_zero(v: &u32) -> bool {
     *v == 0
 }
 
+/// One pair of classes decoded on its own, with the same protocol.
+pub struct Pair {
+    /// The two classes, as indices into the whole analysis's classes (ascending).
+    pub classes: [usize; 2],
+    pub plan: Plan,
+}
+
 /// A recipe checked against a dataset, ready to run tasks. The plan owns its data, so a face can keep it for as
 /// long as it hands out tasks (a page worker keeps one per run).
 pub struct Plan {
     pub data: Dataset,
     pub recipe: Recipe,
     pub scheme: Scheme,
+    /// With pairwise decoding (three or more classes): every pair of classes, in order (0, 1), (0, 2), … (1, 2), …
+    pub pairs: Vec<Pair>,
     decoder: Box<dyn Decoder>,
     /// The trials × features matrix, row-major.
     x: Vec<f64>,
@@ -82,30 +114,63 @@ impl Plan {
             recipe.classifier,
             data.n_features(),
         ));
+        let pairs = if recipe.pairwise && data.classes.len() > 2 {
+            pairs_of(&data, recipe)?
+        } else {
+            if recipe.pairwise {
+                scheme.warnings.push(
+                    "pairwise decoding needs three or more classes; with two, the analysis is the pair".into(),
+                );
+            }
+            Vec::new()
+        };
         Ok(Plan {
             data,
             recipe: scheme.repeats_to_run(recipe),
             scheme,
+            pairs,
             decoder: decoders::build(recipe.classifier, recipe.c, recipe.tune),
             x,
         })
     }
 
-    /// Every task of the analysis, repeats first, in index order.
-    pub fn tasks(&self) -> Vec<Task> {
-        Task::all(self.recipe.repeats, self.recipe.shuffles)
+    /// Every task of the analysis, repeats first, in index order; then every pair's, pair by pair.
+    pub fn tasks(&self) -> Vec<TableTask> {
+        let whole = Task::all(self.recipe.repeats, self.recipe.shuffles)
+            .into_iter()
+            .map(TableTask::Whole);
+        let pairs = self.pairs.iter().enumerate().flat_map(|(pair, p)| {
+            Task::all(p.plan.recipe.repeats, p.plan.recipe.shuffles)
+                .into_iter()
+                .map(move |task| TableTask::Pair { pair, task })
+        });
+        whole.chain(pairs).collect()
     }
 
     /// Fits one task performs (for progress bars): folds × repeats.
-    pub fn fits_in(&self, task: Task) -> usize {
-        let folds = self.scheme.folds();
+    pub fn fits_in(&self, task: impl Into<TableTask>) -> usize {
+        let (plan, task) = match task.into() {
+            TableTask::Whole(task) => (self, task),
+            TableTask::Pair { pair, task } => (&self.pairs[pair].plan, task),
+        };
+        let folds = plan.scheme.folds();
         match task {
             Task::Repeat(_) => folds,
-            Task::Shuffle(_) => folds * self.recipe.shuffle_repeats(),
+            Task::Shuffle(_) => folds * plan.recipe.shuffle_repeats(),
         }
     }
 
-    pub fn run(&self, task: Task) -> Outcome {
+    pub fn run(&self, task: impl Into<TableTask>) -> Outcome {
+        match task.into() {
+            TableTask::Whole(task) => self.run_whole(task),
+            TableTask::Pair { pair, task } => Outcome {
+                pair: Some(pair),
+                ..self.pairs[pair].plan.run_whole(task)
+            },
+        }
+    }
+
+    fn run_whole(&self, task: Task) -> Outcome {
         let seed = self.recipe.seed;
         match task {
             Task::Repeat(i) => {
@@ -202,10 +267,34 @@ impl Plan {
     }
 }
 
+/// The plan of every pair of classes, each on the trials of its two classes only, with the recipe's protocol.
+fn pairs_of(data: &Dataset, recipe: &Recipe) -> Result<Vec<Pair>> {
+    let mut recipe = recipe.clone();
+    recipe.pairwise = false;
+    let k = data.classes.len();
+    let mut pairs = Vec::new();
+    for a in 0..k {
+        for b in a + 1..k {
+            let plan = Plan::new(data.with_classes(&[a, b]), &recipe).map_err(|e| {
+                Error::Design(format!(
+                    "pairwise decoding of '{}' and '{}': {e}",
+                    data.classes[a], data.classes[b]
+                ))
+            })?;
+            pairs.push(Pair {
+                classes: [a, b],
+                plan,
+            });
+        }
+    }
+    Ok(pairs)
+}
+
 impl Outcome {
     fn empty() -> Outcome {
         Outcome {
             task: Task::Repeat(0),
+            pair: None,
             accuracy: 0.0,
             balanced_accuracy: 0.0,
             confusion: Vec::new(),
@@ -278,6 +367,7 @@ fn score(
     };
     Outcome {
         task: Task::Repeat(0),
+        pair: None,
         accuracy,
         balanced_accuracy,
         confusion: flat.chunks(n_classes).map(<[u32]>::to_vec).collect(),

@@ -24,7 +24,7 @@ use super::plan::{Outcome, Plan};
 use crate::recipe::Recipe;
 use crate::report::{by_task, ungrouped_inner_warning, Chance, Design, Fits, Software, Tuning};
 use crate::resample::Headline;
-use crate::stats::{self, Spread};
+use crate::stats::{self, fdr, Spread};
 use serde::{Deserialize, Serialize};
 
 pub const RESULT_SCHEMA: &str = "popdecode-result/1";
@@ -46,7 +46,44 @@ pub struct Report {
     pub warnings: Vec<String>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub tuning: Option<Tuning>,
+    /// With pairwise decoding: every pair of classes decoded on its own.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pairwise: Option<Pairwise>,
 }
+
+/// Every pair of classes decoded on its own with the same protocol.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Pairwise {
+    /// Per pair, in the order (0, 1), (0, 2), …, (1, 2), … of `classes`.
+    pub pairs: Vec<PairResult>,
+    /// `matrix[a][b]`: the headline mean of the pair of classes a and b (symmetric); null on the diagonal.
+    pub matrix: Vec<Vec<Option<f64>>>,
+    /// With shuffles: the false-discovery rate at which `discovery` is decided across pairs.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub fdr: Option<f64>,
+    /// Fits of every pair's analysis together.
+    pub fits: Fits,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct PairResult {
+    /// The two class names.
+    pub classes: [String; 2],
+    /// The score that leads for this pair (balanced accuracy when its classes are unbalanced and balancing is off).
+    pub headline: Headline,
+    pub accuracy: Spread,
+    pub balanced_accuracy: Spread,
+    /// The area under the ROC curve over repeats ([`AUC_POOLING`]).
+    pub auc: Option<Spread>,
+    /// With shuffles: the pair's own shuffle p-value, its Benjamini–Hochberg adjusted value across pairs, and
+    /// whether that is at most `fdr`.
+    pub p_value: Option<f64>,
+    pub q_value: Option<f64>,
+    pub discovery: Option<bool>,
+}
+
+/// The false-discovery rate controlled across pairs (Benjamini & Hochberg, 1995).
+pub const PAIRWISE_FDR: f64 = 0.05;
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Input {
@@ -130,9 +167,15 @@ pub struct Shuffle {
 
 impl Report {
     /// Assemble the report from every task's outcome (any order; they are sorted by task here).
-    pub fn build(plan: &Plan, outcomes: &[Outcome]) -> Report {
+    pub fn build(plan: &Plan, all_outcomes: &[Outcome]) -> Report {
         let data = &plan.data;
         let n_classes = data.classes.len();
+        let outcomes: Vec<Outcome> = all_outcomes
+            .iter()
+            .filter(|o| o.pair.is_none())
+            .cloned()
+            .collect();
+        let outcomes = &outcomes[..];
         let (repeats, shuffles) = by_task(outcomes, |o| o.task);
 
         let acc: Vec<f64> = repeats.iter().map(|o| o.accuracy).collect();
@@ -213,6 +256,8 @@ impl Report {
             kappa: kappa(headline.mean),
             kappa_ci: [kappa(lo), kappa(hi)],
         });
+        let pairwise =
+            (!plan.pairs.is_empty()).then(|| pairwise(plan, all_outcomes, &mut warnings));
         let aucs: Vec<f64> = repeats.iter().filter_map(|o| o.auc).collect();
         let auc = (!aucs.is_empty()).then(|| Spread::of(&aucs));
         Report {
@@ -258,6 +303,7 @@ impl Report {
             fits,
             warnings,
             tuning: Tuning::of(&plan.recipe, repeats.iter().flat_map(|o| &o.chosen)),
+            pairwise,
         }
     }
 
@@ -306,4 +352,67 @@ fn intervals(plan: &Plan, repeats: &[&Outcome], acc: &[f64], bacc: &[f64]) -> (S
             n_balanced,
         ),
     )
+}
+
+/// Every pair's summary, from its own report of the outcomes of its tasks, with p-values adjusted across pairs;
+/// the pairs' fit warnings go to `warnings`, each naming its pair.
+fn pairwise(plan: &Plan, outcomes: &[Outcome], warnings: &mut Vec<String>) -> Pairwise {
+    let k = plan.data.classes.len();
+    let mut matrix = vec![vec![None; k]; k];
+    let mut fits = Vec::new();
+    let mut pairs: Vec<PairResult> = plan
+        .pairs
+        .iter()
+        .enumerate()
+        .map(|(i, pair)| {
+            let own: Vec<Outcome> = outcomes
+                .iter()
+                .filter(|o| o.pair == Some(i))
+                .map(|o| Outcome {
+                    pair: None,
+                    ..o.clone()
+                })
+                .collect();
+            let r = Report::build(&pair.plan, &own);
+            let [a, b] = pair.classes;
+            let names = [plan.data.classes[a].clone(), plan.data.classes[b].clone()];
+            for w in r.fits.warnings() {
+                warnings.push(format!("pair '{}' vs '{}': {w}", names[0], names[1]));
+            }
+            fits.push((r.fits.total, r.fits.capped, r.fits.single_class));
+            let mean = r.headline().mean;
+            matrix[a][b] = Some(mean);
+            matrix[b][a] = Some(mean);
+            PairResult {
+                classes: names,
+                headline: r.design.headline,
+                accuracy: r.summary.accuracy,
+                balanced_accuracy: r.summary.balanced_accuracy,
+                auc: r.summary.auc,
+                p_value: r.shuffle.p_value,
+                q_value: None,
+                discovery: None,
+            }
+        })
+        .collect();
+    let p: Option<Vec<f64>> = pairs.iter().map(|r| r.p_value).collect();
+    let fdr = p.map(|p| {
+        for (r, q) in pairs.iter_mut().zip(fdr::benjamini_hochberg(&p)) {
+            r.q_value = Some(q);
+            r.discovery = Some(q <= PAIRWISE_FDR);
+        }
+        PAIRWISE_FDR
+    });
+    let mut total = Fits::sum(std::iter::empty());
+    for (t, c, s) in fits {
+        total.total += t;
+        total.capped += c;
+        total.single_class += s;
+    }
+    Pairwise {
+        pairs,
+        matrix,
+        fdr,
+        fits: total,
+    }
 }

@@ -195,11 +195,66 @@ pub fn render(r: &Report) -> String {
         }
         out.push('\n');
     }
+    if let Some(pw) = &r.pairwise {
+        out.push_str(&pairwise_table(r, pw));
+    }
     if let Some(t) = &r.tuning {
         out.push_str(&tuning_line(t));
     }
     for w in &r.warnings {
         writeln!(out, "\nnote: {w}").unwrap();
+    }
+    out
+}
+
+/// The pairwise table: each pair's headline mean with its interval, and its p and q with shuffles.
+fn pairwise_table(r: &Report, pw: &super::report::Pairwise) -> String {
+    let mut out = format!(
+        "\npairwise decoding (each pair of classes decoded on its own, same protocol; mean over cross-validation \
+         repeats, chance 50 %{}):\n",
+        match pw.fdr {
+            Some(q) => format!(
+                "; p from the pair's own shuffles, q adjusted across pairs (Benjamini & Hochberg, 1995), * = \
+                 discovery at a false-discovery rate of {q}"
+            ),
+            None => String::new(),
+        }
+    );
+    let width = r
+        .classes
+        .iter()
+        .map(|c| c.chars().count())
+        .max()
+        .unwrap_or(5)
+        .clamp(5, 24);
+    for p in &pw.pairs {
+        let s = match p.headline {
+            crate::resample::Headline::Accuracy => &p.accuracy,
+            crate::resample::Headline::BalancedAccuracy => &p.balanced_accuracy,
+        };
+        write!(
+            out,
+            "  {:<width$} vs {:<width$} {:>8} {:>15}",
+            clip(&p.classes[0], width),
+            clip(&p.classes[1], width),
+            pct(s.mean),
+            s.ci.map_or(String::new(), pct_range)
+        )
+        .unwrap();
+        if let Some(a) = &p.auc {
+            write!(out, "   AUC {:.3}", a.mean).unwrap();
+        }
+        if let (Some(pv), Some(q)) = (p.p_value, p.q_value) {
+            write!(
+                out,
+                "   {} q = {}{}",
+                p_phrase(pv, r.shuffle.count),
+                p_text(q),
+                if p.discovery == Some(true) { " *" } else { "" }
+            )
+            .unwrap();
+        }
+        out.push('\n');
     }
     out
 }
