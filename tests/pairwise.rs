@@ -22,8 +22,7 @@ fn four_conditions() -> String {
             _ => ("d", [0.0, 2.5]),
         };
         text.push_str(name);
-        for j in 0..6 {
-            let s = if j < 2 { shift[j] } else { 0.0 };
+        for s in shift.iter().chain(&[0.0; 4]) {
             write!(text, ",{}", s + normal(&mut rng)).unwrap();
         }
         text.push('\n');

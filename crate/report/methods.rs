@@ -107,12 +107,22 @@ fn tuning_sentence(rc: &Recipe) -> String {
     } else {
         ""
     };
+    let inner = match &rc.columns.group {
+        Some(group) => format!(
+            "split at random into {} inner folds that never divided a level of '{group}' (stratified inner folds \
+             where a training fold held a single level)",
+            decoders::tuning::INNER_FOLDS
+        ),
+        None => format!(
+            "split at random into {} stratified inner folds",
+            decoders::tuning::INNER_FOLDS
+        ),
+    };
     format!(
-        " C was chosen within each training fold by nested cross-validation: the training trials were dealt, class \
-         by class in file order, into {} inner folds, every combination of C in {{{}}}{gamma} was scored by the inner \
-         balanced accuracy of the full pipeline (standardisation refitted on each inner training fold), and the best \
-         (the simpler on ties) was refitted on the whole training fold; the test fold was never used to choose it.",
-        decoders::tuning::INNER_FOLDS,
+        " C was chosen within each training fold by nested cross-validation: the training trials were {inner}, \
+         every combination of C in {{{}}}{gamma} was scored by the inner balanced accuracy of the full pipeline \
+         (standardisation refitted on each inner training fold), and the best (the simpler on ties) was refitted on \
+         the whole training fold; the test fold was never used to choose it.",
         c_grid.join(", ")
     )
 }

@@ -181,17 +181,6 @@ pub fn confusion(r: &Report) -> String {
     svg
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn colour_scale_runs_light_to_dark() {
-        assert_eq!(blue(0.0).0, "#f7fbff");
-        assert_eq!(blue(1.0).0, "#08306b");
-    }
-}
-
 /// Pairwise decoding as a heatmap: the headline score of every pair of classes decoded on its own (symmetric,
 /// diagonal empty), light-to-dark blue from chance (50 %) to 100 %, the percentage in every cell, and an asterisk
 /// on pairs that are discoveries at the false-discovery rate across pairs. `None` without pairwise decoding.
@@ -285,4 +274,15 @@ pub fn pairwise(r: &Report) -> Option<String> {
     }
     svg.push_str("</svg>");
     Some(svg)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn colour_scale_runs_light_to_dark() {
+        assert_eq!(blue(0.0).0, "#f7fbff");
+        assert_eq!(blue(1.0).0, "#08306b");
+    }
 }

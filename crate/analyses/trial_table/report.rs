@@ -4,19 +4,41 @@
 //! * `schema`, `software` {`name`, `version`}
 //! * `input` {`file`, `sha256`, `delimiter`, `decimal_comma`, `trials`, `dropped_lines`, `label_column`,
 //!   `group_column`, `groups`, `features`, `skipped_columns`}
-//! * `recipe`: the recipe, as a recipe file holds it
+//! * `recipe`: the recipe as it ran, as a recipe file holds it (`repeats` is 1 when every repeat would split the
+//!   trials alike; `pairwise` present when true)
 //! * `classes` (the order of every per-class array and of the confusion matrix), `class_counts`
 //! * `design` {`split`, `folds`, `trials_per_repeat`, `headline`}
 //! * `chance` {`level`, `threshold`, `alpha`, `test_trials`}
 //! * `repeats`: per observed repeat {`index`, `accuracy`, `balanced_accuracy`, `confusion` (counts)}
-//! * `summary` {`accuracy`, `balanced_accuracy` (each `mean`, `sd`, `p2_5`, `p97_5`), `confusion` (rows = true
-//!   class, each row normalised to sum 1, averaged over repeats), `recall` (per class)}
+//! * `summary`:
+//!   - `accuracy`, `balanced_accuracy`, each {`mean` over cross-validation repeats; `sd`, `p2_5`, `p97_5`: the
+//!     variability over those repeats (SD and 2.5th/97.5th percentiles), which reflects how the trials were
+//!     split and is not a confidence interval; `ci`: [low, high], the 95 % confidence interval of the mean;
+//!     `ci_method`: how it was computed (the wider at each end of a Wilson interval on the test trials of a
+//!     repeat and the corrected resampled t over the fold scores of every repeat, [`crate::stats::intervals`])}
+//!   - `confusion` (rows = true class, each row normalised to sum 1, averaged over repeats), `recall` (per class)
+//!   - `effect_size` {`score` ("accuracy" or "balanced_accuracy", the headline), `above_chance` (mean − chance),
+//!     `kappa` ((mean − chance)/(1 − chance): 0 at chance, 1 perfect; Cohen's κ for balanced test sets),
+//!     `kappa_ci` (the headline's `ci` on that scale)}
+//!   - two classes only: `auc` {`mean`, `sd`, `p2_5`, `p97_5` over repeats} of the area under the ROC curve, and
+//!     `auc_pooling` (how a repeat's AUC is computed: the decision values of all its test folds pooled into one
+//!     curve, the second class positive)
 //! * `shuffle` {`count`, `repeats_each`, `within_groups`, `observed`, `null` (one headline score per shuffle),
-//!   `null_mean`, `null_sd`, `null_p95`, `p_value`}; the statistics are null when there are no shuffles
-//! * `fits` {`total`, `capped`, `single_class`}, `warnings`
+//!   `null_mean`, `null_sd`, `null_p95`, `p_value`}; the statistics are null when there are no shuffles; with
+//!   shuffles also `recall_p_values` (per class, `(b + 1)/(m + 1)` against the same shuffles' recall of that class;
+//!   not corrected across classes) and `recall_null` (per shuffle, per class, the mean recall over its repeats). A
+//!   `p_value` equal to 1/(m + 1) means no shuffle reached the observed score: p is at most that
+//! * `fits` {`total`, `capped`, `single_class`}, `warnings` (the design's cautions, such as leave-one-out's, and
+//!   what went wrong in fits)
 //! * `tuning` (only with nested selection): {`grid`, `chosen` [{`c`, `gamma_factor` (kernel SVM only), `fits`}]},
-//!   how often each setting was
-//!   chosen across the folds of the observed repeats
+//!   how often each setting was chosen across the folds of the observed repeats
+//! * `pairwise` (only with pairwise decoding of three or more classes): {`pairs` (per pair of classes, in the order
+//!   (0, 1), (0, 2), …, (1, 2), … of `classes`: {`classes` (the two names), `headline`, `accuracy`,
+//!   `balanced_accuracy` (as in `summary`, with `ci`), `auc` (as in `summary`), `p_value`, `q_value`
+//!   (Benjamini–Hochberg adjusted across pairs), `discovery` (`q_value` ≤ `fdr`); the last three null without
+//!   shuffles}), `matrix` (classes × classes, the headline mean of each pair, symmetric, null on the diagonal),
+//!   `fdr` (0.05; absent without shuffles), `fits` (every pair's fits together)}. Each pair is the analysis of the
+//!   trials of its two classes alone, with the same recipe
 //!
 //! Nothing time- or machine-dependent is written, so equal recipes and files give byte-identical JSON.
 
