@@ -23,6 +23,13 @@ pub enum Stream {
     Simulation = 4,
     /// Random subsets of neurons (the neuron-dropping curve).
     Subset = 5,
+    /// Inner folds of nested tuning, per outer training fold.
+    InnerFolds = 6,
+    /// The balanced draw of trials a neuron analysis fits its weights on.
+    Weights = 7,
+    /// A repeat inside one shuffle of the temporal generalization matrix whose null permutes only the training
+    /// labels: the split of the observed labels, then each training fold's permutation.
+    TrainingShuffle = 8,
 }
 
 /// A generator for task `(a, b)` of kind `kind` under `seed`.

@@ -271,3 +271,69 @@ fn timecourse_without_a_span_says_what_to_add() {
     let stderr = String::from_utf8_lossy(&out.stderr);
     assert!(stderr.contains("--start and --end"), "{stderr}");
 }
+
+/// Help names every decoder (the kernel SVM included, and where C and tuning apply to it) and prints each default
+/// once (issue 13, item 13).
+#[test]
+fn help_names_every_decoder_and_each_default_once() {
+    let help = |sub: &str| {
+        let out = bin().args([sub, "--help"]).output().unwrap();
+        succeeded(&out);
+        String::from_utf8(out.stdout).unwrap()
+    };
+    for sub in ["decode", "timecourse", "neurons"] {
+        let text = help(sub);
+        for c in popdecode::recipe::Classifier::ALL {
+            assert!(text.contains(c.name()), "{sub} --help omits {}", c.name());
+        }
+        let c_help = text.split("--c <C>").nth(1).unwrap();
+        assert!(
+            c_help[..c_help.find("--tune").unwrap()].contains("kernel SVM"),
+            "{sub}: --c"
+        );
+        let tune_help = text.split("--tune").nth(1).unwrap();
+        assert!(tune_help[..300].contains("kernel"), "{sub}: --tune");
+        for line in text.lines() {
+            assert!(line.matches("[default:").count() <= 1, "{sub}: {line}");
+        }
+    }
+}
+
+/// `decode --pairwise` writes the pairs in the JSON (key `pairwise`), a table in the text and the heatmap with the
+/// other figures (issue 13, item 15).
+#[test]
+fn pairwise_decoding_reaches_every_output() {
+    let dir = temp_dir("pairwise");
+    let json = dir.join("r.json");
+    let plots = dir.join("plots");
+    let out = bin()
+        .args(["decode", sample().to_str().unwrap(), "--label", "odour"])
+        .args([
+            "--ignore",
+            "session",
+            "--pairwise",
+            "--repeats",
+            "3",
+            "--shuffles",
+            "4",
+        ])
+        .args(["--classifier", "shrinkage-lda", "--quiet"])
+        .args([
+            "--json",
+            json.to_str().unwrap(),
+            "--plots",
+            plots.to_str().unwrap(),
+        ])
+        .output()
+        .unwrap();
+    succeeded(&out);
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("pairwise decoding"), "{text}");
+    let v: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(json).unwrap()).unwrap();
+    assert_eq!(v["pairwise"]["pairs"].as_array().unwrap().len(), 6);
+    assert_eq!(v["recipe"]["pairwise"], true);
+    assert!(std::fs::read_to_string(plots.join("pairwise.svg"))
+        .unwrap()
+        .contains("Pairwise decoding"));
+}

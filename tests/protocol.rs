@@ -78,11 +78,14 @@ fn grouped_folds_remove_block_confounds() {
 /// Under no information, a valid permutation test rejects at its nominal rate. With as many repeats per shuffle as
 /// observed repeats, the observed score is exchangeable with the null scores, so P(p < 0.05) = P(b ≤ 8) = 9/200
 /// for m = 199 (Phipson & Smyth 2010); ties only lower it. The rate over 300 datasets must lie inside the binomial
-/// 99 % interval around 0.05.
+/// 99 % interval around 0.05. Each class's recall p-value (issue 13, item 15) is the same test on that class's
+/// recall: over the 600 class tests, its rate must lie at or below the upper bound around 0.05 (recalls of 20
+/// trials tie often, which only lowers it) and above the lower bound of 0.025, so that the test is not inert.
 #[test]
 fn shuffle_control_is_calibrated() {
     let datasets = 300;
     let mut rejections = 0;
+    let mut class_rejections = 0;
     for d in 0..datasets {
         let scenario = no_information(vec![20, 20], 3, 1000 + d);
         let mut r = recipe(Classifier::ShrinkageLda, 2, 199);
@@ -92,7 +95,18 @@ fn shuffle_control_is_calibrated() {
         if report.shuffle.p_value.unwrap() < 0.05 {
             rejections += 1;
         }
+        let recall_p = report.shuffle.recall_p_values.as_ref().unwrap();
+        class_rejections += recall_p.iter().filter(|&&p| p < 0.05).count() as u64;
     }
+    let (class_lo, class_hi) = (
+        binomial::quantile(0.005, 2 * datasets, 0.025),
+        binomial::quantile(0.995, 2 * datasets, 0.05),
+    );
+    assert!(
+        class_lo <= class_rejections && class_rejections <= class_hi,
+        "{class_rejections} of {} class recalls rejected; {class_lo}..={class_hi}",
+        2 * datasets
+    );
     let lo = binomial::quantile(0.005, datasets, 0.05);
     let hi = binomial::quantile(0.995, datasets, 0.05);
     assert!(
@@ -176,4 +190,82 @@ fn leave_one_out_with_a_constant_feature() {
             .flatten()
             .all(|v| v.is_finite()));
     }
+}
+
+/// Leave-one-out on classes of equal size (and leave-one-group-out when every trial is kept) has nothing random
+/// left: one repeat is run, and one per shuffle, and the report says why; leave-one-out always carries its caution.
+/// With unequal classes, balancing draws other trials in every repeat, so the repeats run (issue 13, item 5).
+#[test]
+fn identical_splits_run_once_and_leave_one_out_is_cautioned() {
+    let equal = no_information(vec![12, 12], 3, 21);
+    let mut r = recipe(Classifier::ShrinkageLda, 30, 9);
+    r.folds = Folds::LeaveOneOut;
+    let report = analyse(&equal, &r);
+    assert_eq!(report.repeats.len(), 1);
+    assert_eq!(report.shuffle.repeats_each, 1);
+    assert!(
+        report
+            .warnings
+            .iter()
+            .any(|w| w.contains("single repeat was run")),
+        "{:?}",
+        report.warnings
+    );
+    assert!(
+        report
+            .warnings
+            .iter()
+            .any(|w| w.contains("biased below chance")),
+        "{:?}",
+        report.warnings
+    );
+    let methods = popdecode::analyses::trial_table::methods::paragraph(&report);
+    assert!(
+        methods.contains("In one repeat") && methods.contains("biased below chance"),
+        "{methods}"
+    );
+
+    let mut blocks = Scenario {
+        blocks_per_class: 2,
+        ..no_information(vec![12, 12], 3, 22)
+    };
+    let mut grouped = recipe(Classifier::ShrinkageLda, 30, 0);
+    grouped.columns.group = Some("block".into());
+    assert_eq!(
+        analyse(&blocks, &grouped).repeats.len(),
+        1,
+        "four blocks, leave-one-group-out"
+    );
+
+    blocks.trials_per_class = vec![12, 14];
+    assert_eq!(
+        analyse(&blocks, &grouped).repeats.len(),
+        30,
+        "unequal classes: balancing varies"
+    );
+    let unequal = no_information(vec![12, 14], 3, 23);
+    let report = analyse(&unequal, &r);
+    assert_eq!(report.repeats.len(), 30);
+    assert!(report
+        .warnings
+        .iter()
+        .any(|w| w.contains("biased below chance")));
+}
+
+/// The caution's claim, on invented data without information (Kohavi 1995 describes the mechanism): with
+/// leave-one-out, a decoder with class priors scores well below chance on average, and repeated 5-fold does not.
+#[test]
+fn leave_one_out_is_biased_below_chance_without_information() {
+    let (mut loo, mut kfold) = (Vec::new(), Vec::new());
+    for d in 0..40 {
+        let scenario = no_information(vec![10, 10], 3, 300 + d);
+        let mut r = recipe(Classifier::Logistic, 10, 0);
+        r.seed = d;
+        kfold.push(analyse(&scenario, &r).summary.accuracy.mean);
+        r.folds = Folds::LeaveOneOut;
+        loo.push(analyse(&scenario, &r).summary.accuracy.mean);
+    }
+    let (loo, kfold) = (popdecode::stats::mean(&loo), popdecode::stats::mean(&kfold));
+    assert!(loo < 0.45, "leave-one-out {loo}");
+    assert!(kfold > loo + 0.03, "5-fold {kfold} vs leave-one-out {loo}");
 }

@@ -159,3 +159,48 @@ fn bad_session_layouts_are_named() {
         "{e}"
     );
 }
+
+/// The neuron analyses on a pseudo-population (issue 13, item 2): the weights and patterns of every linear decoder
+/// are fitted on pseudo-trials (the table itself is mostly empty cells), so they finish and are finite; before,
+/// the SVM and LDA ran on missing values without end and logistic regression printed NaN.
+#[test]
+fn neuron_weights_of_a_pseudo_population_are_finite() {
+    use popdecode::analyses::neurons::{run_all as run_neurons, NeuronsPlan};
+    let text = sessions_table(0.8);
+    for classifier in [
+        Classifier::LinearSvm,
+        Classifier::ShrinkageLda,
+        Classifier::Logistic,
+    ] {
+        let mut r = recipe();
+        r.classifier = classifier;
+        r.repeats = 2;
+        r.shuffles = 0;
+        let data = input::trial_table("sessions.csv", text.as_bytes(), &r.columns).unwrap();
+        let report = run_neurons(&NeuronsPlan::new(data, &r, 1).unwrap());
+        let (w, a) = (report.weights.unwrap(), report.patterns.unwrap());
+        assert_eq!(w.len(), 18);
+        assert!(
+            w.iter().chain(&a).flatten().all(|v| v.is_finite()),
+            "{classifier:?}"
+        );
+        assert!(
+            a.iter().flatten().any(|v| v.abs() > 0.1),
+            "{classifier:?}: patterns {a:?}"
+        );
+        assert!(report.weights_fitted_on.unwrap().contains("pseudo-trials"));
+        // Every neuron is tuned, its sign alternating by neuron and session: the patterns follow those signs (up
+        // to the output's orientation) for nearly every neuron.
+        let agree = (0..18)
+            .filter(|&j| {
+                let (session, unit) = (j / 6, j % 6);
+                let sign = if (unit + session) % 2 == 0 { 1.0 } else { -1.0 };
+                sign * a[j][0] * a[0][0] > 0.0
+            })
+            .count();
+        assert!(
+            agree >= 16,
+            "{classifier:?}: {agree} of 18 patterns follow the tuning: {a:?}"
+        );
+    }
+}

@@ -3,7 +3,7 @@
 use popdecode::analyses::trial_table::run_all;
 use popdecode::analyses::trial_table::Plan;
 use popdecode::decoders::tuning::Tuned;
-use popdecode::decoders::{fit_folds, Decoder, FoldSet, Model};
+use popdecode::decoders::{fit_folds, fit_folds_with, Decoder, FoldSet, Model, Nesting};
 use popdecode::input;
 use popdecode::recipe::Classifier;
 use popdecode::recipe::Recipe;
@@ -18,6 +18,9 @@ struct First(usize);
 impl Model for First {
     fn predict(&self, x: &[f64]) -> Vec<usize> {
         vec![self.0; x.len()]
+    }
+    fn decision(&self, x: &[f64]) -> Vec<f64> {
+        vec![0.0; x.len()]
     }
 }
 
@@ -109,4 +112,83 @@ fn chosen_settings_are_reported() {
     assert_eq!(t.chosen.iter().map(|c| c.fits).sum::<usize>(), 5);
     recipe.classifier = Classifier::ShrinkageLda;
     assert!(Plan::new(data.clone(), &recipe).is_err());
+}
+
+/// With groups, nested tuning's inner folds never split a group of the outer training fold, and they are drawn at
+/// random from the task's own stream (issue 13, item 10): every inner fit's held-out rows share no group with its
+/// training rows, and another key (another task) deals other inner folds. Before, inner folds were dealt class by
+/// class in file order, splitting every group.
+#[test]
+fn inner_folds_respect_groups_and_are_drawn_at_random() {
+    let n = 60;
+    // Ten groups of six trials, both classes in each.
+    let group: Vec<usize> = (0..n).map(|i| i / 6).collect();
+    let x: Vec<f64> = (0..n).map(|i| i as f64).collect();
+    let y: Vec<usize> = (0..n).map(|i| i % 2).collect();
+    // Outer folds: two groups each.
+    let fold: Vec<usize> = (0..n).map(|i| (i / 12) % 5).collect();
+    let set = FoldSet {
+        x: &x,
+        p: 1,
+        y: &y,
+        fold: &fold,
+        folds: 5,
+        n_classes: 2,
+    };
+    let grid: Vec<Setting> = [0.1, 1.0]
+        .map(|c| Setting {
+            c,
+            gamma_factor: None,
+        })
+        .to_vec();
+    let inner_training = |key: u64| {
+        let log = Arc::new(Mutex::new(Vec::new()));
+        let spy_log = log.clone();
+        let tuned = Tuned {
+            build: Box::new(move |_| Box::new(Spy(spy_log.clone())) as Box<dyn Decoder>),
+            grid: grid.clone(),
+            standardise: false,
+        };
+        let nesting = Nesting {
+            groups: Some(&group),
+            seed: 3,
+            key,
+        };
+        fit_folds_with(&tuned, &set, &nesting);
+        let calls: Vec<Vec<f64>> = log.lock().unwrap().clone();
+        calls
+    };
+    let calls = inner_training(7);
+    // Per outer fold: 8 training groups → 5 inner folds × 2 settings, then the refit.
+    let per_fold = 2 * 5 + 1;
+    assert_eq!(calls.len(), 5 * per_fold);
+    for (f, segment) in calls.chunks(per_fold).enumerate() {
+        let outer: Vec<usize> = (0..n).filter(|&i| fold[i] != f).collect();
+        for rows in &segment[..per_fold - 1] {
+            let trained: Vec<usize> = rows.iter().map(|&v| v as usize).collect();
+            let held_out: Vec<usize> = outer
+                .iter()
+                .copied()
+                .filter(|i| !trained.contains(i))
+                .collect();
+            assert!(!held_out.is_empty());
+            for i in &held_out {
+                assert!(
+                    trained.iter().all(|t| group[*t] != group[*i]),
+                    "outer fold {f}: group {} split between inner training and test",
+                    group[*i]
+                );
+            }
+        }
+    }
+    assert_ne!(
+        calls,
+        inner_training(8),
+        "another task's stream deals other inner folds"
+    );
+    assert_eq!(
+        calls,
+        inner_training(7),
+        "the same stream deals the same inner folds"
+    );
 }

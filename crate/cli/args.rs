@@ -30,13 +30,15 @@ pub struct ColumnArgs {
     /// Leave out trials with missing cells instead of stopping.
     #[arg(long)]
     pub drop_missing: bool,
-    /// Decoder: linear-svm, shrinkage-lda, logistic, gaussian-nb, poisson-nb or nearest-mean [default: linear-svm].
+    /// Decoder: linear-svm, shrinkage-lda, logistic, gaussian-nb, poisson-nb, nearest-mean (correlation with class
+    /// means; blind to a shift or gain shared by all neurons) or rbf-svm (Gaussian kernel) [default: linear-svm].
     #[arg(long, value_parser = parse_classifier)]
     pub classifier: Option<Classifier>,
-    /// Regularisation constant C of the linear SVM and logistic regression [default: 1].
+    /// Regularisation constant C of the linear SVM, the Gaussian-kernel SVM and logistic regression [default: 1].
     #[arg(long)]
     pub c: Option<f64>,
-    /// Choose C inside each training fold by nested cross-validation (grid 0.001 to 1000).
+    /// Choose C (and for the Gaussian-kernel SVM the kernel width) inside each training fold by nested
+    /// cross-validation (C from 0.001 to 1000; γ at 0.1, 1 and 10 times its default).
     #[arg(long)]
     pub tune: bool,
 }

@@ -15,12 +15,17 @@ pub const NAME: &str = "decode";
 pub struct DecodeArgs {
     #[command(flatten)]
     pub table: TableArgs,
+    /// Also decode every pair of conditions on its own with the same protocol (three or more conditions): a
+    /// table, the JSON's "pairwise" and pairwise.svg with --plots.
+    #[arg(long)]
+    pub pairwise: bool,
     #[command(flatten)]
     pub run: RunArgs,
 }
 
 pub fn run(args: DecodeArgs) -> Result<(), String> {
-    let recipe = base_recipe(&args.run, &args.table.columns)?;
+    let mut recipe = base_recipe(&args.run, &args.table.columns)?;
+    recipe.pairwise |= args.pairwise;
     if recipe.time.is_some() {
         return Err("this recipe is for a time course; run it with 'popdecode timecourse'".into());
     }

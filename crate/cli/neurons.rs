@@ -19,12 +19,14 @@ struct Options {
     draws: usize,
 }
 
-/// The neuron analyses run the decoding protocol without shuffles; --shuffles and --shuffle-repeats are ignored.
+/// The neuron analyses run the decoding protocol on subsets of neurons and on each neuron alone. With --shuffles
+/// (none unless given, or set by a recipe), each neuron alone also gets a shuffle p-value, with the false-discovery
+/// rate controlled across neurons (Benjamini & Hochberg, 1995); the subsets never run shuffles.
 #[derive(Args)]
 pub struct NeuronsArgs {
     #[command(flatten)]
     pub table: TableArgs,
-    /// Random subsets drawn per population size for the dropping curve [default: 10].
+    /// Random subsets drawn per population size for the dropping curve.
     #[arg(long, default_value_t = 10)]
     pub draws: usize,
     #[command(flatten)]
@@ -32,7 +34,11 @@ pub struct NeuronsArgs {
 }
 
 pub fn run(args: NeuronsArgs) -> Result<(), String> {
-    let recipe = base_recipe(&args.run, &args.table.columns)?;
+    let mut recipe = base_recipe(&args.run, &args.table.columns)?;
+    // A shuffle test per neuron is many fits: run it only when asked for.
+    if args.run.shuffles.is_none() && args.run.recipe.is_none() {
+        recipe.shuffles = 0;
+    }
     if recipe.time.is_some() {
         return Err(
             "this recipe is for a time course; the neuron analyses read a trial table".into(),

@@ -3,7 +3,7 @@
 use crate::args::{apply_column_flags, show, TableArgs};
 use crate::files::{display_name, print, read, write};
 use clap::Args;
-use popdecode::analyses::trial_table::predict::predict_with_folds;
+use popdecode::analyses::trial_table::predict::{decisions_with_folds, predict_with_folds};
 use popdecode::input::{table::Table, trial_table};
 use popdecode::recipe::Recipe;
 use std::path::PathBuf;
@@ -18,6 +18,10 @@ pub struct PredictArgs {
     /// Write predictions here as CSV (line, fold, true, predicted) instead of standard output.
     #[arg(long)]
     pub out: Option<PathBuf>,
+    /// Two classes: add each trial's decision value (larger favours the second class) as a column, and print the
+    /// area under the ROC curve of those values pooled over the folds on standard error.
+    #[arg(long)]
+    pub decision: bool,
 }
 
 pub fn run(args: PredictArgs) -> Result<(), String> {
@@ -55,17 +59,38 @@ pub fn run(args: PredictArgs) -> Result<(), String> {
                 })
         })
         .collect::<Result<_, _>>()?;
-    let predicted = predict_with_folds(&data, &recipe, &folds).map_err(show)?;
+    let (predicted, decision) = if args.decision {
+        let (labels, decision, auc) = decisions_with_folds(&data, &recipe, &folds).map_err(show)?;
+        eprintln!(
+            "AUC {auc} (decision values pooled over the folds; '{}' positive)",
+            data.classes[1]
+        );
+        (labels, Some(decision))
+    } else {
+        (
+            predict_with_folds(&data, &recipe, &folds).map_err(show)?,
+            None,
+        )
+    };
     let mut writer = csv::Writer::from_writer(Vec::new());
     let csv_err = |e: csv::Error| e.to_string();
-    writer
-        .write_record(["line", "fold", "true", "predicted"])
-        .map_err(csv_err)?;
+    let mut header = vec!["line", "fold", "true", "predicted"];
+    if decision.is_some() {
+        header.push("decision");
+    }
+    writer.write_record(&header).map_err(csv_err)?;
     for (i, &p) in predicted.iter().enumerate() {
         let (line, fold) = (table.lines[i].to_string(), folds[i].to_string());
-        writer
-            .write_record([&line, &fold, &data.classes[data.y[i]], &data.classes[p]])
-            .map_err(csv_err)?;
+        let mut record = vec![
+            line,
+            fold,
+            data.classes[data.y[i]].clone(),
+            data.classes[p].clone(),
+        ];
+        if let Some(d) = &decision {
+            record.push(d[i].to_string());
+        }
+        writer.write_record(&record).map_err(csv_err)?;
     }
     let out = String::from_utf8(writer.into_inner().map_err(|e| e.to_string())?)
         .expect("UTF-8 in, UTF-8 out");

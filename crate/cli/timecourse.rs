@@ -6,7 +6,7 @@ use crate::run::{analyse, Inputs, Loaded};
 use clap::Args;
 use popdecode::analyses::time_course::TimePlan;
 use popdecode::input::{self, extract, FileBytes};
-use popdecode::recipe::{TimeInput, TimeSettings, UnitFilter};
+use popdecode::recipe::{GeneralizationNull, TimeInput, TimeSettings, UnitFilter};
 use std::path::PathBuf;
 
 /// The subcommand's name, as part files record it.
@@ -54,6 +54,11 @@ pub struct TimecourseArgs {
     /// Also train at every window and test at every window (temporal generalization matrix).
     #[arg(long)]
     pub generalize: bool,
+    /// Null of the generalization matrix: training-labels (permute only the training trials' labels, keep the
+    /// test labels: a cell is significant only when what was learnt at its training window generalizes) or
+    /// all-labels (the curve's null) [default: training-labels].
+    #[arg(long, value_parser = parse_null)]
+    pub generalization_null: Option<GeneralizationNull>,
     /// Clusters with a permutation p below this are significant [default: 0.05].
     #[arg(long)]
     pub alpha: Option<f64>,
@@ -65,6 +70,11 @@ pub struct TimecourseArgs {
     pub columns: ColumnArgs,
     #[command(flatten)]
     pub run: RunArgs,
+}
+
+fn parse_null(s: &str) -> Result<GeneralizationNull, String> {
+    GeneralizationNull::from_name(s)
+        .ok_or_else(|| format!("unknown null '{s}'; choose training-labels or all-labels"))
 }
 
 /// The time settings: from the recipe file when it has them, with every flag given applied on top.
@@ -149,6 +159,9 @@ fn time_settings(
         TimeInput::Nwb { .. } => unreachable!("NWB settings are made by nwb_settings"),
     }
     settings.generalize |= args.generalize;
+    if args.generalization_null.is_some() {
+        settings.generalization_null = args.generalization_null;
+    }
     if let Some(a) = args.alpha {
         settings.alpha = a;
     }
@@ -206,6 +219,9 @@ fn nwb_settings(
         *end = args.end.unwrap_or(*end);
     }
     settings.generalize |= args.generalize;
+    if args.generalization_null.is_some() {
+        settings.generalization_null = args.generalization_null;
+    }
     if let Some(a) = args.alpha {
         settings.alpha = a;
     }

@@ -78,6 +78,52 @@ impl Dataset {
         }
     }
 
+    /// Only the trials of `keep` (class indices, ascending), relabelled 0, 1, … in that order; groups no trial
+    /// is left in are dropped (and the others renumbered, with the sessions of a pseudo-population's features).
+    pub fn with_classes(&self, keep: &[usize]) -> Dataset {
+        let rows: Vec<usize> = (0..self.n_trials())
+            .filter(|&i| keep.contains(&self.y[i]))
+            .collect();
+        let new_class = |c: usize| keep.iter().position(|&k| k == c).expect("a kept class");
+        let (groups, group_names, pseudo) = match &self.groups {
+            Some(g) => {
+                let mut present: Vec<usize> = rows.iter().map(|&i| g[i]).collect();
+                present.sort_unstable();
+                present.dedup();
+                let renumber = |old: usize| present.binary_search(&old).ok();
+                (
+                    Some(
+                        rows.iter()
+                            .map(|&i| renumber(g[i]).expect("present"))
+                            .collect(),
+                    ),
+                    present
+                        .iter()
+                        .map(|&o| self.group_names[o].clone())
+                        .collect(),
+                    // A pseudo-population's design holds every condition in every session, so no session is
+                    // dropped.
+                    self.pseudo.as_ref().map(|s| {
+                        s.iter()
+                            .map(|&o| renumber(o).expect("every session holds every condition"))
+                            .collect()
+                    }),
+                )
+            }
+            None => (None, self.group_names.clone(), self.pseudo.clone()),
+        };
+        Dataset {
+            x: self.x.select(ndarray::Axis(0), &rows),
+            y: rows.iter().map(|&i| new_class(self.y[i])).collect(),
+            classes: keep.iter().map(|&c| self.classes[c].clone()).collect(),
+            groups,
+            group_names,
+            pseudo,
+            warnings: Vec::new(),
+            ..self.clone()
+        }
+    }
+
     /// Trials per class, in class order.
     pub fn class_counts(&self) -> Vec<usize> {
         self.trials().class_counts()

@@ -4,7 +4,7 @@
 //! n), each increased by `1e-9 ×` the largest feature variance over all training trials (its `var_smoothing`), and
 //! class priors are the training proportions. A trial goes to the class of largest log posterior.
 
-use super::{argmax, present_classes, Decoder, Model};
+use super::{argmax, present_classes, two_class_margin, Decoder, Model};
 
 /// scikit-learn's default `var_smoothing`.
 pub const VAR_SMOOTHING: f64 = 1e-9;
@@ -67,24 +67,35 @@ impl Decoder for GaussianNb {
     }
 }
 
+impl NbModel {
+    /// Log joint likelihood of each class for one row (up to a constant shared by the classes).
+    fn scores(&self, row: &[f64]) -> Vec<f64> {
+        (0..self.classes.len())
+            .map(|k| {
+                let quad: f64 = row
+                    .iter()
+                    .zip(&self.means[k])
+                    .zip(&self.vars[k])
+                    .map(|((v, m), s)| (v - m) * (v - m) / s)
+                    .sum();
+                self.constants[k] - 0.5 * quad
+            })
+            .collect()
+    }
+}
+
 impl Model for NbModel {
     fn predict(&self, x: &[f64]) -> Vec<usize> {
         let p = self.means[0].len();
         x.chunks_exact(p)
-            .map(|row| {
-                let scores: Vec<f64> = (0..self.classes.len())
-                    .map(|k| {
-                        let quad: f64 = row
-                            .iter()
-                            .zip(&self.means[k])
-                            .zip(&self.vars[k])
-                            .map(|((v, m), s)| (v - m) * (v - m) / s)
-                            .sum();
-                        self.constants[k] - 0.5 * quad
-                    })
-                    .collect();
-                self.classes[argmax(&scores)]
-            })
+            .map(|row| self.classes[argmax(&self.scores(row))])
+            .collect()
+    }
+
+    fn decision(&self, x: &[f64]) -> Vec<f64> {
+        let p = self.means[0].len();
+        x.chunks_exact(p)
+            .map(|row| two_class_margin(&self.scores(row)))
             .collect()
     }
 }

@@ -16,6 +16,7 @@ pub mod standardise;
 pub mod tuning;
 
 use crate::recipe::{Classifier, Setting};
+use crate::rng::{task_rng, Stream};
 use standardise::Standardiser;
 
 /// Something that learns from a training fold.
@@ -25,6 +26,21 @@ use standardise::Standardiser;
 /// degenerate one-class fold itself). Classes absent from the fold must never be predicted.
 pub trait Decoder: Sync {
     fn fit(&self, x: &[f64], n: usize, p: usize, y: &[usize], n_classes: usize) -> Box<dyn Model>;
+
+    /// Fit knowing more about the training rows than their values: their groups and a random stream of their own
+    /// ([`FitContext`]). Only a decoder that resamples its training rows (nested tuning) needs this; the others
+    /// fit as [`Decoder::fit`] does.
+    fn fit_with(
+        &self,
+        x: &[f64],
+        n: usize,
+        p: usize,
+        y: &[usize],
+        n_classes: usize,
+        _context: &FitContext,
+    ) -> Box<dyn Model> {
+        self.fit(x, n, p, y, n_classes)
+    }
 
     /// Whether the pipeline standardises features before this decoder (every decoder but one that models raw
     /// counts).
@@ -75,9 +91,69 @@ impl FoldSet<'_> {
     }
 }
 
+/// What nested tuning needs to know about a split's rows beyond their values: the group of each row (inner folds
+/// never split a group), and the random stream its inner folds are shuffled by, keyed by (`seed`, `key`) and
+/// then by the outer fold, so that the inner folds depend only on the task that drew the split.
+#[derive(Debug, Clone, Copy)]
+pub struct Nesting<'a> {
+    /// Group of each row of the set, when the recipe has groups.
+    pub groups: Option<&'a [usize]>,
+    pub seed: u64,
+    pub key: u64,
+}
+
+impl Nesting<'_> {
+    /// No groups, and the stream (`seed`, key 0): for fits outside a resampled task (fold numbers given by the
+    /// user, a decoder fitted on every trial).
+    pub fn plain(seed: u64) -> Nesting<'static> {
+        Nesting {
+            groups: None,
+            seed,
+            key: 0,
+        }
+    }
+}
+
+/// What one fit may know beyond its training rows' values and labels ([`Decoder::fit_with`]).
+#[derive(Debug, Clone)]
+pub struct FitContext {
+    /// Group of each training row, when the recipe has groups.
+    pub groups: Option<Vec<usize>>,
+    /// The fit's own random stream: `task_rng(seed, Stream::InnerFolds, key, fold)`.
+    pub seed: u64,
+    pub key: u64,
+    pub fold: u64,
+}
+
+impl FitContext {
+    /// The context of training `rows` of a set (outer fold `fold`).
+    pub fn of(nesting: &Nesting, rows: &[usize], fold: usize) -> FitContext {
+        FitContext {
+            groups: nesting.groups.map(|g| rows.iter().map(|&i| g[i]).collect()),
+            seed: nesting.seed,
+            key: nesting.key,
+            fold: fold as u64,
+        }
+    }
+
+    /// The random stream of this fit.
+    pub fn rng(&self) -> rand_chacha::ChaCha20Rng {
+        task_rng(self.seed, Stream::InnerFolds, self.key, self.fold)
+    }
+}
+
 /// One pipeline per fold, each fitted on the trials outside its fold only; `None` for a fold with no training or
 /// no test trials. Uses the decoder's shortcut when it has one, and a pipeline per fold otherwise.
 pub fn fit_folds(decoder: &dyn Decoder, set: &FoldSet) -> Vec<Option<FittedPipeline>> {
+    fit_folds_with(decoder, set, &Nesting::plain(0))
+}
+
+/// [`fit_folds`], with what nested tuning needs to know about the rows ([`Nesting`]).
+pub fn fit_folds_with(
+    decoder: &dyn Decoder,
+    set: &FoldSet,
+    nesting: &Nesting,
+) -> Vec<Option<FittedPipeline>> {
     let splits: Vec<(Vec<usize>, Vec<usize>)> = (0..set.folds).map(|f| set.partition(f)).collect();
     let single: Vec<Option<usize>> = splits
         .iter()
@@ -109,12 +185,13 @@ pub fn fit_folds(decoder: &dyn Decoder, set: &FoldSet) -> Vec<Option<FittedPipel
             }
             let (train, _) = &splits[f];
             let y_train: Vec<usize> = train.iter().map(|&i| set.y[i]).collect();
-            Some(FittedPipeline::fit(
+            Some(FittedPipeline::fit_with(
                 decoder,
                 &set.rows(train),
                 set.p,
                 &y_train,
                 set.n_classes,
+                &FitContext::of(nesting, train, f),
             ))
         })
         .collect()
@@ -131,21 +208,45 @@ pub struct CrossValidated {
     pub single_class: u32,
     /// With tuning, the setting chosen in each fit, in fold order.
     pub chosen: Vec<Setting>,
+    /// When asked for a two-class set: each row's decision value (larger favours the second class; see
+    /// [`Model::decision`]), NaN for a row whose fold had no model; empty otherwise.
+    pub decision: Vec<f64>,
 }
 
-/// Fit on every fold but one, predict that one: a prediction for every row of the set.
-pub fn cross_validate(decoder: &dyn Decoder, set: &FoldSet) -> CrossValidated {
+/// Fit on every fold but one, predict that one: a prediction for every row of the set, and with `decisions` (two
+/// classes only) each row's decision value.
+pub fn cross_validate(
+    decoder: &dyn Decoder,
+    set: &FoldSet,
+    nesting: &Nesting,
+    decisions: bool,
+) -> CrossValidated {
+    let decisions = decisions && set.n_classes == 2;
     let mut out = CrossValidated {
         labels: vec![usize::MAX; set.y.len()],
         fits: 0,
         capped: 0,
         single_class: 0,
         chosen: Vec::new(),
+        decision: if decisions {
+            vec![f64::NAN; set.y.len()]
+        } else {
+            Vec::new()
+        },
     };
-    for (f, model) in fit_folds(decoder, set).into_iter().enumerate() {
+    for (f, model) in fit_folds_with(decoder, set, nesting)
+        .into_iter()
+        .enumerate()
+    {
         let Some(model) = model else { continue };
         let (_, test) = set.partition(f);
-        let predicted = model.predict(set.rows(&test));
+        let rows = set.rows(&test);
+        if decisions {
+            for (&pos, d) in test.iter().zip(model.decision(rows.clone())) {
+                out.decision[pos] = d;
+            }
+        }
+        let predicted = model.predict(rows);
         for (&pos, c) in test.iter().zip(predicted) {
             out.labels[pos] = c;
         }
@@ -155,6 +256,22 @@ pub fn cross_validate(decoder: &dyn Decoder, set: &FoldSet) -> CrossValidated {
         out.chosen.extend(model.chosen());
     }
     out
+}
+
+/// Whether a decoder is linear with weights per neuron (weights and activation patterns in the neuron analyses).
+pub fn has_weights(classifier: Classifier) -> bool {
+    matches!(
+        classifier,
+        Classifier::LinearSvm | Classifier::ShrinkageLda | Classifier::Logistic
+    )
+}
+
+/// What a report must say when a decoder cannot work as described on `features` features (nearest-mean's
+/// correlation below three features).
+pub fn features_note(classifier: Classifier, features: usize) -> Option<String> {
+    (classifier == Classifier::NearestMean)
+        .then(|| nearest_mean::fewer_features_note(features))
+        .flatten()
 }
 
 /// Kernel matrices above this size (256 MB per worker) are worth a warning on the page.
@@ -190,6 +307,10 @@ pub trait Model: Send {
     fn chosen(&self) -> Option<Setting> {
         None
     }
+    /// For a model of two classes (both in its training fold): one decision value per row, larger for the second
+    /// class (index 1) and positive where the model predicts it (up to ties at exactly 0); the score the ROC curve
+    /// is drawn from.
+    fn decision(&self, x: &[f64]) -> Vec<f64>;
 }
 
 /// The decoder a recipe names, with its setting chosen inside each training fold when `tune` is set.
@@ -230,9 +351,9 @@ fn build_plain(classifier: Classifier, c: f64) -> Box<dyn Decoder> {
     }
 }
 
-/// One sentence for the methods paragraph: the decoder, its setting and its citation. `c` is `None` when C was
-/// chosen by nested cross-validation.
-pub fn describe(classifier: Classifier, c: Option<f64>) -> String {
+/// One sentence for the methods paragraph: the decoder, its setting and its citation, as it was fitted on
+/// `features` features. `c` is `None` when C was chosen by nested cross-validation.
+pub fn describe(classifier: Classifier, c: Option<f64>, features: usize) -> String {
     let c = c.map_or("C chosen within each training fold".to_string(), |c| {
         format!("C = {c}")
     });
@@ -250,8 +371,18 @@ pub fn describe(classifier: Classifier, c: Option<f64>) -> String {
              regularised by Ledoit–Wolf analytic shrinkage (Ledoit & Wolf, 2004) and class priors equal to the \
              training-fold class proportions"
             .to_string(),
+        Classifier::NearestMean if features < nearest_mean::MIN_CORRELATION_FEATURES => format!(
+            "a nearest-class-mean decoder assigning each test trial to the class whose mean training pattern was \
+             nearest in Euclidean distance (with {features} feature{} a correlation across features, the rule used \
+             from {} features on, is {})",
+            if features == 1 { "" } else { "s" },
+            nearest_mean::MIN_CORRELATION_FEATURES,
+            if features == 1 { "undefined" } else { "always +1 or −1" }
+        ),
         Classifier::NearestMean => "a nearest-class-mean decoder assigning each test trial to the class whose \
-             mean training pattern correlated best with it across features (Pearson correlation)"
+             mean training pattern correlated best with it across features (Pearson correlation; a correlation \
+             ignores any shift or gain shared by all features, so a change of the whole population's activity \
+             together does not inform it)"
             .to_string(),
         Classifier::GaussianNb => format!(
             "Gaussian naive Bayes (independent normal features per class, maximum-likelihood class variances \
@@ -259,9 +390,8 @@ pub fn describe(classifier: Classifier, c: Option<f64>) -> String {
              proportions, as scikit-learn's GaussianNB)",
             gaussian_nb::VAR_SMOOTHING
         ),
-        Classifier::PoissonNb => "Poisson naive Bayes on the values as given, without standardisation \
-             (independent Poisson counts per neuron and class, rates (sum + 0.5)/n, priors equal to the \
-             training-fold class proportions)"
+        Classifier::PoissonNb => "Poisson naive Bayes (independent Poisson counts per neuron and class, rates \
+             (sum + 0.5)/n, priors equal to the training-fold class proportions)"
             .to_string(),
         Classifier::Logistic => format!(
             "logistic regression with an L2 penalty ({c}; binary for two classes, multinomial otherwise; \
@@ -302,6 +432,19 @@ impl FittedPipeline {
         y_train: &[usize],
         n_classes: usize,
     ) -> Self {
+        let context = FitContext::of(&Nesting::plain(0), &[], 0);
+        FittedPipeline::fit_with(decoder, x_train, p, y_train, n_classes, &context)
+    }
+
+    /// [`FittedPipeline::fit`] with what a tuned decoder may know about the rows ([`FitContext`]).
+    pub fn fit_with(
+        decoder: &dyn Decoder,
+        x_train: &[f64],
+        p: usize,
+        y_train: &[usize],
+        n_classes: usize,
+        context: &FitContext,
+    ) -> Self {
         let n = y_train.len();
         let first = y_train[0];
         if y_train.iter().all(|&c| c == first) {
@@ -311,13 +454,13 @@ impl FittedPipeline {
             return FittedPipeline {
                 scaler: None,
                 p,
-                fitted: Fitted::Model(decoder.fit(x_train, n, p, y_train, n_classes)),
+                fitted: Fitted::Model(decoder.fit_with(x_train, n, p, y_train, n_classes, context)),
             };
         }
         let scaler = Standardiser::fit(x_train, n, p);
         let mut z = x_train.to_vec();
         scaler.apply(&mut z);
-        let fitted = Fitted::Model(decoder.fit(&z, n, p, y_train, n_classes));
+        let fitted = Fitted::Model(decoder.fit_with(&z, n, p, y_train, n_classes, context));
         FittedPipeline {
             scaler: Some(scaler),
             p,
@@ -342,6 +485,20 @@ impl FittedPipeline {
                     s.apply(&mut x_test);
                 }
                 m.predict(&x_test)
+            }
+        }
+    }
+
+    /// Decision values of raw test rows for a two-class problem ([`Model::decision`]); a training fold that held a
+    /// single class gives every test trial 0 (no ranking among them).
+    pub fn decision(&self, mut x_test: Vec<f64>) -> Vec<f64> {
+        match &self.fitted {
+            Fitted::OnlyClass(_) => vec![0.0; x_test.len() / self.p],
+            Fitted::Model(m) => {
+                if let Some(s) = &self.scaler {
+                    s.apply(&mut x_test);
+                }
+                m.decision(&x_test)
             }
         }
     }
@@ -435,6 +592,17 @@ impl Model for LinearModel {
         self.capped
     }
 
+    fn decision(&self, x: &[f64]) -> Vec<f64> {
+        let p = self.w[0].len() - 1;
+        let score = |w: &Vec<f64>, row: &[f64]| linalg::dot(&w[..p], row) + w[p];
+        x.chunks_exact(p)
+            .map(|row| match &self.w[..] {
+                [w] => score(w, row),
+                rows => two_class_margin(&rows.iter().map(|w| score(w, row)).collect::<Vec<_>>()),
+            })
+            .collect()
+    }
+
     fn weights(&self) -> Option<Vec<(usize, Vec<f64>)>> {
         let p = self.w[0].len() - 1;
         Some(if self.w.len() == 1 {
@@ -447,6 +615,13 @@ impl Model for LinearModel {
                 .collect()
         })
     }
+}
+
+/// The decision value of a two-class model that scores each class: the second class's score less the first's
+/// (positive exactly where [`argmax`] picks the second).
+pub(crate) fn two_class_margin(scores: &[f64]) -> f64 {
+    debug_assert_eq!(scores.len(), 2, "a decision value needs two classes");
+    scores[1] - scores[0]
 }
 
 /// The classes present in `y`, ascending.

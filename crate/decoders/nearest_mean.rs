@@ -3,12 +3,38 @@
 //!
 //! Parameter-free and robust with few trials per class, where a covariance cannot be estimated. The correlation is
 //! Pearson's r between the two p-vectors; a pattern with no spread (all neurons equal) correlates 0 with everything.
+//!
+//! Its limitation: a correlation across neurons ignores anything shared by all of them. A condition that raises
+//! or lowers the whole population together (a shared gain or offset) moves every neuron the same way, which the
+//! correlation removes with the mean across neurons, so this decoder cannot see it where LDA or an SVM would.
+//!
+//! Below [`MIN_CORRELATION_FEATURES`] features a correlation says nothing: across one feature it is undefined, and
+//! across two it is always ±1 (two centred values are a and −a). With one or two features the decoder therefore
+//! assigns each trial to the class whose mean is nearest in Euclidean distance on the standardised features (the
+//! nearest-centroid rule), and every report says so ([`fewer_features_note`]).
 
 use super::linalg::{dot, dot_centred};
 use super::standardise::Standardiser;
-use super::{argmax, present_classes, Decoder, FoldSet, Model};
+use super::{argmax, present_classes, two_class_margin, Decoder, FoldSet, Model};
 
 pub struct NearestMean;
+
+/// Fewest features across which a correlation can rank classes; below it the decoder uses Euclidean distance.
+pub const MIN_CORRELATION_FEATURES: usize = 3;
+
+/// What every report of this decoder on `p` < [`MIN_CORRELATION_FEATURES`] features says; `None` otherwise.
+pub fn fewer_features_note(p: usize) -> Option<String> {
+    (p < MIN_CORRELATION_FEATURES).then(|| {
+        format!(
+            "nearest-mean correlates trial and class patterns across features, which needs at least {} features \
+             (across {} the correlation is {}); each trial was assigned to the class whose mean is nearest in \
+             Euclidean distance on the standardised features instead",
+            MIN_CORRELATION_FEATURES,
+            if p == 1 { "one".to_string() } else { format!("{p}") },
+            if p == 1 { "undefined" } else { "always +1 or −1" }
+        )
+    })
+}
 
 /// Scoring a trial: its correlation with class c's pattern m_c is `(z − z̄)·m_c / ‖z − z̄‖`. The patterns are
 /// centred (Σ m_c = 0), so `(z − z̄)·m_c = z·m_c`, and the division is the same for every class, so the class with
@@ -16,8 +42,12 @@ pub struct NearestMean;
 /// across neurons scores 0 (to rounding) for every class.
 struct MeanModel {
     classes: Vec<usize>,
-    /// Per class: the mean pattern, centred across neurons and scaled to unit length (zero if it has no spread).
+    /// Per class: the mean pattern, centred across neurons and scaled to unit length (zero if it has no spread);
+    /// with fewer than [`MIN_CORRELATION_FEATURES`] features, the mean pattern itself.
     patterns: Vec<Vec<f64>>,
+    /// Nearest-centroid scoring (fewer than [`MIN_CORRELATION_FEATURES`] features): per class `−‖m_c‖²/2`, so that
+    /// the largest `z·m_c − ‖m_c‖²/2` is the smallest distance `‖z − m_c‖`. Empty for correlation scoring.
+    offsets: Vec<f64>,
     /// Fitted from a split's sums on raw rows (see [`NearestMean::fit_folds_raw`]): the training fold's means and
     /// each class's weights `m_c / scale`, so that `(x − mean)·weights = z·m_c` scores raw rows directly; `None`
     /// when the pipeline standardised the rows.
@@ -44,7 +74,8 @@ fn unit_centred(v: &[f64]) -> Vec<f64> {
 impl Decoder for NearestMean {
     fn fit(&self, x: &[f64], n: usize, p: usize, y: &[usize], n_classes: usize) -> Box<dyn Model> {
         let classes = present_classes(y, n_classes);
-        let patterns = classes
+        let distance = p < MIN_CORRELATION_FEATURES;
+        let patterns: Vec<Vec<f64>> = classes
             .iter()
             .map(|&k| {
                 let mut mean = vec![0.0; p];
@@ -56,12 +87,22 @@ impl Decoder for NearestMean {
                     count += 1;
                 }
                 mean.iter_mut().for_each(|m| *m /= count as f64);
-                unit_centred(&mean)
+                if distance {
+                    mean
+                } else {
+                    unit_centred(&mean)
+                }
             })
             .collect();
+        let offsets = if distance {
+            patterns.iter().map(|m| -0.5 * dot(m, m)).collect()
+        } else {
+            Vec::new()
+        };
         Box::new(MeanModel {
             classes,
             patterns,
+            offsets,
             raw: None,
         })
     }
@@ -72,7 +113,8 @@ impl Decoder for NearestMean {
     /// standardising a copy of the training rows and averaging them (to rounding; a test compares the two), without
     /// the copy, which is most of the cost of this decoder.
     fn fit_folds_raw(&self, set: &FoldSet, wanted: &[bool]) -> Option<Vec<Option<Box<dyn Model>>>> {
-        if set.y.is_empty() {
+        // With one or two features the distance rule is fitted by the pipeline; its cost is negligible there.
+        if set.y.is_empty() || set.p < MIN_CORRELATION_FEATURES {
             return None;
         }
         Some(
@@ -174,6 +216,7 @@ fn fold_models(set: &FoldSet, wanted: &[bool]) -> Vec<Option<MeanModel>> {
                 .collect();
             Some(MeanModel {
                 classes,
+                offsets: Vec::new(),
                 raw: Some(RawScoring {
                     weights: patterns
                         .iter()
@@ -187,25 +230,47 @@ fn fold_models(set: &FoldSet, wanted: &[bool]) -> Vec<Option<MeanModel>> {
         .collect()
 }
 
+impl MeanModel {
+    /// Each class's score for one row (the largest wins), written into `scores`.
+    fn score(&self, row: &[f64], scores: &mut [f64]) {
+        match &self.raw {
+            Some(raw) => {
+                for (s, w) in scores.iter_mut().zip(&raw.weights) {
+                    *s = dot_centred(row, &raw.mean, w);
+                }
+            }
+            None => {
+                for (s, m) in scores.iter_mut().zip(&self.patterns) {
+                    *s = dot(row, m);
+                }
+                for (s, o) in scores.iter_mut().zip(&self.offsets) {
+                    *s += o;
+                }
+            }
+        }
+    }
+}
+
 impl Model for MeanModel {
     fn predict(&self, x: &[f64]) -> Vec<usize> {
         let p = self.patterns[0].len();
         let mut scores = vec![0.0; self.patterns.len()];
         x.chunks_exact(p)
             .map(|row| {
-                match &self.raw {
-                    Some(raw) => {
-                        for (s, w) in scores.iter_mut().zip(&raw.weights) {
-                            *s = dot_centred(row, &raw.mean, w);
-                        }
-                    }
-                    None => {
-                        for (s, m) in scores.iter_mut().zip(&self.patterns) {
-                            *s = dot(row, m);
-                        }
-                    }
-                }
+                self.score(row, &mut scores);
                 self.classes[argmax(&scores)]
+            })
+            .collect()
+    }
+
+    /// The second class's score less the first's: a difference of correlations, or of halved squared distances.
+    fn decision(&self, x: &[f64]) -> Vec<f64> {
+        let p = self.patterns[0].len();
+        let mut scores = vec![0.0; self.patterns.len()];
+        x.chunks_exact(p)
+            .map(|row| {
+                self.score(row, &mut scores);
+                two_class_margin(&scores)
             })
             .collect()
     }
@@ -286,8 +351,25 @@ mod tests {
 
     #[test]
     fn flat_patterns_do_not_produce_nan() {
-        let m = NearestMean.fit(&[1.0, 1.0, 2.0, 0.0], 2, 2, &[0, 1], 2);
-        assert_eq!(m.predict(&[5.0, 5.0]).len(), 1);
+        let m = NearestMean.fit(&[1.0, 1.0, 1.0, 2.0, 0.0, 1.0], 2, 3, &[0, 1], 2);
+        assert_eq!(m.predict(&[5.0, 5.0, 5.0]).len(), 1);
         assert!(unit_centred(&[3.0, 3.0]).iter().all(|v| *v == 0.0));
+    }
+
+    #[test]
+    fn one_or_two_features_use_the_nearest_mean_by_distance() {
+        // One feature: class means −1 and 2, so the boundary is their midpoint 0.5 (a correlation across one
+        // feature would be undefined and score every class alike).
+        let m = NearestMean.fit(&[-1.5, -0.5, 1.0, 3.0], 4, 1, &[0, 0, 1, 1], 2);
+        assert_eq!(m.predict(&[0.4, 0.6, -9.0, 9.0]), vec![0, 1, 0, 1]);
+        // Two features: means (0, 0) and (2, 2), both flat across features, so a correlation would score every
+        // trial 0 for both. Squared distances: (1.1, 1.1) 2.42 vs 1.62, (0.2, 1.9) 3.65 vs 3.25, (0.9, 0.9) 1.62
+        // vs 2.42.
+        let x = [0.0, 0.0, 0.0, 0.0, 2.0, 2.0, 2.0, 2.0];
+        let m = NearestMean.fit(&x, 4, 2, &[0, 0, 1, 1], 2);
+        assert_eq!(m.predict(&[1.1, 1.1, 0.2, 1.9, 0.9, 0.9]), vec![1, 1, 0]);
+        assert!(fewer_features_note(1).unwrap().contains("undefined"));
+        assert!(fewer_features_note(2).unwrap().contains("+1 or −1"));
+        assert!(fewer_features_note(3).is_none());
     }
 }

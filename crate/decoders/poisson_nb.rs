@@ -49,16 +49,27 @@ impl Decoder for PoissonNb {
     }
 }
 
+impl PoissonModel {
+    /// Log joint likelihood of each class for one row of counts (up to a constant shared by the classes).
+    fn scores(&self, row: &[f64]) -> Vec<f64> {
+        (0..self.classes.len())
+            .map(|k| self.constants[k] + super::linalg::dot(row, &self.log_rates[k]))
+            .collect()
+    }
+}
+
 impl Model for PoissonModel {
     fn predict(&self, x: &[f64]) -> Vec<usize> {
         let p = self.log_rates[0].len();
         x.chunks_exact(p)
-            .map(|row| {
-                let scores: Vec<f64> = (0..self.classes.len())
-                    .map(|k| self.constants[k] + super::linalg::dot(row, &self.log_rates[k]))
-                    .collect();
-                self.classes[argmax(&scores)]
-            })
+            .map(|row| self.classes[argmax(&self.scores(row))])
+            .collect()
+    }
+
+    fn decision(&self, x: &[f64]) -> Vec<f64> {
+        let p = self.log_rates[0].len();
+        x.chunks_exact(p)
+            .map(|row| super::two_class_margin(&self.scores(row)))
             .collect()
     }
 }

@@ -237,8 +237,10 @@ fn smo(k: &[f64], n: usize, rows: &[usize], y: &[f64], c: f64) -> (Vec<f64>, f64
     (alpha, rho, hit)
 }
 
-impl Model for RbfModel {
-    fn predict(&self, x: &[f64]) -> Vec<usize> {
+impl RbfModel {
+    /// The decision value of every pair machine for each row of `x`, machine by machine (positive votes for the
+    /// machine's `first` class).
+    fn machine_values(&self, x: &[f64]) -> Vec<Vec<f64>> {
         let p = self.p;
         let train_norm = |r: usize| dot(&self.x[r * p..(r + 1) * p], &self.x[r * p..(r + 1) * p]);
         let norms: Vec<f64> = (0..self.x.len() / p).map(train_norm).collect();
@@ -253,15 +255,29 @@ impl Model for RbfModel {
                         libm::exp(-self.gamma * d2)
                     })
                     .collect();
+                self.machines
+                    .iter()
+                    .map(|m| {
+                        m.support
+                            .iter()
+                            .zip(&m.coef)
+                            .map(|(&s, &c)| c * kv[s])
+                            .sum::<f64>()
+                            - m.rho
+                    })
+                    .collect()
+            })
+            .collect()
+    }
+}
+
+impl Model for RbfModel {
+    fn predict(&self, x: &[f64]) -> Vec<usize> {
+        self.machine_values(x)
+            .into_iter()
+            .map(|values| {
                 let mut votes = vec![0usize; self.classes.len()];
-                for m in &self.machines {
-                    let f: f64 = m
-                        .support
-                        .iter()
-                        .zip(&m.coef)
-                        .map(|(&s, &c)| c * kv[s])
-                        .sum::<f64>()
-                        - m.rho;
+                for (m, f) in self.machines.iter().zip(values) {
                     votes[if f > 0.0 { m.first } else { m.second }] += 1;
                 }
                 let best = (0..votes.len()).fold(0, |b, i| if votes[i] > votes[b] { i } else { b });
@@ -272,6 +288,17 @@ impl Model for RbfModel {
 
     fn hit_iteration_cap(&self) -> bool {
         self.capped
+    }
+
+    /// Two classes have one machine, whose positive side is its `first` class: the decision for the second class
+    /// is its value negated.
+    fn decision(&self, x: &[f64]) -> Vec<f64> {
+        let m = &self.machines[0];
+        let sign = if m.first == 0 { -1.0 } else { 1.0 };
+        self.machine_values(x)
+            .into_iter()
+            .map(|values| sign * values[0])
+            .collect()
     }
 }
 

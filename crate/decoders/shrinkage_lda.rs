@@ -92,6 +92,16 @@ impl Model for LdaModel {
                 .collect(),
         )
     }
+
+    fn decision(&self, x: &[f64]) -> Vec<f64> {
+        let p = self.coef[0].len();
+        x.chunks_exact(p)
+            .map(|row| {
+                let score = |k: usize| dot(&self.coef[k], row) + self.intercept[k];
+                super::two_class_margin(&[score(0), score(1)])
+            })
+            .collect()
+    }
 }
 
 /// Count, sum of rows and scatter `Σ xxᵀ` (rows shifted by `offset`) of one group of trials.

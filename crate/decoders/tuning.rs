@@ -9,12 +9,17 @@
 //! The grid is C = 10⁻³ … 10³ for every decoder with a C, and for the Gaussian-kernel SVM also the kernel width: γ
 //! at 0.1, 1 and 10 times its default (21 settings).
 //!
-//! Inner folds are dealt without randomness: each class's trials, in the order they arrive, go to the inner folds in
-//! turn, so the choice is reproducible and needs no random stream. Ties go to the smaller C (the simpler decoder).
+//! Inner folds are drawn at random from the fit's own stream ([`FitContext::rng`], keyed by the outer task and
+//! fold, so the choice is reproducible on every face): stratified inner folds, or, when the recipe has groups,
+//! grouped inner folds that never split a group, exactly as the outer folds are made (a group's trials share drift
+//! and identity, so an inner fold that split a group would score settings on trials resembling their training
+//! trials). A training fold holding a single group cannot be split by groups; there the inner folds are
+//! stratified, and the report counts such fits. Ties go to the smaller C (the simpler decoder).
 
-use super::{fit_folds, Decoder, FoldSet, Model};
+use super::{fit_folds, Decoder, FitContext, FoldSet, Model, Nesting};
 use crate::recipe::Setting;
 use crate::resample::score::accuracies;
+use crate::resample::{grouped_folds, stratified_folds};
 
 /// Inner folds (fewer when a class has fewer training trials).
 pub const INNER_FOLDS: usize = 5;
@@ -31,20 +36,36 @@ struct TunedModel {
     chosen: Setting,
 }
 
+/// Inner folds of a training fold: grouped when its rows carry two or more groups, stratified otherwise; returns
+/// the fold of each row and the number of folds.
+pub fn inner_folds(y: &[usize], n_classes: usize, context: &FitContext) -> (Vec<usize>, usize) {
+    let mut rng = context.rng();
+    if let Some(groups) = &context.groups {
+        let n_groups = groups.iter().max().map_or(0, |g| g + 1);
+        let mut present = vec![false; n_groups];
+        groups.iter().for_each(|&g| present[g] = true);
+        if present.iter().filter(|&&b| b).count() >= 2 {
+            return grouped_folds(&mut rng, groups, n_groups, INNER_FOLDS);
+        }
+    }
+    let mut counts = vec![0usize; n_classes];
+    y.iter().for_each(|&c| counts[c] += 1);
+    let smallest = counts.iter().copied().filter(|&c| c > 0).min().unwrap_or(0);
+    let k = INNER_FOLDS.min(smallest).max(2);
+    (stratified_folds(&mut rng, y, n_classes, k), k)
+}
+
 impl Tuned {
-    /// Inner balanced accuracy of each grid value on the rows given.
-    pub fn scores(&self, x: &[f64], p: usize, y: &[usize], n_classes: usize) -> Vec<f64> {
-        let mut counts = vec![0usize; n_classes];
-        let fold: Vec<usize> = y
-            .iter()
-            .map(|&c| {
-                counts[c] += 1;
-                counts[c] - 1
-            })
-            .collect();
-        let smallest = counts.iter().copied().filter(|&c| c > 0).min().unwrap_or(0);
-        let k = INNER_FOLDS.min(smallest).max(2);
-        let fold: Vec<usize> = fold.iter().map(|f| f % k).collect();
+    /// Inner balanced accuracy of each grid value on the rows given, over the inner folds of `context`.
+    pub fn scores(
+        &self,
+        x: &[f64],
+        p: usize,
+        y: &[usize],
+        n_classes: usize,
+        context: &FitContext,
+    ) -> Vec<f64> {
+        let (fold, k) = inner_folds(y, n_classes, context);
         let set = FoldSet {
             x,
             p,
@@ -73,7 +94,20 @@ impl Tuned {
 
 impl Decoder for Tuned {
     fn fit(&self, x: &[f64], n: usize, p: usize, y: &[usize], n_classes: usize) -> Box<dyn Model> {
-        let scores = self.scores(x, p, y, n_classes);
+        let context = FitContext::of(&Nesting::plain(0), &[], 0);
+        self.fit_with(x, n, p, y, n_classes, &context)
+    }
+
+    fn fit_with(
+        &self,
+        x: &[f64],
+        n: usize,
+        p: usize,
+        y: &[usize],
+        n_classes: usize,
+        context: &FitContext,
+    ) -> Box<dyn Model> {
+        let scores = self.scores(x, p, y, n_classes, context);
         // First best: the grid ascends in C (then γ), so ties keep the simpler decoder.
         let best = (0..scores.len()).fold(0, |b, i| if scores[i] > scores[b] { i } else { b });
         let chosen = self.grid[best];
@@ -98,6 +132,10 @@ impl Model for TunedModel {
 
     fn weights(&self) -> Option<Vec<(usize, Vec<f64>)>> {
         self.inner.weights()
+    }
+
+    fn decision(&self, x: &[f64]) -> Vec<f64> {
+        self.inner.decision(x)
     }
 
     fn chosen(&self) -> Option<Setting> {

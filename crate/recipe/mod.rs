@@ -16,7 +16,7 @@ pub mod windows;
 
 pub use classifier::{Classifier, Setting};
 pub use columns::Columns;
-pub use time::{TimeInput, TimeSettings};
+pub use time::{GeneralizationNull, TimeInput, TimeSettings};
 pub use units::UnitFilter;
 
 use crate::error::{Error, Result};
@@ -107,6 +107,9 @@ pub struct Recipe {
     /// Time-resolved analyses only: where the windows come from, and the time-course statistics.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub time: Option<TimeSettings>,
+    /// Trial tables with more than two classes: also decode every pair of classes on its own.
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub pairwise: bool,
 }
 
 impl Recipe {
@@ -128,6 +131,7 @@ impl Recipe {
             shuffle_repeats: None,
             seed: 1,
             time: None,
+            pairwise: false,
         }
     }
 
@@ -178,6 +182,11 @@ impl Recipe {
                 "{} has no setting to choose; tuning applies to linear-svm and logistic",
                 self.classifier.name()
             )));
+        }
+        if self.pairwise && self.time.is_some() {
+            return Err(Error::Recipe(
+                "pairwise decoding is for trial tables; a time course cannot run it yet".into(),
+            ));
         }
         if let Some(t) = &self.time {
             if self.columns.pseudo.is_some() {

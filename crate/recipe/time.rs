@@ -13,6 +13,40 @@ pub struct TimeSettings {
     pub generalize: bool,
     /// Clusters with a permutation p below this are significant.
     pub alpha: f64,
+    /// The null of the temporal generalization matrix; `None` means the default, [`GeneralizationNull::TrainingLabels`]
+    /// (an analysis that generalizes writes the one it used).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub generalization_null: Option<GeneralizationNull>,
+}
+
+/// How the label permutations of the temporal generalization matrix are made.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum GeneralizationNull {
+    /// Permute only the training trials' labels, within each training fold, and keep the test trials' labels: a
+    /// cell is significant only when what was learnt at its training window generalizes (the default).
+    TrainingLabels,
+    /// Permute every trial's label, as for the decoding curve (information is removed at every window at once).
+    AllLabels,
+}
+
+impl GeneralizationNull {
+    /// The spelling used in recipes and on the command line.
+    pub fn name(self) -> &'static str {
+        match self {
+            GeneralizationNull::TrainingLabels => "training-labels",
+            GeneralizationNull::AllLabels => "all-labels",
+        }
+    }
+
+    pub fn from_name(name: &str) -> Option<GeneralizationNull> {
+        [
+            GeneralizationNull::TrainingLabels,
+            GeneralizationNull::AllLabels,
+        ]
+        .into_iter()
+        .find(|g| g.name() == name)
+    }
 }
 
 /// Where the windows come from.
@@ -54,6 +88,12 @@ pub enum TimeInput {
 }
 
 impl TimeSettings {
+    /// The generalization matrix's null, with the default resolved.
+    pub fn generalization_null(&self) -> GeneralizationNull {
+        self.generalization_null
+            .unwrap_or(GeneralizationNull::TrainingLabels)
+    }
+
     /// Defaults for spike events: 0.1 s windows stepped by 0.05 s over the given span, events columns named
     /// `trial`, `neuron` and `time`.
     pub fn events(start: f64, end: f64) -> TimeSettings {
@@ -70,6 +110,7 @@ impl TimeSettings {
             },
             generalize: false,
             alpha: 0.05,
+            generalization_null: None,
         }
     }
 
@@ -86,6 +127,7 @@ impl TimeSettings {
             },
             generalize: false,
             alpha: 0.05,
+            generalization_null: None,
         }
     }
 
@@ -98,6 +140,7 @@ impl TimeSettings {
             },
             generalize: false,
             alpha: 0.05,
+            generalization_null: None,
         }
     }
 }

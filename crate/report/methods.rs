@@ -5,6 +5,7 @@ use super::Design;
 use crate::decoders;
 use crate::recipe::classifier::C_GRID;
 use crate::recipe::{Classifier, Recipe};
+use crate::resample::scheme::LEAVE_ONE_OUT_CAUTION;
 use crate::resample::{pseudo, Split};
 
 /// "a: 58, b: 58": trials per class, for the paragraph's first sentence.
@@ -26,15 +27,19 @@ pub fn resampling(
     group: &str,
     n_groups: usize,
 ) -> String {
+    let in_each = if rc.repeats == 1 {
+        "In one repeat".to_string()
+    } else {
+        format!("In each of {} repeats", rc.repeats)
+    };
     if let Split::Pseudo { folds } = design.split {
         return format!(
             "Neurons were recorded in {n_groups} separate sessions (levels of '{group}') and combined into \
-             pseudo-trials. In each of {} repeats, each session's trials of each condition were shuffled and dealt \
+             pseudo-trials. {in_each}, each session's trials of each condition were shuffled and dealt \
              into {folds} folds, and within each fold every condition received as many pseudo-trials as the \
              smallest session-by-condition share of that fold ({} pseudo-trials per repeat in all), each joining one \
              real trial of that condition from every session, paired at random without reuse, so that training and \
              test pseudo-trials came from disjoint real trials, and conditions were balanced ({} per condition); {}.",
-            rc.repeats,
             design.trials_per_repeat,
             design.trials_per_repeat / n_classes,
             pseudo::CAVEAT
@@ -61,16 +66,34 @@ pub fn resampling(
         }
         Split::Pseudo { .. } => unreachable!("answered above"),
     };
-    format!("In each of {} repeats, {balance}{split}.", rc.repeats)
+    let mut out = format!("{in_each}, {balance}{split}.");
+    if matches!(design.split, Split::LeaveOneOut | Split::LeaveOneGroupOut) && rc.repeats == 1 {
+        out.push_str(
+            " A single repeat was run because, with every trial kept, every repeat would split the trials alike.",
+        );
+    }
+    if design.split == Split::LeaveOneOut {
+        out.push_str(&format!(" Caution: {LEAVE_ONE_OUT_CAUTION}."));
+    }
+    out
 }
 
-/// The standardisation-and-decoder sentence.
-pub fn fitting(rc: &Recipe) -> String {
-    format!(
-        "Within each training fold, every feature was standardised with the mean and standard deviation of the \
-         training trials, which were then applied to the test trials, and the decoder was fitted: {}.",
-        decoders::describe(rc.classifier, (!rc.tune).then_some(rc.c))
-    ) + &tuning_sentence(rc)
+/// The standardisation-and-decoder sentence, for a decoder fitted on `features` features: what the fitted
+/// pipeline did (a decoder of counts is fitted on the values as given, every other on standardised features).
+pub fn fitting(rc: &Recipe, features: usize) -> String {
+    let decoder = decoders::describe(rc.classifier, (!rc.tune).then_some(rc.c), features);
+    let fitted = if rc.classifier.needs_counts() {
+        format!(
+            "Within each training fold, the decoder was fitted to the training trials' values as given, without \
+             standardisation (it models spike counts), and applied to the test trials: {decoder}."
+        )
+    } else {
+        format!(
+            "Within each training fold, every feature was standardised with the mean and standard deviation of the \
+             training trials, which were then applied to the test trials, and the decoder was fitted: {decoder}."
+        )
+    };
+    fitted + &tuning_sentence(rc)
 }
 
 /// How C was chosen, when the recipe tunes: the nested cross-validation, in a sentence.
@@ -84,12 +107,22 @@ fn tuning_sentence(rc: &Recipe) -> String {
     } else {
         ""
     };
+    let inner = match &rc.columns.group {
+        Some(group) => format!(
+            "split at random into {} inner folds that never divided a level of '{group}' (stratified inner folds \
+             where a training fold held a single level)",
+            decoders::tuning::INNER_FOLDS
+        ),
+        None => format!(
+            "split at random into {} stratified inner folds",
+            decoders::tuning::INNER_FOLDS
+        ),
+    };
     format!(
-        " C was chosen within each training fold by nested cross-validation: the training trials were dealt, class \
-         by class in file order, into {} inner folds, every combination of C in {{{}}}{gamma} was scored by the inner \
-         balanced accuracy of the full pipeline (standardisation refitted on each inner training fold), and the best \
-         (the simpler on ties) was refitted on the whole training fold; the test fold was never used to choose it.",
-        decoders::tuning::INNER_FOLDS,
+        " C was chosen within each training fold by nested cross-validation: the training trials were {inner}, \
+         every combination of C in {{{}}}{gamma} was scored by the inner balanced accuracy of the full pipeline \
+         (standardisation refitted on each inner training fold), and the best (the simpler on ties) was refitted on \
+         the whole training fold; the test fold was never used to choose it.",
         c_grid.join(", ")
     )
 }

@@ -162,6 +162,14 @@ impl Fits {
     }
 }
 
+/// What a report says when nested tuning could not keep groups apart in the inner folds of some fits.
+pub fn ungrouped_inner_warning(fits: u64, total: u64) -> String {
+    format!(
+        "in {fits} of {total} fits the training fold held a single group, so nested tuning's inner folds could not \
+         keep groups apart there and were stratified instead"
+    )
+}
+
 /// Observed repeats and shuffles, each sorted by index, from outcomes in any order.
 pub fn by_task<O>(outcomes: &[O], task: impl Fn(&O) -> Task) -> (Vec<&O>, Vec<&O>) {
     let sorted = |shuffle: bool| {

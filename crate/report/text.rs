@@ -14,6 +14,36 @@ pub fn p_text(p: f64) -> String {
     }
 }
 
+/// Whether a permutation p-value is the smallest `m` permutations can give, `1/(m + 1)`: no permutation reached the
+/// observed statistic, and p is then a bound, not an estimate.
+pub fn at_floor(p: f64, m: usize) -> bool {
+    m > 0 && (p * (m + 1) as f64 - 1.0).abs() < 1e-9
+}
+
+/// "p = 0.034", or "p ≤ 0.005" when no permutation reached the observed statistic ([`at_floor`]).
+pub fn p_phrase(p: f64, m: usize) -> String {
+    if at_floor(p, m) {
+        format!("p ≤ {}", p_text(p))
+    } else {
+        format!("p = {}", p_text(p))
+    }
+}
+
+/// The sentence that explains a p at its floor: none of the m permutations reached the observed statistic, and
+/// `1/(m + 1)` is the smallest p that m permutations can give.
+pub fn floor_note(m: usize) -> String {
+    format!(
+        "no permutation reached the observed value; 1/(m + 1) = {} is the smallest p that m = {m} permutations can \
+         give, so p is at most that",
+        p_text(1.0 / (m + 1) as f64)
+    )
+}
+
+/// A confidence interval in percent: "55.1–69.0 %".
+pub fn pct_range([lo, hi]: [f64; 2]) -> String {
+    format!("{:.1}–{:.1} %", 100.0 * lo, 100.0 * hi)
+}
+
 /// "C chosen in nested cross-validation: 0.1 in 12 fits, 1 in 488 fits".
 pub fn tuning_line(t: &super::Tuning) -> String {
     let parts: Vec<String> = t

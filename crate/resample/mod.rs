@@ -118,6 +118,18 @@ pub fn permute_labels(rng: &mut impl RngCore, y: &[usize], groups: Option<&[usiz
     out
 }
 
+/// Folds (of `folds`) whose training trials all belong to one group; 0 without groups. There, nested tuning cannot
+/// make grouped inner folds.
+pub fn single_group_folds(groups: Option<&[usize]>, fold: &[usize], folds: usize) -> usize {
+    let Some(g) = groups else { return 0 };
+    (0..folds)
+        .filter(|&f| {
+            let mut train = (0..fold.len()).filter(|&i| fold[i] != f).map(|i| g[i]);
+            train.next().is_some_and(|first| train.all(|x| x == first))
+        })
+        .count()
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

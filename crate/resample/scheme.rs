@@ -84,10 +84,19 @@ pub struct Scheme {
     /// Trials entering each repeat (after balancing).
     pub trials_per_repeat: usize,
     pub warnings: Vec<String>,
+    /// Every repeat would draw the same split (see [`Scheme::repeats_to_run`]).
+    pub identical_splits: bool,
     balance: bool,
     n_classes: usize,
     n_groups: usize,
 }
+
+/// What every report of a leave-one-out analysis says.
+pub const LEAVE_ONE_OUT_CAUTION: &str = "leave-one-out is biased below chance when the data carry no information: \
+     holding out one trial leaves its class one trial short in the training set, which tilts decoders that learn \
+     class proportions or an intercept against it (Kohavi, 1995), and its estimate varies more from dataset to \
+     dataset than that of k-fold cross-validation; repeated stratified k-fold (for example 5 folds and 100 repeats) \
+     is recommended instead (Varoquaux et al., 2017)";
 
 /// One repeat's draw: the trials used (indices into the data), their labels, and the fold of each.
 pub struct Draw {
@@ -202,6 +211,30 @@ impl Scheme {
                 }
             }
         }
+        if split == Split::LeaveOneOut {
+            warnings.push(LEAVE_ONE_OUT_CAUTION.to_string());
+        }
+        // Without random undersampling (balancing off, or classes already of equal size) leave-one-out and
+        // leave-one-group-out have nothing random left: every repeat, and every repeat of a shuffle, splits alike.
+        let identical_splits = matches!(split, Split::LeaveOneOut | Split::LeaveOneGroupOut)
+            && (!recipe.balance || counts.iter().all(|&c| c == smallest));
+        if identical_splits && (recipe.repeats > 1 || recipe.shuffle_repeats() > 1) {
+            warnings.push(format!(
+                "{} keeps every trial{} and splits them the same way in every repeat, so a single repeat was run \
+                 (instead of {}{}): more repeats would only repeat the same numbers",
+                match split {
+                    Split::LeaveOneOut => "leave-one-out".to_string(),
+                    _ => format!("holding out each level of '{}' in turn", t.group_column.unwrap_or("")),
+                },
+                if recipe.balance { " (the classes have equal sizes)" } else { "" },
+                recipe.repeats,
+                if recipe.shuffles > 0 {
+                    format!(", and one per shuffle instead of {}", recipe.shuffle_repeats())
+                } else {
+                    String::new()
+                }
+            ));
+        }
         if !recipe.balance && counts.iter().any(|&c| c != smallest) {
             warnings.push(
                 "classes are unbalanced and balancing is off: balanced accuracy is the headline score".to_string(),
@@ -217,6 +250,7 @@ impl Scheme {
             headline,
             trials_per_repeat,
             warnings,
+            identical_splits,
             balance: recipe.balance,
             n_classes,
             n_groups: t.group_names.len(),
@@ -275,10 +309,24 @@ impl Scheme {
             headline: Headline::Accuracy,
             trials_per_repeat: per_repeat,
             warnings: vec![super::pseudo::CAVEAT.to_string()],
+            identical_splits: false,
             balance: true,
             n_classes,
             n_groups: t.group_names.len(),
         })
+    }
+
+    /// The recipe as it will run: when every repeat would split alike ([`Scheme::identical_splits`]), one repeat,
+    /// and one per shuffle, since more would only repeat the same numbers.
+    pub fn repeats_to_run(&self, recipe: &Recipe) -> Recipe {
+        let mut recipe = recipe.clone();
+        if self.identical_splits {
+            recipe.repeats = 1;
+            if recipe.shuffles > 0 {
+                recipe.shuffle_repeats = Some(1);
+            }
+        }
+        recipe
     }
 
     /// Folds per repeat (for leave-one-out, the trial count; for leave-one-group-out, the group count).

@@ -2,19 +2,30 @@
 
 pub mod binomial;
 pub mod clusters;
+pub mod fdr;
+pub mod intervals;
+pub mod roc;
 
 use serde::{Deserialize, Serialize};
 
-/// Mean, SD and central 95 % range of a score across repeats.
+/// A score over cross-validation repeats: its mean, and the variability over repeats (SD and central 95 % range),
+/// which shows how much the estimate depends on how the trials were split, not how it would vary over new data;
+/// and, where an analysis computes one, a confidence interval ([`intervals`]).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Spread {
     pub mean: f64,
-    /// Sample SD (divisor n − 1); 0 for a single value.
+    /// Sample SD (divisor n − 1) over repeats; 0 for a single value.
     pub sd: f64,
-    /// 2.5th percentile.
+    /// 2.5th percentile over repeats.
     pub p2_5: f64,
-    /// 97.5th percentile.
+    /// 97.5th percentile over repeats.
     pub p97_5: f64,
+    /// 95 % confidence interval [low, high] of the mean.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ci: Option<[f64; 2]>,
+    /// How `ci` was computed.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ci_method: Option<String>,
 }
 
 impl Spread {
@@ -24,7 +35,27 @@ impl Spread {
             sd: sd(values),
             p2_5: percentile(values, 2.5),
             p97_5: percentile(values, 97.5),
+            ci: None,
+            ci_method: None,
         }
+    }
+
+    /// The spread of `values` with a confidence interval of their mean ([`intervals::score_interval`]).
+    pub fn with_interval(
+        values: &[f64],
+        fold_scores: &[f64],
+        test_over_train: f64,
+        n_test: f64,
+    ) -> Spread {
+        let mut s = Spread::of(values);
+        s.ci = Some(intervals::score_interval(
+            fold_scores,
+            test_over_train,
+            s.mean,
+            n_test,
+        ));
+        s.ci_method = Some(intervals::METHOD.to_string());
+        s
     }
 }
 

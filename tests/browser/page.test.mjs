@@ -39,7 +39,7 @@ test('example run matches the command line byte for byte', async () => {
   const stdout = cli(['decode', join(ROOT, 'samples', 'odours.csv'), '--recipe', recipeFile, '--quiet', '--json', cliJson]);
   assert.equal(json, readFileSync(cliJson, 'utf8'), 'page JSON and CLI JSON differ');
   assert.equal(headline.trim(), stdout.split('\n')[0].trim());
-  assert.match(headline, /'odour' decoded at \d+\.\d % ± \d+\.\d % accuracy .*chance 25\.0 %.*p = .* over 6 shuffles/);
+  assert.match(headline, /'odour' decoded at \d+\.\d % accuracy \(95 % CI \d+\.\d–\d+\.\d %; mean over \d+ cross-validation repeats; chance 25\.0 %\), p [=≤] .* over 6 shuffles/);
   const methods = await b.page.textContent('#methods');
   assert.match(methods, /SHA-256 [0-9a-f]{64}/);
   assert.deepEqual(b.errors, []);

@@ -26,6 +26,9 @@ pub struct NeuronOutcome {
     /// Mean and SD over the recipe's repeats.
     pub accuracy: MeanSd,
     pub balanced_accuracy: MeanSd,
+    /// A single neuron with shuffles asked: the shuffle p-value of its headline score.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub p_value: Option<f64>,
 }
 
 /// Mean and SD (n − 1) of a score.
@@ -55,6 +58,7 @@ pub fn sizes(p: usize) -> Vec<usize> {
 
 /// The neuron analyses of a recipe on a dataset.
 pub struct NeuronsPlan {
+    /// The recipe as it runs; its shuffles are run for each neuron alone (none for the subsets).
     pub recipe: Recipe,
     /// Random subsets drawn per size (the whole population is drawn once).
     pub draws: usize,
@@ -69,10 +73,16 @@ impl NeuronsPlan {
             return Err(Error::Recipe("draws per size must be at least 1".into()));
         }
         limits::check_count("draws per size", draws)?;
+        // Pairs of classes are an analysis of the trial table, not of its neurons.
         let mut recipe = recipe.clone();
-        recipe.shuffles = 0;
+        recipe.pairwise = false;
+        let recipe = &recipe;
+        let mut without_shuffles = recipe.clone();
+        without_shuffles.shuffles = 0;
         let p = data.n_features();
-        let plan = Plan::new(data, &recipe)?;
+        let plan = Plan::new(data, &without_shuffles)?;
+        // As the plan runs it (one repeat when every repeat would split alike), with the shuffles asked.
+        let recipe = plan.scheme.repeats_to_run(recipe);
         // Each task runs every repeat; each outcome keeps two means and two SDs.
         let tasks = (sizes(p).len() * draws + p) as f64;
         limits::check_work(
@@ -98,9 +108,14 @@ impl NeuronsPlan {
             .collect()
     }
 
-    /// Fits a task performs: repeats × folds.
-    pub fn fits_in(&self, _task: NeuronTask) -> usize {
-        self.recipe.repeats * self.plan.scheme.folds()
+    /// Fits a task performs: repeats × folds, and for a single neuron its shuffles' repeats × folds.
+    pub fn fits_in(&self, task: NeuronTask) -> usize {
+        let folds = self.plan.scheme.folds();
+        let shuffles = match task {
+            NeuronTask::Single { .. } => self.recipe.shuffles * self.recipe.shuffle_repeats(),
+            NeuronTask::Subset { .. } => 0,
+        };
+        (self.recipe.repeats + shuffles) * folds
     }
 
     pub fn run(&self, task: NeuronTask) -> NeuronOutcome {
@@ -119,10 +134,22 @@ impl NeuronsPlan {
             NeuronTask::Single { neuron } => vec![neuron],
         };
         let sub = self.plan.data.with_features(&cols);
-        let plan = Plan::new(sub, &self.recipe).expect("a subset of a valid dataset is valid");
-        let outcomes: Vec<_> = (0..self.recipe.repeats)
+        // Shuffles only for a neuron alone: its p-value, controlled across neurons by the report.
+        let recipe = match task {
+            NeuronTask::Single { .. } => self.recipe.clone(),
+            NeuronTask::Subset { .. } => self.plan.recipe.clone(),
+        };
+        let plan = Plan::new(sub, &recipe).expect("a subset of a valid dataset is valid");
+        let outcomes: Vec<_> = (0..plan.recipe.repeats)
             .map(|i| plan.run(Task::Repeat(i)))
             .collect();
+        let p_value = (plan.recipe.shuffles > 0).then(|| {
+            let observed: Vec<f64> = outcomes.iter().map(|o| plan.headline_score(o)).collect();
+            let null: Vec<f64> = (0..plan.recipe.shuffles)
+                .map(|j| plan.headline_score(&plan.run(Task::Shuffle(j))))
+                .collect();
+            stats::permutation_p(stats::mean(&observed), &null)
+        });
         NeuronOutcome {
             task,
             accuracy: MeanSd::of(&outcomes.iter().map(|o| o.accuracy).collect::<Vec<_>>()),
@@ -132,6 +159,7 @@ impl NeuronsPlan {
                     .map(|o| o.balanced_accuracy)
                     .collect::<Vec<_>>(),
             ),
+            p_value,
         }
     }
 }

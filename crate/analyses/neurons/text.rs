@@ -2,7 +2,7 @@
 
 use super::plan::MeanSd;
 use super::report::NeuronsReport;
-use crate::report::text::pct;
+use crate::report::text::{p_phrase, p_text, pct};
 use std::fmt::Write;
 
 /// The tables printed by the CLI.
@@ -39,10 +39,42 @@ pub fn render(r: &NeuronsReport) -> String {
         )
         .unwrap();
     }
-    writeln!(out, "\nEach neuron alone ({score}, best first):").unwrap();
+    let shuffles = r.recipe.shuffles;
+    writeln!(
+        out,
+        "\nEach neuron alone ({score}, best first; mean ± SD over cross-validation repeats, the SD being the \
+         variability from how trials were split{}):",
+        match r.fdr {
+            Some(q) => format!(
+                "; p from {shuffles} shuffles of this neuron alone, q adjusted across neurons (Benjamini & \
+                 Hochberg, 1995), * = discovery at a false-discovery rate of {q}"
+            ),
+            None => String::new(),
+        }
+    )
+    .unwrap();
     for s in &r.single {
         let m = lead(&s.accuracy, &s.balanced_accuracy);
-        writeln!(out, "  {:<24} {:>8} ± {}", s.neuron, pct(m.mean), pct(m.sd)).unwrap();
+        write!(
+            out,
+            "  {:<24} {:>8} ± {:<8}",
+            s.neuron,
+            pct(m.mean),
+            pct(m.sd)
+        )
+        .unwrap();
+        if let (Some(p), Some(q)) = (s.p_value, s.q_value) {
+            write!(
+                out,
+                " {:>9} q = {:<7}{}",
+                p_phrase(p, shuffles),
+                p_text(q),
+                if s.discovery == Some(true) { " *" } else { "" }
+            )
+            .unwrap();
+        }
+        out.truncate(out.trim_end().len());
+        out.push('\n');
     }
     if let (Some(outputs), Some(weights), Some(patterns)) = (&r.outputs, &r.weights, &r.patterns) {
         writeln!(

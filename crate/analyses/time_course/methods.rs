@@ -1,10 +1,11 @@
 //! The methods paragraph of a time course.
 
-use super::report::{TimeReport, ONSET_CAVEAT};
+use super::report::{generalization_caveat, TimeReport, ONSET_CAVEAT};
 use super::text::span;
+use crate::recipe::GeneralizationNull;
 use crate::recipe::TimeInput;
 use crate::report::methods::{class_counts, fitting, resampling};
-use crate::report::text::{pct, seconds as s};
+use crate::report::text::{at_floor, floor_note, p_text, pct, seconds as s};
 
 fn score_name(r: &TimeReport) -> &'static str {
     r.design.headline.name()
@@ -91,7 +92,7 @@ pub fn paragraph(r: &TimeReport) -> String {
         "{} The same balancing and folds were applied at every window.",
         resampling(rc, &r.design, r.classes.len(), group, r.input.groups.len())
     ));
-    out.push(fitting(rc).replace(
+    out.push(fitting(rc, r.input.neurons.len()).replace(
         "Within each training fold,",
         "Within each training fold and window,",
     ));
@@ -102,14 +103,13 @@ pub fn paragraph(r: &TimeReport) -> String {
                 .to_string(),
         );
     }
+    // Inference over time rests on the cluster test below; a per-window binomial threshold would be an
+    // uncorrected test at every window, so it is not given here.
     out.push(format!(
-        "The {} of pooled test predictions was averaged over repeats at each window; chance was {} (binomial \
-         threshold {} for {} test trials at α = {}; Combrisson & Jerbi, 2015).",
+        "The {} of pooled test predictions was averaged over cross-validation repeats at each window; chance was \
+         {}.",
         score_name(r),
-        pct(r.chance.level),
-        pct(r.chance.threshold),
-        r.chance.test_trials,
-        r.chance.alpha
+        pct(r.chance.level)
     ));
     if r.shuffle.count > 0 {
         let alpha = rc.time.as_ref().map_or(0.05, |t| t.alpha);
@@ -134,11 +134,26 @@ pub fn paragraph(r: &TimeReport) -> String {
             },
             r.shuffle.cluster_percentile
         ));
+        if let Some(g) = &r.generalization {
+            out.push(match g.null_method {
+                GeneralizationNull::TrainingLabels => format!(
+                    "For the generalization matrix, each of the {} permutations instead permuted only the training \
+                     trials' labels, within each training fold (balancing and folds drawn from the observed labels, \
+                     one permutation per fold shared by every window), and tested on the held-out trials with \
+                     their observed labels, so that a cell's null is a decoder trained without information at its \
+                     training window meeting the observed data at its testing window.",
+                    r.shuffle.count
+                ),
+                GeneralizationNull::AllLabels => "The generalization matrix used the same permutations of every \
+                     label as the curve."
+                    .to_string(),
+            });
+        }
         let sig: Vec<String> = r
             .clusters
             .iter()
             .filter(|c| c.significant)
-            .map(span)
+            .map(|c| span(c, r.shuffle.count))
             .collect();
         if sig.is_empty() {
             out.push("No cluster was significant.".into());
@@ -154,6 +169,22 @@ pub fn paragraph(r: &TimeReport) -> String {
                 s(o.time)
             ));
         }
+        if r.clusters
+            .iter()
+            .any(|c| at_floor(c.p_value, r.shuffle.count))
+        {
+            out.push(format!(
+                "A cluster p written as p ≤ {}: {}.",
+                p_text(1.0 / (r.shuffle.count + 1) as f64),
+                floor_note(r.shuffle.count)
+            ));
+        }
+    }
+    if let Some(g) = &r.generalization {
+        out.push(format!(
+            "Caution: {}.",
+            generalization_caveat(g.null_method)
+        ));
     }
     out.push(format!(
         "Resampling used ChaCha20 random streams derived from seed {} and each task's index, so the analysis is \

@@ -12,12 +12,15 @@
 
 use crate::analyses::resolve_scheme;
 use crate::data::time::TimeDataset;
-use crate::decoders::{self, check_counts, fit_folds, Decoder, FittedPipeline, FoldSet};
+use crate::decoders::{
+    self, check_counts, fit_folds_with, Decoder, FittedPipeline, FoldSet, Nesting,
+};
 use crate::error::{Error, Result};
-use crate::recipe::{limits, Recipe, Setting, TimeInput, TimeSettings};
+use crate::recipe::{limits, GeneralizationNull, Recipe, Setting, TimeInput, TimeSettings};
 use crate::resample::score::accuracies;
-use crate::resample::{permute_labels, Draw, Scheme, Task};
+use crate::resample::{permute_labels, single_group_folds, Draw, Scheme, Task};
 use crate::rng::{task_rng, Stream};
+use rand_core::RngCore;
 use serde::{Deserialize, Serialize};
 
 /// What a task produced at every window. For a shuffle, scores are means over its repeats.
@@ -37,6 +40,14 @@ pub struct TimeOutcome {
     /// With tuning, the setting chosen in each fit of an observed repeat (window by window, folds in order).
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub chosen: Vec<Setting>,
+    /// With tuning and groups: fits whose training fold held a single group, so that its inner folds could not be
+    /// grouped.
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub ungrouped_inner: u32,
+}
+
+fn is_zero(v: &u32) -> bool {
+    *v == 0
 }
 
 /// A time-resolved recipe checked against a recording (which it owns, like the trial-table plan).
@@ -83,13 +94,23 @@ impl TimePlan {
         let mut warnings = data.warnings.clone();
         warnings.append(&mut scheme.warnings);
         warnings.extend(counts_note);
+        warnings.extend(decoders::features_note(recipe.classifier, data.n_neurons()));
         scheme.warnings = warnings;
+        // The recipe as it runs: the generalization matrix's null is written out when the matrix is made, so that
+        // a saved recipe keeps its meaning whatever the default.
+        let decoder = decoders::build(recipe.classifier, recipe.c, recipe.tune);
+        let mut recipe = scheme.repeats_to_run(recipe);
+        let mut settings = settings;
+        if settings.generalize {
+            settings.generalization_null = Some(settings.generalization_null());
+        }
+        recipe.time = Some(settings.clone());
         Ok(TimePlan {
             data,
-            recipe: recipe.clone(),
+            recipe,
             settings,
             scheme,
-            decoder: decoders::build(recipe.classifier, recipe.c, recipe.tune),
+            decoder,
             count_scale,
         })
     }
@@ -103,13 +124,24 @@ impl TimePlan {
         Task::all(self.recipe.repeats, self.recipe.shuffles)
     }
 
-    /// Fits one task performs (for progress): folds × windows, times the repeats of a shuffle.
+    /// Fits one task performs (for progress): folds × windows, times the repeats of a shuffle (twice with the
+    /// generalization matrix's training-label null, which fits its own decoders).
     pub fn fits_in(&self, task: Task) -> usize {
         let per_repeat = self.scheme.folds() * self.n_windows();
         match task {
             Task::Repeat(_) => per_repeat,
+            Task::Shuffle(_) if self.training_label_null() => {
+                2 * per_repeat * self.recipe.shuffle_repeats()
+            }
             Task::Shuffle(_) => per_repeat * self.recipe.shuffle_repeats(),
         }
+    }
+
+    /// Whether the generalization matrix's null permutes only the training labels (and so is run apart from the
+    /// curve's).
+    fn training_label_null(&self) -> bool {
+        self.settings.generalize
+            && self.settings.generalization_null() == GeneralizationNull::TrainingLabels
     }
 
     pub fn run(&self, task: Task) -> TimeOutcome {
@@ -119,7 +151,8 @@ impl TimePlan {
             Task::Repeat(i) => {
                 let mut rng = task_rng(seed, Stream::Repeat, i as u64, 0);
                 let draw = self.scheme.draw(&self.data.y, groups, &mut rng);
-                let mut out = self.one_repeat(&draw);
+                let mut out =
+                    self.one_repeat(&draw, rng.next_u64(), self.settings.generalize, None);
                 out.task = task;
                 out
             }
@@ -127,11 +160,21 @@ impl TimePlan {
                 let mut rng = task_rng(seed, Stream::Permutation, j as u64, 0);
                 let labels = permute_labels(&mut rng, &self.data.y, groups);
                 let r = self.recipe.shuffle_repeats();
+                let training_null = self.training_label_null();
                 let mut total: Option<TimeOutcome> = None;
                 for i in 0..r {
                     let mut rng = task_rng(seed, Stream::ShuffleRepeat, j as u64, i as u64);
                     let draw = self.scheme.draw(&labels, groups, &mut rng);
-                    let o = self.one_repeat(&draw);
+                    let matrix = self.settings.generalize && !training_null;
+                    let mut o = self.one_repeat(&draw, rng.next_u64(), matrix, None);
+                    if training_null {
+                        let g = self.training_label_repeat(j, i);
+                        o.generalization = g.generalization;
+                        o.fits += g.fits;
+                        o.capped_fits += g.capped_fits;
+                        o.single_class_fits += g.single_class_fits;
+                        o.ungrouped_inner += g.ungrouped_inner;
+                    }
                     match &mut total {
                         None => total = Some(o),
                         Some(t) => {
@@ -141,6 +184,7 @@ impl TimePlan {
                             t.fits += o.fits;
                             t.capped_fits += o.capped_fits;
                             t.single_class_fits += o.single_class_fits;
+                            t.ungrouped_inner += o.ungrouped_inner;
                         }
                     }
                 }
@@ -160,6 +204,36 @@ impl TimePlan {
         }
     }
 
+    /// One repeat of a shuffle of the generalization matrix's training-label null: balancing and folds drawn from
+    /// the observed labels (stream `TrainingShuffle` (j, i)), then one permutation of the labels within each fold
+    /// (within each group when the recipe has groups, whose trials never straddle folds) from the same stream.
+    /// Every fold's decoder at every window is fitted on the permuted labels of its training trials, and tested
+    /// against the observed labels of its test trials.
+    ///
+    /// Why this is the null of "what was learnt at the training window generalizes": when a training window
+    /// carries no information, its trials' activity is independent of their labels, so a decoder fitted on
+    /// permuted labels is distributed as the observed one, while the test trials it meets, and their information
+    /// at the testing window, are the observed ones; a chance alignment of a decoder trained on noise with the
+    /// information at the testing window is thus in the null too. One permutation is shared by the folds (as the
+    /// observed labels are), so the fold decoders' chance alignments are as correlated as the observed ones; it
+    /// never moves a label out of its fold, so every training fold keeps its observed class counts.
+    fn training_label_repeat(&self, j: usize, i: usize) -> TimeOutcome {
+        let groups = self.data.groups.as_deref();
+        let mut rng = task_rng(
+            self.recipe.seed,
+            Stream::TrainingShuffle,
+            j as u64,
+            i as u64,
+        );
+        let draw = self.scheme.draw(&self.data.y, groups, &mut rng);
+        let blocks: Vec<usize> = match groups {
+            Some(g) => draw.used.iter().map(|&t| g[t]).collect(),
+            None => draw.fold.clone(),
+        };
+        let permuted = permute_labels(&mut rng, &draw.y, Some(&blocks));
+        self.one_repeat(&draw, rng.next_u64(), true, Some(&permuted))
+    }
+
     /// The headline score at each window of an outcome.
     pub fn headline_scores(&self, o: &TimeOutcome) -> Vec<f64> {
         o.accuracy
@@ -169,12 +243,29 @@ impl TimePlan {
             .collect()
     }
 
-    /// Cross-validate one draw at every window (and, with generalization, test every window's decoder at every
-    /// window). All folds of a window are fitted together, so a decoder with a fold shortcut can use it.
-    fn one_repeat(&self, draw: &Draw) -> TimeOutcome {
+    /// Cross-validate one draw at every window (and, with `matrix`, test every window's decoder at every window).
+    /// All folds of a window are fitted together, so a decoder with a fold shortcut can use it. Decoders are fitted
+    /// on `train_y` when given (the training-label null) and on `draw.y` otherwise; tests always score against
+    /// `draw.y`. Nested tuning's inner folds come from the stream keyed by `inner_key` (the same at every window).
+    fn one_repeat(
+        &self,
+        draw: &Draw,
+        inner_key: u64,
+        matrix: bool,
+        train_y: Option<&[usize]>,
+    ) -> TimeOutcome {
         let data = &self.data;
+        let groups: Option<Vec<usize>> = data
+            .groups
+            .as_ref()
+            .map(|g| draw.used.iter().map(|&i| g[i]).collect());
+        let nesting = Nesting {
+            groups: groups.as_deref(),
+            seed: self.recipe.seed,
+            key: inner_key,
+        };
         let (nw, k, p) = (self.n_windows(), data.classes.len(), data.n_neurons());
-        let generalize = self.settings.generalize;
+        let generalize = matrix;
         let gather = |w: usize, positions: &[usize]| {
             let x = data.window(w);
             let mut out = Vec::with_capacity(positions.len() * p);
@@ -196,12 +287,12 @@ impl TimePlan {
                 let set = FoldSet {
                     x: &x,
                     p,
-                    y: &draw.y,
+                    y: train_y.unwrap_or(&draw.y),
                     fold: &draw.fold,
                     folds: draw.folds,
                     n_classes: k,
                 };
-                fit_folds(self.decoder.as_ref(), &set)
+                fit_folds_with(self.decoder.as_ref(), &set, &nesting)
             })
             .collect();
         let fitted = models.iter().flatten().flatten();
@@ -267,6 +358,11 @@ impl TimePlan {
             capped_fits: capped,
             single_class_fits: single,
             chosen,
+            ungrouped_inner: if self.recipe.tune {
+                (single_group_folds(groups.as_deref(), &draw.fold, draw.folds) * nw) as u32
+            } else {
+                0
+            },
         }
     }
 }

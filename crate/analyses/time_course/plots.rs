@@ -8,7 +8,7 @@ use super::report::TimeReport;
 use crate::report::svg::{
     esc, open, percent_ticks, tick_step, BAR, BOTTOM, H, INK, LEFT, NULL_BAR, RIGHT, TOP, W,
 };
-use crate::report::text::{p_text, seconds};
+use crate::report::text::{p_phrase, seconds};
 use crate::resample::Headline;
 use std::fmt::Write;
 
@@ -16,7 +16,9 @@ fn score_name(r: &TimeReport) -> &'static str {
     r.design.headline.name()
 }
 
-/// Mean score ± SD over time, the null's 95th percentile, chance, and the significant clusters.
+/// Mean score over time with its variability over cross-validation repeats (± SD, a band that shows how much the
+/// score depends on the split, not a confidence interval), the null's 95th percentile, chance, and the
+/// significant clusters.
 pub fn curve(r: &TimeReport) -> String {
     let times: Vec<f64> = r.windows.iter().map(|w| w.time).collect();
     let mean = r.curve();
@@ -131,11 +133,11 @@ pub fn curve(r: &TimeReport) -> String {
         let (a, b) = (x(c.start), x(c.end).max(x(c.start) + 3.0));
         write!(
             svg,
-            r#"<rect x="{a:.2}" y="{bar_y:.2}" width="{:.2}" height="6" fill="{INK}"><title>cluster {} s to {} s, p = {}</title></rect>"#,
+            r#"<rect x="{a:.2}" y="{bar_y:.2}" width="{:.2}" height="6" fill="{INK}"><title>cluster {} s to {} s, {}</title></rect>"#,
             b - a,
             seconds(c.start),
             seconds(c.end),
-            p_text(c.p_value)
+            p_phrase(c.p_value, r.shuffle.count)
         )
         .unwrap();
     }
@@ -172,8 +174,8 @@ pub fn curve(r: &TimeReport) -> String {
     // Legend in one row under the axis label, in words.
     let ly = height - 12.0;
     let legend = [
-        (BAR, "", "mean ± SD", 110.0),
-        (NULL_BAR, "6 3", "null 95th percentile", 160.0),
+        (BAR, "", "mean ± SD over CV repeats", 185.0),
+        (NULL_BAR, "6 3", "null 95th pct", 115.0),
         (INK, "2 3", "chance", 80.0),
     ];
     let mut lx = LEFT;

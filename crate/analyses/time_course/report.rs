@@ -6,7 +6,9 @@
 //! * `input` {`kind` ("binned", "events" or "nwb"), `files` [{`file`, `sha256`}], `trials`, `neurons`, `label_column`,
 //!   `group_column`, `groups`, `spikes_total`, `spikes_outside`}
 //! * `windows`: per window {`index`, `start`, `end`, `time` (centre, s), `accuracy` and `balanced_accuracy`
-//!   (each `mean`, `sd`, `p2_5`, `p97_5` over repeats), `null_mean`, `null_p95` (null when no shuffles),
+//!   (each `mean` over cross-validation repeats, and `sd`, `p2_5`, `p97_5`: its variability over those repeats,
+//!   which reflects how trials were split, not a confidence interval), `null_mean`, `null_p95` (null when no
+//!   shuffles),
 //!   `significant` (inside a significant cluster)}
 //! * `repeats`: per observed repeat {`index`, `accuracy`, `balanced_accuracy`} with one value per window
 //! * `shuffle` {`count`, `repeats_each`, `within_groups`, `cluster_percentile`, `null` (per shuffle, the headline
@@ -14,22 +16,46 @@
 //! * `clusters`: per cluster of the curve {`start`, `end` (centres of its first and last window, s),
 //!   `window_start`, `window_end` (edges, s), `first_window`, `last_window`, `mass`, `p_value`, `significant`}
 //! * `onset`: {`time`, `window`, `window_start`} of the first window of the earliest significant cluster, or null
-//! * `generalization` (null unless asked): {`scores` (rows = training window, columns = testing window, headline
-//!   mean over repeats), `null_p95` (same shape, null when no shuffles), `null_max_mass`, `clusters` [{`train_start`,
-//!   `train_end`, `test_start`, `test_end` (window centres, s), `cells`, `mass`, `p_value`, `significant`}],
-//!   `significant` (same shape, cells inside a significant cluster)}
+//! * `generalization` (null unless asked): {`null_method` ("training-labels": each shuffle permuted only the
+//!   training trials' labels, within each training fold, and kept the test labels; "all-labels": each shuffle
+//!   permuted every label, the curve's own null), `scores` (rows = training window, columns = testing window,
+//!   headline mean over repeats), `null_p95` (same shape, null when no shuffles), `null_max_mass`, `clusters`
+//!   [{`train_start`, `train_end`, `test_start`, `test_end` (window centres, s), `cells`, `mass`, `p_value`,
+//!   `significant`}], `significant` (same shape, cells inside a significant cluster)}; with the matrix, `warnings`
+//!   carries the caveat on reading its cells for the null used
+//! * `shuffle.null` is the curve's null (every label permuted) in every case
 
 use super::plan::{TimeOutcome, TimePlan};
 use crate::data::time::TimeDataset;
 use crate::data::SourceFile;
-use crate::recipe::{Recipe, TimeInput};
-use crate::report::{by_task, Chance, Design, Fits, Software, Tuning};
+use crate::recipe::{GeneralizationNull, Recipe, TimeInput};
+use crate::report::{by_task, ungrouped_inner_warning, Chance, Design, Fits, Software, Tuning};
 use crate::resample::Headline;
 use crate::stats::clusters::{self, ClusterTest, CLUSTER_PERCENTILE};
 use crate::stats::{self, Spread};
 use serde::{Deserialize, Serialize};
 
 pub const TIME_SCHEMA: &str = "popdecode-timecourse/1";
+
+/// What every temporal generalization result says about its cells, for the null it was tested against.
+pub fn generalization_caveat(null: GeneralizationNull) -> &'static str {
+    match null {
+        GeneralizationNull::TrainingLabels => {
+            "temporal generalization: the matrix's null permuted only the training trials' labels (within each \
+             training fold) and kept the test trials' labels, so a cell is significant only when what the decoder \
+             learnt at its training window generalizes to its testing window; still, a cluster shows that \
+             information generalizes somewhere inside it, not at each of its cells (Sassenhagen & Draschkow, \
+             2019), so read the edges of off-diagonal clusters as approximate"
+        }
+        GeneralizationNull::AllLabels => {
+            "temporal generalization with the all-labels null: the permutations removed information from every \
+             window at once, so where the testing window carries information, a decoder trained at a window \
+             without any can score away from chance by a chance alignment with it, and cells trained before any \
+             information can be significant; read off-diagonal cells with care (the training-labels null, the \
+             default, permutes only the training labels and does not have this problem)"
+        }
+    }
+}
 
 /// What every analysis of a recording says about onsets found by a cluster test.
 pub const ONSET_CAVEAT: &str = "a cluster test shows that information is present somewhere in a cluster; it does \
@@ -122,6 +148,9 @@ pub struct Onset {
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Generalization {
+    /// How the matrix's permutations were made.
+    #[serde(default = "training_labels")]
+    pub null_method: GeneralizationNull,
     pub scores: Vec<Vec<f64>>,
     pub null_p95: Option<Vec<Vec<f64>>>,
     pub null_max_mass: Vec<f64>,
@@ -139,6 +168,10 @@ pub struct GridCluster {
     pub mass: f64,
     pub p_value: f64,
     pub significant: bool,
+}
+
+fn training_labels() -> GeneralizationNull {
+    GeneralizationNull::TrainingLabels
 }
 
 fn rows(flat: &[f64], n: usize) -> Vec<Vec<f64>> {
@@ -222,6 +255,13 @@ impl TimeReport {
                 .map(|o| (o.fits, o.capped_fits, o.single_class_fits)),
         );
         let mut warnings = fits.with_warnings(&plan.scheme.warnings);
+        if plan.settings.generalize {
+            warnings.push(generalization_caveat(plan.settings.generalization_null()).to_string());
+        }
+        let ungrouped: u64 = outcomes.iter().map(|o| u64::from(o.ungrouped_inner)).sum();
+        if ungrouped > 0 {
+            warnings.push(ungrouped_inner_warning(ungrouped, fits.total));
+        }
         if has_null && plan.recipe.shuffles < 100 {
             warnings.push(format!(
                 "only {} shuffles: the cluster p-values cannot go below {:.3}, and the per-window 95th percentiles \
@@ -353,6 +393,7 @@ fn generalization(
         })
         .collect();
     Generalization {
+        null_method: plan.settings.generalization_null(),
         scores: rows(&mean, nw),
         null_p95: test.as_ref().map(|t| rows(&t.thresholds, nw)),
         null_max_mass: test.map(|t| t.null_max_mass).unwrap_or_default(),

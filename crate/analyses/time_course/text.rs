@@ -1,7 +1,8 @@
 //! A time course in words and tables: the headline sentence, a per-window table, and the curve and matrix as CSV.
 
 use super::report::{TimeCluster, TimeReport, ONSET_CAVEAT};
-use crate::report::text::{p_text, pct, seconds as s, tuning_line};
+use crate::recipe::GeneralizationNull;
+use crate::report::text::{p_phrase, pct, seconds as s, tuning_line};
 use crate::resample::Headline;
 use std::fmt::Write;
 
@@ -9,13 +10,14 @@ fn score_name(r: &TimeReport) -> &'static str {
     r.design.headline.name()
 }
 
-/// "0.2 to 0.6 s (p = 0.010)": a cluster by its first and last window centres.
-pub(super) fn span(c: &TimeCluster) -> String {
+/// "0.2 to 0.6 s (p = 0.010)": a cluster by its first and last window centres, its p written as a bound when no
+/// one of the `m` shuffles reached it.
+pub(super) fn span(c: &TimeCluster, m: usize) -> String {
     format!(
-        "{} to {} s (p = {})",
+        "{} to {} s ({})",
         s(c.start),
         s(c.end),
-        p_text(c.p_value)
+        p_phrase(c.p_value, m)
     )
 }
 
@@ -24,7 +26,7 @@ pub fn headline_sentence(r: &TimeReport) -> String {
     let curve = r.curve();
     let peak = (0..curve.len()).fold(0, |b, i| if curve[i] > curve[b] { i } else { b });
     let mut out = format!(
-        "'{}' decoded at up to {} {} at {} s (mean over {} repeats; chance {})",
+        "'{}' decoded at up to {} {} at {} s (mean over {} cross-validation repeats; chance {})",
         r.input.label_column,
         pct(curve[peak]),
         score_name(r),
@@ -43,7 +45,7 @@ pub fn headline_sentence(r: &TimeReport) -> String {
         )
         .unwrap();
     } else {
-        let spans: Vec<String> = sig.iter().map(|c| span(c)).collect();
+        let spans: Vec<String> = sig.iter().map(|c| span(c, r.shuffle.count)).collect();
         write!(
             out,
             "; significant from {} ({} shuffles, cluster-corrected).",
@@ -73,11 +75,11 @@ pub fn render(r: &TimeReport) -> String {
         for c in &r.clusters {
             writeln!(
                 out,
-                "  {:>8} to {:>8} s   mass {:.3}   p = {}{}",
+                "  {:>8} to {:>8} s   mass {:.3}   {}{}",
                 s(c.start),
                 s(c.end),
                 c.mass,
-                p_text(c.p_value),
+                p_phrase(c.p_value, r.shuffle.count),
                 if c.significant { "   significant" } else { "" }
             )
             .unwrap();
@@ -88,21 +90,25 @@ pub fn render(r: &TimeReport) -> String {
         let sig = g.clusters.iter().filter(|c| c.significant).count();
         writeln!(
             out,
-            "temporal generalization: {} cluster{} in the train × test matrix, {sig} significant",
+            "temporal generalization: {} cluster{} in the train × test matrix, {sig} significant (null: {})",
             g.clusters.len(),
-            if g.clusters.len() == 1 { "" } else { "s" }
+            if g.clusters.len() == 1 { "" } else { "s" },
+            match g.null_method {
+                GeneralizationNull::TrainingLabels => "training labels permuted, test labels kept",
+                GeneralizationNull::AllLabels => "every label permuted",
+            }
         )
         .unwrap();
         for c in g.clusters.iter().filter(|c| c.significant) {
             writeln!(
                 out,
-                "  trained {} to {} s, tested {} to {} s, {} cells, p = {}",
+                "  trained {} to {} s, tested {} to {} s, {} cells, {}",
                 s(c.train_start),
                 s(c.train_end),
                 s(c.test_start),
                 s(c.test_end),
                 c.cells,
-                p_text(c.p_value)
+                p_phrase(c.p_value, r.shuffle.count)
             )
             .unwrap();
         }
@@ -110,7 +116,8 @@ pub fn render(r: &TimeReport) -> String {
     }
     writeln!(
         out,
-        "{:>9} {:>9} {:>8} {:>10} {:>5}",
+        "{:>9} {:>9} {:>8} {:>10} {:>5}   (mean and SD over cross-validation repeats: the SD is the variability \
+         from how trials were split, not a confidence interval)",
         "time (s)",
         score_name(r).split(' ').next_back().unwrap_or("score"),
         "SD",

@@ -17,27 +17,26 @@ pub mod predict;
 pub mod report;
 pub mod text;
 
-pub use plan::{Outcome, Plan};
+pub use plan::{Outcome, Plan, TableTask};
 
 use super::{Analysis, Finished};
 use crate::recipe::Recipe;
-use crate::resample::Task;
 
 // The plan's own methods do the work (`Plan::tasks` and the others resolve to them, not to this impl), so that the
 // plan knows nothing of the report built from it.
 impl Analysis for Plan {
-    type Task = Task;
+    type Task = TableTask;
     type Outcome = Outcome;
 
-    fn tasks(&self) -> Vec<Task> {
+    fn tasks(&self) -> Vec<TableTask> {
         Plan::tasks(self)
     }
 
-    fn fits_in(&self, task: Task) -> usize {
+    fn fits_in(&self, task: TableTask) -> usize {
         Plan::fits_in(self, task)
     }
 
-    fn run(&self, task: Task) -> Outcome {
+    fn run(&self, task: TableTask) -> Outcome {
         Plan::run(self, task)
     }
 
@@ -67,6 +66,7 @@ impl Analysis for Plan {
                 ("scores.svg", Some(plots::score_distribution(&report))),
                 ("confusion.svg", Some(plots::confusion(&report))),
                 ("null.svg", plots::null_distribution(&report)),
+                ("pairwise.svg", plots::pairwise(&report)),
             ]
             .into_iter()
             .filter_map(|(name, contents)| contents.map(|c| (name, c)))

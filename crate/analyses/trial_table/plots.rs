@@ -2,11 +2,12 @@
 
 use super::report::Report;
 use crate::report::svg::{esc, histogram, open, Marker, BAR, INK, NULL_BAR, TOP};
-use crate::report::text::{p_text, pct};
+use crate::report::text::{p_phrase, pct, pct_range};
 use crate::resample::Headline;
 use std::fmt::Write;
 
-/// Distribution of the headline score over repeats, with chance and the binomial threshold.
+/// Distribution of the headline score over cross-validation repeats (its variability from the splits, not a
+/// confidence interval), with chance, the binomial threshold, and the mean with its confidence interval.
 pub fn score_distribution(r: &Report) -> String {
     let values: Vec<f64> = r
         .repeats
@@ -38,14 +39,24 @@ pub fn score_distribution(r: &Report) -> String {
         },
         Marker {
             at: r.headline().mean,
-            label: format!("mean {}", pct(r.headline().mean)),
+            label: match r.headline().ci {
+                Some(ci) => format!(
+                    "mean {} (95 % CI {})",
+                    pct(r.headline().mean),
+                    pct_range(ci)
+                ),
+                None => format!("mean {}", pct(r.headline().mean)),
+            },
             dash: "none",
             colour: "#1d4e89",
         },
     ];
     let name = r.design.headline.name();
     histogram(
-        &format!("Decoding {name} over {} repeats", values.len()),
+        &format!(
+            "Variability of {name} over {} cross-validation repeats",
+            values.len()
+        ),
         name,
         &values,
         &markers,
@@ -59,7 +70,11 @@ pub fn null_distribution(r: &Report) -> Option<String> {
     let markers = [
         Marker {
             at: r.shuffle.observed,
-            label: format!("observed {} (p = {})", pct(r.shuffle.observed), p_text(p)),
+            label: format!(
+                "observed {} ({})",
+                pct(r.shuffle.observed),
+                p_phrase(p, r.shuffle.count)
+            ),
             dash: "none",
             colour: "#1d4e89",
         },
@@ -164,6 +179,101 @@ pub fn confusion(r: &Report) -> String {
     )
     .unwrap();
     svg
+}
+
+/// Pairwise decoding as a heatmap: the headline score of every pair of classes decoded on its own (symmetric,
+/// diagonal empty), light-to-dark blue from chance (50 %) to 100 %, the percentage in every cell, and an asterisk
+/// on pairs that are discoveries at the false-discovery rate across pairs. `None` without pairwise decoding.
+pub fn pairwise(r: &Report) -> Option<String> {
+    let pw = r.pairwise.as_ref()?;
+    let k = r.classes.len();
+    let discovery = |a: usize, b: usize| {
+        pw.pairs.iter().any(|p| {
+            p.discovery == Some(true)
+                && ((p.classes[0] == r.classes[a] && p.classes[1] == r.classes[b])
+                    || (p.classes[0] == r.classes[b] && p.classes[1] == r.classes[a]))
+        })
+    };
+    let cell = (360.0 / k as f64).clamp(28.0, 72.0);
+    let label_w = 130.0;
+    let (w, h) = (
+        (label_w + cell * k as f64 + 30.0).max(460.0),
+        TOP + 30.0 + cell * k as f64 + 58.0,
+    );
+    let (x0, y0) = (label_w, TOP + 30.0);
+    let mut svg = String::new();
+    open(
+        &mut svg,
+        &format!(
+            "Pairwise decoding ({} of each pair, chance 50 %)",
+            r.design.headline.name()
+        ),
+        w,
+        h,
+    );
+    let short = |s: &str| {
+        if s.chars().count() > 16 {
+            format!("{}…", s.chars().take(15).collect::<String>())
+        } else {
+            s.to_string()
+        }
+    };
+    for (i, name) in r.classes.iter().enumerate() {
+        let c = i as f64 * cell + cell / 2.0;
+        write!(
+            svg,
+            r#"<text x="{lx}" y="{ly:.1}" text-anchor="end" fill="{INK}">{n}</text><text x="{tx:.1}" y="{ty}" text-anchor="middle" fill="{INK}">{n}</text>"#,
+            lx = x0 - 6.0,
+            ly = y0 + c + 4.0,
+            tx = x0 + c,
+            ty = y0 - 8.0,
+            n = esc(&short(name))
+        )
+        .unwrap();
+    }
+    for a in 0..k {
+        for b in 0..k {
+            let (x, y) = (x0 + b as f64 * cell, y0 + a as f64 * cell);
+            match pw.matrix[a][b] {
+                None => write!(
+                    svg,
+                    r##"<rect x="{x:.1}" y="{y:.1}" width="{cell:.1}" height="{cell:.1}" fill="#ffffff" stroke="#d0d4d9"/>"##
+                )
+                .unwrap(),
+                Some(v) => {
+                    let (fill, ink) = blue((v - 0.5) / 0.5);
+                    write!(
+                        svg,
+                        r##"<rect x="{x:.1}" y="{y:.1}" width="{cell:.1}" height="{cell:.1}" fill="{fill}" stroke="#ffffff"/><text x="{tx:.1}" y="{ty:.1}" text-anchor="middle" fill="{ink}">{p:.1}{star}</text>"##,
+                        tx = x + cell / 2.0,
+                        ty = y + cell / 2.0 + 4.0,
+                        p = 100.0 * v,
+                        star = if discovery(a, b) { "*" } else { "" }
+                    )
+                    .unwrap()
+                }
+            }
+        }
+    }
+    let second = match pw.fdr {
+        Some(q) => format!("* discovery at a false-discovery rate of {q} across pairs"),
+        None => "no shuffles, so no test".to_string(),
+    };
+    for (i, line) in ["% of test trials; each pair decoded on its own", &second]
+        .iter()
+        .enumerate()
+    {
+        write!(
+            svg,
+            r#"<text x="{x}" y="{y:.1}" fill="{INK}">{n}</text>"#,
+            x = 12.0,
+            y = y0 + cell * k as f64 + 24.0 + 16.0 * i as f64,
+            n = esc(line)
+        )
+        .unwrap();
+    }
+    svg.push_str("</svg>");
+    Some(svg)
 }
 
 #[cfg(test)]

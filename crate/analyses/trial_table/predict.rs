@@ -1,9 +1,10 @@
 //! Cross-validated predictions on folds the user assigns (`popdecode predict`).
 
 use crate::data::Dataset;
-use crate::decoders::{self, fit_folds, FoldSet};
+use crate::decoders::{self, cross_validate, CrossValidated, FoldSet, Nesting};
 use crate::error::{Error, Result};
 use crate::recipe::Recipe;
+use crate::stats::roc;
 
 /// Cross-validated predictions on fold assignments the caller supplies (one fold number per trial).
 ///
@@ -15,6 +16,36 @@ pub fn predict_with_folds(
     recipe: &Recipe,
     fold_of: &[usize],
 ) -> Result<Vec<usize>> {
+    Ok(cross_validated(data, recipe, fold_of, false)?.labels)
+}
+
+/// [`predict_with_folds`] for two classes, with each trial's decision value (larger favours the second class) and
+/// the area under the ROC curve of those values pooled over the folds, the rule the reports use within a repeat.
+pub fn decisions_with_folds(
+    data: &Dataset,
+    recipe: &Recipe,
+    fold_of: &[usize],
+) -> Result<(Vec<usize>, Vec<f64>, f64)> {
+    if data.classes.len() != 2 {
+        return Err(Error::Design(format!(
+            "{}: decision values and the ROC curve need two classes; '{}' has {}",
+            data.source,
+            data.label_column,
+            data.classes.len()
+        )));
+    }
+    let cv = cross_validated(data, recipe, fold_of, true)?;
+    let positive: Vec<bool> = data.y.iter().map(|&c| c == 1).collect();
+    let auc = roc::auc(&cv.decision, &positive).expect("two classes present");
+    Ok((cv.labels, cv.decision, auc))
+}
+
+fn cross_validated(
+    data: &Dataset,
+    recipe: &Recipe,
+    fold_of: &[usize],
+    decisions: bool,
+) -> Result<CrossValidated> {
     if fold_of.len() != data.n_trials() {
         return Err(Error::Design(format!(
             "{}: {} fold numbers for {} trials",
@@ -47,13 +78,15 @@ pub fn predict_with_folds(
         folds: names.len(),
         n_classes: data.classes.len(),
     };
-    let mut predicted = vec![0; data.n_trials()];
-    for (f, model) in fit_folds(decoder.as_ref(), &set).into_iter().enumerate() {
-        let model = model.expect("every fold has training and test trials");
-        let (_, test) = set.partition(f);
-        for (&i, c) in test.iter().zip(model.predict(set.rows(&test))) {
-            predicted[i] = c;
-        }
-    }
-    Ok(predicted)
+    let cv = cross_validate(
+        decoder.as_ref(),
+        &set,
+        &Nesting::plain(recipe.seed),
+        decisions,
+    );
+    assert!(
+        cv.labels.iter().all(|&c| c != usize::MAX),
+        "every fold has training and test trials"
+    );
+    Ok(cv)
 }
