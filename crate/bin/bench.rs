@@ -36,6 +36,7 @@ fn main() {
         Some("timecourse") => timecourse(&args[2..]),
         Some("rbf") => rbf(&args[2..]),
         Some("grid") => grid(&args[2..]),
+        Some("kernels") => kernels(&args[2..]),
         _ => trial_table(&args),
     }
 }
@@ -154,17 +155,83 @@ fn grid(args: &[String]) {
             let data = input::trial_table("bench.csv", table.as_bytes(), &recipe.columns)
                 .expect("valid table");
             let plan = Plan::new(data, &recipe).expect("valid plan");
-            let start = Instant::now();
+            let (start, cpu) = (Instant::now(), cpu_seconds());
             let report = run_all(&plan);
             println!(
-                "grid {:<14} {:>9} {:>9.3} s (accuracy {:.3})",
+                "grid {:<14} {:>9} {:>9.3} s (accuracy {:.3}; {:.3} s on the processor)",
                 name,
                 shape,
                 start.elapsed().as_secs_f64(),
-                report.summary.accuracy.mean
+                report.summary.accuracy.mean,
+                cpu_seconds() - cpu
             );
         }
     }
+}
+
+/// Multiply-adds per second of the Gram and Cholesky kernels at a few sizes, on the instruction set chosen at run
+/// time (`POPDECODE_SIMD=baseline` for the baseline).
+fn kernels(args: &[String]) {
+    use popdecode::decoders::{linalg, simd};
+    println!("kernels on {}", simd::level_name());
+    let once = args.iter().any(|a| a == "--once");
+    let sizes: Vec<usize> = args.iter().filter_map(|a| a.parse().ok()).collect();
+    let sizes = if sizes.is_empty() {
+        vec![53, 201, 401, 1001]
+    } else {
+        sizes
+    };
+    for p in sizes {
+        let n = 800;
+        let z: Vec<f64> = (0..n * p)
+            .map(|i| ((i * 7919) % 1000) as f64 / 1000.0 - 0.5)
+            .collect();
+        let reps = if once {
+            1
+        } else {
+            (2e9 / (n * p * p) as f64).ceil() as usize
+        };
+        let (start, cpu) = (Instant::now(), cpu_seconds());
+        let mut g = Vec::new();
+        for _ in 0..reps {
+            g = linalg::gram(&z, n, p);
+        }
+        let (wall, used) = (start.elapsed().as_secs_f64(), cpu_seconds() - cpu);
+        let macs = (reps * n * p * (p + 1) / 2) as f64;
+        println!(
+            "gram {n} x {p}: {:.2} G multiply-adds/s ({:.2} per processor second)",
+            macs / wall * 1e-9,
+            macs / used * 1e-9
+        );
+        for i in 0..p {
+            g[i * p + i] += 1.0;
+        }
+        let reps = if once {
+            1
+        } else {
+            (2e9 / (p * p * p) as f64).ceil() as usize
+        };
+        let (start, cpu) = (Instant::now(), cpu_seconds());
+        for _ in 0..reps {
+            linalg::cholesky(&g, p).expect("positive definite");
+        }
+        let (wall, used) = (start.elapsed().as_secs_f64(), cpu_seconds() - cpu);
+        let macs = (reps * p * p * p / 6) as f64;
+        println!(
+            "cholesky {p}: {:.2} G multiply-adds/s ({:.2} per processor second)",
+            macs / wall * 1e-9,
+            macs / used * 1e-9
+        );
+    }
+}
+
+/// Time this thread has spent running (Linux: /proc/thread-self/schedstat; 0 elsewhere). On a shared machine it
+/// varies less than the wall clock, which counts the time other processes hold the processor.
+fn cpu_seconds() -> f64 {
+    std::fs::read_to_string("/proc/thread-self/schedstat")
+        .ok()
+        .and_then(|s| s.split_whitespace().next()?.parse::<f64>().ok())
+        .map_or(0.0, |ns| ns * 1e-9)
 }
 
 fn flag(args: &[String], name: &str, default: usize) -> usize {
