@@ -8,6 +8,12 @@
 //! `popdecode-bench rbf [--trials-csv PATH]`: the Gaussian-kernel SVM on the large case, 1000 invented trials × 300
 //! units, 4 odours, 10 repeats × 5 folds, one thread (`scripts/bench_sklearn.py TABLE rbf` times SVC on it).
 //!
+//! `popdecode-bench grid [--shapes 248x100,1000x400,...] [--tables DIR] [--repeats N] [--decoders NAMES]`: the
+//! linear SVM and shrinkage LDA at every shape of a grid of trials × neurons (default [`GRID`]), 4 odours with equal
+//! counts, weak information in 10 of the neurons (the rest carry none), 10 repeats × 5 stratified folds, no
+//! shuffles, one thread. One line per (decoder, shape). `--tables DIR` also writes each shape's table as
+//! `DIR/TRIALSxNEURONS.csv` for `scripts/bench_sklearn.py grid DIR SHAPES`.
+//!
 //! `popdecode-bench timecourse [--trials N] [--units N] [--windows N] [--repeats N] [--shuffles N]
 //! [--shuffle-repeats N] [--classifier NAME] [--threads N] [--generalize] [--binned-csv PATH]`: the time-resolved
 //! protocol on an invented recording built in
@@ -29,6 +35,8 @@ fn main() {
     match args.get(1).map(String::as_str) {
         Some("timecourse") => timecourse(&args[2..]),
         Some("rbf") => rbf(&args[2..]),
+        Some("grid") => grid(&args[2..]),
+        Some("kernels") => kernels(&args[2..]),
         _ => trial_table(&args),
     }
 }
@@ -96,6 +104,134 @@ fn rbf(args: &[String]) {
         recipe.repeats,
         report.summary.accuracy.mean
     );
+}
+
+/// Trials × neurons of the grid: the corners and middle of trials 250–4000 × neurons 50–1000, and the shapes where
+/// the speed lead was lost before (issue 18's table). Trials are a multiple of 4 (equal classes).
+pub const GRID: &str =
+    "248x50,248x100,248x1000,400x200,1000x50,1000x100,1000x400,1000x1000,2000x400,4000x50,4000x200,4000x1000";
+
+/// The table of one grid shape: 4 odours with `trials / 4` trials each, `neurons` units of which 10 carry weak
+/// odour tuning (log-rate SD 0.3) and the rest none.
+fn grid_table(trials: usize, neurons: usize) -> String {
+    csv(&Scenario {
+        trials_per_class: vec![trials / 4; 4],
+        units: neurons,
+        tuning: 0.3,
+        tuned_fraction: 10.0 / neurons as f64,
+        ..Scenario::odours()
+    })
+}
+
+fn grid(args: &[String]) {
+    let text = |name: &str, default: &str| {
+        args.iter()
+            .position(|a| a == name)
+            .and_then(|i| args.get(i + 1))
+            .map_or(default.to_string(), String::clone)
+    };
+    let shapes = text("--shapes", GRID);
+    let decoders = text("--decoders", "linear-svm,shrinkage-lda");
+    let tables = args
+        .iter()
+        .position(|a| a == "--tables")
+        .map(|i| args.get(i + 1).expect("--tables needs a folder"));
+    for shape in shapes.split(',') {
+        let (trials, neurons) = shape.split_once('x').expect("shapes as TRIALSxNEURONS");
+        let (trials, neurons): (usize, usize) = (
+            trials.parse().expect("a whole number"),
+            neurons.parse().expect("a whole number"),
+        );
+        let table = grid_table(trials, neurons);
+        if let Some(dir) = tables {
+            std::fs::write(format!("{dir}/{shape}.csv"), &table).expect("write the grid table");
+        }
+        for name in decoders.split(',') {
+            let mut recipe = Recipe::new("odour");
+            recipe.columns.ignore = vec!["session".into()];
+            recipe.classifier = Classifier::from_name(name).expect("a decoder name");
+            recipe.repeats = flag(args, "--repeats", 10);
+            recipe.shuffles = 0;
+            let data = input::trial_table("bench.csv", table.as_bytes(), &recipe.columns)
+                .expect("valid table");
+            let plan = Plan::new(data, &recipe).expect("valid plan");
+            let (start, cpu) = (Instant::now(), cpu_seconds());
+            let report = run_all(&plan);
+            println!(
+                "grid {:<14} {:>9} {:>9.3} s (accuracy {:.3}; {:.3} s on the processor)",
+                name,
+                shape,
+                start.elapsed().as_secs_f64(),
+                report.summary.accuracy.mean,
+                cpu_seconds() - cpu
+            );
+        }
+    }
+}
+
+/// Multiply-adds per second of the Gram and Cholesky kernels at a few sizes, on the instruction set chosen at run
+/// time (`POPDECODE_SIMD=baseline` for the baseline).
+fn kernels(args: &[String]) {
+    use popdecode::decoders::{linalg, simd};
+    println!("kernels on {}", simd::level_name());
+    let once = args.iter().any(|a| a == "--once");
+    let sizes: Vec<usize> = args.iter().filter_map(|a| a.parse().ok()).collect();
+    let sizes = if sizes.is_empty() {
+        vec![53, 201, 401, 1001]
+    } else {
+        sizes
+    };
+    for p in sizes {
+        let n = 800;
+        let z: Vec<f64> = (0..n * p)
+            .map(|i| ((i * 7919) % 1000) as f64 / 1000.0 - 0.5)
+            .collect();
+        let reps = if once {
+            1
+        } else {
+            (2e9 / (n * p * p) as f64).ceil() as usize
+        };
+        let (start, cpu) = (Instant::now(), cpu_seconds());
+        let mut g = Vec::new();
+        for _ in 0..reps {
+            g = linalg::gram(&z, n, p);
+        }
+        let (wall, used) = (start.elapsed().as_secs_f64(), cpu_seconds() - cpu);
+        let macs = (reps * n * p * (p + 1) / 2) as f64;
+        println!(
+            "gram {n} x {p}: {:.2} G multiply-adds/s ({:.2} per processor second)",
+            macs / wall * 1e-9,
+            macs / used * 1e-9
+        );
+        for i in 0..p {
+            g[i * p + i] += 1.0;
+        }
+        let reps = if once {
+            1
+        } else {
+            (2e9 / (p * p * p) as f64).ceil() as usize
+        };
+        let (start, cpu) = (Instant::now(), cpu_seconds());
+        for _ in 0..reps {
+            linalg::cholesky(&g, p).expect("positive definite");
+        }
+        let (wall, used) = (start.elapsed().as_secs_f64(), cpu_seconds() - cpu);
+        let macs = (reps * p * p * p / 6) as f64;
+        println!(
+            "cholesky {p}: {:.2} G multiply-adds/s ({:.2} per processor second)",
+            macs / wall * 1e-9,
+            macs / used * 1e-9
+        );
+    }
+}
+
+/// Time this thread has spent running (Linux: /proc/thread-self/schedstat; 0 elsewhere). On a shared machine it
+/// varies less than the wall clock, which counts the time other processes hold the processor.
+fn cpu_seconds() -> f64 {
+    std::fs::read_to_string("/proc/thread-self/schedstat")
+        .ok()
+        .and_then(|s| s.split_whitespace().next()?.parse::<f64>().ok())
+        .map_or(0.0, |ns| ns * 1e-9)
 }
 
 fn flag(args: &[String], name: &str, default: usize) -> usize {

@@ -4,6 +4,8 @@
 //! wasm32, so the same fit would round differently in the page and the CLI. These loops compile to the same IEEE
 //! operations on every target, which is what lets the two faces print identical numbers.
 
+use super::simd::multiversion;
+
 /// Dot product of two equal-length slices.
 ///
 /// Four partial sums over interleaved elements, combined as `(s0 + s1) + (s2 + s3)`, then the tail: a fixed order
@@ -59,36 +61,15 @@ pub fn axpy(a: f64, x: &[f64], y: &mut [f64]) {
 
 /// Upper triangle of `ZᵀZ` for row-major `z` (n × p), mirrored to a full p × p matrix.
 ///
-/// Four data rows are taken at a time: each element of the result is loaded and stored once per four products
-/// instead of once per product, which is what bounded the speed of the one-row form (it is most of a shrinkage LDA
-/// fit). The four products are added as `(a + b) + (c + d)` before joining the running sum: a fixed order, so every
-/// target rounds identically.
+/// Every element is a running sum over the rows in one fixed order: four rows at a time, each group's four products
+/// added as `(a + b) + (c + d)` before joining the sum, then the rows left over one at a time. That order fixes
+/// every rounding; the loops around it are free. They compute the result in tiles of 4 × 8 elements held in
+/// registers while the rows go by, a block of [`GRAM_ROWS`] rows at a time (so the rows stay in cache): each element
+/// is loaded and stored once per block instead of once per four rows, which is what bounded the speed of the
+/// row-by-row form. The tile loops are compiled for the processor's widest instructions ([`super::simd`]).
 pub fn gram(z: &[f64], n: usize, p: usize) -> Vec<f64> {
     let mut g = vec![0.0; p * p];
-    let quads = n / 4;
-    for q in 0..quads {
-        let r = 4 * q;
-        let (a, b, c, d) = (
-            &z[r * p..(r + 1) * p],
-            &z[(r + 1) * p..(r + 2) * p],
-            &z[(r + 2) * p..(r + 3) * p],
-            &z[(r + 3) * p..(r + 4) * p],
-        );
-        for i in 0..p {
-            let (ai, bi, ci, di) = (a[i], b[i], c[i], d[i]);
-            let out = &mut g[i * p + i..(i + 1) * p];
-            let rows = a[i..].iter().zip(&b[i..]).zip(&c[i..]).zip(&d[i..]);
-            for (o, (((aj, bj), cj), dj)) in out.iter_mut().zip(rows) {
-                *o += (ai * aj + bi * bj) + (ci * cj + di * dj);
-            }
-        }
-    }
-    for r in 4 * quads..n {
-        let row = &z[r * p..(r + 1) * p];
-        for i in 0..p {
-            axpy(row[i], &row[i..], &mut g[i * p + i..(i + 1) * p]);
-        }
-    }
+    gram_upper(z, n, p, &mut g);
     for i in 0..p {
         for j in 0..i {
             g[i * p + j] = g[j * p + i];
@@ -97,50 +78,253 @@ pub fn gram(z: &[f64], n: usize, p: usize) -> Vec<f64> {
     g
 }
 
+/// Rows per pass of [`gram`]'s tiles: a multiple of 4, so the groups of four rows are the same in every pass.
+const GRAM_ROWS: usize = 64;
+/// Rows and columns of one tile of [`gram`] and [`cholesky`].
+const TILE_R: usize = 4;
+const TILE_W: usize = 4;
+
+multiversion! {
+    /// Add the upper triangle of `ZᵀZ` to `g` (elements below the diagonal of `g` are left in any state).
+    fn gram_upper(z: &[f64], n: usize, p: usize, g: &mut [f64]) {
+        let quads_end = n / 4 * 4;
+        let mut r0 = 0;
+        while r0 < quads_end {
+            let r1 = (r0 + GRAM_ROWS).min(quads_end);
+            let mut i0 = 0;
+            while i0 < p {
+                let mut j0 = i0;
+                while j0 < p {
+                    if i0 + TILE_R <= p && j0 + TILE_W <= p {
+                        gram_tile(z, p, r0, r1, i0, j0, g);
+                    } else {
+                        gram_edge(z, p, r0, r1, i0..(i0 + TILE_R).min(p), j0..(j0 + TILE_W).min(p), g);
+                    }
+                    j0 += TILE_W;
+                }
+                i0 += TILE_R;
+            }
+            r0 = r1;
+        }
+        for r in quads_end..n {
+            let row = &z[r * p..(r + 1) * p];
+            for i in 0..p {
+                axpy(row[i], &row[i..], &mut g[i * p + i..(i + 1) * p]);
+            }
+        }
+    }
+}
+
+/// One full tile of [`gram_upper`]: rows `i0..i0 + 4` × columns `j0..j0 + 4` of `g`, over data rows `r0..r1`.
+#[inline(always)]
+fn gram_tile(z: &[f64], p: usize, r0: usize, r1: usize, i0: usize, j0: usize, g: &mut [f64]) {
+    let mut acc = [Lanes::load(&g[i0 * p + j0..]); TILE_R];
+    for (r, acc_r) in acc.iter_mut().enumerate().skip(1) {
+        *acc_r = Lanes::load(&g[(i0 + r) * p + j0..]);
+    }
+    assert!(i0 + TILE_R <= p && j0 + TILE_W <= p);
+    for quad in z[r0 * p..r1 * p].chunks_exact(4 * p) {
+        let (ab, cd) = quad.split_at(2 * p);
+        let ((a, b), (c, d)) = (ab.split_at(p), cd.split_at(p));
+        let at = |row: &[f64], from: usize| Lanes::load(&row[from..from + 4]);
+        let (aj, bj, cj, dj) = (at(a, j0), at(b, j0), at(c, j0), at(d, j0));
+        let (ai, bi, ci, di) = (at(a, i0), at(b, i0), at(c, i0), at(d, i0));
+        for (r, acc_r) in acc.iter_mut().enumerate() {
+            let (x, y, u, v) = (ai.splat(r), bi.splat(r), ci.splat(r), di.splat(r));
+            *acc_r = acc_r.add(x.mul(aj).add(y.mul(bj)).add(u.mul(cj).add(v.mul(dj))));
+        }
+    }
+    for (r, acc_r) in acc.iter().enumerate() {
+        acc_r.store(&mut g[(i0 + r) * p + j0..]);
+    }
+}
+
+/// Four doubles operated on lane by lane: plain IEEE operations the compiler maps to one AVX2 register (two SSE2 or
+/// wasm registers), so a tile's sums stay in registers.
+#[derive(Clone, Copy)]
+struct Lanes([f64; 4]);
+
+impl Lanes {
+    #[inline(always)]
+    fn load(s: &[f64]) -> Lanes {
+        Lanes(s[..4].try_into().expect("four values"))
+    }
+    #[inline(always)]
+    fn store(self, s: &mut [f64]) {
+        s[..4].copy_from_slice(&self.0);
+    }
+    #[inline(always)]
+    fn splat(self, lane: usize) -> Lanes {
+        Lanes([self.0[lane]; 4])
+    }
+    #[inline(always)]
+    fn add(self, o: Lanes) -> Lanes {
+        Lanes([
+            self.0[0] + o.0[0],
+            self.0[1] + o.0[1],
+            self.0[2] + o.0[2],
+            self.0[3] + o.0[3],
+        ])
+    }
+    #[inline(always)]
+    fn sub(self, o: Lanes) -> Lanes {
+        Lanes([
+            self.0[0] - o.0[0],
+            self.0[1] - o.0[1],
+            self.0[2] - o.0[2],
+            self.0[3] - o.0[3],
+        ])
+    }
+    #[inline(always)]
+    fn mul(self, o: Lanes) -> Lanes {
+        Lanes([
+            self.0[0] * o.0[0],
+            self.0[1] * o.0[1],
+            self.0[2] * o.0[2],
+            self.0[3] * o.0[3],
+        ])
+    }
+}
+
+/// A tile of [`gram_upper`] cut by the edge of the matrix, with the same operations element by element.
+#[inline(always)]
+fn gram_edge(
+    z: &[f64],
+    p: usize,
+    r0: usize,
+    r1: usize,
+    rows: std::ops::Range<usize>,
+    cols: std::ops::Range<usize>,
+    g: &mut [f64],
+) {
+    for i in rows {
+        for j in cols.clone() {
+            let mut s = g[i * p + j];
+            let mut q = r0;
+            while q < r1 {
+                let v = |k: usize, col: usize| z[(q + k) * p + col];
+                s += (v(0, i) * v(0, j) + v(1, i) * v(1, j))
+                    + (v(2, i) * v(2, j) + v(3, i) * v(3, j));
+                q += 4;
+            }
+            g[i * p + j] = s;
+        }
+    }
+}
+
 /// Cholesky factor `U` (row-major, upper triangular, `A = UᵀU`) of a symmetric positive-definite matrix, or `None`
 /// if a pivot is not positive. Only the upper triangle of `a` is read.
 ///
 /// The outer-product form, two pivot rows at a time: rows k and k+1 are finished, then every row below subtracts
-/// both of their multiples in one contiguous pass. That halves the passes over the trailing rows compared with one
-/// pivot at a time, which is most of the cost on these small matrices; the order of operations is fixed, so every
-/// target rounds identically.
+/// both of their multiples, `x −= f0·a + f1·b`. That is the fixed order of operations of every element (so every
+/// target rounds identically). The loops are blocked without changing it: the pivot rows of a block of
+/// [`CHOLESKY_BLOCK`] are finished and applied to the rows of the block one pair at a time; the rows below the block
+/// then take all the block's pairs in order, in 4 × 8 tiles held in registers, so each element is loaded and stored
+/// once per block instead of once per pair.
 pub fn cholesky(a: &[f64], p: usize) -> Option<Vec<f64>> {
     cholesky_owned(a.to_vec(), p)
 }
 
-/// [`cholesky`] factoring a matrix the caller no longer needs, in its own storage (saves a copy per Newton step).
-pub fn cholesky_owned(mut u: Vec<f64>, p: usize) -> Option<Vec<f64>> {
-    let mut k = 0;
-    while k < p {
-        pivot_row(&mut u, p, k)?;
-        if k + 1 == p {
-            break;
+/// Pivot rows per block of [`cholesky`]: even, so blocks hold whole pairs.
+const CHOLESKY_BLOCK: usize = 32;
+
+multiversion! {
+    /// [`cholesky`] factoring a matrix the caller no longer needs, in its own storage (saves a copy per Newton step).
+    pub fn cholesky_owned(u: Vec<f64>, p: usize) -> Option<Vec<f64>> {
+        let mut u = u;
+        let mut k0 = 0;
+        while k0 < p {
+            let k1 = (k0 + CHOLESKY_BLOCK).min(p);
+            let mut k = k0;
+            while k < k1 {
+                pivot_row(&mut u, p, k)?;
+                if k + 1 == p {
+                    break;
+                }
+                // Bring row k+1 up to date with row k alone, then finish it.
+                let (head, tail) = u.split_at_mut((k + 1) * p);
+                let row_k = &head[k * p..(k + 1) * p];
+                axpy(-row_k[k + 1], &row_k[k + 1..], &mut tail[k + 1..p]);
+                pivot_row(&mut u, p, k + 1)?;
+                let (head, tail) = u.split_at_mut((k + 2) * p);
+                let (row_k, row_k1) = head[k * p..].split_at(p);
+                for i in k + 2..k1 {
+                    let (f0, f1) = (row_k[i], row_k1[i]);
+                    let row_i = &mut tail[(i - k - 2) * p + i..(i - k - 1) * p];
+                    for ((x, a), b) in row_i.iter_mut().zip(&row_k[i..]).zip(&row_k1[i..]) {
+                        *x -= f0 * a + f1 * b;
+                    }
+                }
+                k += 2;
+            }
+            if k1 < p {
+                trailing_update(&mut u, p, k0, k1);
+            }
+            k0 = k1;
         }
-        // Bring row k+1 up to date with row k alone, then finish it.
-        let (head, tail) = u.split_at_mut((k + 1) * p);
-        let row_k = &head[k * p..(k + 1) * p];
-        axpy(-row_k[k + 1], &row_k[k + 1..], &mut tail[k + 1..p]);
-        pivot_row(&mut u, p, k + 1)?;
-        let (head, tail) = u.split_at_mut((k + 2) * p);
-        let (row_k, row_k1) = head[k * p..].split_at(p);
-        for i in k + 2..p {
-            let (f0, f1) = (row_k[i], row_k1[i]);
-            let row_i = &mut tail[(i - k - 2) * p + i..(i - k - 1) * p];
-            for ((x, a), b) in row_i.iter_mut().zip(&row_k[i..]).zip(&row_k1[i..]) {
-                *x -= f0 * a + f1 * b;
+        for i in 0..p {
+            for j in 0..i {
+                u[i * p + j] = 0.0;
             }
         }
-        k += 2;
+        Some(u)
     }
-    for i in 0..p {
-        for j in 0..i {
-            u[i * p + j] = 0.0;
+}
+
+/// Apply the finished pivot pairs of rows `k0..k1` to the upper triangle of the rows below, `x −= f0·a + f1·b`
+/// pair by pair in order (elements below the diagonal are left in any state: the factor never reads them).
+#[inline(always)]
+fn trailing_update(u: &mut [f64], p: usize, k0: usize, k1: usize) {
+    let (pivots, rest) = u.split_at_mut(k1 * p);
+    let pivots = &pivots[k0 * p..];
+    let mut i0 = k1;
+    while i0 < p {
+        let mut j0 = i0;
+        while j0 < p {
+            if i0 + TILE_R <= p && j0 + TILE_W <= p {
+                trailing_tile(pivots, rest, p, k1, i0, j0);
+            } else {
+                for i in i0..(i0 + TILE_R).min(p) {
+                    for j in j0..(j0 + TILE_W).min(p) {
+                        let mut x = rest[(i - k1) * p + j];
+                        for pair in pivots.chunks_exact(2 * p) {
+                            let (a, b) = pair.split_at(p);
+                            x -= a[i] * a[j] + b[i] * b[j];
+                        }
+                        rest[(i - k1) * p + j] = x;
+                    }
+                }
+            }
+            j0 += TILE_W;
+        }
+        i0 += TILE_R;
+    }
+}
+
+/// One full tile of [`trailing_update`]: rows `i0..i0 + 4` × columns `j0..j0 + 4`.
+#[inline(always)]
+fn trailing_tile(pivots: &[f64], rest: &mut [f64], p: usize, k1: usize, i0: usize, j0: usize) {
+    let at = |r: usize| (i0 + r - k1) * p + j0;
+    let mut acc = [Lanes::load(&rest[at(0)..]); TILE_R];
+    for (r, acc_r) in acc.iter_mut().enumerate().skip(1) {
+        *acc_r = Lanes::load(&rest[at(r)..]);
+    }
+    assert!(i0 + TILE_R <= p && j0 + TILE_W <= p);
+    for pair in pivots.chunks_exact(2 * p) {
+        let (a, b) = pair.split_at(p);
+        let (aj, bj) = (Lanes::load(&a[j0..j0 + 4]), Lanes::load(&b[j0..j0 + 4]));
+        let (ai, bi) = (Lanes::load(&a[i0..i0 + 4]), Lanes::load(&b[i0..i0 + 4]));
+        for (r, acc_r) in acc.iter_mut().enumerate() {
+            *acc_r = acc_r.sub(ai.splat(r).mul(aj).add(bi.splat(r).mul(bj)));
         }
     }
-    Some(u)
+    for (r, acc_r) in acc.iter().enumerate() {
+        acc_r.store(&mut rest[at(r)..]);
+    }
 }
 
 /// Take the square root of pivot k and scale the rest of row k by it.
+#[inline(always)]
 fn pivot_row(u: &mut [f64], p: usize, k: usize) -> Option<()> {
     let pivot = u[k * p + k];
     if pivot <= 0.0 || !pivot.is_finite() {
@@ -234,6 +418,93 @@ mod tests {
         // Z = [[1, 2], [3, 4], [5, 6]]: ZᵀZ = [[35, 44], [44, 56]].
         let g = gram(&[1.0, 2.0, 3.0, 4.0, 5.0, 6.0], 3, 2);
         assert_eq!(g, vec![35.0, 44.0, 44.0, 56.0]);
+    }
+
+    /// Deterministic values in (−1, 1) for the order tests.
+    fn values(len: usize, seed: u64) -> Vec<f64> {
+        let mut state = seed;
+        (0..len)
+            .map(|_| {
+                state = state
+                    .wrapping_mul(6364136223846793005)
+                    .wrapping_add(1442695040888963407);
+                (state >> 11) as f64 / (1u64 << 53) as f64 * 2.0 - 1.0
+            })
+            .collect()
+    }
+
+    /// The tiles and row blocks of [`gram`] must not change a bit: compare with the documented order written as
+    /// one plain loop per element, on shapes that cut tiles and blocks at every edge.
+    #[test]
+    fn gram_tiles_keep_the_documented_order() {
+        for (n, p) in [(1, 1), (7, 3), (70, 13), (131, 37), (200, 8)] {
+            let z = values(n * p, (n * 1000 + p) as u64);
+            let g = gram(&z, n, p);
+            for i in 0..p {
+                for j in i..p {
+                    let mut s = 0.0;
+                    for r in (0..n / 4 * 4).step_by(4) {
+                        let v = |k: usize, c: usize| z[(r + k) * p + c];
+                        s += (v(0, i) * v(0, j) + v(1, i) * v(1, j))
+                            + (v(2, i) * v(2, j) + v(3, i) * v(3, j));
+                    }
+                    for r in n / 4 * 4..n {
+                        s += z[r * p + i] * z[r * p + j];
+                    }
+                    assert_eq!(g[i * p + j].to_bits(), s.to_bits(), "{n} x {p}: ({i}, {j})");
+                    assert_eq!(g[j * p + i].to_bits(), s.to_bits());
+                }
+            }
+        }
+    }
+
+    /// The blocks and tiles of [`cholesky`] must not change a bit: compare with the unblocked two-pivot form.
+    #[test]
+    fn cholesky_blocks_keep_the_pair_order() {
+        for p in [1, 2, 5, 33, 64, 71] {
+            let z = values((p + 3) * p, p as u64);
+            let mut a = gram(&z, p + 3, p);
+            for i in 0..p {
+                a[i * p + i] += 0.5;
+            }
+            let mut u = a.clone();
+            let mut k = 0;
+            while k < p {
+                let d = u[k * p + k].sqrt();
+                u[k * p + k] = d;
+                for v in &mut u[k * p + k + 1..(k + 1) * p] {
+                    *v /= d;
+                }
+                if k + 1 == p {
+                    break;
+                }
+                for j in k + 1..p {
+                    u[(k + 1) * p + j] += -u[k * p + k + 1] * u[k * p + j];
+                }
+                let d = u[(k + 1) * p + k + 1].sqrt();
+                u[(k + 1) * p + k + 1] = d;
+                for v in &mut u[(k + 1) * p + k + 2..(k + 2) * p] {
+                    *v /= d;
+                }
+                for i in k + 2..p {
+                    let (f0, f1) = (u[k * p + i], u[(k + 1) * p + i]);
+                    for j in i..p {
+                        u[i * p + j] -= f0 * u[k * p + j] + f1 * u[(k + 1) * p + j];
+                    }
+                }
+                k += 2;
+            }
+            let blocked = cholesky(&a, p).unwrap();
+            for i in 0..p {
+                for j in i..p {
+                    assert_eq!(
+                        blocked[i * p + j].to_bits(),
+                        u[i * p + j].to_bits(),
+                        "{p}: ({i}, {j})"
+                    );
+                }
+            }
+        }
     }
 
     #[test]

@@ -12,6 +12,7 @@ pub mod nearest_mean;
 pub mod poisson_nb;
 pub mod rbf_svm;
 pub mod shrinkage_lda;
+pub mod simd;
 pub mod standardise;
 pub mod tuning;
 
