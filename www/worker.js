@@ -122,8 +122,15 @@ const handlers = {
     const plan = JSON.parse(data.prepare(msg.kind, msg.recipe, msg.options));
     let sampleMs = null;
     if (msg.sample) {
-      const t0 = performance.now();
+      // Timed twice when quick: the first run of a task also pays for the engine's warm-up.
+      let t0 = performance.now();
       if (data.sample()) sampleMs = performance.now() - t0;
+      if (sampleMs !== null && sampleMs < 200) {
+        data.prepare(msg.kind, msg.recipe, msg.options);
+        t0 = performance.now();
+        data.sample();
+        sampleMs = performance.now() - t0;
+      }
     }
     return { plan, sampleMs, header: msg.withHeader ? JSON.parse(data.header()) : null };
   },

@@ -63,12 +63,13 @@
       li.appendChild(what);
       const buttons = el('span', null, 'record-buttons');
       const shown = S.onView.includes(r.id);
-      const show = PD.button(shown && S.onView.length === 1 ? 'On view' : 'Show', () => { S.onView = [r.id]; drawList(); drawViews(); }, `Show run ${r.id}`);
+      const alone = shown && S.onView.length === 1;
+      const show = PD.button(alone ? 'On view' : 'Show', () => { S.onView = [r.id]; drawList(); drawViews(); }, alone ? `On view: run ${r.id}` : `Show run ${r.id}`);
       show.disabled = shown && S.onView.length === 1;
       buttons.appendChild(show);
       if (S.records.length > 1 && !shown) {
         buttons.appendChild(PD.button('Side by side', () => { S.onView = [S.onView[0], r.id]; drawList(); drawViews(); },
-          `Show run ${r.id} beside run ${S.onView[0]}`));
+          `Side by side: run ${r.id} beside run ${S.onView[0]}`));
       }
       li.appendChild(buttons);
       list.appendChild(li);
