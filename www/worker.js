@@ -157,6 +157,9 @@ self.onmessage = async (event) => {
   const msg = event.data;
   const handler = handlers[msg.type] || runHandlers[msg.type];
   try {
+    // Messages can arrive while the core is still starting (the `init` message's await): they wait for it, in
+    // order of arrival.
+    if (started && msg.type !== 'init') await started;
     let value = await handler(msg);
     let transfer = [];
     if (value && value.transfer) { transfer = value.transfer; value = value.value; }

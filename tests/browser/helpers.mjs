@@ -87,6 +87,10 @@ export async function runAndWait(page, button = '#start') {
   await whenReady(page, button);
   const before = await page.locator('#records li').count();
   await page.click(button);
+  // A run the page expects to be long asks first: say yes.
+  await page.waitForFunction((n) => document.querySelectorAll('#records li').length > n || !document.getElementById('confirm').hidden,
+    before, { timeout: 120_000 });
+  if (await page.isVisible('#confirm')) await page.click('#confirm-yes');
   await page.waitForFunction((n) => document.querySelectorAll('#records li').length > n, before, { timeout: 120_000 });
   const headline = page.locator('#views .view .headline');
   return (await headline.count()) ? headline.first().textContent() : '';

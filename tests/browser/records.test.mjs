@@ -325,6 +325,9 @@ async function allFigures() {
 test('every figure: text inside the figure and no two text boxes overlapping (getBBox)', async () => {
   const svgs = await allFigures();
   assert.ok(Object.keys(svgs).length >= 8, Object.keys(svgs).join(', '));
+  // A control the check must catch: two labels on top of each other, one running off the right edge.
+  svgs['control/bad'] = '<svg xmlns="http://www.w3.org/2000/svg" width="100" height="50"><text x="10" y="20">overlap</text>' +
+    '<text x="12" y="22">overlap too</text><text x="90" y="45">outside</text></svg>';
   const b = await browser();
   await b.page.setContent('<!doctype html><body></body>');
   const problems = await b.page.evaluate((all) => {
@@ -358,7 +361,10 @@ test('every figure: text inside the figure and no two text boxes overlapping (ge
     }
     return out;
   }, svgs);
-  assert.deepEqual(problems, []);
+  assert.deepEqual(problems.filter((p) => p.startsWith('control/')).sort(),
+    ["control/bad: 'outside' leaves the figure", "control/bad: 'overlap too' leaves the figure", "control/bad: 'overlap' overlaps 'overlap too'"].sort()
+      .filter((p) => !p.includes("'overlap too' leaves")));
+  assert.deepEqual(problems.filter((p) => !p.startsWith('control/')), []);
   await b.context.close();
 });
 

@@ -32,7 +32,7 @@
       return `${x.classifier},${score(x.report)},${h.mean},${h.sd}`;
     })).join('\n') + '\n';
     const items = [];
-    if (!time) items.push(['Table (CSV)', `Save the comparison of run ${record.id} as CSV`, () => ex.text('-decoders.csv', csv, 'text/csv')]);
+    if (!time) items.push(['Comparison (CSV)', `Save the comparison of run ${record.id} as CSV`, () => ex.text('-decoders.csv', csv, 'text/csv')]);
     items.push(['Recipe', `Save the recipe of run ${record.id}`, ex.recipe]);
     PD.exportRow(view, items);
   };
