@@ -7,7 +7,11 @@ use crate::recipe::Recipe;
 use serde_json::Value;
 use wasm_bindgen::JsValue;
 
-pub(super) fn plan(data: Decoded, recipe: &Recipe, options: &Value) -> Result<NeuronsPlan, JsValue> {
+pub(super) fn plan(
+    data: Decoded,
+    recipe: &Recipe,
+    options: &Value,
+) -> Result<NeuronsPlan, JsValue> {
     let Decoded::Table(data) = data else {
         return Err(err("the neuron analyses read one trial table"));
     };
