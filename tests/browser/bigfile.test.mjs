@@ -12,7 +12,7 @@ import assert from 'node:assert/strict';
 import { readdirSync, readFileSync, writeFileSync, mkdtempSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import { tmpdir } from 'node:os';
-import { serve, browser, closeAll, quickSettings, whenReady } from './helpers.mjs';
+import { serve, browser, closeAll, quickSettings } from './helpers.mjs';
 
 let server;
 before(async () => { server = await serve(); });
@@ -70,7 +70,7 @@ for (const workers of [1, 2]) {
     await quickSettings(page, { repeats: 1, shuffles: 0 });
     await page.fill('#folds', '2');
     await page.dispatchEvent('#folds', 'change');
-    await whenReady(page);
+    await page.waitForFunction(() => !document.getElementById('start').disabled, null, { timeout: 240_000 });
     assert.match(await page.textContent('#file-summaries'), new RegExp(`big\\.csv: ${TRIALS.toLocaleString('en')} rows × ${(NEURONS + 1).toLocaleString('en')} columns`));
     assert.ok(await page.locator('#previews td').count() <= 8 * 40, 'the preview is bounded');
     await page.click('#start');
