@@ -14,6 +14,16 @@
       fig.dataset.figure = f.name;
       const img = el('img');
       img.alt = f.alt;
+      // Never drawn smaller than 85 % of its own size (12 px text stays above 10 px) nor larger than 125 %: a
+      // figure wider than its place scrolls in its own box, and a wide one (many neurons' outputs) takes the
+      // grid's whole row.
+      const size = /<svg[^>]*\bwidth="([\d.]+)"[^>]*\bheight="([\d.]+)"/.exec(f.svg);
+      if (size) {
+        img.width = Math.round(Number(size[1])); img.height = Math.round(Number(size[2]));
+        img.style.minWidth = `${Math.round(0.85 * Number(size[1]))}px`;
+        img.style.maxWidth = `${Math.round(1.25 * Number(size[1]))}px`;
+        if (Number(size[1]) > 700) fig.classList.add('wide');
+      }
       img.src = URL.createObjectURL(new Blob([f.svg], { type: 'image/svg+xml' }));
       fig.appendChild(img);
       const cap = el('figcaption');

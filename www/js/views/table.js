@@ -16,14 +16,25 @@
       const s = r.shuffle;
       const rows = [['accuracy', r.summary.accuracy], ['balanced accuracy', r.summary.balanced_accuracy]]
         .map(([name, v]) => [{ text: name, cls: 'text', header: true }, pct(v.mean), pct(v.sd), pct(v.p2_5), pct(v.p97_5)]);
-      rows.push([{ text: 'chance', cls: 'text', header: true }, pct(r.chance.level),
-        { text: `binomial threshold (α = ${r.chance.alpha}, ${r.chance.test_trials} test trials): ${pct(r.chance.threshold)}`, cls: 'text', span: 3 }]);
-      if (s.p_value !== null) {
-        rows.push([{ text: 'shuffled labels', cls: 'text', header: true }, pct(s.null_mean), pct(s.null_sd),
-          { text: `95th percentile ${pct(s.null_p95)}; p = ${s.p_value.toPrecision(3)} (${s.count} shuffles × ${s.repeats_each} repeats${s.within_groups ? ', within groups' : ''})`, cls: 'text', span: 2 }]);
-      }
       PD.table(view, 'Scores over repeats (mean, SD and percentiles over repeats: a spread over resampling, not a confidence interval)',
         ['', 'mean', 'SD', '2.5th percentile', '97.5th percentile'], rows);
+    },
+    // Chance and the shuffle control in a table of their own: each value under its own heading, never a merged
+    // cell under a percentile's heading.
+    (view, r) => {
+      const s = r.shuffle;
+      const rows = [
+        [{ text: 'chance level', cls: 'text', header: true }, pct(r.chance.level), { text: `1 / ${r.classes.length} classes`, cls: 'text' }],
+        [{ text: 'binomial threshold', cls: 'text', header: true }, pct(r.chance.threshold),
+          { text: `binomial, α = ${r.chance.alpha}, ${r.chance.test_trials} test trials`, cls: 'text' }],
+      ];
+      if (s.p_value !== null) {
+        const how = `${s.count} shuffles × ${s.repeats_each} repeats${s.within_groups ? ', within groups' : ''}`;
+        rows.push([{ text: 'shuffled labels, mean (SD)', cls: 'text', header: true }, `${pct(s.null_mean)} (${pct(s.null_sd)})`, { text: how, cls: 'text' }]);
+        rows.push([{ text: 'shuffled labels, 95th percentile', cls: 'text', header: true }, pct(s.null_p95), { text: how, cls: 'text' }]);
+        rows.push([{ text: 'p (observed against shuffles)', cls: 'text', header: true }, s.p_value.toPrecision(3), { text: `observed ${pct(s.observed)}`, cls: 'text' }]);
+      }
+      PD.table(view, 'Chance and the shuffle control', ['', 'value', 'from'], rows);
     },
     (view, r) => PD.table(view, 'Per-class recall (mean over repeats)', ['class', 'trials', 'recall'],
       r.classes.map((c, i) => [{ text: c, cls: 'text' }, r.class_counts[i], pct(r.summary.recall[i])])),
