@@ -121,6 +121,7 @@ const handlers = {
     const data = ensureLoaded(msg);
     const plan = JSON.parse(data.prepare(msg.kind, msg.recipe, msg.options));
     let sampleMs = null;
+    if (!msg.sample) data.forget();
     if (msg.sample) {
       // Timed twice when quick: the first run of a task also pays for the engine's warm-up.
       let t0 = performance.now();

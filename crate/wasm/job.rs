@@ -118,6 +118,12 @@ impl Loaded {
         Ok(out.to_string())
     }
 
+    /// Forget the last prepared plan without running it: a plan owns a copy of the decoded data, which a large
+    /// file cannot afford to keep twice through a run.
+    pub fn forget(&mut self) {
+        self.prepared = None;
+    }
+
     /// Run the last prepared plan's first task (the page times it), then forget the plan. False when there is
     /// none.
     pub fn sample(&mut self) -> Result<bool, JsValue> {
