@@ -22,7 +22,7 @@ async function open() {
   page.on('pageerror', (e) => problems.push('page: ' + e.message));
   await page.setViewport({ width: 1366, height: 900 });
   await page.goto('file://' + join(ROOT, 'dist', 'popdecode.html'));
-  await page.waitForFunction(() => document.body.dataset.ready === 'true', { timeout: 60_000 });
+  await page.waitForFunction(() => document.body.dataset.ready === 'true', { timeout: 300_000 });
   return { page, problems };
 }
 
@@ -31,10 +31,10 @@ const set = (page, id, value) => page.evaluate((i, v) => {
 }, id, String(value));
 
 async function run(page, button = '#start') {
-  await page.waitForFunction((b) => !document.querySelector(b).disabled, { timeout: 60_000 }, button);
+  await page.waitForFunction((b) => !document.querySelector(b).disabled, { timeout: 300_000 }, button);
   const before = await page.evaluate(() => window.PD.state.records.length);
   await page.click(button);
-  await page.waitForFunction((n) => window.PD.state.records.length > n, { timeout: 120_000 }, before);
+  await page.waitForFunction((n) => window.PD.state.records.length > n, { timeout: 300_000 }, before);
   return page.evaluate(() => { const r = window.PD.state.records.at(-1); return { json: r.result.report_json, recipe: r.recipe, headline: r.result.headline }; });
 }
 
@@ -55,7 +55,7 @@ test('Firefox ESR: the offline file decodes a trial table and a time course with
 
   await page.click('input[name=kind][value=events]');
   await page.click('#example-events');
-  await page.waitForFunction(() => /Trials per class/.test(document.getElementById('classes').textContent), { timeout: 60_000 });
+  await page.waitForFunction(() => /Trials per class/.test(document.getElementById('classes').textContent), { timeout: 300_000 });
   await set(page, 'repeats', 3);
   await set(page, 'shuffles', 9);
   await set(page, 'width', 0.2);

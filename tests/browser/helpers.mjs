@@ -35,6 +35,9 @@ export async function closeAll() {
   await Promise.all(open.splice(0).map((c) => c.close().catch(() => {})));
 }
 
+/// Per-test time limit for tests that run several analyses (node's --test-timeout is the default for the others).
+export const SLOW = { timeout: 1_800_000 };
+
 export async function browser() {
   const profile = mkdtempSync(join(tmpdir(), 'popdecode-chromium-'));
   const context = await chromium.launchPersistentContext(profile, {
@@ -45,6 +48,8 @@ export async function browser() {
       '--disable-background-networking', '--disable-component-update', '--disable-sync'],
   });
   open.push(context);
+  // The machine is shared with other builds: every wait is generous, because what the tests measure is never time.
+  context.setDefaultTimeout(300_000);
   const requests = [];
   context.on('request', (r) => requests.push(r.url()));
   const page = context.pages()[0] || await context.newPage();
@@ -79,7 +84,7 @@ export async function quickSettings(page, { repeats = 4, shuffles = 6 } = {}) {
 
 /// Wait until the page has checked the current settings against the data and a run can start.
 export async function whenReady(page, button = '#start') {
-  await page.waitForFunction((b) => !document.querySelector(b).disabled, button, { timeout: 60_000 });
+  await page.waitForFunction((b) => !document.querySelector(b).disabled, button, { timeout: 300_000 });
 }
 
 /// Press a run button and wait for the new record to be on view; returns its headline.
@@ -89,9 +94,9 @@ export async function runAndWait(page, button = '#start') {
   await page.click(button);
   // A run the page expects to be long asks first: say yes.
   await page.waitForFunction((n) => document.querySelectorAll('#records li').length > n || !document.getElementById('confirm').hidden,
-    before, { timeout: 120_000 });
+    before, { timeout: 600_000 });
   if (await page.isVisible('#confirm')) await page.click('#confirm-yes');
-  await page.waitForFunction((n) => document.querySelectorAll('#records li').length > n, before, { timeout: 120_000 });
+  await page.waitForFunction((n) => document.querySelectorAll('#records li').length > n, before, { timeout: 600_000 });
   const headline = page.locator('#views .view .headline');
   return (await headline.count()) ? headline.first().textContent() : '';
 }

@@ -106,6 +106,20 @@
   };
   const LARGE = 200e6;
 
+  // The memory a run may use: half of what the browser says the device has (Chromium reports at most 8 GB;
+  // Firefox says nothing, read as 8 GB), so at most 4 GB, and never more than a 32-bit wasm instance (4 GiB) per
+  // worker. With large data the pool is smaller than the cores, so the run fits: each run worker holds its own
+  // copy of the matrix (browsers share memory between workers only on cross-origin-isolated pages, which the
+  // offline file cannot be).
+  PD.memoryBudget = () => (navigator.deviceMemory || 8) * 1e9 / 2;
+  PD.workersFor = function (header, tasks) {
+    const wanted = Math.max(1, Math.min(PD.poolSize(), tasks));
+    const mem = PD.memoryNeed(header, 1);
+    if (!mem) return { workers: wanted, limited: false };
+    const fit = Math.max(1, Math.floor((PD.memoryBudget() - mem.matrix) / mem.perWorker));
+    return { workers: Math.min(wanted, fit), limited: fit < wanted, wanted };
+  };
+
   function drawPlan() {
     const box = $('classes');
     box.replaceChildren();
@@ -160,12 +174,14 @@
     }
 
     const fits = plan.fits.reduce((a, b) => a + b, 0);
-    const workers = Math.min(PD.poolSize(), plan.tasks.length);
+    const pool = PD.workersFor(c.header, plan.tasks.length);
+    const workers = pool.workers;
     const seconds = c.msPerFit !== undefined ? fits * c.msPerFit / 1000 / workers : null;
     const mem = PD.memoryNeed(c.header, workers);
     c.seconds = seconds;
     c.memory = mem && mem.total > LARGE ? mem : null;
     estimate.textContent = `${PD.count(fits, 'fit')} in ${PD.count(plan.tasks.length, 'task')} on ${PD.count(workers, 'worker')}` +
+      (pool.limited ? ` (not ${pool.wanted}: each worker holds its own copy of the data, and more would not fit in memory)` : '') +
       (seconds !== null ? `: about ${PD.seconds(seconds)} on this computer` : '') +
       (c.memory ? `; needs about ${PD.bytes(c.memory.total)} of memory (${PD.bytes(c.memory.perWorker)} per worker)` : '') + '.';
   }

@@ -120,7 +120,7 @@
     const queue = plan.tasks.map((task, i) => ({ task, fits: plan.fits[i] }));
     const fitsTotal = plan.fits.reduce((a, b) => a + b, 0);
     const started = performance.now();
-    const n = Math.min(PD.poolSize(), queue.length);
+    const n = PD.workersFor(header ? JSON.parse(header) : null, queue.length).workers;
     const outcomes = [];
     let next = 0;
     let fitsDone = 0;
