@@ -15,7 +15,10 @@ const guard = (name, text) => {
 
 const html = read('www/index.html');
 const glue = guard('glue', read('www/pkg/popdecode.js'));
-const app = guard('app.js', read('www/app.js'));
+// The page's scripts, in the order index.html loads them (after the glue).
+const sources = [...html.matchAll(/<script src="(js\/[^"]+)"><\/script>/g)].map((m) => m[1]);
+if (!sources.length) throw new Error('index.html lists no scripts under js/');
+const app = sources.map((p) => guard(p, read(`www/${p}`))).join('\n');
 const worker = guard('worker.js', read('www/worker.js'));
 const css = read('www/style.css');
 const wasm = readFileSync(new URL('../www/pkg/popdecode_bg.wasm', import.meta.url)).toString('base64');

@@ -55,7 +55,7 @@ fi
 
 if [ -x scripts/build-web.sh ] && [ -d tests/browser ]; then
   echo "== browser tests"
-  (cd tests/browser && { [ -d node_modules/playwright-core ] || npm ci --no-audit --no-fund --silent; }) \
+  (cd tests/browser && { [ -d node_modules/playwright-core ] && [ -d node_modules/puppeteer-core ] && [ -d node_modules/axe-core ] || npm ci --no-audit --no-fund --silent; }) \
     > test-output/npm.log 2>&1 || echo "npm install failed (see test-output/npm.log)"
   cargo build --release --quiet --bin popdecode
   if scripts/build-web.sh > test-output/build-web.log 2>&1; then

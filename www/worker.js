@@ -1,17 +1,37 @@
-// One decoding worker: its own wasm instance, running the tasks the pool hands it for any kind of analysis; or,
-// once, reading a dropped NWB file into the extract the page and the pool decode from.
-// Served page: the wasm-bindgen glue is loaded with importScripts. Offline file: the glue is concatenated in
-// front of this script inside a Blob, so `wasm_bindgen` already exists.
+// The page's workers, one script for two roles (www/js/workers.js makes them):
+// * the data worker holds the loaded files, reads and inspects them, keeps them decoded (wasm `Loaded`) for the
+//   current columns, prepares plans, hands the decoded matrix to run workers and finishes runs; an NWB file is
+//   read lazily here into its extract;
+// * a run worker gets the decoded data once (`init`: header and matrix, the matrix's buffer transferred) and
+//   answers task messages with outcome JSON.
+// Served page: the wasm-bindgen glue is loaded with importScripts. Offline file: the glue is concatenated in front
+// of this script inside a Blob, so `wasm_bindgen` already exists.
 /* global wasm_bindgen, importScripts */
 'use strict';
 if (typeof wasm_bindgen === 'undefined') {
   importScripts('pkg/popdecode.js');
 }
-let runner = null;
 
-// An NWB file is read lazily from the dropped File (FileReaderSync works in workers only): the core asks for the
-// pieces it needs through popdecodeReadAt. The HDF5 reader asks for many small pieces of metadata, so small reads
-// are served from a cache of 64 KiB blocks; large reads (spike times, hashing) go straight to the file.
+let started = null;
+function startWasm(module) {
+  if (!started) started = wasm_bindgen({ module_or_path: module }).then(() => wasm_bindgen.start());
+  return started;
+}
+
+function failure(e) {
+  // A trap (RuntimeError) means a bug in the core: report the panic message it recorded.
+  let message = String(e && e.message !== undefined ? e.message : e);
+  if (e instanceof WebAssembly.RuntimeError) {
+    let detail = '';
+    try { detail = wasm_bindgen.last_panic(); } catch (_) { /* instance unusable */ }
+    message = 'internal error in the decoding core' + (detail ? ': ' + detail : ' (' + message + ')');
+  }
+  return message;
+}
+
+// ---------- NWB: read lazily from the dropped File (FileReaderSync works in workers only) ----------
+// The core asks for the pieces it needs through popdecodeReadAt. The HDF5 reader asks for many small pieces of
+// metadata, so small reads are served from a cache of 64 KiB blocks; large reads go straight to the file.
 let dropped = null;
 let bytesRead = 0;
 const BLOCK = 65536;
@@ -41,37 +61,111 @@ self.popdecodeReadAt = (offset, length) => {
   return out;
 };
 
-function failure(e) {
-  // A trap (RuntimeError) means a bug in the core: report the panic message it recorded.
-  let message = String(e && e.message !== undefined ? e.message : e);
-  if (e instanceof WebAssembly.RuntimeError) {
-    let detail = '';
-    try { detail = wasm_bindgen.last_panic(); } catch (_) { /* instance unusable */ }
-    message = 'internal error in the decoding core' + (detail ? ': ' + detail : ' (' + message + ')');
-  }
-  return message;
+// ---------- the data worker ----------
+// slots: 'table' (trial table or binned table), 'events' (spike events), 'trials' (the events' trial table),
+// 'nwb' (the extract): each { name, blob }.
+const slots = {};
+let loaded = null; // { key, value: wasm Loaded }
+const read = (blob) => new Uint8Array(new FileReaderSync().readAsArrayBuffer(blob));
+// The first part of a file, cut at a line end: enough to show the columns of a spike events file of any size.
+function head(blob) {
+  const LIMIT = 256 * 1024;
+  if (blob.size <= LIMIT) return read(blob);
+  const bytes = read(blob.slice(0, LIMIT));
+  const cut = bytes.lastIndexOf(10);
+  return bytes.subarray(0, cut > 0 ? cut + 1 : LIMIT);
 }
+
+// The files as the core's bridge takes them: (name, bytes) twice; the second is empty for one file.
+function fileArgs(dataKind) {
+  const one = (s) => [s.name, read(s.blob), '', new Uint8Array(0)];
+  if (dataKind === 'events') return [slots.events.name, read(slots.events.blob), slots.trials.name, read(slots.trials.blob)];
+  return one(dataKind === 'nwb' ? slots.nwb : slots.table);
+}
+
+function ensureLoaded(msg) {
+  if (loaded && loaded.key === msg.key) return loaded.value;
+  if (loaded) { loaded.value.free(); loaded = null; }
+  const value = new wasm_bindgen.Loaded(msg.kind, ...fileArgs(msg.dataKind), msg.recipe);
+  loaded = { key: msg.key, value };
+  return value;
+}
+
+const handlers = {
+  init: async (msg) => { await startWasm(msg.module); return true; },
+  // A file into a slot, and a first look at it.
+  put: (msg) => {
+    if (loaded) { loaded.value.free(); loaded = null; }
+    if (msg.slot === 'nwb') {
+      dropped = msg.file; bytesRead = 0; blocks.clear();
+      const extract = wasm_bindgen.extract_nwb(dropped.name, dropped.size);
+      const info = JSON.parse(wasm_bindgen.inspect_nwb(dropped.name, extract));
+      slots.nwb = { name: dropped.name, blob: new Blob([extract]) };
+      dropped = null; blocks.clear();
+      return { info, read: bytesRead - msg.file.size };
+    }
+    const bytes = msg.slot === 'events' ? head(msg.file) : read(msg.file);
+    const info = JSON.parse(wasm_bindgen.inspect(msg.file.name, bytes));
+    slots[msg.slot] = { name: msg.file.name, blob: msg.file };
+    return { info };
+  },
+  // Just the header and first rows of a file, without keeping it (to tell which of two dropped files is which).
+  peek: (msg) => JSON.parse(wasm_bindgen.inspect(msg.file.name, head(msg.file))),
+  swap: () => {
+    [slots.events, slots.trials] = [slots.trials, slots.events];
+    if (loaded) { loaded.value.free(); loaded = null; }
+    return true;
+  },
+  drop: (msg) => { delete slots[msg.slot]; if (loaded) { loaded.value.free(); loaded = null; } return true; },
+  prepare: (msg) => {
+    const data = ensureLoaded(msg);
+    const plan = JSON.parse(data.prepare(msg.kind, msg.recipe, msg.options));
+    let sampleMs = null;
+    if (!msg.sample) data.forget();
+    if (msg.sample) {
+      // Timed twice when quick: the first run of a task also pays for the engine's warm-up.
+      let t0 = performance.now();
+      if (data.sample()) sampleMs = performance.now() - t0;
+      if (sampleMs !== null && sampleMs < 200) {
+        data.prepare(msg.kind, msg.recipe, msg.options);
+        t0 = performance.now();
+        data.sample();
+        sampleMs = performance.now() - t0;
+      }
+    }
+    return { plan, sampleMs, header: msg.withHeader ? JSON.parse(data.header()) : null };
+  },
+  header: (msg) => ensureLoaded(msg).header(),
+  matrix: (msg) => {
+    const m = ensureLoaded(msg).matrix();
+    return { value: m, transfer: [m.buffer] };
+  },
+  finish: (msg) => JSON.parse(ensureLoaded(msg).finish(msg.kind, msg.recipe, msg.options, msg.outcomes)),
+};
+
+// ---------- a run worker ----------
+let runner = null;
+const runHandlers = {
+  'run-init': async (msg) => {
+    await startWasm(msg.module);
+    runner = new wasm_bindgen.Runner(msg.kind, msg.header, msg.matrix, msg.recipe, msg.options);
+    return true;
+  },
+  task: (msg) => runner.run(JSON.stringify(msg.task)),
+};
 
 self.onmessage = async (event) => {
   const msg = event.data;
+  const handler = handlers[msg.type] || runHandlers[msg.type];
   try {
-    if (msg.type === 'init') {
-      await wasm_bindgen({ module_or_path: msg.module });
-      wasm_bindgen.start();
-      runner = new wasm_bindgen.Runner(msg.kind, ...msg.files, msg.recipe, msg.options);
-      self.postMessage({ type: 'ready' });
-    } else if (msg.type === 'extract') {
-      // One NWB file into its extract; `read` is what the tables took (the hash reads every byte once more).
-      await wasm_bindgen({ module_or_path: msg.module });
-      wasm_bindgen.start();
-      dropped = msg.file;
-      const bytes = wasm_bindgen.extract_nwb(dropped.name, dropped.size);
-      self.postMessage({ type: 'extracted', bytes, read: bytesRead - dropped.size }, [bytes.buffer]);
-    } else if (msg.type === 'task') {
-      const outcome = runner.run(JSON.stringify(msg.task));
-      self.postMessage({ type: 'done', id: msg.id, outcome });
-    }
+    // Messages can arrive while the core is still starting (the `init` message's await): they wait for it, in
+    // order of arrival.
+    if (started && msg.type !== 'init') await started;
+    let value = await handler(msg);
+    let transfer = [];
+    if (value && value.transfer) { transfer = value.transfer; value = value.value; }
+    self.postMessage({ id: msg.id, ok: true, value }, transfer);
   } catch (e) {
-    self.postMessage({ type: 'error', message: failure(e) });
+    self.postMessage({ id: msg.id, ok: false, error: failure(e) });
   }
 };

@@ -12,61 +12,200 @@ use crate::recipe::Columns;
 use ndarray::Array2;
 
 /// Parse and validate a trial table (one row per trial).
+///
+/// Read in two passes over the bytes without keeping the cells as text (a `String` per cell costs several times the
+/// file, which a page with a large file cannot afford): the first counts numbers and text in every column (to
+/// choose the features) and checks the whole file's structure, the second parses the chosen cells into the matrix.
+/// It gives what [`from_table`] gives on the parsed [`Table`], messages included (tests below and
+/// tests/bad_input.rs), because both run the same row and column code.
 pub fn read(source: &str, bytes: &[u8], columns: &Columns) -> Result<Dataset> {
-    let table = Table::parse(source, bytes)?;
-    let mut ds = from_table(&table, columns)?;
+    let mut counts: Vec<(usize, usize)> = Vec::new();
+    let mut lines = Vec::new();
+    let decimal_comma = std::cell::Cell::new(false);
+    let header = table::stream(
+        source,
+        bytes,
+        |h| {
+            decimal_comma.set(h.delimiter == b';');
+            Ok(())
+        },
+        |line, record| {
+            lines.push(line);
+            counts.resize(record.len(), (0, 0));
+            for (c, cell) in record.iter().enumerate() {
+                match table::parse_number(cell, decimal_comma.get()) {
+                    Cell::Number(_) | Cell::TooLarge(_) => counts[c].0 += 1,
+                    Cell::NotNumber => counts[c].1 += 1,
+                    Cell::Missing => {}
+                }
+            }
+            Ok(())
+        },
+    )?;
+    // The header as a table without rows: column look-ups and their messages are the table's own.
+    let shape = Table {
+        source: source.to_string(),
+        headers: header.headers,
+        rows: Vec::new(),
+        lines,
+        delimiter: header.delimiter,
+        decimal_comma: decimal_comma.get(),
+    };
+    let chosen = Chosen::new(&shape, columns, &|c| counts[c])?;
+    let mut rows = Rows::new(&shape, columns, chosen);
+    let mut r = 0;
+    table::stream(
+        source,
+        bytes,
+        |_| Ok(()),
+        |_, record| {
+            let cells: Vec<&str> = record.iter().collect();
+            rows.take(r, &cells)?;
+            r += 1;
+            Ok(())
+        },
+    )?;
+    // Text of a cell (for a message about a missing value found after the rows were read): read again.
+    let cell_text = |row: usize, col: usize| {
+        let mut text = String::new();
+        let mut r = 0;
+        let _ = table::stream(
+            source,
+            bytes,
+            |_| Ok(()),
+            |_, record| {
+                if r == row {
+                    text = record.get(col).unwrap_or("").to_string();
+                }
+                r += 1;
+                Ok(())
+            },
+        );
+        text
+    };
+    let mut ds = rows.finish(&cell_text)?;
     ds.sha256 = sha256_hex(bytes);
     Ok(ds)
 }
 
 /// Build from an already parsed table (the SHA-256 is left empty).
 pub fn from_table(table: &Table, columns: &Columns) -> Result<Dataset> {
-    let src = &table.source;
-    let label_col = table.column(&columns.label)?;
-    if columns.pseudo.is_some() && columns.group.is_some() {
-        return Err(Error::Design(format!(
-            "{src}: a session column for pseudo-populations is also the group column; name only one"
-        )));
-    }
-    // The session column of a pseudo-population is read as the group column: shuffles stay within sessions.
-    let group_col = columns
-        .group
-        .as_deref()
-        .or(columns.pseudo.as_deref())
-        .map(|g| table.column(g))
-        .transpose()?;
-    if group_col == Some(label_col) {
-        return Err(Error::Design(format!(
-            "{src}: the group column and the label column are both '{}'; choose different columns",
-            columns.label
-        )));
-    }
-    let (feature_cols, skipped) = choose_features(table, columns, label_col, group_col)?;
-
-    let mut x = Vec::with_capacity(table.rows.len() * feature_cols.len());
-    let (mut labels, mut groups, mut dropped) = (Vec::new(), Vec::new(), Vec::new());
-    'rows: for (r, row) in table.rows.iter().enumerate() {
-        let mut values = Vec::with_capacity(feature_cols.len());
-        let text_cols = std::iter::once(label_col).chain(group_col);
-        for c in text_cols {
-            if table::is_missing_token(&row[c]) {
-                if columns.drop_missing {
-                    dropped.push(table.lines[r]);
-                    continue 'rows;
-                }
-                return Err(missing(table, r, c));
+    let counts = |c: usize| {
+        let (mut numbers, mut text) = (0usize, 0usize);
+        for r in 0..table.rows.len() {
+            match table.cell(r, c) {
+                Cell::Number(_) | Cell::TooLarge(_) => numbers += 1,
+                Cell::NotNumber => text += 1,
+                Cell::Missing => {}
             }
         }
-        for &c in &feature_cols {
-            match table.cell(r, c) {
+        (numbers, text)
+    };
+    let chosen = Chosen::new(table, columns, &counts)?;
+    let mut rows = Rows::new(table, columns, chosen);
+    for (r, row) in table.rows.iter().enumerate() {
+        let cells: Vec<&str> = row.iter().map(String::as_str).collect();
+        rows.take(r, &cells)?;
+    }
+    rows.finish(&|r, c| table.rows[r][c].clone())
+}
+
+/// The columns a recipe picks in a table: label, group (or pseudo-population session) and features.
+struct Chosen {
+    label: usize,
+    group: Option<usize>,
+    features: Vec<usize>,
+    skipped: Vec<String>,
+}
+
+impl Chosen {
+    /// `counts(c)`: how many cells of column `c` are numbers and how many text (for choosing the features).
+    fn new(
+        table: &Table,
+        columns: &Columns,
+        counts: &dyn Fn(usize) -> (usize, usize),
+    ) -> Result<Chosen> {
+        let src = &table.source;
+        let label_col = table.column(&columns.label)?;
+        if columns.pseudo.is_some() && columns.group.is_some() {
+            return Err(Error::Design(format!(
+                "{src}: a session column for pseudo-populations is also the group column; name only one"
+            )));
+        }
+        // The session column of a pseudo-population is read as the group column: shuffles stay within sessions.
+        let group_col = columns
+            .group
+            .as_deref()
+            .or(columns.pseudo.as_deref())
+            .map(|g| table.column(g))
+            .transpose()?;
+        if group_col == Some(label_col) {
+            return Err(Error::Design(format!(
+                "{src}: the group column and the label column are both '{}'; choose different columns",
+                columns.label
+            )));
+        }
+        let (features, skipped) = choose_features(table, columns, label_col, group_col, counts)?;
+        Ok(Chosen {
+            label: label_col,
+            group: group_col,
+            features,
+            skipped,
+        })
+    }
+}
+
+/// The rows of a table taken one at a time into the matrix, labels and groups (dropping or refusing missing
+/// values), then finished into a [`Dataset`]. `table` gives the source, header, lines and decimal convention; its
+/// rows are not read here.
+struct Rows<'a> {
+    table: &'a Table,
+    columns: &'a Columns,
+    chosen: Chosen,
+    x: Vec<f64>,
+    labels: Vec<String>,
+    groups: Vec<String>,
+    dropped: Vec<u64>,
+}
+
+impl<'a> Rows<'a> {
+    fn new(table: &'a Table, columns: &'a Columns, chosen: Chosen) -> Rows<'a> {
+        Rows {
+            table,
+            columns,
+            x: Vec::with_capacity(table.lines.len() * chosen.features.len()),
+            chosen,
+            labels: Vec::new(),
+            groups: Vec::new(),
+            dropped: Vec::new(),
+        }
+    }
+
+    /// Row `r` of the file (0 = the first data row), as its cells.
+    fn take(&mut self, r: usize, row: &[&str]) -> Result<()> {
+        let (table, columns) = (self.table, self.columns);
+        let (label_col, group_col) = (self.chosen.label, self.chosen.group);
+        let mut values = Vec::with_capacity(self.chosen.features.len());
+        let text_cols = std::iter::once(label_col).chain(group_col);
+        for c in text_cols {
+            if table::is_missing_token(row[c]) {
+                if columns.drop_missing {
+                    self.dropped.push(table.lines[r]);
+                    return Ok(());
+                }
+                return Err(missing(table, r, c, row[c]));
+            }
+        }
+        for &c in &self.chosen.features {
+            match table::parse_number(row[c], table.decimal_comma) {
                 Cell::Number(v) => values.push(v),
                 // Checked below against the sessions: a neuron is empty outside its own session.
                 Cell::Missing if columns.pseudo.is_some() => values.push(f64::NAN),
                 Cell::Missing if columns.drop_missing => {
-                    dropped.push(table.lines[r]);
-                    continue 'rows;
+                    self.dropped.push(table.lines[r]);
+                    return Ok(());
                 }
-                Cell::Missing => return Err(missing(table, r, c)),
+                Cell::Missing => return Err(missing(table, r, c, row[c])),
                 Cell::TooLarge(v) => {
                     return Err(Error::Input(format!(
                         "{}: {}",
@@ -88,83 +227,105 @@ pub fn from_table(table: &Table, columns: &Columns) -> Result<Dataset> {
                 }
             }
         }
-        x.extend(values);
-        labels.push(row[label_col].clone());
+        self.x.extend(values);
+        self.labels.push(row[label_col].to_string());
         if let Some(g) = group_col {
-            groups.push(row[g].clone());
+            self.groups.push(row[g].to_string());
         }
+        Ok(())
     }
-    let n = labels.len();
-    if n == 0 {
-        return Err(Error::Input(format!(
-            "{src}: every trial has a missing value; nothing is left to decode"
-        )));
-    }
-    let classes = labels::sorted_levels(&labels);
-    if classes.len() < 2 {
-        return Err(Error::Design(format!(
-            "{src}: column '{}' holds only one class ('{}'); decoding needs at least two conditions",
-            columns.label, classes[0]
-        )));
-    }
-    let y = labels::codes(&labels, &classes);
-    let (groups, group_names) = match group_col {
-        Some(_) => {
-            let names = labels::sorted_levels(&groups);
-            (Some(labels::codes(&groups, &names)), names)
-        }
-        None => (None, Vec::new()),
-    };
-    let p = feature_cols.len();
-    let mut warnings = counter_columns(&x, p, &feature_cols, table);
-    if !skipped.is_empty() {
-        warnings.push(format!(
-            "{} not used as features because {} mostly text: {}",
-            if skipped.len() == 1 {
-                "this column is"
-            } else {
-                "these columns are"
-            },
-            if skipped.len() == 1 {
-                "it holds"
-            } else {
-                "they hold"
-            },
-            quoted_list(&skipped)
-        ));
-    }
-    let pseudo = match (&columns.pseudo, &groups) {
-        (Some(_), Some(sessions)) => Some(session_of_features(
+
+    /// The dataset, once every row is taken. `cell_text(r, c)` gives a cell's text for a message.
+    fn finish(self, cell_text: &dyn Fn(usize, usize) -> String) -> Result<Dataset> {
+        let Rows {
             table,
-            &x,
-            p,
-            &feature_cols,
-            sessions,
-            &group_names,
-        )?),
-        _ => None,
-    };
-    Ok(Dataset {
-        pseudo,
-        source: src.clone(),
-        sha256: String::new(),
-        delimiter: table.delimiter_name().to_string(),
-        decimal_comma: table.decimal_comma,
-        x: Array2::from_shape_vec((n, p), x).expect("n × p values were collected"),
-        y,
-        classes,
-        groups,
-        group_names,
-        feature_names: feature_cols
-            .iter()
-            .map(|&c| table.headers[c].clone())
-            .collect(),
-        label_column: table.headers[label_col].clone(),
-        group_column: group_col.map(|g| table.headers[g].clone()),
-        dropped_lines: dropped,
-        skipped_columns: skipped,
-        warnings,
-    })
+            columns,
+            chosen,
+            x,
+            labels,
+            groups,
+            dropped,
+        } = self;
+        let src = &table.source;
+        let Chosen {
+            label: label_col,
+            group: group_col,
+            features: feature_cols,
+            skipped,
+        } = chosen;
+        let n = labels.len();
+        if n == 0 {
+            return Err(Error::Input(format!(
+                "{src}: every trial has a missing value; nothing is left to decode"
+            )));
+        }
+        let classes = labels::sorted_levels(&labels);
+        if classes.len() < 2 {
+            return Err(Error::Design(format!(
+                "{src}: column '{}' holds only one class ('{}'); decoding needs at least two conditions",
+                columns.label, classes[0]
+            )));
+        }
+        let y = labels::codes(&labels, &classes);
+        let (groups, group_names) = match group_col {
+            Some(_) => {
+                let names = labels::sorted_levels(&groups);
+                (Some(labels::codes(&groups, &names)), names)
+            }
+            None => (None, Vec::new()),
+        };
+        let p = feature_cols.len();
+        let mut warnings = counter_columns(&x, p, &feature_cols, table);
+        if !skipped.is_empty() {
+            warnings.push(format!(
+                "{} not used as features because {} mostly text: {}",
+                if skipped.len() == 1 {
+                    "this column is"
+                } else {
+                    "these columns are"
+                },
+                if skipped.len() == 1 {
+                    "it holds"
+                } else {
+                    "they hold"
+                },
+                quoted_list(&skipped)
+            ));
+        }
+        let pseudo = match (&columns.pseudo, &groups) {
+            (Some(_), Some(sessions)) => Some(session_of_features(
+                table,
+                &x,
+                p,
+                &feature_cols,
+                sessions,
+                &group_names,
+                cell_text,
+            )?),
+            _ => None,
+        };
+        Ok(Dataset {
+            pseudo,
+            source: src.clone(),
+            sha256: String::new(),
+            delimiter: table.delimiter_name().to_string(),
+            decimal_comma: table.decimal_comma,
+            x: Array2::from_shape_vec((n, p), x).expect("n × p values were collected"),
+            y,
+            classes,
+            groups,
+            group_names,
+            feature_names: feature_cols
+                .iter()
+                .map(|&c| table.headers[c].clone())
+                .collect(),
+            label_column: table.headers[label_col].clone(),
+            group_column: group_col.map(|g| table.headers[g].clone()),
+            dropped_lines: dropped,
+            skipped_columns: skipped,
+            warnings,
+        })
+    }
 }
 
 /// For pseudo-populations: the one session each feature was recorded in. Every feature must have values in all the
@@ -176,6 +337,7 @@ fn session_of_features(
     feature_cols: &[usize],
     sessions: &[usize],
     names: &[String],
+    cell_text: &dyn Fn(usize, usize) -> String,
 ) -> Result<Vec<usize>> {
     let n = sessions.len();
     (0..p)
@@ -199,18 +361,18 @@ fn session_of_features(
                 )));
             }
             if let Some(i) = (0..n).find(|&i| sessions[i] == s && x[i * p + j].is_nan()) {
-                return Err(missing(table, i, feature_cols[j]));
+                return Err(missing(table, i, feature_cols[j], &cell_text(i, feature_cols[j])));
             }
             Ok(s)
         })
         .collect()
 }
 
-fn missing(table: &Table, r: usize, c: usize) -> Error {
-    let shown = if table.rows[r][c].is_empty() {
+fn missing(table: &Table, r: usize, c: usize, text: &str) -> Error {
+    let shown = if text.is_empty() {
         "empty cell".to_string()
     } else {
-        format!("'{}'", table.rows[r][c])
+        format!("'{text}'")
     };
     Error::Input(format!(
         "{}: {shown} is a missing value; fill it in, or choose to drop trials with missing values (--drop-missing)",
@@ -227,6 +389,7 @@ fn choose_features(
     columns: &Columns,
     label_col: usize,
     group_col: Option<usize>,
+    counts: &dyn Fn(usize) -> (usize, usize),
 ) -> Result<(Vec<usize>, Vec<String>)> {
     let src = &table.source;
     if let Some(names) = &columns.features {
@@ -262,14 +425,7 @@ fn choose_features(
         if c == label_col || Some(c) == group_col || ignored.contains(&c) {
             continue;
         }
-        let (mut numbers, mut text) = (0usize, 0usize);
-        for r in 0..table.rows.len() {
-            match table.cell(r, c) {
-                Cell::Number(_) | Cell::TooLarge(_) => numbers += 1,
-                Cell::NotNumber => text += 1,
-                Cell::Missing => {}
-            }
-        }
+        let (numbers, text) = counts(c);
         if numbers > text {
             cols.push(c);
         } else {
@@ -333,6 +489,97 @@ mod tests {
         assert_eq!(ds.skipped_columns, vec!["note"]);
         assert_eq!(ds.x[[2, 1]], 6.0);
         assert_eq!(ds.sha256.len(), 64);
+    }
+
+    /// The streaming read gives what the parsed table gives, data and messages alike, on good and bad files.
+    #[test]
+    fn streaming_read_is_the_table_read() {
+        let with = |label: &str, f: &dyn Fn(&mut Columns)| {
+            let mut c = cols(label);
+            f(&mut c);
+            c
+        };
+        let cases: Vec<(&str, Columns)> = vec![
+            (
+                "odour,session,n1,n2,note\nb,s1,1,2,x\na,s2,3,4,y\nb,s2,5,6,z\n",
+                with("odour", &|c| c.group = Some("session".into())),
+            ),
+            ("odour;n1;n2\na;1,5;2\nb;3;4,25\na;5;6\n", cols("odour")),
+            (
+                "\u{feff}odour,n1,n2\r\na,1,2\r\n\r\nb,3,4\r\n\nb,5,6\n\n",
+                cols("odour"),
+            ),
+            ("odour,n1,n2\na,1,\nb,3,4\na,5,6\n", cols("odour")),
+            (
+                "odour,n1,n2\na,1,NA\nb,3,4\na,5,6\nb,7,8\n",
+                with("odour", &|c| c.drop_missing = true),
+            ),
+            (
+                "odour,n1,n2\na,1,2\n,3,4\na,5,6\nb,7,8\n",
+                with("odour", &|c| c.drop_missing = true),
+            ),
+            ("odour,n1,n2\na,1,2\nb,3,x\na,5,6\nb,7,8\n", cols("odour")),
+            ("odour,n1,n2\na,1,2\nb,3,\"4,5\"\na,5,6\n", cols("odour")),
+            ("odour,n1,n2\na,1,\nb,3,4\na,5\n", cols("odour")),
+            ("odour,n1,n2\na,1,2\na,3,4\n", cols("odour")),
+            ("odour,n1,n2\na,1,2\nb,3,4\n", cols("smell")),
+            (
+                "odour,n1,n2\na,1,2\nb,3,4\n",
+                with("odour", &|c| c.features = Some(vec!["n2".into()])),
+            ),
+            (
+                "odour,n1,n2\na,1,2\nb,3,4\n",
+                with("odour", &|c| c.features = Some(vec!["n3".into()])),
+            ),
+            (
+                "odour,n1,n2\na,1,2\nb,3,4\n",
+                with("odour", &|c| c.ignore = vec!["n1".into()]),
+            ),
+            (
+                "odour,trial,n1\na,1,2\nb,2,4\na,3,1\nb,4,0\n",
+                cols("odour"),
+            ),
+            ("odour,a,b\nx,p,q\ny,r,s\n", cols("odour")),
+            (
+                "odour,n1,n2\nNA,1,2\nNA,3,4\n",
+                with("odour", &|c| c.drop_missing = true),
+            ),
+            (
+                "odour,n1,n2\na,1,2\nb,3,4\n",
+                with("odour", &|c| c.group = Some("odour".into())),
+            ),
+            // Pseudo-populations: a good one, a neuron in two sessions, a gap inside a neuron's own session.
+            (
+                "odour,s,u1,u2\na,1,1,\nb,1,2,\na,2,,3\nb,2,,4\n",
+                with("odour", &|c| c.pseudo = Some("s".into())),
+            ),
+            (
+                "odour,s,u1,u2\na,1,1,\nb,1,2,5\na,2,,3\nb,2,,4\n",
+                with("odour", &|c| c.pseudo = Some("s".into())),
+            ),
+            (
+                "odour,s,u1,u2\na,1,1,\nb,1,NaN,\na,2,,3\nb,2,,4\n",
+                with("odour", &|c| c.pseudo = Some("s".into())),
+            ),
+            (
+                "odour,s,u1\na,1,1\nb,1,2\n",
+                with("odour", &|c| {
+                    c.pseudo = Some("s".into());
+                    c.group = Some("s".into());
+                }),
+            ),
+            ("odour,n1\n", cols("odour")),
+            ("", cols("odour")),
+        ];
+        for (text, columns) in cases {
+            let streamed = read("t.csv", text.as_bytes(), &columns).map(|mut d| {
+                d.sha256.clear();
+                d
+            });
+            let parsed =
+                Table::parse("t.csv", text.as_bytes()).and_then(|t| from_table(&t, &columns));
+            assert_eq!(format!("{streamed:?}"), format!("{parsed:?}"), "{text:?}");
+        }
     }
 
     #[test]

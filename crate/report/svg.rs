@@ -1,5 +1,5 @@
-//! SVG primitives every analysis's figures share: the canvas, escaping, axes in percent, round tick steps and a
-//! histogram with labelled markers.
+//! SVG primitives every analysis's figures share: the canvas, escaping, axes in percent and in counts, round tick
+//! steps, legends laid out in rows that fit, and a histogram with named markers.
 //!
 //! Figures are drawn by the core as SVG text, so that the page, the offline file and the CLI show the same picture
 //! byte for byte. Plain SVG written here rather than a plotting crate: the figures are simple, SVG needs no font
@@ -71,7 +71,118 @@ pub struct Marker {
     pub colour: &'static str,
 }
 
-/// Histogram of scores in [0, 1] with labelled vertical markers.
+/// Estimated width of `text` at `size` px. SVG text has no metrics before it is rendered, so layouts that must not
+/// overlap (legends, wrapped labels) use a generous average advance: 0.64 em per character, a little over DejaVu
+/// Sans's digits (0.636 em), the widest common fallback for `system-ui` (from its font tables, from memory).
+pub fn text_width(text: &str, size: f64) -> f64 {
+    text.chars().count() as f64 * size * 0.64
+}
+
+/// How a legend entry is drawn: a line (with its dash pattern and width), a translucent band, or a filled bar.
+pub enum Key {
+    Line {
+        colour: &'static str,
+        dash: &'static str,
+        width: f64,
+    },
+    Band(&'static str),
+    Bar(&'static str),
+}
+
+/// A legend laid out in rows that fit between `left` and `right`, each entry a key and its words.
+pub struct Legend {
+    entries: Vec<(Key, String, f64, usize)>,
+    rows: usize,
+}
+
+/// Height of one legend row.
+pub const LEGEND_ROW: f64 = 18.0;
+
+impl Legend {
+    pub fn new(items: Vec<(Key, String)>, left: f64, right: f64) -> Legend {
+        let (mut x, mut row) = (left, 0usize);
+        let mut entries = Vec::new();
+        for (key, label) in items {
+            let advance = 28.0 + text_width(&label, 12.0) + 18.0;
+            if x > left && x + advance - 18.0 > right {
+                (x, row) = (left, row + 1);
+            }
+            entries.push((key, label, x, row));
+            x += advance;
+        }
+        let rows = entries.last().map_or(0, |e| e.3 + 1);
+        Legend { entries, rows }
+    }
+
+    /// The height the legend takes.
+    pub fn height(&self) -> f64 {
+        self.rows as f64 * LEGEND_ROW
+    }
+
+    /// Draw with the first row's text baseline at `y`.
+    pub fn draw(&self, svg: &mut String, y: f64) {
+        for (key, label, x, row) in &self.entries {
+            let ly = y + LEGEND_ROW * *row as f64;
+            match key {
+                Key::Line {
+                    colour,
+                    dash,
+                    width,
+                } => write!(
+                    svg,
+                    r#"<path d="M{x} {my} h22" stroke="{colour}" stroke-width="{width}" stroke-dasharray="{dash}"/>"#,
+                    my = ly - 4.0
+                ),
+                Key::Band(colour) => write!(
+                    svg,
+                    r#"<rect x="{x}" y="{ry}" width="22" height="10" fill="{colour}" fill-opacity="0.25"/>"#,
+                    ry = ly - 9.0
+                ),
+                Key::Bar(colour) => write!(
+                    svg,
+                    r#"<rect x="{x}" y="{ry}" width="22" height="6" fill="{colour}"/>"#,
+                    ry = ly - 7.0
+                ),
+            }
+            .unwrap();
+            write!(
+                svg,
+                r#"<text x="{tx}" y="{ly}" fill="{INK}">{l}</text>"#,
+                tx = x + 28.0,
+                l = esc(label)
+            )
+            .unwrap();
+        }
+    }
+}
+
+/// A count axis from 0 to at least `top` with whole-number ticks: returns the axis's upper end and draws ticks
+/// and labels on a vertical axis at `LEFT` for the plot's `y` mapping of counts.
+pub fn count_ticks(svg: &mut String, top: usize, y: &dyn Fn(f64) -> f64) {
+    let step = tick_step(top as f64, 4.0).max(1.0).round();
+    let mut c = 0.0;
+    while c <= top as f64 + 1e-9 {
+        write!(
+            svg,
+            r#"<path d="M{LEFT} {vy:.2} h-5" stroke="{INK}"/><text x="{tx}" y="{ty:.2}" text-anchor="end" fill="{INK}">{c}</text>"#,
+            vy = y(c),
+            tx = LEFT - 8.0,
+            ty = y(c) + 4.0
+        )
+        .unwrap();
+        c += step;
+    }
+}
+
+/// The upper end of a count axis: `top` rounded up to the tick step [`count_ticks`] uses.
+pub fn count_axis_top(top: usize) -> usize {
+    let step = tick_step(top as f64, 4.0).max(1.0).round() as usize;
+    top.div_ceil(step) * step
+}
+
+/// Histogram of scores in [0, 1] with vertical marker lines, named in a legend above the plot (so no label sits
+/// on the bars or crosses another marker, however close the markers are). The marker lines carry
+/// `class="marker"` so tests can check that no text crosses them.
 pub fn histogram(
     title: &str,
     x_label: &str,
@@ -103,12 +214,31 @@ pub fn histogram(
         let b = (((v - lo) / width).floor() as isize).clamp(0, bins as isize - 1) as usize;
         counts[b] += 1;
     }
-    let top = counts.iter().copied().max().unwrap_or(1).max(1) as f64;
+    let legend = Legend::new(
+        markers
+            .iter()
+            .map(|m| {
+                (
+                    Key::Line {
+                        colour: m.colour,
+                        dash: m.dash,
+                        width: 2.0,
+                    },
+                    m.label.clone(),
+                )
+            })
+            .collect(),
+        LEFT,
+        W - RIGHT,
+    );
+    let top_edge = TOP + legend.height();
+    let axis_top = count_axis_top(counts.iter().copied().max().unwrap_or(1).max(1)) as f64;
     let (pw, ph) = (W - LEFT - RIGHT, H - TOP - BOTTOM);
     let x = |v: f64| LEFT + (v - lo) / (hi - lo) * pw;
-    let y = |c: f64| TOP + ph - c / top * ph;
+    let y = |c: f64| top_edge + ph - c / axis_top * ph;
     let mut svg = String::new();
-    open(&mut svg, title, W, H);
+    open(&mut svg, title, W, H + legend.height());
+    legend.draw(&mut svg, TOP - 4.0);
     for (b, &c) in counts.iter().enumerate() {
         if c > 0 {
             let x0 = x(lo + b as f64 * width);
@@ -118,7 +248,7 @@ pub fn histogram(
                 x0 + 0.5,
                 y(c as f64),
                 (pw / bins as f64 - 1.0).max(0.5),
-                TOP + ph - y(c as f64)
+                top_edge + ph - y(c as f64)
             )
             .unwrap();
         }
@@ -127,8 +257,8 @@ pub fn histogram(
     let step = if hi - lo > 0.5 { 0.1 } else { 0.05 };
     write!(
         svg,
-        r#"<path d="M{LEFT} {b} H{r} M{LEFT} {b} V{TOP}" stroke="{INK}" fill="none"/>"#,
-        b = TOP + ph,
+        r#"<path d="M{LEFT} {b} H{r} M{LEFT} {b} V{top_edge}" stroke="{INK}" fill="none"/>"#,
+        b = top_edge + ph,
         r = LEFT + pw
     )
     .unwrap();
@@ -138,37 +268,31 @@ pub fn histogram(
             svg,
             r#"<path d="M{x:.2} {b} v5" stroke="{INK}"/><text x="{x:.2}" y="{ty}" text-anchor="middle" fill="{INK}">{l:.0} %</text>"#,
             x = x(t),
-            b = TOP + ph,
-            ty = TOP + ph + 18.0,
+            b = top_edge + ph,
+            ty = top_edge + ph + 18.0,
             l = t * 100.0
         )
         .unwrap();
         t += step;
     }
+    count_ticks(&mut svg, axis_top as usize, &y);
     write!(
         svg,
-        r#"<text x="{cx}" y="{ly}" text-anchor="middle" fill="{INK}">{xl}</text><text transform="translate(16 {cy}) rotate(-90)" text-anchor="middle" fill="{INK}">count</text><text x="{tx}" y="{ty}" text-anchor="end" fill="{INK}">{top}</text>"#,
+        r#"<text x="{cx}" y="{ly}" text-anchor="middle" fill="{INK}">{xl}</text><text transform="translate(14 {cy}) rotate(-90)" text-anchor="middle" fill="{INK}">count</text>"#,
         cx = LEFT + pw / 2.0,
-        ly = H - 12.0,
+        ly = H + legend.height() - 12.0,
         xl = esc(x_label),
-        cy = TOP + ph / 2.0,
-        tx = LEFT - 6.0,
-        ty = TOP + 4.0,
-        top = top as usize
+        cy = top_edge + ph / 2.0,
     )
     .unwrap();
-    for (i, m) in markers.iter().enumerate() {
-        let mx = x(m.at);
+    for m in markers {
         write!(
             svg,
-            r#"<path d="M{mx:.2} {TOP} V{b}" stroke="{c}" stroke-width="2" stroke-dasharray="{d}"/><text x="{tx:.2}" y="{ty}" fill="{c}" text-anchor="{a}">{l}</text>"#,
-            b = TOP + ph,
+            r#"<path class="marker" d="M{mx:.2} {top_edge} V{b}" stroke="{c}" stroke-width="2" stroke-dasharray="{d}"/>"#,
+            mx = x(m.at),
+            b = top_edge + ph,
             c = m.colour,
             d = m.dash,
-            tx = if mx > LEFT + pw * 0.7 { mx - 4.0 } else { mx + 4.0 },
-            a = if mx > LEFT + pw * 0.7 { "end" } else { "start" },
-            ty = TOP + 12.0 + 14.0 * i as f64,
-            l = esc(&m.label)
         )
         .unwrap();
     }

@@ -1,18 +1,24 @@
-//! The one shape every analysis takes on the page: prepare, run tasks in workers, finish.
+//! The one shape every analysis takes on the page: read the data once, prepare, run tasks in workers, finish.
 //!
-//! A worker builds a [`Runner`] once per run (the files are read once) and answers task messages with outcome
-//! JSON; the page joins the outcome strings unparsed and calls [`finish`], so no number passes through a
+//! The page's data worker holds a [`Loaded`]: the file read once for the recipe's columns (or windows). From it,
+//! `prepare` checks the design and lists the tasks, `sample` runs the first task (the page times it to estimate a
+//! run's duration), `header` and `matrix` hand the decoded data to run workers, and `finish` assembles the
+//! outcomes into the result. A run worker builds a [`Runner`] from the decoded data once per run and answers task
+//! messages with outcome JSON; the page joins the outcome strings unparsed, so no number passes through a
 //! JavaScript double conversion (serde_json's `float_roundtrip` keeps the parse exact).
 
-use super::request::{err, Request};
+use super::data::{self, Decoded};
+use super::request::{err, options, recipe, Request};
 use super::{neurons, time_course, trial_table};
 use crate::analyses::{Analysis, Finished};
+use crate::recipe::Recipe;
 use serde_json::{json, Map, Value};
 use wasm_bindgen::prelude::*;
 
 /// An analysis behind the page's bridge, with its tasks and outcomes as JSON.
 pub(super) trait Job {
     fn prepare(&self) -> Value;
+    fn first_task(&self) -> Option<String>;
     fn run(&self, task: &str) -> Result<String, JsValue>;
     fn finish(&self, outcomes: &str) -> Result<Finished, JsValue>;
 }
@@ -28,6 +34,11 @@ impl<A: Analysis> Job for A {
         out
     }
 
+    fn first_task(&self) -> Option<String> {
+        let first = self.tasks().into_iter().next()?;
+        Some(serde_json::to_string(&first).expect("tasks serialise"))
+    }
+
     fn run(&self, task: &str) -> Result<String, JsValue> {
         let task: A::Task =
             serde_json::from_str(task).map_err(|e| err(format!("malformed task: {e}")))?;
@@ -41,56 +52,31 @@ impl<A: Analysis> Job for A {
     }
 }
 
-fn load(
+/// The analysis `kind` ("table", "time" or "neurons") on decoded data.
+fn job(
     kind: &str,
-    name_a: &str,
-    bytes_a: &[u8],
-    name_b: &str,
-    bytes_b: &[u8],
-    recipe_json: &str,
-    options_json: &str,
+    data: Decoded,
+    recipe: &Recipe,
+    options: &Value,
 ) -> Result<Box<dyn Job>, JsValue> {
-    let request = Request::new(name_a, bytes_a, name_b, bytes_b, recipe_json, options_json)?;
     match kind {
-        "table" => Ok(Box::new(trial_table::load(request)?)),
-        "time" => Ok(Box::new(time_course::load(request)?)),
-        "neurons" => Ok(Box::new(neurons::load(request)?)),
+        "table" => Ok(Box::new(trial_table::plan(data, recipe)?)),
+        "time" => Ok(Box::new(time_course::plan(data, recipe)?)),
+        "neurons" => Ok(Box::new(neurons::plan(data, recipe, options)?)),
         other => Err(err(format!("unknown kind of analysis '{other}'"))),
     }
 }
 
-/// Check the files against a recipe: the tasks with their cost in fits, and what the analysis shows before running
-/// (classes, counts, warnings).
+/// A file (or two) read once in the page's data worker, for the columns and windows of a recipe.
 #[wasm_bindgen]
-pub fn prepare(
-    kind: &str,
-    name_a: &str,
-    bytes_a: &[u8],
-    name_b: &str,
-    bytes_b: &[u8],
-    recipe_json: &str,
-    options_json: &str,
-) -> Result<String, JsValue> {
-    let job = load(
-        kind,
-        name_a,
-        bytes_a,
-        name_b,
-        bytes_b,
-        recipe_json,
-        options_json,
-    )?;
-    Ok(job.prepare().to_string())
-}
-
-/// Runs one analysis's tasks in a worker: the files are read once per run.
-#[wasm_bindgen]
-pub struct Runner {
-    job: Box<dyn Job>,
+pub struct Loaded {
+    data: Decoded,
+    prepared: Option<Box<dyn Job>>,
 }
 
 #[wasm_bindgen]
-impl Runner {
+impl Loaded {
+    /// Read the files as analysis `kind` reads them (every check of the file happens here).
     #[wasm_bindgen(constructor)]
     pub fn new(
         kind: &str,
@@ -99,18 +85,127 @@ impl Runner {
         name_b: &str,
         bytes_b: &[u8],
         recipe_json: &str,
+    ) -> Result<Loaded, JsValue> {
+        let request = Request::new(name_a, bytes_a, name_b, bytes_b, recipe_json)?;
+        Ok(Loaded {
+            data: data::load(kind, &request)?,
+            prepared: None,
+        })
+    }
+
+    /// Check the design against a recipe: the tasks with their cost in fits, and what the analysis shows before
+    /// running (classes, counts, warnings, and the groups' column and names). The plan is kept for one
+    /// [`Loaded::sample`].
+    pub fn prepare(
+        &mut self,
+        kind: &str,
+        recipe_json: &str,
+        options_json: &str,
+    ) -> Result<String, JsValue> {
+        self.prepared = None;
+        let job = job(
+            kind,
+            self.data.clone(),
+            &recipe(recipe_json)?,
+            &options(options_json)?,
+        )?;
+        let mut out = job.prepare();
+        // The page says the cross-validation scheme in words before a run: it needs the groups.
+        let (column, names) = self.data.groups();
+        out["group_column"] = column.into();
+        out["group_names"] = names.into();
+        self.prepared = Some(job);
+        Ok(out.to_string())
+    }
+
+    /// Forget the last prepared plan without running it: a plan owns a copy of the decoded data, which a large
+    /// file cannot afford to keep twice through a run.
+    pub fn forget(&mut self) {
+        self.prepared = None;
+    }
+
+    /// Run the last prepared plan's first task (the page times it), then forget the plan. False when there is
+    /// none.
+    pub fn sample(&mut self) -> Result<bool, JsValue> {
+        let Some(job) = self.prepared.take() else {
+            return Ok(false);
+        };
+        let Some(task) = job.first_task() else {
+            return Ok(false);
+        };
+        job.run(&task).map(|_| true)
+    }
+
+    /// The decoded data but the matrix, as JSON.
+    pub fn header(&self) -> String {
+        self.data.header()
+    }
+
+    /// The decoded matrix (a `Float64Array`, which the page transfers to one run worker).
+    pub fn matrix(&self) -> Vec<f64> {
+        self.data.matrix()
+    }
+
+    /// Assemble the outcomes (a JSON array) into the result: `report` (parsed), `report_json` (the bytes the CLI
+    /// writes with `--json`), `headline`, `text`, `methods`, and the figures (`plots`, SVG) and tables (`csv`) by
+    /// name.
+    pub fn finish(
+        &self,
+        kind: &str,
+        recipe_json: &str,
+        options_json: &str,
+        outcomes_json: &str,
+    ) -> Result<String, JsValue> {
+        let job = job(
+            kind,
+            self.data.clone(),
+            &recipe(recipe_json)?,
+            &options(options_json)?,
+        )?;
+        let f = job.finish(outcomes_json)?;
+        let (mut plots, mut csv) = (Map::new(), Map::new());
+        for (name, contents) in f.files {
+            match name.rsplit_once('.') {
+                Some((stem, "svg")) => plots.insert(stem.to_string(), contents.into()),
+                Some((stem, _)) => csv.insert(stem.to_string(), contents.into()),
+                None => None,
+            };
+        }
+        let report: Value = serde_json::from_str(&f.json).expect("a report is JSON");
+        Ok(json!({
+            "report": report,
+            "report_json": f.json,
+            "headline": f.headline,
+            "text": f.text,
+            "methods": f.methods,
+            "plots": plots,
+            "csv": csv,
+        })
+        .to_string())
+    }
+}
+
+/// Runs one analysis's tasks in a run worker, on the decoded data the page handed it once.
+#[wasm_bindgen]
+pub struct Runner {
+    job: Box<dyn Job>,
+}
+
+#[wasm_bindgen]
+impl Runner {
+    /// `header` and `matrix` as [`Loaded::header`] and [`Loaded::matrix`] gave them (the matrix is moved in,
+    /// not copied again).
+    #[wasm_bindgen(constructor)]
+    pub fn new(
+        kind: &str,
+        header: &str,
+        matrix: Vec<f64>,
+        recipe_json: &str,
         options_json: &str,
     ) -> Result<Runner, JsValue> {
+        let data = Decoded::from_parts(header, matrix)?;
         Ok(Runner {
-            job: load(
-                kind,
-                name_a,
-                bytes_a,
-                name_b,
-                bytes_b,
-                recipe_json,
-                options_json,
-            )?,
+            job: job(kind, data, &recipe(recipe_json)?, &options(options_json)?)?,
         })
     }
 
@@ -118,49 +213,4 @@ impl Runner {
     pub fn run(&self, task_json: &str) -> Result<String, JsValue> {
         self.job.run(task_json)
     }
-}
-
-/// Assemble the outcomes (a JSON array) into the result: `report` (parsed), `report_json` (the bytes the CLI writes
-/// with `--json`), `headline`, `text`, `methods`, and the figures (`plots`, SVG) and tables (`csv`) by name.
-#[allow(clippy::too_many_arguments)]
-#[wasm_bindgen]
-pub fn finish(
-    kind: &str,
-    name_a: &str,
-    bytes_a: &[u8],
-    name_b: &str,
-    bytes_b: &[u8],
-    recipe_json: &str,
-    options_json: &str,
-    outcomes_json: &str,
-) -> Result<String, JsValue> {
-    let job = load(
-        kind,
-        name_a,
-        bytes_a,
-        name_b,
-        bytes_b,
-        recipe_json,
-        options_json,
-    )?;
-    let f = job.finish(outcomes_json)?;
-    let (mut plots, mut csv) = (Map::new(), Map::new());
-    for (name, contents) in f.files {
-        match name.rsplit_once('.') {
-            Some((stem, "svg")) => plots.insert(stem.to_string(), contents.into()),
-            Some((stem, _)) => csv.insert(stem.to_string(), contents.into()),
-            None => None,
-        };
-    }
-    let report: Value = serde_json::from_str(&f.json).expect("a report is JSON");
-    Ok(json!({
-        "report": report,
-        "report_json": f.json,
-        "headline": f.headline,
-        "text": f.text,
-        "methods": f.methods,
-        "plots": plots,
-        "csv": csv,
-    })
-    .to_string())
 }

@@ -1,14 +1,16 @@
 //! The page's bridge to the core (wasm-bindgen). Plain strings in and out (JSON), so the surface stays small.
 //!
-//! Every analysis reaches the page through one shape ([`job`]): `prepare` checks the files against the recipe and
-//! lists the tasks, a worker's [`job::Runner`] runs tasks one at a time, and `finish` assembles the outcomes into the
-//! result, its text, methods paragraph, figures and tables. Each analysis adds only its loader (`trial_table.rs`,
+//! Every analysis reaches the page through one shape ([`job`]): the data worker's [`job::Loaded`] reads the files
+//! once ([`data`]), `prepare` checks the design and lists the tasks, each run worker's [`job::Runner`] gets the
+//! decoded matrix once and runs tasks one at a time, and `finish` assembles the outcomes into the result, its text,
+//! methods paragraph, figures and tables. Each analysis adds only its plan builder (`trial_table.rs`,
 //! `time_course.rs`, `neurons.rs`).
 //!
 //! Nothing here may panic across the boundary unnoticed: every fallible call returns `Result<_, JsValue>` with the
 //! core's message, and a panic hook records the message of any bug, which the page reads with [`last_panic`] when
 //! the wasm instance traps, instead of dying silently.
 
+mod data;
 mod inspect;
 mod job;
 mod neurons;

@@ -1,17 +1,22 @@
 //! The neuron analyses on the page; options `{"draws": N}`.
 
-use super::request::{err, Request};
+use super::data::Decoded;
+use super::request::err;
 use crate::analyses::neurons::NeuronsPlan;
-use crate::input;
+use crate::recipe::Recipe;
+use serde_json::Value;
 use wasm_bindgen::JsValue;
 
-pub(super) fn load(r: Request) -> Result<NeuronsPlan, JsValue> {
-    let [file] = r.files[..] else {
+pub(super) fn plan(
+    data: Decoded,
+    recipe: &Recipe,
+    options: &Value,
+) -> Result<NeuronsPlan, JsValue> {
+    let Decoded::Table(data) = data else {
         return Err(err("the neuron analyses read one trial table"));
     };
-    let draws = r.options["draws"]
+    let draws = options["draws"]
         .as_u64()
         .ok_or_else(|| err("the neuron analyses need the number of draws per size"))?;
-    let data = input::trial_table(file.name, file.bytes, &r.recipe.columns).map_err(err)?;
-    NeuronsPlan::new(data, &r.recipe, draws as usize).map_err(err)
+    NeuronsPlan::new(data, recipe, draws as usize).map_err(err)
 }

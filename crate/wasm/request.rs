@@ -1,5 +1,5 @@
-//! What a page run hands the core: its files, its recipe and the analysis's options; and the core's errors as the
-//! page receives them.
+//! What the page hands the core: its files and recipe, the analysis's options; and the core's errors as the page
+//! receives them.
 
 use crate::input::FileBytes;
 use crate::recipe::Recipe;
@@ -11,12 +11,24 @@ pub(super) fn err(e: impl std::fmt::Display) -> JsValue {
     JsValue::from_str(&e.to_string())
 }
 
-/// What a page run reads: one file, or two (spike events, then the trial table; `name_b` empty for one), the
-/// recipe, and the analysis's own options (JSON; the neuron analyses' draws).
+/// What the page's data worker reads: one file, or two (spike events, then the trial table; `name_b` empty for
+/// one), and the recipe that says which columns and windows to read.
 pub(super) struct Request<'a> {
     pub files: Vec<FileBytes<'a>>,
     pub recipe: Recipe,
-    pub options: Value,
+}
+
+/// A recipe from the page (already checked by the form; the core checks it again).
+pub(super) fn recipe(json: &str) -> Result<Recipe, JsValue> {
+    Recipe::from_json("recipe", json).map_err(err)
+}
+
+/// An analysis's own options (JSON; the neuron analyses' draws), or null.
+pub(super) fn options(json: &str) -> Result<Value, JsValue> {
+    if json.trim().is_empty() {
+        return Ok(Value::Null);
+    }
+    serde_json::from_str(json).map_err(|e| err(format!("malformed options: {e}")))
 }
 
 impl<'a> Request<'a> {
@@ -26,7 +38,6 @@ impl<'a> Request<'a> {
         name_b: &'a str,
         bytes_b: &'a [u8],
         recipe_json: &str,
-        options_json: &str,
     ) -> Result<Request<'a>, JsValue> {
         let mut files = vec![FileBytes {
             name: name_a,
@@ -40,13 +51,7 @@ impl<'a> Request<'a> {
         }
         Ok(Request {
             files,
-            recipe: Recipe::from_json("recipe", recipe_json).map_err(err)?,
-            options: if options_json.trim().is_empty() {
-                Value::Null
-            } else {
-                serde_json::from_str(options_json)
-                    .map_err(|e| err(format!("malformed options: {e}")))?
-            },
+            recipe: recipe(recipe_json)?,
         })
     }
 }

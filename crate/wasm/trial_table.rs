@@ -1,14 +1,14 @@
 //! The trial-table analysis on the page.
 
-use super::request::{err, Request};
+use super::data::Decoded;
+use super::request::err;
 use crate::analyses::trial_table::Plan;
-use crate::input;
+use crate::recipe::Recipe;
 use wasm_bindgen::JsValue;
 
-pub(super) fn load(r: Request) -> Result<Plan, JsValue> {
-    let [file] = r.files[..] else {
-        return Err(err("a trial table is one file"));
+pub(super) fn plan(data: Decoded, recipe: &Recipe) -> Result<Plan, JsValue> {
+    let Decoded::Table(data) = data else {
+        return Err(err("a trial-table analysis reads a trial table"));
     };
-    let data = input::trial_table(file.name, file.bytes, &r.recipe.columns).map_err(err)?;
-    Plan::new(data, &r.recipe).map_err(err)
+    Plan::new(data, recipe).map_err(err)
 }

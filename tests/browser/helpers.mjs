@@ -35,6 +35,9 @@ export async function closeAll() {
   await Promise.all(open.splice(0).map((c) => c.close().catch(() => {})));
 }
 
+/// Per-test time limit for tests that run several analyses (node's --test-timeout is the default for the others).
+export const SLOW = { timeout: 1_800_000 };
+
 export async function browser() {
   const profile = mkdtempSync(join(tmpdir(), 'popdecode-chromium-'));
   const context = await chromium.launchPersistentContext(profile, {
@@ -45,6 +48,8 @@ export async function browser() {
       '--disable-background-networking', '--disable-component-update', '--disable-sync'],
   });
   open.push(context);
+  // The machine is shared with other builds: every wait is generous, because what the tests measure is never time.
+  context.setDefaultTimeout(300_000);
   const requests = [];
   context.on('request', (r) => requests.push(r.url()));
   const page = context.pages()[0] || await context.newPage();
@@ -77,16 +82,46 @@ export async function quickSettings(page, { repeats = 4, shuffles = 6 } = {}) {
   await page.dispatchEvent('#shuffles', 'change');
 }
 
-export async function runAndWait(page) {
-  await page.click('#start');
-  await page.waitForSelector('#results:not([hidden])', { timeout: 120_000 });
-  return page.textContent('#headline');
+/// Wait until the page has checked the current settings against the data and a run can start.
+export async function whenReady(page, button = '#start') {
+  await page.waitForFunction((b) => !document.querySelector(b).disabled, button, { timeout: 300_000 });
 }
 
+/// Press a run button and wait for the new record to be on view; returns its headline.
+export async function runAndWait(page, button = '#start') {
+  await whenReady(page, button);
+  const before = await page.locator('#records li').count();
+  await page.click(button);
+  // A run the page expects to be long asks first: say yes.
+  await page.waitForFunction((n) => document.querySelectorAll('#records li').length > n || !document.getElementById('confirm').hidden,
+    before, { timeout: 600_000 });
+  if (await page.isVisible('#confirm')) await page.click('#confirm-yes');
+  await page.waitForFunction((n) => document.querySelectorAll('#records li').length > n, before, { timeout: 600_000 });
+  const headline = page.locator('#views .view .headline');
+  return (await headline.count()) ? headline.first().textContent() : '';
+}
+
+// The export buttons of the record on view, by their accessible names.
+const EXPORTS = {
+  '#export-json': /Save the (neuron )?results of run \d+ as JSON/,
+  '#export-recipe': /Save the recipe of run \d+/,
+  '#export-csv': /Save the scores of run \d+ as CSV/,
+  '#export-curve': /Save the decoding curve of run \d+/,
+  '#export-matrix': /Save the temporal generalization matrix of run \d+/,
+  '#export-neurons': /Save the neuron results of run \d+ as JSON/,
+};
+export function target(page, selector) {
+  return EXPORTS[selector] ? page.locator('#views .view').first().getByRole('button', { name: EXPORTS[selector] }) : page.locator(selector).first();
+}
+
+/// Click an export (an old-style id from EXPORTS, or any selector) and return the saved text.
 export async function downloadText(page, selector) {
-  const [dl] = await Promise.all([page.waitForEvent('download'), page.click(selector)]);
+  return (await download(page, selector)).text;
+}
+export async function download(page, selector) {
+  const [dl] = await Promise.all([page.waitForEvent('download'), target(page, selector).click()]);
   const path = await dl.path();
-  return readFileSync(path, 'utf8');
+  return { text: readFileSync(path, 'utf8'), name: dl.suggestedFilename(), path };
 }
 
 export function cli(args) {

@@ -4,7 +4,7 @@ import assert from 'node:assert/strict';
 import { writeFileSync, readFileSync, mkdtempSync } from 'node:fs';
 import { join } from 'node:path';
 import { tmpdir } from 'node:os';
-import { serve, browser, closeAll, assertLocalOnly, shot, quickSettings, runAndWait, downloadText, cli, ROOT } from './helpers.mjs';
+import { serve, browser, closeAll, assertLocalOnly, shot, quickSettings, runAndWait, whenReady, downloadText, cli, ROOT, SLOW } from './helpers.mjs';
 
 let server;
 before(async () => { server = await serve(); });
@@ -15,7 +15,7 @@ const tmp = mkdtempSync(join(tmpdir(), 'popdecode-browser-'));
 async function openPage(query = '') {
   const b = await browser();
   await b.page.goto(`${server.origin}/index.html${query}`);
-  await b.page.waitForFunction(() => document.getElementById('version').textContent.length > 0);
+  await b.page.waitForFunction(() => document.body.dataset.ready === 'true');
   return b;
 }
 
@@ -40,14 +40,14 @@ test('example run matches the command line byte for byte', async () => {
   assert.equal(json, readFileSync(cliJson, 'utf8'), 'page JSON and CLI JSON differ');
   assert.equal(headline.trim(), stdout.split('\n')[0].trim());
   assert.match(headline, /'odour' decoded at \d+\.\d % accuracy \(95 % CI \d+\.\d–\d+\.\d %; mean over \d+ cross-validation repeats; chance 25\.0 %\), p [=≤] .* over 6 shuffles/);
-  const methods = await b.page.textContent('#methods');
+  const methods = await b.page.textContent('#views .methods');
   assert.match(methods, /SHA-256 [0-9a-f]{64}/);
   assert.deepEqual(b.errors, []);
   assertLocalOnly(assert, b.requests, server.origin);
   await b.context.close();
 });
 
-test('one worker and three workers give identical results', async () => {
+test('one worker and three workers give identical results', SLOW, async () => {
   const one = await exampleRun('?workers=1');
   const three = await exampleRun('?workers=3');
   assert.equal(one.json, three.json);
@@ -63,7 +63,7 @@ test('file chooser and drag-and-drop both load a file', async () => {
   writeFileSync(file, csv);
   await b.page.setInputFiles('#file', file);
   await b.page.waitForSelector('#data-view:not([hidden])');
-  assert.match(await b.page.textContent('#file-summary'), /upload\.csv: 40 rows × 3 columns, comma-separated/);
+  assert.match(await b.page.textContent('#file-summaries'), /upload\.csv: 40 rows × 3 columns, comma-separated/);
   assert.equal(await b.page.inputValue('#label'), 'stimulus');
   await shot(b.page, 'uploaded');
 
@@ -74,8 +74,8 @@ test('file chooser and drag-and-drop both load a file', async () => {
     drop.dispatchEvent(new DragEvent('dragover', { dataTransfer: dt, bubbles: true, cancelable: true }));
     drop.dispatchEvent(new DragEvent('drop', { dataTransfer: dt, bubbles: true, cancelable: true }));
   }, csv.replace(/,/g, ';'));
-  await b.page.waitForFunction(() => document.getElementById('file-summary').textContent.startsWith('dropped.csv'));
-  assert.match(await b.page.textContent('#file-summary'), /semicolon-separated/);
+  await b.page.waitForFunction(() => document.getElementById('file-summaries').textContent.startsWith('dropped.csv'));
+  assert.match(await b.page.textContent('#file-summaries'), /semicolon-separated/);
   await quickSettings(b.page, { repeats: 3, shuffles: 0 });
   const headline = await runAndWait(b.page);
   assert.match(headline, /'stimulus' decoded at .* no shuffle control run\./);
@@ -83,20 +83,38 @@ test('file chooser and drag-and-drop both load a file', async () => {
   await b.context.close();
 });
 
-test('cancel stops promptly and the page runs again afterwards', async () => {
+test('cancel stops the workers at once and the page runs again afterwards', SLOW, async () => {
   const b = await openPage('?workers=2');
+  // Every worker the page starts, and whether it has ended (a cancelled run terminates its workers, it does not
+  // wait for their tasks).
+  const workers = [];
+  b.page.on('worker', (w) => { const entry = { closed: false }; workers.push(entry); w.on('close', () => { entry.closed = true; }); });
   await b.page.click('#example');
   await b.page.waitForSelector('#data-view:not([hidden])');
   await quickSettings(b.page, { repeats: 5000, shuffles: 2000 });
+  await whenReady(b.page);
+  const beforeRun = workers.length;
   await b.page.click('#start');
-  await b.page.waitForFunction(() => /fits \(\d+ %\)/.test(document.getElementById('progress-text').textContent), null, { timeout: 60_000 });
+  // A run this long asks first; saying no starts nothing.
+  await b.page.waitForSelector('#confirm:not([hidden])');
+  assert.match(await b.page.textContent('#confirm-text'), /should take about [\d.]+ (min|h)/);
+  await b.page.click('#confirm-no');
+  assert.equal(await b.page.textContent('#progress-text'), 'Not started.');
+  assert.equal(workers.length, beforeRun, 'no run worker was started');
+  await b.page.click('#start');
+  await b.page.waitForSelector('#confirm:not([hidden])');
+  await b.page.click('#confirm-yes');
+  await b.page.waitForFunction(() => /fits \(\d+ %\)/.test(document.getElementById('progress-text').textContent));
+  const running = workers.slice(beforeRun);
+  assert.equal(running.length, 2, 'two run workers');
   await shot(b.page, 'running');
-  const t0 = Date.now();
   await b.page.click('#cancel');
-  await b.page.waitForFunction(() => document.getElementById('progress-text').textContent.startsWith('Cancelled'));
-  assert.ok(Date.now() - t0 < 2000, 'cancel took too long');
+  assert.match(await b.page.textContent('#progress-text'), /^Cancelled/);
+  // Terminated, not finishing thousands of tasks first.
+  for (let i = 0; i < 100 && !running.every((w) => w.closed); i++) await new Promise((ok) => setTimeout(ok, 100));
+  assert.ok(running.every((w) => w.closed), 'the run workers were terminated');
   assert.equal(await b.page.isDisabled('#start'), false);
-  assert.equal(await b.page.isVisible('#results'), false);
+  assert.equal(await b.page.locator('#views .view').count(), 0, 'nothing on view after a cancelled run');
   await shot(b.page, 'cancelled');
   await quickSettings(b.page, { repeats: 2, shuffles: 0 });
   await runAndWait(b.page);
@@ -117,9 +135,9 @@ test('markup in the file is shown as text and never runs', async () => {
   await runAndWait(b.page);
   await shot(b.page, 'injection');
   assert.equal(await b.page.evaluate(() => window.__pwned), undefined);
-  assert.equal(await b.page.textContent('#preview th'), evil);
-  assert.equal(await b.page.locator('#preview img, #recall script, #results b').count(), 0);
-  assert.match(await b.page.textContent('#recall'), /<script>window.__pwned=2<\/script>/);
+  assert.equal(await b.page.textContent('#previews th'), evil);
+  assert.equal(await b.page.locator('#previews img, #views script, #views b').count(), 0);
+  assert.match(await b.page.textContent('#views'), /<script>window.__pwned=2<\/script>/);
   assertLocalOnly(assert, b.requests, server.origin);
   await b.context.close();
 });
@@ -148,7 +166,7 @@ test('a malformed file gets a clear message and the page keeps working', async (
 test('the offline file works from file:// with no network', async () => {
   const b = await browser();
   await b.page.goto('file://' + join(ROOT, 'dist', 'popdecode.html'));
-  await b.page.waitForFunction(() => document.getElementById('version').textContent.length > 0);
+  await b.page.waitForFunction(() => document.body.dataset.ready === 'true');
   await b.page.click('#example');
   await b.page.waitForSelector('#data-view:not([hidden])');
   await quickSettings(b.page);
@@ -205,9 +223,9 @@ test('a recipe file loads into the form, and figures export as PNG and SVG', asy
   const exported = JSON.parse(await downloadText(b.page, '#export-recipe'));
   assert.deepEqual(exported.columns.features, ['unit_01', 'unit_02', 'unit_03']);
   assert.equal(exported.seed, 7);
-  const svg = await downloadText(b.page, '#fig-confusion figcaption button:nth-of-type(2)');
+  const svg = await downloadText(b.page, '[data-figure=confusion] button[aria-label$="as SVG"]');
   assert.match(svg, /^<svg [^>]*xmlns="http:\/\/www.w3.org\/2000\/svg"/);
-  const [dl] = await Promise.all([b.page.waitForEvent('download'), b.page.click('#fig-scores figcaption button:nth-of-type(1)')]);
+  const [dl] = await Promise.all([b.page.waitForEvent('download'), b.page.click('[data-figure=scores] button[aria-label$="as PNG"]')]);
   const png = readFileSync(await dl.path());
   assert.deepEqual([...png.subarray(0, 4)], [0x89, 0x50, 0x4e, 0x47], 'a PNG file');
   const csv = await downloadText(b.page, '#export-csv');
@@ -220,13 +238,12 @@ test('decoders side by side, labelled exploratory', async () => {
   await b.page.click('#example');
   await b.page.waitForSelector('#data-view:not([hidden])');
   await quickSettings(b.page, { repeats: 2, shuffles: 0 });
-  await b.page.click('#compare-start');
-  await b.page.waitForFunction(() => document.getElementById('progress-text').textContent === 'Comparison done.', null, { timeout: 120_000 });
+  await runAndWait(b.page, '#compare-start');
   await shot(b.page, 'compare');
-  const rows = await b.page.locator('#compare-table tr').count();
+  const rows = await b.page.locator('#views table tr').count();
   assert.equal(rows, 8, 'a header and seven decoders');
-  assert.match(await b.page.textContent('#compare'), /Exploratory only/);
-  assert.match(await b.page.textContent('#compare-table'), /shrinkage-lda\s*\d+\.\d %/);
+  assert.match(await b.page.textContent('#views'), /Exploratory only/);
+  assert.match(await b.page.textContent('#views table'), /shrinkage LDA\s*\d+\.\d %/);
   assertLocalOnly(assert, b.requests, server.origin);
   assert.deepEqual(b.errors, []);
   await b.context.close();
@@ -238,11 +255,10 @@ test('the neuron analyses in the page give the command line\'s bytes', async () 
   await b.page.waitForSelector('#data-view:not([hidden])');
   await quickSettings(b.page, { repeats: 2, shuffles: 0 });
   await b.page.fill('#draws', '2');
-  await b.page.click('#neurons-start');
-  await b.page.waitForSelector('#neurons:not([hidden])', { timeout: 120_000 });
+  await runAndWait(b.page, '#neurons-start');
   await shot(b.page, 'neurons');
-  for (const fig of ['#fig-dropping img', '#fig-single img', '#fig-weights img']) assert.ok(await b.page.isVisible(fig), fig);
-  assert.match(await b.page.textContent('#neurons-note'), /Activation patterns \(Haufe/);
+  for (const fig of ['[data-figure=dropping] img', '[data-figure=single] img', '[data-figure=weights] img']) assert.ok(await b.page.isVisible(fig), fig);
+  assert.match(await b.page.textContent('#views'), /Activation patterns \(Haufe/);
   const json = await downloadText(b.page, '#export-neurons');
   const report = JSON.parse(json);
   const recipeFile = join(tmp, 'neurons.recipe.json');

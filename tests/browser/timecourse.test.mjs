@@ -7,7 +7,7 @@ import { join } from 'node:path';
 import { tmpdir } from 'node:os';
 import { execFileSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { serve, browser, closeAll, assertLocalOnly, shot, quickSettings, runAndWait, downloadText, cli, ROOT } from './helpers.mjs';
+import { serve, browser, closeAll, assertLocalOnly, shot, quickSettings, runAndWait, whenReady, downloadText, cli, ROOT } from './helpers.mjs';
 
 let server;
 before(async () => { server = await serve(); });
@@ -18,7 +18,7 @@ const tmp = mkdtempSync(join(tmpdir(), 'popdecode-browser-time-'));
 async function openPage(url) {
   const b = await browser();
   await b.page.goto(url);
-  await b.page.waitForFunction(() => document.getElementById('version').textContent.length > 0);
+  await b.page.waitForFunction(() => document.body.dataset.ready === 'true');
   return b;
 }
 
@@ -58,11 +58,11 @@ test('spike events: the page and the command line give the same bytes', async ()
   const report = JSON.parse(json);
   assert.equal(report.windows.length, 14);
   assert.equal(report.generalization.scores.length, 14);
-  assert.ok(await b.page.isVisible('#fig-curve img'));
-  assert.ok(await b.page.isVisible('#fig-generalization img'));
-  assert.equal(await b.page.isVisible('#fig-confusion'), false, 'trial-table figures are hidden');
-  assert.match(await b.page.textContent('#clusters'), /time course/);
-  assert.match(await b.page.textContent('#methods'), /windows of 0\.2 s stepped by 0\.1 s/);
+  assert.ok(await b.page.isVisible('[data-figure=curve] img'));
+  assert.ok(await b.page.isVisible('[data-figure=generalization] img'));
+  assert.equal(await b.page.locator('[data-figure=confusion]').isVisible(), false, 'trial-table figures are hidden');
+  assert.match(await b.page.textContent('#views'), /time course/);
+  assert.match(await b.page.textContent('#views .methods'), /windows of 0\.2 s stepped by 0\.1 s/);
   assert.match(await b.page.textContent('#cli-line'), /^popdecode timecourse --events odour_spikes\.csv --trials odour_trials\.csv/);
   const curve = await downloadText(b.page, '#export-curve');
   assert.match(curve, /^window,start_s,end_s,time_s,accuracy_mean/);
@@ -110,7 +110,7 @@ test('a spike file naming an unknown trial gets a clear message, and the page re
   await shot(b.page, 'timecourse-bad-events');
   await b.page.click('#example-events');
   await b.page.waitForSelector('#data-error', { state: 'hidden' });
-  assert.equal(await b.page.isDisabled('#start'), false);
+  await whenReady(b.page);
   assert.deepEqual(b.errors, []);
   await b.context.close();
 });
@@ -136,9 +136,9 @@ test('an NWB file written by pynwb decodes in the page with the command line\'s 
   const b = await openPage(`${server.origin}/index.html`);
   await b.page.check('input[name=kind][value=nwb]');
   await b.page.setInputFiles('#nwb-file', nwb);
-  await b.page.waitForFunction(() => /NWB, 12 units/.test(document.getElementById('file-summary').textContent));
+  await b.page.waitForFunction(() => /NWB, 12 units/.test(document.getElementById('file-summaries').textContent));
   // Read lazily: of the 40 MB of raw voltage beside the tables, next to nothing is read (only the hash sees it).
-  const summary = await b.page.textContent('#file-summary');
+  const summary = await b.page.textContent('#file-summaries');
   const [, read, size] = summary.match(/read ([\d.]+) MB of ([\d.]+) MB for the units and trials tables/);
   assert.ok(Number(size) > 40 && Number(read) < 2, summary);
   assert.ok(summary.includes(createHash('sha256').update(readFileSync(nwb)).digest('hex').slice(0, 16)), summary);
@@ -191,7 +191,7 @@ test('the offline file reads an NWB file too, and a file that is not NWB or lack
   assert.match(await b.page.textContent('#data-error'), /no-trials\.nwb: this NWB file has no trials table \('intervals\/trials'\)/);
   // The page keeps working: the good file loads and decodes.
   await b.page.setInputFiles('#nwb-file', good);
-  await b.page.waitForFunction(() => /NWB, 12 units/.test(document.getElementById('file-summary').textContent));
+  await b.page.waitForFunction(() => /NWB, 12 units/.test(document.getElementById('file-summaries').textContent));
   assert.equal(await b.page.isHidden('#data-error'), true);
   await quickSettings(b.page, { repeats: 2, shuffles: 0 });
   await set(b.page, 'width', 0.2);

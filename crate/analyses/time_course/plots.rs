@@ -6,7 +6,8 @@
 
 use super::report::TimeReport;
 use crate::report::svg::{
-    esc, open, percent_ticks, tick_step, BAR, BOTTOM, H, INK, LEFT, NULL_BAR, RIGHT, TOP, W,
+    esc, open, percent_ticks, tick_step, Key, Legend, BAR, BOTTOM, H, INK, LEFT, NULL_BAR, RIGHT,
+    TOP, W,
 };
 use crate::report::text::{p_phrase, seconds};
 use crate::resample::Headline;
@@ -52,8 +53,59 @@ pub fn curve(r: &TimeReport) -> String {
     let (pw, ph) = (W - LEFT - RIGHT, H - TOP - BOTTOM - 18.0);
     let x = |t: f64| LEFT + (t - t0) / (t1 - t0) * pw;
     let y = |v: f64| TOP + ph - (v - lo) / (hi - lo) * ph;
-    // Room below the axis label for a one-line legend, so the legend never covers the curve.
-    let height = H + 28.0;
+    // The legend names only what is drawn: the band when some window's SD is above zero, the null line when every
+    // window has one, the cluster bar when a cluster is significant. It sits under the axis label, in as many rows
+    // as its words need, so it never covers the curve and never runs past the figure's right edge.
+    let repeats = r.repeats.len();
+    let band = repeats > 1 && sd.iter().any(|&s| s > 0.0);
+    let null_p95: Vec<f64> = r.windows.iter().filter_map(|w| w.null_p95).collect();
+    let mut items = vec![(
+        Key::Line {
+            colour: BAR,
+            dash: "",
+            width: 2.5,
+        },
+        match repeats {
+            1 => "score (1 repeat)".to_string(),
+            n if band => format!("mean of {n} repeats"),
+            n => format!("mean of {n} repeats (SD 0: the repeats agree)"),
+        },
+    )];
+    if band {
+        items.push((
+            Key::Band(BAR),
+            "± 1 SD over cross-validation repeats".to_string(),
+        ));
+    }
+    if null_p95.len() == times.len() {
+        items.push((
+            Key::Line {
+                colour: NULL_BAR,
+                dash: "6 3",
+                width: 2.0,
+            },
+            "shuffle null, 95th percentile".to_string(),
+        ));
+    }
+    items.push((
+        Key::Line {
+            colour: INK,
+            dash: "2 3",
+            width: 1.0,
+        },
+        "chance".to_string(),
+    ));
+    if r.clusters.iter().any(|c| c.significant) {
+        items.push((
+            Key::Bar(INK),
+            format!(
+                "significant cluster (p < {})",
+                r.recipe.time.as_ref().map_or(0.05, |t| t.alpha)
+            ),
+        ));
+    }
+    let legend = Legend::new(items, LEFT, W - RIGHT);
+    let height = H + 10.0 + legend.height();
     let mut svg = String::new();
     open(
         &mut svg,
@@ -62,10 +114,10 @@ pub fn curve(r: &TimeReport) -> String {
         height,
     );
     // ± SD band, then the mean line.
-    let mut band = String::new();
+    let mut path = String::new();
     for (i, &t) in times.iter().enumerate() {
         write!(
-            band,
+            path,
             "{}{:.2} {:.2} ",
             if i == 0 { "M" } else { "L" },
             x(t),
@@ -74,13 +126,15 @@ pub fn curve(r: &TimeReport) -> String {
         .unwrap();
     }
     for (i, &t) in times.iter().enumerate().rev() {
-        write!(band, "L{:.2} {:.2} ", x(t), y(mean[i] - sd[i])).unwrap();
+        write!(path, "L{:.2} {:.2} ", x(t), y(mean[i] - sd[i])).unwrap();
     }
-    write!(
-        svg,
-        r#"<path d="{band}Z" fill="{BAR}" fill-opacity="0.25" stroke="none"/>"#
-    )
-    .unwrap();
+    if band {
+        write!(
+            svg,
+            r#"<path d="{path}Z" fill="{BAR}" fill-opacity="0.25" stroke="none"/>"#
+        )
+        .unwrap();
+    }
     let line = |values: &[f64]| {
         let mut d = String::new();
         for (i, (&t, &v)) in times.iter().zip(values).enumerate() {
@@ -95,7 +149,6 @@ pub fn curve(r: &TimeReport) -> String {
         }
         d
     };
-    let null_p95: Vec<f64> = r.windows.iter().filter_map(|w| w.null_p95).collect();
     if null_p95.len() == times.len() {
         write!(
             svg,
@@ -106,7 +159,7 @@ pub fn curve(r: &TimeReport) -> String {
     }
     write!(
         svg,
-        r#"<path d="M{LEFT} {c:.2} H{r}" stroke="{INK}" stroke-dasharray="2 3"/>"#,
+        r#"<path class="marker" d="M{LEFT} {c:.2} H{r}" stroke="{INK}" stroke-dasharray="2 3"/>"#,
         c = y(r.chance.level),
         r = LEFT + pw
     )
@@ -171,35 +224,7 @@ pub fn curve(r: &TimeReport) -> String {
         ly = H - 10.0
     )
     .unwrap();
-    // Legend in one row under the axis label, in words.
-    let ly = height - 12.0;
-    let legend = [
-        (BAR, "", "mean ± SD over CV repeats", 185.0),
-        (NULL_BAR, "6 3", "null 95th pct", 115.0),
-        (INK, "2 3", "chance", 80.0),
-    ];
-    let mut lx = LEFT;
-    for (colour, dash, label, advance) in legend {
-        write!(
-            svg,
-            r#"<path d="M{lx} {ly} h22" stroke="{colour}" stroke-width="2" stroke-dasharray="{dash}"/><text x="{tx}" y="{ty}" fill="{INK}">{label}</text>"#,
-            tx = lx + 28.0,
-            ty = ly + 4.0
-        )
-        .unwrap();
-        lx += advance;
-    }
-    if r.clusters.iter().any(|c| c.significant) {
-        write!(
-            svg,
-            r#"<rect x="{lx}" y="{ry}" width="22" height="6" fill="{INK}"/><text x="{tx}" y="{ty}" fill="{INK}">significant cluster (p &lt; {alpha})</text>"#,
-            ry = ly - 3.0,
-            tx = lx + 28.0,
-            ty = ly + 4.0,
-            alpha = esc(&r.recipe.time.as_ref().map_or(0.05, |t| t.alpha).to_string())
-        )
-        .unwrap();
-    }
+    legend.draw(&mut svg, H + 8.0);
     svg.push_str("</svg>");
     svg
 }

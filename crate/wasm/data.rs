@@ -1,0 +1,222 @@
+//! Decoded data on the page: a file is read once, in the page's data worker, into the trials × features (or
+//! windows × trials × neurons) matrix the analyses use; each run worker then gets that matrix once, as a
+//! `Float64Array` the page transfers, with its labels, groups and names as a small JSON header. No run worker
+//! parses the file or holds its text, so memory grows with the decoded numbers, not with the file's bytes.
+//!
+//! The header carries every field of [`Dataset`] / [`TimeDataset`] but the matrix, and the matrix's bits are
+//! copied exactly, so a plan built from decoded data is the plan built from the file (the page's JSON stays the
+//! CLI's, byte for byte: tests/browser).
+
+use super::request::{err, Request};
+use crate::data::time::TimeDataset;
+use crate::data::{Dataset, SourceFile};
+use crate::input;
+use crate::recipe::windows::Window;
+use ndarray::{Array2, Array3};
+use serde::{Deserialize, Serialize};
+use wasm_bindgen::JsValue;
+
+/// What a file decodes into, by the analysis family that reads it.
+#[derive(Clone)]
+pub(super) enum Decoded {
+    Table(Dataset),
+    Time(TimeDataset),
+}
+
+/// The family of data an analysis reads: the neuron analyses read a trial table.
+pub(super) fn family(kind: &str) -> Result<&'static str, JsValue> {
+    match kind {
+        "table" | "neurons" => Ok("table"),
+        "time" => Ok("time"),
+        other => Err(err(format!("unknown kind of analysis '{other}'"))),
+    }
+}
+
+/// Read the request's files for an analysis kind (every check of the file happens here, with the core's messages).
+pub(super) fn load(kind: &str, r: &Request) -> Result<Decoded, JsValue> {
+    match family(kind)? {
+        "table" => {
+            let [file] = r.files[..] else {
+                return Err(err("a trial table is one file"));
+            };
+            input::trial_table(file.name, file.bytes, &r.recipe.columns)
+                .map(Decoded::Table)
+                .map_err(err)
+        }
+        _ => {
+            let settings = r
+                .recipe
+                .time
+                .as_ref()
+                .ok_or_else(|| err("this recipe has no time settings"))?;
+            input::time_course(&r.files, &r.recipe.columns, &settings.input)
+                .map(Decoded::Time)
+                .map_err(err)
+        }
+    }
+}
+
+#[derive(Serialize, Deserialize)]
+struct TableHeader {
+    trials: usize,
+    features: usize,
+    source: String,
+    sha256: String,
+    delimiter: String,
+    decimal_comma: bool,
+    y: Vec<usize>,
+    classes: Vec<String>,
+    groups: Option<Vec<usize>>,
+    group_names: Vec<String>,
+    feature_names: Vec<String>,
+    label_column: String,
+    group_column: Option<String>,
+    dropped_lines: Vec<u64>,
+    skipped_columns: Vec<String>,
+    warnings: Vec<String>,
+    pseudo: Option<Vec<usize>>,
+}
+
+#[derive(Serialize, Deserialize)]
+struct TimeHeader {
+    windows_count: usize,
+    trials: usize,
+    neurons_count: usize,
+    source: String,
+    files: Vec<SourceFile>,
+    windows: Vec<Window>,
+    trial_ids: Vec<String>,
+    y: Vec<usize>,
+    classes: Vec<String>,
+    groups: Option<Vec<usize>>,
+    group_names: Vec<String>,
+    neurons: Vec<String>,
+    label_column: String,
+    group_column: Option<String>,
+    spikes_outside: u64,
+    spikes_total: u64,
+    warnings: Vec<String>,
+}
+
+impl Decoded {
+    /// The group column and its groups' names (empty without groups).
+    pub(super) fn groups(&self) -> (Option<&str>, &[String]) {
+        match self {
+            Decoded::Table(d) => (d.group_column.as_deref(), &d.group_names),
+            Decoded::Time(d) => (d.group_column.as_deref(), &d.group_names),
+        }
+    }
+
+    /// Everything but the matrix, as JSON (`"family"` says which).
+    pub(super) fn header(&self) -> String {
+        let (family, header) = match self {
+            Decoded::Table(d) => (
+                "table",
+                serde_json::to_value(TableHeader {
+                    trials: d.x.nrows(),
+                    features: d.x.ncols(),
+                    source: d.source.clone(),
+                    sha256: d.sha256.clone(),
+                    delimiter: d.delimiter.clone(),
+                    decimal_comma: d.decimal_comma,
+                    y: d.y.clone(),
+                    classes: d.classes.clone(),
+                    groups: d.groups.clone(),
+                    group_names: d.group_names.clone(),
+                    feature_names: d.feature_names.clone(),
+                    label_column: d.label_column.clone(),
+                    group_column: d.group_column.clone(),
+                    dropped_lines: d.dropped_lines.clone(),
+                    skipped_columns: d.skipped_columns.clone(),
+                    warnings: d.warnings.clone(),
+                    pseudo: d.pseudo.clone(),
+                }),
+            ),
+            Decoded::Time(d) => {
+                let (w, n, p) = d.x.dim();
+                (
+                    "time",
+                    serde_json::to_value(TimeHeader {
+                        windows_count: w,
+                        trials: n,
+                        neurons_count: p,
+                        source: d.source.clone(),
+                        files: d.files.clone(),
+                        windows: d.windows.clone(),
+                        trial_ids: d.trial_ids.clone(),
+                        y: d.y.clone(),
+                        classes: d.classes.clone(),
+                        groups: d.groups.clone(),
+                        group_names: d.group_names.clone(),
+                        neurons: d.neurons.clone(),
+                        label_column: d.label_column.clone(),
+                        group_column: d.group_column.clone(),
+                        spikes_outside: d.spikes_outside,
+                        spikes_total: d.spikes_total,
+                        warnings: d.warnings.clone(),
+                    }),
+                )
+            }
+        };
+        let mut header = header.expect("a header serialises");
+        header["family"] = family.into();
+        header.to_string()
+    }
+
+    /// The matrix's values in memory order (a copy, which the page transfers to a run worker).
+    pub(super) fn matrix(&self) -> Vec<f64> {
+        match self {
+            Decoded::Table(d) => d.x.iter().copied().collect(),
+            Decoded::Time(d) => d.x.iter().copied().collect(),
+        }
+    }
+
+    /// Rebuild decoded data from its header and matrix (taken without a copy).
+    pub(super) fn from_parts(header: &str, x: Vec<f64>) -> Result<Decoded, JsValue> {
+        let bad = |e: &dyn std::fmt::Display| err(format!("malformed decoded data: {e}"));
+        let value: serde_json::Value = serde_json::from_str(header).map_err(|e| bad(&e))?;
+        if value["family"] == "table" {
+            let h: TableHeader = serde_json::from_value(value).map_err(|e| bad(&e))?;
+            let x = Array2::from_shape_vec((h.trials, h.features), x).map_err(|e| bad(&e))?;
+            Ok(Decoded::Table(Dataset {
+                source: h.source,
+                sha256: h.sha256,
+                delimiter: h.delimiter,
+                decimal_comma: h.decimal_comma,
+                x,
+                y: h.y,
+                classes: h.classes,
+                groups: h.groups,
+                group_names: h.group_names,
+                feature_names: h.feature_names,
+                label_column: h.label_column,
+                group_column: h.group_column,
+                dropped_lines: h.dropped_lines,
+                skipped_columns: h.skipped_columns,
+                warnings: h.warnings,
+                pseudo: h.pseudo,
+            }))
+        } else {
+            let h: TimeHeader = serde_json::from_value(value).map_err(|e| bad(&e))?;
+            let x = Array3::from_shape_vec((h.windows_count, h.trials, h.neurons_count), x)
+                .map_err(|e| bad(&e))?;
+            Ok(Decoded::Time(TimeDataset {
+                source: h.source,
+                files: h.files,
+                x,
+                windows: h.windows,
+                trial_ids: h.trial_ids,
+                y: h.y,
+                classes: h.classes,
+                groups: h.groups,
+                group_names: h.group_names,
+                neurons: h.neurons,
+                label_column: h.label_column,
+                group_column: h.group_column,
+                spikes_outside: h.spikes_outside,
+                spikes_total: h.spikes_total,
+                warnings: h.warnings,
+            }))
+        }
+    }
+}

@@ -1,0 +1,188 @@
+// Say what will happen before it happens: on every change, the data worker checks the design against the current
+// settings (off the main thread, the latest change wins); the page shows the trials per class, the
+// cross-validation scheme in words, whether every repeat would be identical, the number of fits with an estimated
+// duration (from one task timed on this computer) and, for large data, the memory a run will need.
+'use strict';
+(function (PD) {
+  const { $, el } = PD;
+  const S = PD.state;
+  S.check = null; // { seq, recipe, plan, header, problems, error }
+  let seq = 0;
+  let timer = null;
+  const rates = new Map(); // what sets the speed of a fit -> milliseconds per fit, measured once
+
+  // The analysis kind a recipe runs as on the main button.
+  PD.mainKind = () => (PD.isTime() ? 'time' : 'table');
+
+  // The data worker's cache key: what the file is read for (columns and time input), not the resampling settings.
+  PD.loadKey = (kind, recipe) => JSON.stringify([S.generation, kind === 'time' ? 'time' : 'table', recipe.columns,
+    recipe.time ? recipe.time.input : null]);
+
+  PD.request = (kind, recipe, options) => ({
+    kind, dataKind: S.kind, key: PD.loadKey(kind, recipe), recipe: JSON.stringify(recipe), options: options || '',
+  });
+
+  PD.refresh = function () {
+    clearTimeout(timer);
+    timer = setTimeout(check, 150);
+    PD.updateButtons();
+  };
+
+  PD.updateButtons = function () {
+    const ok = PD.dataReady() && S.check && !S.check.error && !S.check.problems.length && S.check.plan;
+    $('start').disabled = !ok || !!S.run;
+    $('compare-start').disabled = !ok || !!S.run;
+    $('neurons-start').disabled = !ok || !!S.run || S.kind !== 'table';
+    $('cancel').disabled = !S.run;
+  };
+
+  async function check() {
+    PD.syncFeatures();
+    const c = $('classifier').value;
+    $('c').disabled = !PD.WITH_C.includes(c) || $('tune').checked;
+    $('tune').disabled = !PD.WITH_C.includes(c);
+    PD.saveSettings();
+    const mine = ++seq;
+    const { recipe, problems } = PD.readRecipe();
+    PD.showProblems(problems);
+    S.check = { seq: mine, recipe, plan: null, header: null, problems, error: null };
+    $('cli-line').textContent = PD.cliLine(recipe);
+    PD.emit('checked');
+    if (!PD.dataReady()) { drawPlan(); PD.updateButtons(); return; }
+    if (problems.length) { drawPlan(); PD.updateButtons(); return; }
+    $('estimate').textContent = 'Checking the settings against the data…';
+    const kind = PD.mainKind();
+    const speedKey = JSON.stringify([S.generation, kind, recipe.columns, recipe.time, recipe.classifier, recipe.c,
+      recipe.tune, recipe.folds, recipe.balance]);
+    try {
+      const answer = await S.data.ask('prepare', { ...PD.request(kind, recipe), sample: !rates.has(speedKey), withHeader: true });
+      if (mine !== seq) return;
+      if (answer.sampleMs !== null) rates.set(speedKey, answer.sampleMs / Math.max(1, answer.plan.fits[0]));
+      S.check.plan = answer.plan;
+      S.check.header = answer.header;
+      S.check.msPerFit = rates.get(speedKey);
+      PD.clearError('data-error');
+    } catch (e) {
+      if (mine !== seq) return;
+      S.check.error = e.message;
+      const field = PD.fieldOf(e.message);
+      if (field) PD.fieldProblem(field, e.message); else PD.showError('data-error', e.message);
+    }
+    drawPlan();
+    PD.updateButtons();
+    PD.emit('checked');
+  }
+
+  // The effective cross-validation scheme, in words, from the same rules as the core's Scheme::resolve
+  // (crate/resample/scheme.rs): groups → grouped k folds when k < groups, else leave one group out; no groups →
+  // leave-one-out for loo or k ≥ trials per repeat, else stratified k folds; pseudo-trials → k folds per session.
+  PD.schemeWords = function (recipe, plan) {
+    const groups = plan.group_names || [];
+    const col = plan.group_column;
+    const k = recipe.folds;
+    const n = plan.trials_per_repeat;
+    if (recipe.columns.pseudo) return { split: 'pseudo', text: `pseudo-trials built within ${k === 'loo' ? 'leave-one-out' : k + ' folds'} of every session's trials (${groups.length} sessions in ‘${recipe.columns.pseudo}’)` };
+    if (col) {
+      if (k !== 'loo' && k < groups.length) return { split: 'grouped', text: `${k} folds, grouped by ‘${col}’ (${groups.length} groups): no group is split between training and test` };
+      return { split: 'logo', text: `leave one ‘${col}’ out (${groups.length} groups held out in turn); the Folds setting (${k}) is not used` };
+    }
+    if (k === 'loo') return { split: 'loo', text: `leave-one-out (${n} trials per repeat)` };
+    if (k >= n) return { split: 'loo', text: `leave-one-out: ${k} folds is at least the ${n} trials per repeat` };
+    return { split: 'stratified', text: `${k} folds, stratified (every class in the same proportion in every fold)` };
+  };
+
+  // Every repeat draws the same thing when no step is random: classes already equal (or not balanced), every
+  // group (or trial) held out in turn, and no nested choice of settings with its own random folds.
+  PD.repeatsIdentical = (recipe, plan, split) => ['logo', 'loo'].includes(split) && !recipe.tune &&
+    (!recipe.balance || new Set(plan.class_counts).size === 1);
+
+  // Rough memory of a run: the decoded matrix once per worker and once in the data worker, plus a training copy
+  // per worker while it fits.
+  PD.memoryNeed = function (header, workers) {
+    if (!header) return null;
+    const cells = header.family === 'table' ? header.trials * header.features : header.windows_count * header.trials * header.neurons_count;
+    const matrix = 8 * cells;
+    return { matrix, total: matrix * (1 + 2 * workers), perWorker: 2 * matrix };
+  };
+  const LARGE = 200e6;
+
+  // The memory a run may use: half of what the browser says the device has (Chromium reports at most 8 GB;
+  // Firefox says nothing, read as 8 GB), so at most 4 GB, and never more than a 32-bit wasm instance (4 GiB) per
+  // worker. With large data the pool is smaller than the cores, so the run fits: each run worker holds its own
+  // copy of the matrix (browsers share memory between workers only on cross-origin-isolated pages, which the
+  // offline file cannot be).
+  PD.memoryBudget = () => (navigator.deviceMemory || 8) * 1e9 / 2;
+  PD.workersFor = function (header, tasks) {
+    const wanted = Math.max(1, Math.min(PD.poolSize(), tasks));
+    const mem = PD.memoryNeed(header, 1);
+    if (!mem) return { workers: wanted, limited: false };
+    const fit = Math.max(1, Math.floor((PD.memoryBudget() - mem.matrix) / mem.perWorker));
+    return { workers: Math.min(wanted, fit), limited: fit < wanted, wanted };
+  };
+
+  function drawPlan() {
+    const box = $('classes');
+    box.replaceChildren();
+    const scheme = $('scheme');
+    scheme.replaceChildren();
+    const estimate = $('estimate');
+    estimate.textContent = '';
+    const c = S.check;
+    if (!c || !c.plan) {
+      if (!PD.dataReady()) estimate.textContent = 'Load data to run.';
+      else if (c && c.problems.length) estimate.textContent = 'Some settings need attention (marked beside them).';
+      return;
+    }
+    const { plan, recipe } = c;
+    const time = PD.isTime();
+    const max = Math.max(...plan.class_counts);
+    const min = Math.min(...plan.class_counts);
+    box.appendChild(el('h3', `Trials per class (${plan.trials} trials, ${plan.features} ${time ? 'neurons' : 'features'}` +
+      (time ? `, ${plan.windows.length} windows from ${plan.windows[0].time} s to ${plan.windows[plan.windows.length - 1].time} s` : '') +
+      (['events', 'nwb'].includes(S.kind) ? `, ${plan.spikes_total} spikes of which ${plan.spikes_outside} fall outside every window` : '') + ')'));
+    const bars = el('div', null, 'bars');
+    plan.classes.forEach((name, i) => {
+      const n = plan.class_counts[i];
+      const low = typeof recipe.folds === 'number' && n < recipe.folds && !plan.group_column;
+      bars.appendChild(el('span', name, 'bar-name'));
+      const bar = el('div', null, 'bar' + (low ? ' low' : ''));
+      bar.style.width = (100 * n / max) + '%';
+      bars.appendChild(bar);
+      bars.appendChild(el('span', n + (low ? ' (fewer than folds)' : '')));
+    });
+    box.appendChild(bars);
+    const notes = el('ul', null, 'warnings');
+    if (min < max) {
+      notes.appendChild(el('li', recipe.balance
+        ? `Classes are unbalanced (${min} to ${max} trials): every repeat undersamples each class to ${min}.`
+        : `Classes are unbalanced (${min} to ${max} trials) and balancing is off: balanced accuracy is the headline.`));
+    }
+    plan.warnings.forEach((w) => notes.appendChild(el('li', PD.pageWords(w))));
+    box.appendChild(notes);
+
+    const s = PD.schemeWords(recipe, plan);
+    const p = el('p');
+    p.appendChild(el('strong', 'Cross-validation: '));
+    p.appendChild(document.createTextNode(s.text + '.'));
+    scheme.appendChild(p);
+    if (recipe.repeats > 1 && PD.repeatsIdentical(recipe, plan, s.split)) {
+      const q = el('p', `Every repeat would be identical here (classes are equal and every ${s.split === 'loo' ? 'trial' : 'group'} is ` +
+        `held out in turn), so ${recipe.repeats} repeats give the same number ${recipe.repeats} times. `, 'warning');
+      q.id = 'identical-note';
+      q.appendChild(PD.button('Use 1 repeat', () => { $('repeats').value = '1'; PD.refresh(); }));
+      scheme.appendChild(q);
+    }
+
+    const fits = plan.fits.reduce((a, b) => a + b, 0);
+    const pool = PD.workersFor(c.header, plan.tasks.length);
+    const workers = pool.workers;
+    const seconds = c.msPerFit !== undefined ? fits * c.msPerFit / 1000 / workers : null;
+    const mem = PD.memoryNeed(c.header, workers);
+    c.seconds = seconds;
+    c.memory = mem && mem.total > LARGE ? mem : null;
+    estimate.textContent = `${PD.count(fits, 'fit')} in ${PD.count(plan.tasks.length, 'task')} on ${PD.count(workers, 'worker')}` +
+      (pool.limited ? ` (not ${pool.wanted}: each worker holds its own copy of the data, and more would not fit in memory)` : '') +
+      (seconds !== null ? `: about ${PD.seconds(seconds)} on this computer` : '') +
+      (c.memory ? `; needs about ${PD.bytes(c.memory.total)} of memory (${PD.bytes(c.memory.perWorker)} per worker)` : '') + '.';
+  }
+}(window.PD));

@@ -1,0 +1,188 @@
+// Runs and the worker pool. A run: settings checked, plan prepared by the data worker, confirmation when it is
+// long or large, a fresh pool of run workers each given the decoded matrix once (transferred, one worker at a time,
+// so copies do not pile up), tasks handed to whichever worker is free, the outcome strings joined unparsed and
+// finished by the data worker. Only a finished run becomes a record; a cancelled or failed one changes nothing
+// on view. Cancel terminates the workers at once (running wasm cannot be interrupted).
+'use strict';
+(function (PD) {
+  const { $ } = PD;
+  const S = PD.state;
+  S.run = null;
+  S.pool = [];
+
+  function stopPool() {
+    S.pool.forEach((w) => w.terminate());
+    S.pool = [];
+  }
+
+  function endRun() {
+    stopPool();
+    S.run = null;
+    $('progress').hidden = true;
+    PD.updateButtons();
+  }
+
+  PD.cancel = function () {
+    if (!S.run) return;
+    S.run.cancelled = true;
+    endRun();
+    $('confirm').hidden = true;
+    $('progress-text').textContent = 'Cancelled. Nothing was kept from the stopped run; the results on view are unchanged.';
+  };
+
+  // Ask before a run longer than a minute or needing much memory; resolves true to go on.
+  function confirmRun(text) {
+    return new Promise((resolve) => {
+      const box = $('confirm');
+      $('confirm-text').textContent = text;
+      box.hidden = false;
+      const done = (answer) => {
+        box.hidden = true;
+        $('confirm-yes').onclick = null; $('confirm-no').onclick = null;
+        resolve(answer);
+      };
+      $('confirm-yes').onclick = () => done(true);
+      $('confirm-no').onclick = () => done(false);
+      $('confirm-yes').focus();
+    });
+  }
+
+  // The recipe and options each kind of run uses, from the form's recipe.
+  PD.runRecipe = function (kind, base) {
+    const recipe = JSON.parse(JSON.stringify(base));
+    if (kind === 'neurons') recipe.shuffles = 0;
+    if (kind === 'compare') { recipe.shuffles = 0; recipe.repeats = Math.min(recipe.repeats, 20); recipe.tune = false; }
+    return recipe;
+  };
+
+  // Start a run of `kind` ('main', 'compare' or 'neurons') from the form. `viaKeyboard`: focus goes to the
+  // results heading when it is done.
+  PD.start = async function (kind, viaKeyboard) {
+    if (S.run || !PD.dataReady()) return;
+    PD.clearError('run-error');
+    const { recipe: base, problems } = PD.readRecipe();
+    const draws = PD.readDraws();
+    if (kind === 'neurons' && draws === null) problems.push(['draws', 'Random subsets per size must be a whole number, 1 or more.']);
+    PD.showProblems(problems);
+    if (problems.length) {
+      const first = $(problems[0][0]);
+      if (first) first.focus();
+      return;
+    }
+    const token = { cancelled: false };
+    S.run = token;
+    PD.updateButtons();
+    const generation = S.generation;
+    const files = PD.currentFiles();
+    try {
+      let record;
+      if (kind === 'compare') record = await compareRun(base, token);
+      else {
+        const analysis = kind === 'neurons' ? 'neurons' : PD.mainKind();
+        const recipe = PD.runRecipe(kind, base);
+        const options = kind === 'neurons' ? JSON.stringify({ draws }) : '';
+        const c = S.check;
+        const long = c && c.seconds !== null && c.seconds > 60 && kind === 'main';
+        if ((long || (c && c.memory)) && kind === 'main') {
+          const ok = await confirmRun(`This run has ${PD.count(c.plan.fits.reduce((a, b) => a + b, 0), 'fit')}` +
+            (c.seconds !== null ? ` and should take about ${PD.seconds(c.seconds)} on this computer` : '') +
+            (c.memory ? `; it needs about ${PD.bytes(c.memory.total)} of memory (${PD.bytes(c.memory.perWorker)} per worker; fewer workers need less: add ?workers=1 to the address)` : '') +
+            '. Start it?');
+          if (!ok || token.cancelled) { if (S.run === token) endRun(); $('progress-text').textContent = 'Not started.'; return; }
+        }
+        const result = await runOnce(analysis, recipe, options, token, '');
+        record = { kind: analysis, recipe, options, draws: kind === 'neurons' ? draws : null, result, seconds: result.seconds, workers: result.workers };
+      }
+      if (token.cancelled || S.run !== token) return;
+      record.dataKind = S.kind;
+      record.generation = generation;
+      record.files = files;
+      endRun();
+      PD.addRecord(record, viaKeyboard);
+    } catch (e) {
+      if (token.cancelled || S.run !== token) return;
+      endRun();
+      $('progress-text').textContent = '';
+      const field = PD.fieldOf(e.message);
+      if (field) PD.fieldProblem(field, e.message);
+      PD.showError('run-error', e.message);
+    }
+  };
+
+  // One analysis on a fresh pool: resolves to the finished result (with seconds and workers).
+  async function runOnce(analysis, recipe, options, token, label) {
+    const req = PD.request(analysis, recipe, options);
+    $('progress').hidden = false; $('progress').value = 0;
+    $('progress-text').textContent = `${label}Preparing…`;
+    const { plan, header } = await S.data.ask('prepare', { ...req, sample: false, withHeader: false })
+      .then(async (a) => ({ plan: a.plan, header: await S.data.ask('header', req) }));
+    if (token.cancelled) throw new Error('cancelled');
+    const queue = plan.tasks.map((task, i) => ({ task, fits: plan.fits[i] }));
+    const fitsTotal = plan.fits.reduce((a, b) => a + b, 0);
+    const started = performance.now();
+    const n = PD.workersFor(header ? JSON.parse(header) : null, queue.length).workers;
+    const outcomes = [];
+    let next = 0;
+    let fitsDone = 0;
+    $('progress-text').textContent = `${label}Starting ${PD.count(n, 'worker')}…`;
+    const workers = [];
+    for (let w = 0; w < n; w++) {
+      const worker = new PD.DataWorker(S.module);
+      S.pool.push(worker);
+      workers.push(worker);
+    }
+    // Each worker gets the decoded matrix once, one after the other.
+    for (const worker of workers) {
+      const matrix = await S.data.ask('matrix', req);
+      if (token.cancelled) throw new Error('cancelled');
+      await worker.ask('run-init', { module: S.module, kind: analysis, header, matrix, recipe: req.recipe, options: req.options }, [matrix.buffer]);
+      if (token.cancelled) throw new Error('cancelled');
+    }
+    const progress = () => {
+      const frac = fitsDone / fitsTotal;
+      $('progress').value = frac;
+      const elapsed = (performance.now() - started) / 1000;
+      const left = frac > 0 ? elapsed * (1 - frac) / frac : NaN;
+      $('progress-text').textContent = `${label}${fitsDone} of ${fitsTotal} fits (${Math.round(100 * frac)} %), ` +
+        `${elapsed.toFixed(1)} s elapsed` + (Number.isFinite(left) ? `, about ${Math.ceil(left)} s left` : '');
+    };
+    await Promise.all(workers.map(async (worker) => {
+      while (next < queue.length) {
+        const id = next++;
+        const outcome = await worker.ask('task', { task: queue[id].task });
+        if (token.cancelled) throw new Error('cancelled');
+        outcomes.push(outcome);
+        fitsDone += queue[id].fits;
+        progress();
+      }
+    }));
+    stopPool();
+    $('progress-text').textContent = `${label}Assembling the results…`;
+    const result = await S.data.ask('finish', { ...req, outcomes: '[' + outcomes.join(',') + ']' });
+    result.seconds = (performance.now() - started) / 1000;
+    result.workers = n;
+    $('progress-text').textContent = `Done: ${fitsTotal} fits in ${result.seconds.toFixed(1)} s on ${PD.count(n, 'worker')}.`;
+    return result;
+  }
+
+  // Every decoder on the current settings, one after the other, without shuffles and with at most 20 repeats.
+  PD.DECODERS = ['linear-svm', 'shrinkage-lda', 'logistic', 'gaussian-nb', 'poisson-nb', 'nearest-mean', 'rbf-svm'];
+  async function compareRun(base, token) {
+    const recipe = PD.runRecipe('compare', base);
+    const rows = [];
+    let seconds = 0;
+    for (let i = 0; i < PD.DECODERS.length; i++) {
+      const r = { ...recipe, classifier: PD.DECODERS[i] };
+      try {
+        const result = await runOnce(PD.mainKind(), r, '', token, `Comparing: ${PD.DECODER_NAMES[r.classifier]} (${i + 1} of ${PD.DECODERS.length}). `);
+        seconds += result.seconds;
+        rows.push({ classifier: r.classifier, report: result.report });
+      } catch (e) {
+        if (token.cancelled) throw e;
+        rows.push({ classifier: r.classifier, error: e.message });
+      }
+    }
+    $('progress-text').textContent = 'Comparison done.';
+    return { kind: 'compare', recipe, options: '', result: { rows }, seconds, workers: Math.min(PD.poolSize(), 1e9) };
+  }
+}(window.PD));
