@@ -23,6 +23,10 @@ pub enum Stream {
     Simulation = 4,
     /// Random subsets of neurons (the neuron-dropping curve).
     Subset = 5,
+    /// The seed of each session of a study, from the study's seed and the session's name.
+    Session = 6,
+    /// The second-level draws of a study's group tests (one null value per session, many times).
+    GroupNull = 7,
 }
 
 /// A generator for task `(a, b)` of kind `kind` under `seed`.
