@@ -10,14 +10,17 @@
 //! A shuffle permutes the labels once (within groups when groups are set) and runs the recipe's repeats per
 //! shuffle over every window, so one permutation is used at every window: what the cluster test needs.
 
+use super::pooled::Pool;
 use crate::analyses::resolve_scheme;
 use crate::data::time::TimeDataset;
+use crate::data::trials::Trials;
 use crate::decoders::{self, check_counts, fit_folds, Decoder, FittedPipeline, FoldSet};
 use crate::error::{Error, Result};
 use crate::recipe::{Recipe, Setting, TimeInput, TimeSettings};
 use crate::resample::score::accuracies;
-use crate::resample::{permute_labels, Draw, Scheme, Task};
+use crate::resample::{permute_labels, Scheme, Task};
 use crate::rng::{task_rng, Stream};
+use rand_core::RngCore;
 use serde::{Deserialize, Serialize};
 
 /// What a task produced at every window. For a shuffle, scores are means over its repeats.
@@ -48,6 +51,9 @@ pub struct TimePlan {
     decoder: Box<dyn Decoder>,
     /// For a decoder of counts on spike events: the window width, which turns the rates back into exact counts.
     count_scale: Option<f64>,
+    /// Pseudo-populations: the sessions whose neurons are pooled (`data` then describes the pooled population and
+    /// holds no activity).
+    pool: Option<Pool>,
 }
 
 impl TimePlan {
@@ -56,14 +62,7 @@ impl TimePlan {
             Error::Recipe("this recipe has no time settings; it is for a trial table".into())
         })?;
         let mut scheme = resolve_scheme(&data.trials(), recipe)?;
-        let count_scale = match settings.input {
-            TimeInput::Events { width, .. } | TimeInput::Nwb { width, .. }
-                if recipe.classifier.needs_counts() =>
-            {
-                Some(width)
-            }
-            _ => None,
-        };
+        let count_scale = count_scale(&settings, recipe);
         let counts_note = check_counts(
             recipe.classifier,
             data.x.as_slice().expect("standard layout"),
@@ -82,6 +81,42 @@ impl TimePlan {
             scheme,
             decoder: decoders::build(recipe.classifier, recipe.c, recipe.tune),
             count_scale,
+            pool: None,
+        })
+    }
+
+    /// Neurons recorded in separate sessions, pooled into one pseudo-population: each repeat builds pseudo-trials
+    /// within folds from disjoint real trials of every session ([`crate::resample::pseudo`]), and the windows are
+    /// decoded as for one recording. `sessions` are (name, recording) with the same windows and classes.
+    pub fn pooled(sessions: Vec<(String, TimeDataset)>, recipe: &Recipe) -> Result<TimePlan> {
+        let settings = recipe.time.clone().ok_or_else(|| {
+            Error::Recipe("this recipe has no time settings; it is for a trial table".into())
+        })?;
+        let (data, pool) = Pool::new(sessions)?;
+        let trials = Trials {
+            pseudo: true,
+            ..data.trials()
+        };
+        let mut scheme = resolve_scheme(&trials, recipe)?;
+        let count_scale = count_scale(&settings, recipe);
+        let mut warnings = data.warnings.clone();
+        warnings.append(&mut scheme.warnings);
+        for s in &pool.sessions {
+            let x = s.x.as_slice().expect("standard layout");
+            let note = check_counts(recipe.classifier, x, &s.neurons, &s.source)?;
+            if let Some(n) = note.filter(|_| count_scale.is_none()) {
+                warnings.push(n);
+            }
+        }
+        scheme.warnings = warnings;
+        Ok(TimePlan {
+            data,
+            recipe: recipe.clone(),
+            settings,
+            scheme,
+            decoder: decoders::build(recipe.classifier, recipe.c, recipe.tune),
+            count_scale,
+            pool: Some(pool),
         })
     }
 
@@ -109,8 +144,7 @@ impl TimePlan {
         match task {
             Task::Repeat(i) => {
                 let mut rng = task_rng(seed, Stream::Repeat, i as u64, 0);
-                let draw = self.scheme.draw(&self.data.y, groups, &mut rng);
-                let mut out = self.one_repeat(&draw);
+                let mut out = self.repeat(&self.data.y, &mut rng);
                 out.task = task;
                 out
             }
@@ -121,8 +155,7 @@ impl TimePlan {
                 let mut total: Option<TimeOutcome> = None;
                 for i in 0..r {
                     let mut rng = task_rng(seed, Stream::ShuffleRepeat, j as u64, i as u64);
-                    let draw = self.scheme.draw(&labels, groups, &mut rng);
-                    let o = self.one_repeat(&draw);
+                    let o = self.repeat(&labels, &mut rng);
                     match &mut total {
                         None => total = Some(o),
                         Some(t) => {
@@ -160,26 +193,54 @@ impl TimePlan {
             .collect()
     }
 
+    /// One repeat for `labels` (observed or permuted): balance and split the trials (or build pseudo-trials), then
+    /// decode every window.
+    fn repeat(&self, labels: &[usize], rng: &mut impl RngCore) -> TimeOutcome {
+        match &self.pool {
+            None => {
+                let draw = self.scheme.draw(labels, self.data.groups.as_deref(), rng);
+                let p = self.data.n_neurons();
+                let rows = |w: usize, positions: &[usize]| {
+                    let x = self.data.window(w);
+                    let mut out = Vec::with_capacity(positions.len() * p);
+                    for &pos in positions {
+                        let i = draw.used[pos];
+                        out.extend_from_slice(&x[i * p..(i + 1) * p]);
+                    }
+                    out
+                };
+                self.one_repeat(&draw.y, &draw.fold, draw.folds, &rows)
+            }
+            Some(pool) => {
+                let draw = pool.draw(labels, self.scheme.folds(), self.data.classes.len(), rng);
+                let rows = |w: usize, positions: &[usize]| pool.rows(&draw, w, positions);
+                self.one_repeat(&draw.y, &draw.fold, draw.folds, &rows)
+            }
+        }
+    }
+
     /// Cross-validate one draw at every window (and, with generalization, test every window's decoder at every
-    /// window). All folds of a window are fitted together, so a decoder with a fold shortcut can use it.
-    fn one_repeat(&self, draw: &Draw) -> TimeOutcome {
+    /// window): `y` and `fold` are the draw's trials' labels and folds, `rows(w, positions)` their activity at
+    /// window w, row-major. All folds of a window are fitted together, so a decoder with a fold shortcut can use it.
+    fn one_repeat(
+        &self,
+        y: &[usize],
+        fold: &[usize],
+        folds: usize,
+        rows: &dyn Fn(usize, &[usize]) -> Vec<f64>,
+    ) -> TimeOutcome {
         let data = &self.data;
         let (nw, k, p) = (self.n_windows(), data.classes.len(), data.n_neurons());
         let generalize = self.settings.generalize;
         let gather = |w: usize, positions: &[usize]| {
-            let x = data.window(w);
-            let mut out = Vec::with_capacity(positions.len() * p);
-            for &pos in positions {
-                let i = draw.used[pos];
-                out.extend_from_slice(&x[i * p..(i + 1) * p]);
-            }
+            let mut out = rows(w, positions);
             if let Some(width) = self.count_scale {
                 // Rates × width: spike counts, rounded to undo the division's round-off.
                 out.iter_mut().for_each(|v| *v = (*v * width).round());
             }
             out
         };
-        let all: Vec<usize> = (0..draw.used.len()).collect();
+        let all: Vec<usize> = (0..y.len()).collect();
         // models[w][f]: the pipeline trained at window w without fold f.
         let models: Vec<Vec<Option<FittedPipeline>>> = (0..nw)
             .map(|w| {
@@ -187,9 +248,9 @@ impl TimePlan {
                 let set = FoldSet {
                     x: &x,
                     p,
-                    y: &draw.y,
-                    fold: &draw.fold,
-                    folds: draw.folds,
+                    y,
+                    fold,
+                    folds,
                     n_classes: k,
                 };
                 fit_folds(self.decoder.as_ref(), &set)
@@ -203,12 +264,8 @@ impl TimePlan {
 
         let cells = if generalize { nw * nw } else { nw };
         let mut confusion = vec![0u32; cells * k * k];
-        for f in 0..draw.folds {
-            let test: Vec<usize> = all
-                .iter()
-                .copied()
-                .filter(|&pos| draw.fold[pos] == f)
-                .collect();
+        for f in 0..folds {
+            let test: Vec<usize> = all.iter().copied().filter(|&pos| fold[pos] == f).collect();
             if models.iter().all(|m| m[f].is_none()) {
                 continue;
             }
@@ -217,7 +274,7 @@ impl TimePlan {
                 let cell = if generalize { w * nw + w_test } else { w };
                 let c = &mut confusion[cell * k * k..(cell + 1) * k * k];
                 for (&pos, q) in test.iter().zip(model.predict(rows)) {
-                    c[draw.y[pos] * k + q] += 1;
+                    c[y[pos] * k + q] += 1;
                 }
             };
             for w_test in 0..nw {
@@ -259,6 +316,18 @@ impl TimePlan {
             single_class_fits: single,
             chosen,
         }
+    }
+}
+
+/// For a decoder of counts on spike events or NWB files: the window width, which turns rates back into counts.
+fn count_scale(settings: &TimeSettings, recipe: &Recipe) -> Option<f64> {
+    match settings.input {
+        TimeInput::Events { width, .. } | TimeInput::Nwb { width, .. }
+            if recipe.classifier.needs_counts() =>
+        {
+            Some(width)
+        }
+        _ => None,
     }
 }
 
