@@ -9,6 +9,7 @@ mod inspect;
 mod neurons;
 mod predict;
 mod run;
+mod study;
 mod timecourse;
 
 use clap::{Parser, Subcommand};
@@ -37,6 +38,8 @@ enum Command {
     Inspect(inspect::InspectArgs),
     /// Cross-validated predictions on fold numbers you supply in a column (no balancing, no repeats).
     Predict(predict::PredictArgs),
+    /// Many sessions and animals: each session decoded, then group statistics (or one pooled pseudo-population).
+    Study(Box<study::StudyArgs>),
 }
 
 fn main() -> ExitCode {
@@ -47,6 +50,7 @@ fn main() -> ExitCode {
         Command::Neurons(args) => neurons::run(args),
         Command::Inspect(args) => inspect::run(args),
         Command::Predict(args) => predict::run(args),
+        Command::Study(args) => study::run(*args),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
