@@ -4,8 +4,8 @@
 //! JSON; the page joins the outcome strings unparsed and calls [`finish`], so no number passes through a
 //! JavaScript double conversion (serde_json's `float_roundtrip` keeps the parse exact).
 
-use super::request::{err, Request};
-use super::{neurons, time_course, trial_table};
+use super::request::{err, Files, Request};
+use super::{neurons, study, time_course, trial_table};
 use crate::analyses::{Analysis, Finished};
 use serde_json::{json, Map, Value};
 use wasm_bindgen::prelude::*;
@@ -43,24 +43,22 @@ impl<A: Analysis> Job for A {
 
 fn load(
     kind: &str,
-    name_a: &str,
-    bytes_a: &[u8],
-    name_b: &str,
-    bytes_b: &[u8],
+    files: &Files,
     recipe_json: &str,
     options_json: &str,
 ) -> Result<Box<dyn Job>, JsValue> {
-    let request = Request::new(name_a, bytes_a, name_b, bytes_b, recipe_json, options_json)?;
+    let request = Request::new(files, recipe_json, options_json)?;
     match kind {
         "table" => Ok(Box::new(trial_table::load(request)?)),
         "time" => Ok(Box::new(time_course::load(request)?)),
         "neurons" => Ok(Box::new(neurons::load(request)?)),
+        "study" => Ok(Box::new(study::load(request)?)),
         other => Err(err(format!("unknown kind of analysis '{other}'"))),
     }
 }
 
 /// Check the files against a recipe: the tasks with their cost in fits, and what the analysis shows before running
-/// (classes, counts, warnings).
+/// (classes, counts, warnings). One file, or two (spike events, then the trial table; `name_b` empty for one).
 #[wasm_bindgen]
 pub fn prepare(
     kind: &str,
@@ -71,16 +69,21 @@ pub fn prepare(
     recipe_json: &str,
     options_json: &str,
 ) -> Result<String, JsValue> {
-    let job = load(
-        kind,
-        name_a,
-        bytes_a,
-        name_b,
-        bytes_b,
-        recipe_json,
-        options_json,
-    )?;
-    Ok(job.prepare().to_string())
+    let files = Files::pair(name_a, bytes_a, name_b, bytes_b);
+    prepare_files(kind, &files, recipe_json, options_json)
+}
+
+/// `prepare` for any number of named files (a study).
+#[wasm_bindgen]
+pub fn prepare_files(
+    kind: &str,
+    files: &Files,
+    recipe_json: &str,
+    options_json: &str,
+) -> Result<String, JsValue> {
+    Ok(load(kind, files, recipe_json, options_json)?
+        .prepare()
+        .to_string())
 }
 
 /// Runs one analysis's tasks in a worker: the files are read once per run.
@@ -101,16 +104,19 @@ impl Runner {
         recipe_json: &str,
         options_json: &str,
     ) -> Result<Runner, JsValue> {
+        let files = Files::pair(name_a, bytes_a, name_b, bytes_b);
+        Runner::with_files(kind, &files, recipe_json, options_json)
+    }
+
+    /// A runner over any number of named files (a study).
+    pub fn with_files(
+        kind: &str,
+        files: &Files,
+        recipe_json: &str,
+        options_json: &str,
+    ) -> Result<Runner, JsValue> {
         Ok(Runner {
-            job: load(
-                kind,
-                name_a,
-                bytes_a,
-                name_b,
-                bytes_b,
-                recipe_json,
-                options_json,
-            )?,
+            job: load(kind, files, recipe_json, options_json)?,
         })
     }
 
@@ -134,15 +140,20 @@ pub fn finish(
     options_json: &str,
     outcomes_json: &str,
 ) -> Result<String, JsValue> {
-    let job = load(
-        kind,
-        name_a,
-        bytes_a,
-        name_b,
-        bytes_b,
-        recipe_json,
-        options_json,
-    )?;
+    let files = Files::pair(name_a, bytes_a, name_b, bytes_b);
+    finish_files(kind, &files, recipe_json, options_json, outcomes_json)
+}
+
+/// `finish` for any number of named files (a study).
+#[wasm_bindgen]
+pub fn finish_files(
+    kind: &str,
+    files: &Files,
+    recipe_json: &str,
+    options_json: &str,
+    outcomes_json: &str,
+) -> Result<String, JsValue> {
+    let job = load(kind, files, recipe_json, options_json)?;
     let f = job.finish(outcomes_json)?;
     let (mut plots, mut csv) = (Map::new(), Map::new());
     for (name, contents) in f.files {

@@ -3,7 +3,8 @@
 //! Every analysis reaches the page through one shape ([`job`]): `prepare` checks the files against the recipe and
 //! lists the tasks, a worker's [`job::Runner`] runs tasks one at a time, and `finish` assembles the outcomes into the
 //! result, its text, methods paragraph, figures and tables. Each analysis adds only its loader (`trial_table.rs`,
-//! `time_course.rs`, `neurons.rs`).
+//! `time_course.rs`, `neurons.rs`, `study.rs`). Files pass as one or two (name, bytes) pairs, or as a [`request::Files`]
+//! set of any number of named files (`prepare_files`, `Runner.with_files`, `finish_files`).
 //!
 //! Nothing here may panic across the boundary unnoticed: every fallible call returns `Result<_, JsValue>` with the
 //! core's message, and a panic hook records the message of any bug, which the page reads with [`last_panic`] when
@@ -14,6 +15,7 @@ mod job;
 mod neurons;
 mod nwb;
 mod request;
+mod study;
 mod time_course;
 mod trial_table;
 
