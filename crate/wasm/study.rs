@@ -7,9 +7,26 @@ use super::request::{err, Files, Request};
 use crate::analyses::study::{assess_files, from_files, StudyPlan, StudyRequest};
 use wasm_bindgen::prelude::*;
 
+/// The options a study reads; any other key is refused rather than ignored.
+const OPTIONS: [&str; 6] = [
+    "pool",
+    "leave_out_flagged",
+    "group_draws",
+    "alpha",
+    "sessions",
+    "table",
+];
+
 fn study_request(r: &Request) -> Result<StudyRequest, JsValue> {
     if r.options.is_null() {
         return Ok(StudyRequest::default());
+    }
+    if let Some(key) = r
+        .options
+        .as_object()
+        .and_then(|o| o.keys().find(|k| !OPTIONS.contains(&k.as_str())))
+    {
+        return Err(err(format!("unknown study option '{key}'")));
     }
     serde_json::from_value(r.options.clone())
         .map_err(|e| err(format!("malformed study options: {e}")))

@@ -352,6 +352,13 @@ pub fn assess(
                     .into(),
             ));
     }
+    if !options.pool && recipe.time.as_ref().is_some_and(|t| t.generalize) {
+        return Err(Error::Recipe(
+            "temporal generalization is not combined across sessions; decode the sessions pooled, or a session on \
+             its own, for its matrix"
+                .into(),
+        ));
+    }
     if options.pool && recipe.folds == Folds::LeaveOneOut {
         return Err(Error::Recipe(
                 "pseudo-populations need k folds (each fold builds its own pseudo-trials), not leave-one-out".into(),

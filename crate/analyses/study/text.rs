@@ -194,7 +194,7 @@ pub fn render(r: &StudyReport) -> String {
         if let (Some(p), Some(m), Some(q)) = (g.p_value, g.null_mean, g.null_p95) {
             writeln!(
                 out,
-                "  permutation test of the group mean (Stelzer, Chen & Turner 2013; {} draws of one shuffle per \
+                "  permutation test of the group mean (Stelzer, Chen & Turner 2013; {} draws of one pool score per \
                  session): null mean {}, 95th pct {}, p = {}",
                 g.draws,
                 pct(m),
