@@ -614,3 +614,63 @@ fn study_tasks_are_session_by_repeat_and_shuffle() {
         "a shuffle runs its repeats' folds"
     );
 }
+
+/// Spike-event sessions, named with their trial tables in a `trials` column, are counted into the recipe's windows
+/// one session at a time; each session reports both its files.
+#[test]
+fn spike_event_sessions_come_with_their_trial_tables() {
+    let dir = temp_dir("events");
+    let mut table = String::from("file,trials,session\n");
+    for i in 0..3u64 {
+        let files = popdecode::simulate::spike_events(&TimeScenario {
+            trials_per_class: 12,
+            units: 8,
+            seed: 40 + i,
+            ..TimeScenario::odours()
+        });
+        std::fs::write(dir.join(format!("e{i}.csv")), files.events).unwrap();
+        std::fs::write(dir.join(format!("t{i}.csv")), files.trials).unwrap();
+        table.push_str(&format!("e{i}.csv,t{i}.csv,s{i}\n"));
+    }
+    std::fs::write(dir.join("study.csv"), table).unwrap();
+    let json = dir.join("out.json");
+    let run = |extra: &[&str]| {
+        bin()
+            .arg("study")
+            .arg(dir.join("study.csv"))
+            .args([
+                "--label",
+                "odour",
+                "--repeats",
+                "2",
+                "--shuffles",
+                "5",
+                "--quiet",
+            ])
+            .args(["--classifier", "nearest-mean", "--group-draws", "100"])
+            .args(extra)
+            .output()
+            .unwrap()
+    };
+    let out = run(&[]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("--start and --end"));
+    let out = run(&[
+        "--start", "-0.5", "--end", "1", "--width", "0.25", "--step", "0.25", "--json",
+    ]
+    .into_iter()
+    .chain([json.to_str().unwrap()])
+    .collect::<Vec<_>>());
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(json).unwrap()).unwrap();
+    assert_eq!(v["study"]["kind"], "events");
+    assert_eq!(v["time"]["windows"].as_array().unwrap().len(), 6);
+    let files = v["sessions"][1]["files"].as_array().unwrap();
+    assert_eq!(files[0]["file"], "e1.csv");
+    assert_eq!(files[1]["file"], "t1.csv");
+}

@@ -130,3 +130,37 @@ def test_t_test_and_interval_match_scipy(tmp_path):
     low, high = stats.t.interval(0.95, len(scores) - 1, loc=scores.mean(), scale=stats.sem(scores))
     assert abs(r["group"]["interval"]["low"] - low) < 1e-10
     assert abs(r["group"]["interval"]["high"] - high) < 1e-10
+
+
+def test_nwb_sessions_are_each_their_own_time_course(tmp_path):
+    """A study of NWB files written by pynwb 4.2.0: each session's curve equals `timecourse --nwb` on that file
+    with the session's seed, number for number (the study reads each file through the same extract); pooled, the
+    sessions' units form one population."""
+    from test_nwb import write_nwb
+
+    names = ["r1.nwb", "r2.nwb", "r3.nwb"]
+    for i, name in enumerate(names):
+        write_nwb(tmp_path / name, seed=20 + i)
+    (tmp_path / "study.csv").write_text(
+        "file,session,subject\n" + "".join(f"{n},{n[:2]},{'ab'[i % 2]}\n" for i, n in enumerate(names))
+    )
+    window = ["--label", "odour", "--start", "-0.5", "--end", "1", "--width", "0.25", "--step", "0.25",
+              "--classifier", "nearest-mean", "--repeats", "2", "--shuffles", "4", "--quiet"]
+    out = tmp_path / "study.json"
+    subprocess.run([str(BIN), "study", str(tmp_path / "study.csv"), *window, "--group-draws", "200", "--json",
+                    str(out)], check=True)
+    r = json.loads(out.read_text())
+    assert r["study"]["kind"] == "nwb" and len(r["sessions"]) == 3
+    for name, s in zip(names, r["sessions"]):
+        one = tmp_path / f"{name}.json"
+        subprocess.run([str(BIN), "timecourse", "--nwb", str(tmp_path / name), *window, "--seed", str(s["seed"]),
+                        "--json", str(one)], check=True)
+        alone = json.loads(one.read_text())
+        assert s["curve"] == [w["accuracy"]["mean"] for w in alone["windows"]]
+        assert s["files"] == alone["input"]["files"]
+    pooled = tmp_path / "pooled.json"
+    subprocess.run([str(BIN), "study", str(tmp_path / "study.csv"), *window, "--pool", "--json", str(pooled)],
+                   check=True)
+    p = json.loads(pooled.read_text())["pooled"]
+    assert len(p["input"]["neurons"]) == 36 and p["input"]["neurons"][0].startswith("r1/")
+    assert p["design"]["split"] == {"pseudo": {"folds": 5}}
