@@ -7,7 +7,7 @@
 //! 3. [`input`]: readers of every input format, producing `data`
 //! 4. [`resample`]: balancing, folds, permutations, pseudo-trials, scoring
 //! 5. [`decoders`]: the fitted pipeline and every decoder
-//! 6. [`stats`]: summaries, permutation p-values, the binomial threshold, cluster tests
+//! 6. [`stats`]: summaries, permutation p-values, the binomial threshold, cluster tests, group tests across sessions
 //! 7. [`report`]: what every report shares (text and SVG primitives, methods sentences)
 //! 8. [`analyses`]: one folder per analysis
 //! 9. faces: the CLI (`crate/cli/`, a binary of its own) and the page's bindings (`wasm`)

@@ -30,6 +30,10 @@ pub enum Stream {
     /// A repeat inside one shuffle of the temporal generalization matrix whose null permutes only the training
     /// labels: the split of the observed labels, then each training fold's permutation.
     TrainingShuffle = 8,
+    /// The seed of each session of a study, from the study's seed and the session's name.
+    Session = 9,
+    /// The second-level draws of a study's group tests (one null value per session, many times).
+    GroupNull = 10,
 }
 
 /// A generator for task `(a, b)` of kind `kind` under `seed`.

@@ -22,7 +22,8 @@ pub struct Scenario {
     pub blocks_per_class: usize,
     /// SD of each block's log-rate offset per unit.
     pub block_offset: f64,
-    /// Sessions the trials are dealt to (interleaved designs), for the group column.
+    /// Sessions the trials are dealt to (interleaved designs), for the group column; 0 writes no group column (one
+    /// session of a study).
     pub sessions: usize,
     pub seed: u64,
 }
@@ -104,7 +105,11 @@ pub fn csv(s: &Scenario) -> String {
     } else {
         "session"
     };
-    write!(out, "trial_id,odour,{group_name}").unwrap();
+    let grouped = s.blocks_per_class > 0 || s.sessions > 0;
+    out.push_str("trial_id,odour");
+    if grouped {
+        write!(out, ",{group_name}").unwrap();
+    }
     for u in 0..s.units {
         write!(out, ",unit_{:02}", u + 1).unwrap();
     }
@@ -116,15 +121,10 @@ pub fn csv(s: &Scenario) -> String {
         } else {
             t * s.sessions.max(1) / total + 1
         };
-        write!(
-            out,
-            "t{:04},{},{}{:02}",
-            t + 1,
-            s.classes[c],
-            &group_name[..1],
-            group
-        )
-        .unwrap();
+        write!(out, "t{:04},{}", t + 1, s.classes[c]).unwrap();
+        if grouped {
+            write!(out, ",{}{:02}", &group_name[..1], group).unwrap();
+        }
         for u in 0..s.units {
             let offset = if s.blocks_per_class > 0 {
                 offsets[block][u]
@@ -155,6 +155,8 @@ pub struct TimeScenario {
     /// Recorded span around odour onset, s.
     pub start: f64,
     pub end: f64,
+    /// Sessions the trials are dealt to, for the trial table's or binned table's `session` column; 0 writes none in
+    /// a binned table (one session of a study).
     pub sessions: usize,
     /// Write spike times on one session clock, with each trial's onset time in the trial table.
     pub absolute_times: bool,
@@ -314,7 +316,10 @@ pub fn binned_trials(s: &TimeScenario, bin: f64, mut emit: impl FnMut(Bin)) {
 
 /// A binned table (one row per trial × bin of `bin` seconds), from [`binned_trials`].
 pub fn binned(s: &TimeScenario, bin: f64) -> String {
-    let mut out = String::from("trial,time,odour,session");
+    let mut out = String::from("trial,time,odour");
+    if s.sessions > 0 {
+        out.push_str(",session");
+    }
     for u in 0..s.units {
         write!(out, ",u{:02}", u + 1).unwrap();
     }
@@ -322,17 +327,141 @@ pub fn binned(s: &TimeScenario, bin: f64) -> String {
     binned_trials(s, bin, |b| {
         write!(
             out,
-            "tr{:03},{:.4},{},s{}",
+            "tr{:03},{:.4},{}",
             b.trial + 1,
             b.centre,
-            s.classes[b.class],
-            b.session
+            s.classes[b.class]
         )
         .unwrap();
+        if s.sessions > 0 {
+            write!(out, ",s{}", b.session).unwrap();
+        }
         for r in b.rates {
             write!(out, ",{r}").unwrap();
         }
         out.push('\n');
     });
     out
+}
+
+/// An invented study: sessions recorded from several animals, each session its own recording with its own units
+/// and trial count, some sessions without any information.
+#[derive(Debug, Clone)]
+pub struct StudyScenario {
+    /// (subject, session, informative), in table order.
+    pub sessions: Vec<(String, String, bool)>,
+    /// Every session's trial table is made from this, with its own seed, a few units and trials fewer in some
+    /// sessions, and no tuning where the session is not informative.
+    pub table: Scenario,
+    /// When set, sessions are binned tables over time made from this (and `bin` s bins) instead.
+    pub time: Option<(TimeScenario, f64)>,
+    /// Write the `subject` column.
+    pub with_subjects: bool,
+}
+
+/// A study table and its sessions' files (name, contents).
+pub struct StudyFiles {
+    pub table: String,
+    pub files: Vec<(String, String)>,
+}
+
+impl StudyScenario {
+    /// Four mice, ten sessions of three odours in a simulated piriform-cortex population; the probe of mouse m3 sat
+    /// outside the odour-responsive layer in both its sessions, so they carry no information.
+    pub fn mice() -> StudyScenario {
+        let plan = [("m1", 3), ("m2", 2), ("m3", 2), ("m4", 3)];
+        let sessions = plan
+            .iter()
+            .flat_map(|&(m, n)| {
+                (1..=n).map(move |d| (m.to_string(), format!("{m}-d{d}"), m != "m3"))
+            })
+            .collect();
+        StudyScenario {
+            sessions,
+            table: Scenario {
+                classes: ["citral", "eugenol", "hexanal"].map(String::from).to_vec(),
+                trials_per_class: vec![30, 30, 30],
+                units: 20,
+                tuning: 0.35,
+                tuned_fraction: 0.4,
+                blocks_per_class: 0,
+                block_offset: 0.0,
+                sessions: 0,
+                seed: 3100,
+            },
+            time: None,
+            with_subjects: true,
+        }
+    }
+
+    /// The same study over time: binned tables of 0.1 s bins from −0.4 to 0.8 s, information from 0.1 to 0.5 s.
+    pub fn mice_over_time() -> StudyScenario {
+        let mut s = StudyScenario::mice();
+        s.time = Some((
+            TimeScenario {
+                classes: s.table.classes.clone(),
+                trials_per_class: 30,
+                units: 16,
+                tuning: 0.5,
+                tuned_fraction: 0.5,
+                info_start: 0.1,
+                info_end: 0.5,
+                start: -0.4,
+                end: 0.8,
+                sessions: 0,
+                absolute_times: false,
+                seed: 3200,
+            },
+            0.1,
+        ));
+        s
+    }
+}
+
+/// Write an invented study: the study table (`file,session[,subject]`) and each session's file, named after the
+/// session (`<session>.csv`, or `<session>_binned.csv` over time).
+pub fn study(s: &StudyScenario) -> StudyFiles {
+    let mut table = String::from(if s.with_subjects {
+        "file,session,subject\n"
+    } else {
+        "file,session\n"
+    });
+    let mut files = Vec::new();
+    for (i, (subject, session, informative)) in s.sessions.iter().enumerate() {
+        let fewer = 2 * (i % 3);
+        let (name, text) = match &s.time {
+            None => {
+                let sc = Scenario {
+                    trials_per_class: s
+                        .table
+                        .trials_per_class
+                        .iter()
+                        .map(|&n| n - fewer)
+                        .collect(),
+                    units: s.table.units - fewer,
+                    tuning: if *informative { s.table.tuning } else { 0.0 },
+                    seed: s.table.seed + i as u64,
+                    ..s.table.clone()
+                };
+                (format!("{session}.csv"), csv(&sc))
+            }
+            Some((template, bin)) => {
+                let sc = TimeScenario {
+                    trials_per_class: template.trials_per_class - fewer,
+                    units: template.units - fewer,
+                    tuning: if *informative { template.tuning } else { 0.0 },
+                    seed: template.seed + i as u64,
+                    ..template.clone()
+                };
+                (format!("{session}_binned.csv"), binned(&sc, *bin))
+            }
+        };
+        if s.with_subjects {
+            writeln!(table, "{name},{session},{subject}").unwrap();
+        } else {
+            writeln!(table, "{name},{session}").unwrap();
+        }
+        files.push((name, text));
+    }
+    StudyFiles { table, files }
 }

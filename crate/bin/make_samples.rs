@@ -1,6 +1,8 @@
 //! Writes the invented demo tables in `samples/`: `cargo run --release --example make-samples`.
 
-use popdecode::simulate::{binned, csv, spike_events, Scenario, TimeScenario};
+use popdecode::simulate::{
+    binned, csv, spike_events, study, Scenario, StudyScenario, TimeScenario,
+};
 
 fn main() -> std::io::Result<()> {
     let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("samples");
@@ -21,6 +23,19 @@ fn main() -> std::io::Result<()> {
         dir.join("odours_binned.csv"),
         binned(&TimeScenario::odours(), 0.1),
     )?;
+    // A study of ten sessions from four mice, as trial tables and as binned tables over time.
+    let studies = dir.join("study");
+    std::fs::create_dir_all(&studies)?;
+    for (table, scenario) in [
+        ("study.csv", StudyScenario::mice()),
+        ("study_time.csv", StudyScenario::mice_over_time()),
+    ] {
+        let files = study(&scenario);
+        std::fs::write(studies.join(table), files.table)?;
+        for (name, text) in files.files {
+            std::fs::write(studies.join(name), text)?;
+        }
+    }
     println!("wrote {}", dir.display());
     Ok(())
 }

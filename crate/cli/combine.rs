@@ -5,7 +5,7 @@
 
 use crate::part::{self, Read};
 use crate::run::{deliver, Loaded, Outputs};
-use crate::{decode, neurons, timecourse};
+use crate::{decode, neurons, study, timecourse};
 use clap::Args;
 use popdecode::analyses::Analysis;
 use std::path::PathBuf;
@@ -41,6 +41,7 @@ pub fn run(args: CombineArgs) -> Result<(), String> {
         decode::NAME => finish(decode::load(&inputs)?, parts, &args),
         timecourse::NAME => finish(timecourse::load(&inputs)?, parts, &args),
         neurons::NAME => finish(neurons::load(&inputs)?, parts, &args),
+        study::NAME => finish(study::load(&inputs)?, parts, &args),
         other => Err(format!(
             "{}: an analysis this version does not know ('{other}')",
             parts[0].path.display()

@@ -25,6 +25,28 @@ pub fn write(path: &Path, contents: &str) -> Result<(), String> {
         .map_err(|e| format!("{}: cannot write the file: {e}", path.display()))
 }
 
+/// The SHA-256 of a file's bytes, read in pieces (a session file can be larger than memory allows twice).
+pub fn sha256_file(path: &Path) -> Result<String, String> {
+    use sha2::{Digest, Sha256};
+    use std::io::Read as _;
+    let cannot = |e: std::io::Error| format!("{}: cannot read the file: {e}", path.display());
+    let mut file = std::fs::File::open(path).map_err(cannot)?;
+    let mut hasher = Sha256::new();
+    let mut buf = vec![0u8; 1 << 20];
+    loop {
+        let n = file.read(&mut buf).map_err(cannot)?;
+        if n == 0 {
+            break;
+        }
+        hasher.update(&buf[..n]);
+    }
+    Ok(hasher
+        .finalize()
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect())
+}
+
 /// The name a file is reported under: as given on the command line's last component, like the page shows it.
 pub fn display_name(path: &Path) -> String {
     path.file_name().map_or_else(

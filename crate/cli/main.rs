@@ -11,6 +11,7 @@ mod neurons;
 mod part;
 mod predict;
 mod run;
+mod study;
 mod timecourse;
 
 use clap::{Parser, Subcommand};
@@ -42,6 +43,8 @@ enum Command {
     Predict(predict::PredictArgs),
     /// Join the part files of a run split with --part K/N into the result a single run writes.
     Combine(combine::CombineArgs),
+    /// Many sessions and animals: each session decoded, then group statistics (or one pooled pseudo-population).
+    Study(Box<study::StudyArgs>),
 }
 
 fn main() -> ExitCode {
@@ -53,6 +56,7 @@ fn main() -> ExitCode {
         Command::Inspect(args) => inspect::run(args),
         Command::Predict(args) => predict::run(args),
         Command::Combine(args) => combine::run(args),
+        Command::Study(args) => study::run(*args),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

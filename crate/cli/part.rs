@@ -16,7 +16,7 @@
 //! name and renamed, so a part killed while writing leaves no file that looks finished.
 
 use crate::args::Part;
-use crate::files::{display_name, read};
+use crate::files::{display_name, read, sha256_file};
 use crate::run::Inputs;
 use popdecode::data::SourceFile;
 use popdecode::recipe::Recipe;
@@ -338,26 +338,8 @@ pub fn inputs(parts: &[Read]) -> Result<Inputs, String> {
 /// computed here, before the file is parsed, so that a changed file is named as changed rather than as a
 /// puzzling design error.
 pub fn check_files(parts: &[Read]) -> Result<(), String> {
-    use sha2::{Digest, Sha256};
-    use std::io::Read as _;
     for was in &parts[0].file.files {
-        let cannot =
-            |e: std::io::Error| format!("{}: cannot read the file: {e}", was.path.display());
-        let mut file = std::fs::File::open(&was.path).map_err(cannot)?;
-        let mut hasher = Sha256::new();
-        let mut buf = vec![0u8; 1 << 20];
-        loop {
-            let n = file.read(&mut buf).map_err(cannot)?;
-            if n == 0 {
-                break;
-            }
-            hasher.update(&buf[..n]);
-        }
-        let now: String = hasher
-            .finalize()
-            .iter()
-            .map(|b| format!("{b:02x}"))
-            .collect();
+        let now = sha256_file(&was.path)?;
         if was.sha256 != now {
             return Err(format!(
                 "{}: the file has changed since the parts ran (SHA-256 {} in {}, {now} now)",

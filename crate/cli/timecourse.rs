@@ -27,6 +27,17 @@ pub struct TimecourseArgs {
     /// trials columns; --align one holding alignment times, default start_time).
     #[arg(long, conflicts_with_all = ["csv", "events", "trials"])]
     pub nwb: Option<PathBuf>,
+    #[command(flatten)]
+    pub time: TimeFlags,
+    #[command(flatten)]
+    pub columns: ColumnArgs,
+    #[command(flatten)]
+    pub run: RunArgs,
+}
+
+/// Flags of time-resolved inputs: columns, windows and the cluster test (shared with `study`).
+#[derive(Args)]
+pub struct TimeFlags {
     /// Trial id column (binned table; events file and trial table) [default: trial].
     #[arg(long)]
     pub trial: Option<String>,
@@ -66,10 +77,6 @@ pub struct TimecourseArgs {
     /// COLUMN!=VALUE or COLUMN>=NUMBER (also <=, >, <), e.g. quality=good; repeat to require several.
     #[arg(long = "units", value_name = "FILTER")]
     pub units: Vec<String>,
-    #[command(flatten)]
-    pub columns: ColumnArgs,
-    #[command(flatten)]
-    pub run: RunArgs,
 }
 
 fn parse_null(s: &str) -> Result<GeneralizationNull, String> {
@@ -77,39 +84,60 @@ fn parse_null(s: &str) -> Result<GeneralizationNull, String> {
         .ok_or_else(|| format!("unknown null '{s}'; choose training-labels or all-labels"))
 }
 
-/// The time settings: from the recipe file when it has them, with every flag given applied on top.
-fn time_settings(
-    args: &TimecourseArgs,
+/// The kind of time-resolved input.
+#[derive(Clone, Copy, PartialEq, Eq)]
+pub enum Source {
+    Binned,
+    Events,
+    Nwb,
+}
+
+/// The time settings: from the recipe file when it has them (for this kind of input), with every flag given applied
+/// on top.
+pub fn time_settings(
+    source: Source,
+    args: &TimeFlags,
     from_recipe: Option<TimeSettings>,
 ) -> Result<TimeSettings, String> {
     let trial = args.trial.clone();
-    if args.nwb.is_some() {
+    if source == Source::Nwb {
         return nwb_settings(args, from_recipe);
     }
     if !args.units.is_empty() {
         return Err("--units keeps units of an NWB file's units table (--nwb)".into());
     }
-    let mut settings = match (&args.events, &args.csv, from_recipe) {
-        (Some(_), _, Some(t @ TimeSettings { input: TimeInput::Events { .. }, .. })) => t,
-        (None, Some(_), Some(t @ TimeSettings { input: TimeInput::Binned { .. }, .. })) => t,
-        (Some(_), _, _) => {
+    let mut settings = match (source, from_recipe) {
+        (
+            Source::Events,
+            Some(
+                t @ TimeSettings {
+                    input: TimeInput::Events { .. },
+                    ..
+                },
+            ),
+        ) => t,
+        (
+            Source::Binned,
+            Some(
+                t @ TimeSettings {
+                    input: TimeInput::Binned { .. },
+                    ..
+                },
+            ),
+        ) => t,
+        (Source::Events, _) => {
             let (start, end) = match (args.start, args.end) {
                 (Some(s), Some(e)) => (s, e),
                 _ => {
                     return Err(
-                        "with --events, give the analysis span with --start and --end (s from alignment)".into(),
+                        "with spike events, give the analysis span with --start and --end (s from alignment)"
+                            .into(),
                     )
                 }
             };
             TimeSettings::events(start, end)
         }
-        (None, Some(_), _) => TimeSettings::binned("trial", "time"),
-        (None, None, _) => {
-            return Err(
-                "give a binned table (popdecode timecourse TABLE.csv ...) or --events EVENTS.csv --trials TRIALS.csv"
-                    .into(),
-            )
-        }
+        _ => TimeSettings::binned("trial", "time"),
     };
     match &mut settings.input {
         TimeInput::Binned { trial: tr, time } => {
@@ -170,7 +198,7 @@ fn time_settings(
 
 /// Time settings for an NWB file: windows and alignment from the recipe or the flags.
 fn nwb_settings(
-    args: &TimecourseArgs,
+    args: &TimeFlags,
     from_recipe: Option<TimeSettings>,
 ) -> Result<TimeSettings, String> {
     let mut settings = match from_recipe {
@@ -235,7 +263,18 @@ pub fn run(args: TimecourseArgs) -> Result<(), String> {
             "a time course needs every value; --drop-missing applies to trial tables only".into(),
         );
     }
-    recipe.time = Some(time_settings(&args, recipe.time.take())?);
+    let source = match (&args.events, &args.csv, &args.nwb) {
+        (_, _, Some(_)) => Source::Nwb,
+        (Some(_), _, _) => Source::Events,
+        (None, Some(_), None) => Source::Binned,
+        (None, None, None) => {
+            return Err(
+                "give a binned table (popdecode timecourse TABLE.csv ...) or --events EVENTS.csv --trials TRIALS.csv"
+                    .into(),
+            )
+        }
+    };
+    recipe.time = Some(time_settings(source, &args.time, recipe.time.take())?);
     recipe.validate().map_err(show)?;
     let paths: Vec<PathBuf> = match (args.events, args.trials, args.csv, args.nwb) {
         (_, _, _, Some(n)) => vec![n],

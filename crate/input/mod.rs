@@ -6,6 +6,7 @@
 //! | binned table (CSV, one row per trial × bin) | [`binned`] | `TimeDataset` |
 //! | spike events (CSV) + trial table | [`events`] | `TimeDataset` |
 //! | NWB 2.x (HDF5), or its compact [`extract`] | [`nwb`], [`units`], [`nwb_counts`] | `TimeDataset` |
+//! | study table (CSV, one row per session) | [`study`] | the sessions, each read by the readers above |
 //!
 //! Every reader takes a file's name and bytes (the core never touches the filesystem, so the page and the CLI share
 //! every line of parsing), and every error names the file, the line and the column.
@@ -16,6 +17,7 @@ pub mod extract;
 pub mod nwb;
 pub mod nwb_counts;
 pub mod spike_counts;
+pub mod study;
 pub mod table;
 pub mod trial_labels;
 pub mod trial_table;

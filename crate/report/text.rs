@@ -86,3 +86,33 @@ pub fn seconds(v: f64) -> String {
         t.into()
     }
 }
+
+/// Notes of several sessions (name, notes), each note once with the sessions it concerns ("every session" when it
+/// concerns all of them), in order of first appearance.
+pub fn session_notes(sessions: &[(&str, &[String])]) -> Vec<String> {
+    let mut texts: Vec<(&str, Vec<&str>)> = Vec::new();
+    for &(name, notes) in sessions {
+        for w in notes {
+            match texts.iter_mut().find(|(t, _)| t == w) {
+                Some((_, who)) => who.push(name),
+                None => texts.push((w, vec![name])),
+            }
+        }
+    }
+    texts
+        .into_iter()
+        .map(|(w, who)| {
+            let who = if who.len() == sessions.len() && who.len() > 1 {
+                "every session".to_string()
+            } else {
+                let named: Vec<String> = who.iter().map(|s| format!("'{s}'")).collect();
+                format!(
+                    "session{} {}",
+                    if named.len() == 1 { "" } else { "s" },
+                    named.join(", ")
+                )
+            };
+            format!("{who}: {w}")
+        })
+        .collect()
+}

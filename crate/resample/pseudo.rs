@@ -50,7 +50,69 @@ pub fn counts(
     c
 }
 
-/// Row-major pseudo-trials (n × p), their conditions and folds, for labels `y` (observed or permuted).
+/// One repeat's pseudo-trials: for every session, condition and fold, that session's (shuffled) trials of the
+/// condition dealt to the fold, and how many pseudo-trials each condition gets in each fold.
+pub struct Dealt {
+    /// `members[s][c][f]`: indices into session s's own trials.
+    pub members: Vec<Vec<Vec<Vec<usize>>>>,
+    /// Pseudo-trials per condition in each fold.
+    pub sizes: Vec<usize>,
+    pub n_classes: usize,
+}
+
+/// One pseudo-trial: its condition, its fold, and its number `t` within (fold, condition); it takes, from every
+/// session s, the trial `members[s][class][fold][t]`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct PseudoTrial {
+    pub fold: usize,
+    pub class: usize,
+    pub t: usize,
+}
+
+/// Shuffle every session's trials of every condition and deal them into `k` folds in turn (step 1 above). `labels[s]`
+/// are session s's trials' conditions (observed or permuted) in its own trial order.
+pub fn deal(labels: &[Vec<usize>], n_classes: usize, k: usize, rng: &mut impl RngCore) -> Dealt {
+    let mut members = vec![vec![vec![Vec::new(); k]; n_classes]; labels.len()];
+    let mut counts = vec![vec![0; n_classes]; labels.len()];
+    for (s, by_class) in members.iter_mut().enumerate() {
+        for (c, by_fold) in by_class.iter_mut().enumerate() {
+            let mut trials: Vec<usize> = (0..labels[s].len())
+                .filter(|&i| labels[s][i] == c)
+                .collect();
+            counts[s][c] = trials.len();
+            shuffle(rng, &mut trials);
+            for (t, &i) in trials.iter().enumerate() {
+                by_fold[t % k].push(i);
+            }
+        }
+    }
+    Dealt {
+        members,
+        sizes: per_fold(&counts, k),
+        n_classes,
+    }
+}
+
+impl Dealt {
+    /// Every pseudo-trial in order: fold by fold, condition by condition (step 2 above).
+    pub fn trials(&self) -> Vec<PseudoTrial> {
+        let mut out = Vec::new();
+        for (fold, &n_f) in self.sizes.iter().enumerate() {
+            for class in 0..self.n_classes {
+                out.extend((0..n_f).map(|t| PseudoTrial { fold, class, t }));
+            }
+        }
+        out
+    }
+
+    /// The trial of session `s` (an index into its own trials) that pseudo-trial `p` takes.
+    pub fn member(&self, s: usize, p: PseudoTrial) -> usize {
+        self.members[s][p.class][p.fold][p.t]
+    }
+}
+
+/// Row-major pseudo-trials (n × p), their conditions and folds, for labels `y` (observed or permuted), from a table
+/// holding every session's trials and each feature's session ([`Dataset::pseudo`]).
 pub fn build(
     data: &Dataset,
     x: &[f64],
@@ -60,38 +122,27 @@ pub fn build(
 ) -> (Vec<f64>, Vec<usize>, Vec<usize>) {
     let sessions = data.groups.as_deref().expect("a session per trial");
     let feature_session = data.pseudo.as_ref().expect("pseudo-population layout");
-    let (ns, nc, p) = (
-        data.group_names.len(),
-        data.classes.len(),
-        data.n_features(),
-    );
-    // members[s][c][f]: shuffled trials of session s, condition c, dealt to fold f.
-    let mut members = vec![vec![vec![Vec::new(); k]; nc]; ns];
-    for (s, by_class) in members.iter_mut().enumerate() {
-        for (c, by_fold) in by_class.iter_mut().enumerate() {
-            let mut trials: Vec<usize> = (0..y.len())
-                .filter(|&i| sessions[i] == s && y[i] == c)
-                .collect();
-            shuffle(rng, &mut trials);
-            for (t, &i) in trials.iter().enumerate() {
-                by_fold[t % k].push(i);
-            }
-        }
+    let p = data.n_features();
+    // Each session's trials (indices into the table) in table order, and their labels.
+    let mut trials_of = vec![Vec::new(); data.group_names.len()];
+    for (i, &s) in sessions.iter().enumerate() {
+        trials_of[s].push(i);
     }
-    let sizes = per_fold(&counts(y, sessions, ns, nc), k);
-    let (mut rows, mut labels, mut folds) = (Vec::new(), Vec::new(), Vec::new());
-    // Pseudo-trial t of condition c in fold f takes trial t of that fold from every session.
-    for (f, &n_f) in sizes.iter().enumerate() {
-        for (c, t) in (0..nc).flat_map(|c| (0..n_f).map(move |t| (c, t))) {
-            for (j, &s) in feature_session.iter().enumerate() {
-                let i = members[s][c][f][t];
-                rows.push(x[i * p + j]);
-            }
-            labels.push(c);
-            folds.push(f);
+    let labels: Vec<Vec<usize>> = trials_of
+        .iter()
+        .map(|t| t.iter().map(|&i| y[i]).collect())
+        .collect();
+    let dealt = deal(&labels, data.classes.len(), k, rng);
+    let (mut rows, mut classes, mut folds) = (Vec::new(), Vec::new(), Vec::new());
+    for pt in dealt.trials() {
+        for (j, &s) in feature_session.iter().enumerate() {
+            let i = trials_of[s][dealt.member(s, pt)];
+            rows.push(x[i * p + j]);
         }
+        classes.push(pt.class);
+        folds.push(pt.fold);
     }
-    (rows, labels, folds)
+    (rows, classes, folds)
 }
 
 #[cfg(test)]

@@ -1,8 +1,10 @@
-//! Summaries across repeats, permutation p-values and the binomial chance threshold.
+//! Summaries across repeats, permutation p-values, the binomial chance threshold, cluster tests and group-level
+//! tests across the sessions of a study.
 
 pub mod binomial;
 pub mod clusters;
 pub mod fdr;
+pub mod group;
 pub mod intervals;
 pub mod roc;
 

@@ -7,7 +7,7 @@
 //! copied exactly, so a plan built from decoded data is the plan built from the file (the page's JSON stays the
 //! CLI's, byte for byte: tests/browser).
 
-use super::request::{err, Request};
+use super::request::{err, Files, Request};
 use crate::data::time::TimeDataset;
 use crate::data::{Dataset, SourceFile};
 use crate::input;
@@ -21,13 +21,18 @@ use wasm_bindgen::JsValue;
 pub(super) enum Decoded {
     Table(Dataset),
     Time(TimeDataset),
+    /// The files themselves, for the analyses that read them through the core's own door (`from_files`): a study
+    /// (many sessions, read one at a time), generalization across conditions and continuous decoding (which read a
+    /// second column or a numeric label besides the activity). Run workers get the files, not a matrix.
+    Files(Files),
 }
 
-/// The family of data an analysis reads: the neuron analyses read a trial table.
+/// The family of data an analysis reads: the neuron and power analyses read a trial table.
 pub(super) fn family(kind: &str) -> Result<&'static str, JsValue> {
     match kind {
-        "table" | "neurons" => Ok("table"),
+        "table" | "neurons" | "power" => Ok("table"),
         "time" => Ok("time"),
+        "study" | "across" | "continuous" => Ok("files"),
         other => Err(err(format!("unknown kind of analysis '{other}'"))),
     }
 }
@@ -35,6 +40,12 @@ pub(super) fn family(kind: &str) -> Result<&'static str, JsValue> {
 /// Read the request's files for an analysis kind (every check of the file happens here, with the core's messages).
 pub(super) fn load(kind: &str, r: &Request) -> Result<Decoded, JsValue> {
     match family(kind)? {
+        "files" => Ok(Decoded::Files(Files::from_items(
+            r.files
+                .iter()
+                .map(|f| (f.name.to_string(), f.bytes.to_vec()))
+                .collect(),
+        ))),
         "table" => {
             let [file] = r.files[..] else {
                 return Err(err("a trial table is one file"));
@@ -104,12 +115,14 @@ impl Decoded {
         match self {
             Decoded::Table(d) => (d.group_column.as_deref(), &d.group_names),
             Decoded::Time(d) => (d.group_column.as_deref(), &d.group_names),
+            Decoded::Files(_) => (None, &[]),
         }
     }
 
-    /// Everything but the matrix, as JSON (`"family"` says which).
+    /// Everything but the matrix, as JSON (`"family"` says which; for files, their names).
     pub(super) fn header(&self) -> String {
         let (family, header) = match self {
+            Decoded::Files(f) => ("files", Ok(serde_json::json!({ "files": f.names() }))),
             Decoded::Table(d) => (
                 "table",
                 serde_json::to_value(TableHeader {
@@ -168,6 +181,7 @@ impl Decoded {
         match self {
             Decoded::Table(d) => d.x.iter().copied().collect(),
             Decoded::Time(d) => d.x.iter().copied().collect(),
+            Decoded::Files(_) => Vec::new(),
         }
     }
 
@@ -175,6 +189,11 @@ impl Decoded {
     pub(super) fn from_parts(header: &str, x: Vec<f64>) -> Result<Decoded, JsValue> {
         let bad = |e: &dyn std::fmt::Display| err(format!("malformed decoded data: {e}"));
         let value: serde_json::Value = serde_json::from_str(header).map_err(|e| bad(&e))?;
+        if value["family"] == "files" {
+            return Err(err(
+                "files are handed to a run worker as files (Runner.with_files), not as a matrix",
+            ));
+        }
         if value["family"] == "table" {
             let h: TableHeader = serde_json::from_value(value).map_err(|e| bad(&e))?;
             let x = Array2::from_shape_vec((h.trials, h.features), x).map_err(|e| bad(&e))?;

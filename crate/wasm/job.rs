@@ -8,8 +8,8 @@
 //! JavaScript double conversion (serde_json's `float_roundtrip` keeps the parse exact).
 
 use super::data::{self, Decoded};
-use super::request::{err, options, recipe, Request};
-use super::{neurons, time_course, trial_table};
+use super::request::{err, options, recipe, Files, Request};
+use super::{neurons, study, time_course, trial_table};
 use crate::analyses::{Analysis, Finished};
 use crate::recipe::Recipe;
 use serde_json::{json, Map, Value};
@@ -52,7 +52,7 @@ impl<A: Analysis> Job for A {
     }
 }
 
-/// The analysis `kind` ("table", "time" or "neurons") on decoded data.
+/// The analysis `kind` ("table", "time", "neurons", "power", "study", "across" or "continuous") on decoded data.
 fn job(
     kind: &str,
     data: Decoded,
@@ -63,6 +63,7 @@ fn job(
         "table" => Ok(Box::new(trial_table::plan(data, recipe)?)),
         "time" => Ok(Box::new(time_course::plan(data, recipe)?)),
         "neurons" => Ok(Box::new(neurons::plan(data, recipe, options)?)),
+        "study" => Ok(Box::new(study::plan(data, recipe, options)?)),
         other => Err(err(format!("unknown kind of analysis '{other}'"))),
     }
 }
@@ -91,6 +92,30 @@ impl Loaded {
             data: data::load(kind, &request)?,
             prepared: None,
         })
+    }
+
+    /// Any number of named files (a study's table and sessions) for an analysis that reads files as they are
+    /// (`study`; also `across` and `continuous`, which [`Loaded::new`] takes as one or two files).
+    pub fn with_files(kind: &str, files: &Files, recipe_json: &str) -> Result<Loaded, JsValue> {
+        if super::data::family(kind)? != "files" {
+            return Err(err(format!(
+                "the '{kind}' analysis reads one file, or spike events and their trial table"
+            )));
+        }
+        recipe(recipe_json)?;
+        Ok(Loaded {
+            data: Decoded::Files(files.clone()),
+            prepared: None,
+        })
+    }
+
+    /// The bytes of file `i` of an analysis that reads files (empty for the others): what a run worker gets with
+    /// [`Runner::with_files`].
+    pub fn file(&self, i: usize) -> Vec<u8> {
+        match &self.data {
+            Decoded::Files(f) => f.file(i).to_vec(),
+            _ => Vec::new(),
+        }
     }
 
     /// Check the design against a recipe: the tasks with their cost in fits, and what the analysis shows before
@@ -206,6 +231,24 @@ impl Runner {
         let data = Decoded::from_parts(header, matrix)?;
         Ok(Runner {
             job: job(kind, data, &recipe(recipe_json)?, &options(options_json)?)?,
+        })
+    }
+
+    /// A runner for an analysis that reads files (`study`, `across`, `continuous`): the files as the data worker
+    /// holds them ([`Loaded::file`]).
+    pub fn with_files(
+        kind: &str,
+        files: &Files,
+        recipe_json: &str,
+        options_json: &str,
+    ) -> Result<Runner, JsValue> {
+        Ok(Runner {
+            job: job(
+                kind,
+                Decoded::Files(files.clone()),
+                &recipe(recipe_json)?,
+                &options(options_json)?,
+            )?,
         })
     }
 

@@ -4,7 +4,9 @@
 //! once ([`data`]), `prepare` checks the design and lists the tasks, each run worker's [`job::Runner`] gets the
 //! decoded matrix once and runs tasks one at a time, and `finish` assembles the outcomes into the result, its text,
 //! methods paragraph, figures and tables. Each analysis adds only its plan builder (`trial_table.rs`,
-//! `time_course.rs`, `neurons.rs`).
+//! `time_course.rs`, `neurons.rs`, `power.rs`, `study.rs`, `across.rs`, `continuous.rs`). A study, generalization
+//! across conditions and continuous decoding read their files through the core's own door, so their run workers get
+//! the files ([`request::Files`]) instead of a decoded matrix.
 //!
 //! Nothing here may panic across the boundary unnoticed: every fallible call returns `Result<_, JsValue>` with the
 //! core's message, and a panic hook records the message of any bug, which the page reads with [`last_panic`] when
@@ -16,6 +18,7 @@ mod job;
 mod neurons;
 mod nwb;
 mod request;
+mod study;
 mod time_course;
 mod trial_table;
 

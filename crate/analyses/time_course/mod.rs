@@ -11,6 +11,7 @@
 pub mod methods;
 pub mod plan;
 pub mod plots;
+pub mod pooled;
 pub mod report;
 pub mod text;
 

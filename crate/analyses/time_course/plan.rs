@@ -10,8 +10,10 @@
 //! A shuffle permutes the labels once (within groups when groups are set) and runs the recipe's repeats per
 //! shuffle over every window, so one permutation is used at every window: what the cluster test needs.
 
+use super::pooled::Pool;
 use crate::analyses::resolve_scheme;
 use crate::data::time::TimeDataset;
+use crate::data::trials::Trials;
 use crate::decoders::{
     self, check_counts, fit_folds_with, Decoder, FittedPipeline, FoldSet, Nesting,
 };
@@ -59,6 +61,9 @@ pub struct TimePlan {
     decoder: Box<dyn Decoder>,
     /// For a decoder of counts on spike events: the window width, which turns the rates back into exact counts.
     count_scale: Option<f64>,
+    /// Pseudo-populations: the sessions whose neurons are pooled (`data` then describes the pooled population and
+    /// holds no activity).
+    pool: Option<Pool>,
 }
 
 impl TimePlan {
@@ -76,14 +81,7 @@ impl TimePlan {
             scheme.folds() as f64 * w * recipe.shuffle_repeats().max(1) as f64,
             (recipe.repeats + recipe.shuffles) as f64 * per_task,
         )?;
-        let count_scale = match settings.input {
-            TimeInput::Events { width, .. } | TimeInput::Nwb { width, .. }
-                if recipe.classifier.needs_counts() =>
-            {
-                Some(width)
-            }
-            _ => None,
-        };
+        let count_scale = count_scale(&settings, recipe);
         let counts_note = check_counts(
             recipe.classifier,
             data.x.as_slice().expect("standard layout"),
@@ -112,6 +110,57 @@ impl TimePlan {
             scheme,
             decoder,
             count_scale,
+            pool: None,
+        })
+    }
+
+    /// Neurons recorded in separate sessions, pooled into one pseudo-population: each repeat builds pseudo-trials
+    /// within folds from disjoint real trials of every session ([`crate::resample::pseudo`]), and the windows are
+    /// decoded as for one recording. `sessions` are (name, recording) with the same windows and classes.
+    pub fn pooled(sessions: Vec<(String, TimeDataset)>, recipe: &Recipe) -> Result<TimePlan> {
+        let settings = recipe.time.clone().ok_or_else(|| {
+            Error::Recipe("this recipe has no time settings; it is for a trial table".into())
+        })?;
+        let (data, pool) = Pool::new(sessions)?;
+        let trials = Trials {
+            pseudo: true,
+            ..data.trials()
+        };
+        let mut scheme = resolve_scheme(&trials, recipe)?;
+        let w = data.windows.len() as f64;
+        limits::check_windows(w, settings.generalize)?;
+        let per_task = w * (2.0 + if settings.generalize { w } else { 0.0 });
+        limits::check_work(
+            scheme.folds() as f64 * w * recipe.shuffle_repeats().max(1) as f64,
+            (recipe.repeats + recipe.shuffles) as f64 * per_task,
+        )?;
+        let count_scale = count_scale(&settings, recipe);
+        let mut warnings = data.warnings.clone();
+        warnings.append(&mut scheme.warnings);
+        warnings.extend(decoders::features_note(recipe.classifier, data.n_neurons()));
+        for s in &pool.sessions {
+            let x = s.x.as_slice().expect("standard layout");
+            let note = check_counts(recipe.classifier, x, &s.neurons, &s.source)?;
+            if let Some(n) = note.filter(|_| count_scale.is_none()) {
+                warnings.push(n);
+            }
+        }
+        scheme.warnings = warnings;
+        let decoder = decoders::build(recipe.classifier, recipe.c, recipe.tune);
+        let mut recipe = scheme.repeats_to_run(recipe);
+        let mut settings = settings;
+        if settings.generalize {
+            settings.generalization_null = Some(settings.generalization_null());
+        }
+        recipe.time = Some(settings.clone());
+        Ok(TimePlan {
+            data,
+            recipe,
+            settings,
+            scheme,
+            decoder,
+            count_scale,
+            pool: Some(pool),
         })
     }
 
@@ -150,9 +199,7 @@ impl TimePlan {
         match task {
             Task::Repeat(i) => {
                 let mut rng = task_rng(seed, Stream::Repeat, i as u64, 0);
-                let draw = self.scheme.draw(&self.data.y, groups, &mut rng);
-                let mut out =
-                    self.one_repeat(&draw, rng.next_u64(), self.settings.generalize, None);
+                let mut out = self.repeat(&self.data.y, &mut rng, self.settings.generalize);
                 out.task = task;
                 out
             }
@@ -164,9 +211,8 @@ impl TimePlan {
                 let mut total: Option<TimeOutcome> = None;
                 for i in 0..r {
                     let mut rng = task_rng(seed, Stream::ShuffleRepeat, j as u64, i as u64);
-                    let draw = self.scheme.draw(&labels, groups, &mut rng);
                     let matrix = self.settings.generalize && !training_null;
-                    let mut o = self.one_repeat(&draw, rng.next_u64(), matrix, None);
+                    let mut o = self.repeat(&labels, &mut rng, matrix);
                     if training_null {
                         let g = self.training_label_repeat(j, i);
                         o.generalization = g.generalization;
@@ -225,13 +271,28 @@ impl TimePlan {
             j as u64,
             i as u64,
         );
+        if let Some(pool) = &self.pool {
+            // Pseudo-trials: drawn from the observed labels, permuted within each fold.
+            let k = self.data.classes.len();
+            let draw = pool.draw(&self.data.y, self.scheme.folds(), k, &mut rng);
+            let permuted = permute_labels(&mut rng, &draw.y, Some(&draw.fold));
+            let rows = |w: usize, positions: &[usize]| pool.rows(&draw, w, positions);
+            let drawn = Drawn {
+                y: &draw.y,
+                fold: &draw.fold,
+                folds: draw.folds,
+                groups: None,
+                rows: &rows,
+            };
+            return self.one_repeat(&drawn, rng.next_u64(), true, Some(&permuted));
+        }
         let draw = self.scheme.draw(&self.data.y, groups, &mut rng);
         let blocks: Vec<usize> = match groups {
             Some(g) => draw.used.iter().map(|&t| g[t]).collect(),
             None => draw.fold.clone(),
         };
         let permuted = permute_labels(&mut rng, &draw.y, Some(&blocks));
-        self.one_repeat(&draw, rng.next_u64(), true, Some(&permuted))
+        self.decode_draw(&draw, rng.next_u64(), true, Some(&permuted))
     }
 
     /// The headline score at each window of an outcome.
@@ -243,43 +304,99 @@ impl TimePlan {
             .collect()
     }
 
-    /// Cross-validate one draw at every window (and, with `matrix`, test every window's decoder at every window).
-    /// All folds of a window are fitted together, so a decoder with a fold shortcut can use it. Decoders are fitted
-    /// on `train_y` when given (the training-label null) and on `draw.y` otherwise; tests always score against
-    /// `draw.y`. Nested tuning's inner folds come from the stream keyed by `inner_key` (the same at every window).
-    fn one_repeat(
+    /// One repeat for `labels` (observed or permuted): balance and split the trials (or build pseudo-trials), then
+    /// decode every window (and, with `matrix`, test every window's decoder at every window). The draw comes first
+    /// from `rng`, then the key of nested tuning's inner folds.
+    fn repeat(&self, labels: &[usize], rng: &mut impl RngCore, matrix: bool) -> TimeOutcome {
+        match &self.pool {
+            None => {
+                let draw = self.scheme.draw(labels, self.data.groups.as_deref(), rng);
+                self.decode_draw(&draw, rng.next_u64(), matrix, None)
+            }
+            Some(pool) => {
+                let draw = pool.draw(labels, self.scheme.folds(), self.data.classes.len(), rng);
+                let rows = |w: usize, positions: &[usize]| pool.rows(&draw, w, positions);
+                let drawn = Drawn {
+                    y: &draw.y,
+                    fold: &draw.fold,
+                    folds: draw.folds,
+                    groups: None,
+                    rows: &rows,
+                };
+                self.one_repeat(&drawn, rng.next_u64(), matrix, None)
+            }
+        }
+    }
+
+    /// [`TimePlan::one_repeat`] on a draw of this recording's own trials.
+    fn decode_draw(
         &self,
         draw: &Draw,
         inner_key: u64,
         matrix: bool,
         train_y: Option<&[usize]>,
     ) -> TimeOutcome {
-        let data = &self.data;
-        let groups: Option<Vec<usize>> = data
+        let p = self.data.n_neurons();
+        let rows = |w: usize, positions: &[usize]| {
+            let x = self.data.window(w);
+            let mut out = Vec::with_capacity(positions.len() * p);
+            for &pos in positions {
+                let i = draw.used[pos];
+                out.extend_from_slice(&x[i * p..(i + 1) * p]);
+            }
+            out
+        };
+        let groups: Option<Vec<usize>> = self
+            .data
             .groups
             .as_ref()
             .map(|g| draw.used.iter().map(|&i| g[i]).collect());
-        let nesting = Nesting {
+        let drawn = Drawn {
+            y: &draw.y,
+            fold: &draw.fold,
+            folds: draw.folds,
             groups: groups.as_deref(),
+            rows: &rows,
+        };
+        self.one_repeat(&drawn, inner_key, matrix, train_y)
+    }
+
+    /// Cross-validate one draw at every window (and, with `matrix`, test every window's decoder at every window).
+    /// All folds of a window are fitted together, so a decoder with a fold shortcut can use it. Decoders are fitted
+    /// on `train_y` when given (the training-label null) and on the draw's labels otherwise; tests always score
+    /// against the draw's labels. Nested tuning's inner folds come from the stream keyed by `inner_key` (the same
+    /// at every window).
+    fn one_repeat(
+        &self,
+        drawn: &Drawn,
+        inner_key: u64,
+        matrix: bool,
+        train_y: Option<&[usize]>,
+    ) -> TimeOutcome {
+        let data = &self.data;
+        let Drawn {
+            y,
+            fold,
+            folds,
+            groups,
+            rows,
+        } = *drawn;
+        let nesting = Nesting {
+            groups,
             seed: self.recipe.seed,
             key: inner_key,
         };
         let (nw, k, p) = (self.n_windows(), data.classes.len(), data.n_neurons());
         let generalize = matrix;
         let gather = |w: usize, positions: &[usize]| {
-            let x = data.window(w);
-            let mut out = Vec::with_capacity(positions.len() * p);
-            for &pos in positions {
-                let i = draw.used[pos];
-                out.extend_from_slice(&x[i * p..(i + 1) * p]);
-            }
+            let mut out = rows(w, positions);
             if let Some(width) = self.count_scale {
                 // Rates × width: spike counts, rounded to undo the division's round-off.
                 out.iter_mut().for_each(|v| *v = (*v * width).round());
             }
             out
         };
-        let all: Vec<usize> = (0..draw.used.len()).collect();
+        let all: Vec<usize> = (0..y.len()).collect();
         // models[w][f]: the pipeline trained at window w without fold f.
         let models: Vec<Vec<Option<FittedPipeline>>> = (0..nw)
             .map(|w| {
@@ -287,9 +404,9 @@ impl TimePlan {
                 let set = FoldSet {
                     x: &x,
                     p,
-                    y: train_y.unwrap_or(&draw.y),
-                    fold: &draw.fold,
-                    folds: draw.folds,
+                    y: train_y.unwrap_or(y),
+                    fold,
+                    folds,
                     n_classes: k,
                 };
                 fit_folds_with(self.decoder.as_ref(), &set, &nesting)
@@ -303,12 +420,8 @@ impl TimePlan {
 
         let cells = if generalize { nw * nw } else { nw };
         let mut confusion = vec![0u32; cells * k * k];
-        for f in 0..draw.folds {
-            let test: Vec<usize> = all
-                .iter()
-                .copied()
-                .filter(|&pos| draw.fold[pos] == f)
-                .collect();
+        for f in 0..folds {
+            let test: Vec<usize> = all.iter().copied().filter(|&pos| fold[pos] == f).collect();
             if models.iter().all(|m| m[f].is_none()) {
                 continue;
             }
@@ -317,7 +430,7 @@ impl TimePlan {
                 let cell = if generalize { w * nw + w_test } else { w };
                 let c = &mut confusion[cell * k * k..(cell + 1) * k * k];
                 for (&pos, q) in test.iter().zip(model.predict(rows)) {
-                    c[draw.y[pos] * k + q] += 1;
+                    c[y[pos] * k + q] += 1;
                 }
             };
             for w_test in 0..nw {
@@ -359,12 +472,35 @@ impl TimePlan {
             single_class_fits: single,
             chosen,
             ungrouped_inner: if self.recipe.tune {
-                (single_group_folds(groups.as_deref(), &draw.fold, draw.folds) * nw) as u32
+                (single_group_folds(groups, fold, folds) * nw) as u32
             } else {
                 0
             },
         }
     }
+}
+
+/// For a decoder of counts on spike events or NWB files: the window width, which turns rates back into counts.
+fn count_scale(settings: &TimeSettings, recipe: &Recipe) -> Option<f64> {
+    match settings.input {
+        TimeInput::Events { width, .. } | TimeInput::Nwb { width, .. }
+            if recipe.classifier.needs_counts() =>
+        {
+            Some(width)
+        }
+        _ => None,
+    }
+}
+
+/// One repeat's trials as [`TimePlan::one_repeat`] decodes them: their labels, folds and groups (none for
+/// pseudo-trials, which never share a group), and `rows(w, positions)`, their activity at window w, row-major.
+#[derive(Clone, Copy)]
+struct Drawn<'a> {
+    y: &'a [usize],
+    fold: &'a [usize],
+    folds: usize,
+    groups: Option<&'a [usize]>,
+    rows: &'a dyn Fn(usize, &[usize]) -> Vec<f64>,
 }
 
 fn add(total: &mut [f64], more: &[f64]) {

@@ -1,0 +1,576 @@
+//! The result of a study.
+//!
+//! Schema `popdecode-study/1` (fields are only ever added):
+//! * `schema`, `software`, `recipe` (the recipe every session shares), `options` {`pool`, `leave_out_flagged`,
+//!   `group_draws`, `alpha`}
+//! * `study` {`file`, `sha256` (of the study table, or of the session list's JSON), `kind` ("trial_table",
+//!   "binned", "events", "nwb"), `level` ("subject" or "session": what the group statistics count),
+//!   `subjects` (null without a subject column)}
+//! * `classes`; `headline` ("accuracy", or "balanced_accuracy" without balancing): the score every statistic is of
+//! * `score`: what one session's score is ("accuracy" per trial table; over time, the mean over every window)
+//! * `chance`: 1 / classes
+//! * `sessions`: per session that entered, in table order {`session`, `subject`, `seed` (its own analysis's seed:
+//!   decode the session alone with it for the same numbers), `files` [{`file`, `sha256`}], `trials`, `neurons`,
+//!   `class_counts`, `accuracy` and `balanced_accuracy` ({`mean`, `sd`, `p2_5`, `p97_5`} over repeats; null when
+//!   pooled), `null` (the headline score of each shuffle), `p_value` (Phipson & Smyth; null without shuffles or
+//!   when pooled), `curve` (over time: the headline mean at each window), `clusters` (over time: the session's own
+//!   cluster test, as in `popdecode-timecourse/1`), `warnings`}
+//! * `left_out`: [{`session`, `subject`, `reason`}], the sessions left out with the user's agreement
+//! * `units`: the second level [{`name`, `sessions`, `score`}] (subjects with their sessions' mean, or sessions)
+//! * `group` (null when pooled) {`level`, `units`, `mean`, `sd`, `interval` {`level`, `low`, `high`, `kind`},
+//!   `chance`, `draws`, `null_mean`, `null_p95`, `p_value`, `significant`} (the last four null without shuffles)
+//! * `prevalence` (null when pooled or without shuffles) {`minimum`, `global_p`, `gamma0` (null when the global
+//!   null is not rejected), `gamma0_limit`, `majority`, `alpha`, `units`}
+//! * `t_test` (null with fewer than two units or no spread) {`t`, `df`, `p_value`, `caution`}
+//! * `time` (over time, not pooled) {`windows` [{`index`, `start`, `end`, `time`, `mean`, `sd`, `null_p95`,
+//!   `significant`}], `clusters` (as in `popdecode-timecourse/1`), `alpha`}
+//! * `pooled` (when pooled): the pooled population's whole result (`popdecode-result/1` or
+//!   `popdecode-timecourse/1`), with its caveat among its warnings
+//! * `fits` {`total`, `capped`, `single_class`}, `warnings`
+//!
+//! Built from outcomes in any order; nothing time- or machine-dependent is written.
+
+use super::plan::{AnyOutcome, AnyPlan, LeftOut, StudyOptions, StudyOutcome, StudyPlan};
+use crate::analyses::time_course::report::{TimeCluster, TimeReport};
+use crate::analyses::time_course::TimeOutcome;
+use crate::analyses::trial_table::report::Report;
+use crate::analyses::trial_table::Outcome;
+use crate::analyses::{Analysis, Finished};
+use crate::data::SourceFile;
+use crate::input::study::SessionKind;
+use crate::recipe::Recipe;
+use crate::report::text::session_notes;
+use crate::report::{Fits, Software};
+use crate::resample::Headline;
+use crate::stats::clusters::{self, CLUSTER_PERCENTILE};
+use crate::stats::group::{self, Prevalence, TTest};
+use crate::stats::{self, percentile, permutation_p, Spread};
+use serde::Serialize;
+
+pub const STUDY_SCHEMA: &str = "popdecode-study/1";
+
+/// Every report of a pooled study carries this beside the pseudo-population's own caveat.
+pub const POOLED_NOTE: &str = "the sessions were pooled into one pseudo-population: the result describes that \
+     population, not how consistently the sessions or subjects carry the information; decode each session on its \
+     own for group statistics";
+
+#[derive(Debug, Clone, Serialize)]
+pub struct StudyReport {
+    pub schema: String,
+    pub software: Software,
+    pub recipe: Recipe,
+    pub options: StudyOptions,
+    pub study: StudyInfo,
+    pub classes: Vec<String>,
+    pub headline: Headline,
+    pub score: String,
+    pub chance: f64,
+    pub sessions: Vec<SessionResult>,
+    pub left_out: Vec<LeftOut>,
+    pub units: Vec<UnitResult>,
+    pub group: Option<Group>,
+    pub prevalence: Option<Prevalence>,
+    pub t_test: Option<TTest>,
+    pub time: Option<GroupTime>,
+    pub pooled: Option<serde_json::Value>,
+    pub fits: Fits,
+    pub warnings: Vec<String>,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct StudyInfo {
+    pub file: String,
+    pub sha256: String,
+    pub kind: SessionKind,
+    pub level: String,
+    pub subjects: Option<usize>,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct SessionResult {
+    pub session: String,
+    pub subject: Option<String>,
+    pub seed: u64,
+    pub files: Vec<SourceFile>,
+    pub trials: usize,
+    pub neurons: usize,
+    pub class_counts: Vec<usize>,
+    pub accuracy: Option<Spread>,
+    pub balanced_accuracy: Option<Spread>,
+    pub null: Vec<f64>,
+    pub p_value: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub curve: Option<Vec<f64>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub clusters: Option<Vec<TimeCluster>>,
+    pub warnings: Vec<String>,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct UnitResult {
+    pub name: String,
+    pub sessions: Vec<String>,
+    pub score: f64,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct Group {
+    pub level: String,
+    pub units: usize,
+    pub mean: f64,
+    pub sd: f64,
+    pub interval: Option<Interval>,
+    pub chance: f64,
+    pub draws: usize,
+    pub null_mean: Option<f64>,
+    pub null_p95: Option<f64>,
+    pub p_value: Option<f64>,
+    pub significant: Option<bool>,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct Interval {
+    pub level: f64,
+    pub low: f64,
+    pub high: f64,
+    pub kind: String,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct GroupTime {
+    pub windows: Vec<GroupWindow>,
+    pub clusters: Vec<TimeCluster>,
+    pub alpha: f64,
+    /// Percentile of the group null a window's group mean must exceed to enter a cluster.
+    pub cluster_percentile: f64,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct GroupWindow {
+    pub index: usize,
+    pub start: f64,
+    pub end: f64,
+    pub time: f64,
+    pub mean: f64,
+    pub sd: f64,
+    pub null_p95: Option<f64>,
+    pub significant: bool,
+}
+
+/// One session's numbers, as the group statistics read them.
+struct Scored {
+    result: SessionResult,
+    /// Observed score (mean over repeats) and each shuffle's, in shuffle order.
+    observed: f64,
+    /// Over time: the headline mean at each window, and each shuffle's headline curve.
+    curve: Vec<f64>,
+    null_curves: Vec<Vec<f64>>,
+}
+
+impl StudyReport {
+    /// Assemble the study's result from every task's outcome (any order); a pooled study also takes the pooled
+    /// population's finished analysis ([`pooled_finished`]).
+    pub fn build(
+        plan: &StudyPlan,
+        outcomes: &[StudyOutcome],
+        pooled: Option<&Finished>,
+    ) -> StudyReport {
+        let fits = Fits::sum(outcomes.iter().map(|o| match &o.outcome {
+            AnyOutcome::Table(t) => (t.fits, t.capped_fits, t.single_class_fits),
+            AnyOutcome::Time(t) => (t.fits, t.capped_fits, t.single_class_fits),
+        }));
+        let mut warnings = plan.warnings.clone();
+        let by_subject = plan.by_subject();
+        let level = if by_subject { "subject" } else { "session" };
+        let mut report = StudyReport {
+            schema: STUDY_SCHEMA.into(),
+            software: Software::current(),
+            recipe: plan.recipe.clone(),
+            options: plan.options.clone(),
+            study: StudyInfo {
+                file: plan.table.source.clone(),
+                sha256: plan.table.sha256.clone(),
+                kind: plan.kind,
+                level: level.into(),
+                subjects: by_subject.then(|| plan.units.len()),
+            },
+            classes: plan.classes.clone(),
+            headline: if plan.recipe.balance {
+                Headline::Accuracy
+            } else {
+                Headline::BalancedAccuracy
+            },
+            score: String::new(),
+            chance: 1.0 / plan.classes.len() as f64,
+            sessions: Vec::new(),
+            left_out: plan.left_out.clone(),
+            units: Vec::new(),
+            group: None,
+            prevalence: None,
+            t_test: None,
+            time: None,
+            pooled: None,
+            fits,
+            warnings: Vec::new(),
+        };
+        report.score = score_description(plan, report.headline);
+        if let Some(pooled) = pooled {
+            report.pooled = Some(serde_json::from_str(&pooled.json).expect("a report is JSON"));
+            report.sessions = plan
+                .sessions
+                .iter()
+                .map(|s| SessionResult {
+                    session: s.name.clone(),
+                    subject: s.subject.clone(),
+                    seed: s.seed,
+                    files: s.files.clone(),
+                    trials: s.trials,
+                    neurons: s.neurons,
+                    class_counts: s.class_counts.clone(),
+                    accuracy: None,
+                    balanced_accuracy: None,
+                    null: Vec::new(),
+                    p_value: None,
+                    curve: None,
+                    clusters: None,
+                    warnings: Vec::new(),
+                })
+                .collect();
+            warnings.push(POOLED_NOTE.into());
+            report.warnings = warnings;
+            return report;
+        }
+
+        let mut per_session: Vec<Vec<&AnyOutcome>> = vec![Vec::new(); plan.sessions.len()];
+        for o in outcomes {
+            per_session[o.session.expect("a session's task")].push(&o.outcome);
+        }
+        let scored: Vec<Scored> = plan
+            .sessions
+            .iter()
+            .zip(&per_session)
+            .map(|(s, outs)| {
+                let mut sc = score_session(s.plan(), outs);
+                sc.result.session = s.name.clone();
+                sc.result.subject = s.subject.clone();
+                sc.result.seed = s.seed;
+                sc.result.files = s.files.clone();
+                sc.result.trials = s.trials;
+                sc.result.neurons = s.neurons;
+                sc.result.class_counts = s.class_counts.clone();
+                sc
+            })
+            .collect();
+        let notes: Vec<(&str, &[String])> = scored
+            .iter()
+            .map(|s| (s.result.session.as_str(), s.result.warnings.as_slice()))
+            .collect();
+        warnings.extend(session_notes(&notes));
+
+        let observed: Vec<f64> = scored.iter().map(|s| s.observed).collect();
+        let unit_scores = plan.units.means(&observed);
+        report.units = plan
+            .unit_names
+            .iter()
+            .zip(&plan.units.members)
+            .zip(&unit_scores)
+            .map(|((name, members), &score)| UnitResult {
+                name: name.clone(),
+                sessions: members
+                    .iter()
+                    .map(|&s| plan.sessions[s].name.clone())
+                    .collect(),
+                score,
+            })
+            .collect();
+        let has_null = plan.recipe.shuffles > 0;
+        let draws = plan.options.group_draws;
+        // Each session's pool: its observed score first, then its shuffles' (the observed labelling is one of the
+        // permutations, as in Allefeld et al. 2016), so that under the null the observed scores are a draw like
+        // any other and the test is exact up to the draws' Monte Carlo error.
+        let pools: Vec<Vec<f64>> = scored
+            .iter()
+            .map(|s| {
+                std::iter::once(s.observed)
+                    .chain(s.result.null.iter().copied())
+                    .collect()
+            })
+            .collect();
+        let picks = if has_null {
+            let counts: Vec<usize> = pools.iter().map(Vec::len).collect();
+            group::picks(plan.recipe.seed, &counts, draws)
+        } else {
+            Vec::new()
+        };
+        let mean = stats::mean(&unit_scores);
+        let alpha = plan.options.alpha;
+        let (null_mean, null_p95, p_value) = if has_null {
+            let scalar_null: Vec<Vec<Vec<f64>>> = pools
+                .iter()
+                .map(|p| p.iter().map(|&v| vec![v]).collect())
+                .collect();
+            let null: Vec<f64> = group::group_null(&plan.units, &scalar_null, &picks)
+                .into_iter()
+                .map(|g| g[0])
+                .collect();
+            let minimum = group::minimum_null(&plan.units, &pools, &picks);
+            report.prevalence = Some(group::prevalence(&unit_scores, &minimum, alpha));
+            (
+                Some(stats::mean(&null)),
+                Some(percentile(&null, 95.0)),
+                Some(permutation_p(mean, &null)),
+            )
+        } else {
+            (None, None, None)
+        };
+        report.group = Some(Group {
+            level: level.into(),
+            units: unit_scores.len(),
+            mean,
+            sd: stats::sd(&unit_scores),
+            interval: group::t_interval(&unit_scores, 0.95).map(|(low, high)| Interval {
+                level: 0.95,
+                low,
+                high,
+                kind: format!(
+                    "t interval of the mean across {level}s, each {level}'s score taken as exact (the resampling \
+                     within sessions is not in it)"
+                ),
+            }),
+            chance: report.chance,
+            draws: if has_null { draws } else { 0 },
+            null_mean,
+            null_p95,
+            p_value,
+            significant: p_value.map(|p| p < alpha),
+        });
+        report.t_test = group::t_test_greater(&unit_scores, report.chance);
+        if let AnyPlan::Time(first) = plan.sessions[0].plan() {
+            report.time = Some(group_time(plan, first, &scored, &picks));
+        }
+        report.sessions = scored.into_iter().map(|s| s.result).collect();
+        warnings.extend(report.fits.warnings());
+        if has_null && plan.recipe.shuffles < 100 {
+            warnings.push(format!(
+                "only {} shuffles per session: each session's null is coarse, and so are the group tests built \
+                 from it; 200 or more are usual",
+                plan.recipe.shuffles
+            ));
+        }
+        if has_null
+            && report
+                .prevalence
+                .as_ref()
+                .is_some_and(|p| p.gamma0.is_none())
+        {
+            warnings.push(
+                "the prevalence test did not reject the global null: by the minimum statistic, no claim can be \
+                 made about how many sessions or subjects of the population carry the information"
+                    .into(),
+            );
+        }
+        report.warnings = warnings;
+        report
+    }
+
+    pub fn to_json(&self) -> String {
+        serde_json::to_string_pretty(self).expect("a report always serialises")
+    }
+
+    /// The sessions that were decoded over time.
+    pub fn is_time(&self) -> bool {
+        self.time.is_some()
+    }
+}
+
+/// What one session's score is, in words.
+fn score_description(plan: &StudyPlan, headline: Headline) -> String {
+    let name = headline.name();
+    match plan.sessions.first().and_then(|s| s.plan.as_ref()) {
+        Some(AnyPlan::Time(t)) => {
+            let w = &t.data.windows;
+            format!(
+                "{name} averaged over the {} windows from {} s to {} s",
+                w.len(),
+                crate::report::text::seconds(w[0].start),
+                crate::report::text::seconds(w[w.len() - 1].end)
+            )
+        }
+        _ => name.to_string(),
+    }
+}
+
+/// A session's own report, read for the group statistics.
+fn score_session(plan: &AnyPlan, outs: &[&AnyOutcome]) -> Scored {
+    let empty = |warnings: Vec<String>| SessionResult {
+        session: String::new(),
+        subject: None,
+        seed: 0,
+        files: Vec::new(),
+        trials: 0,
+        neurons: 0,
+        class_counts: Vec::new(),
+        accuracy: None,
+        balanced_accuracy: None,
+        null: Vec::new(),
+        p_value: None,
+        curve: None,
+        clusters: None,
+        warnings,
+    };
+    match plan {
+        AnyPlan::Table(p) => {
+            let outs: Vec<Outcome> = outs
+                .iter()
+                .filter_map(|o| match o {
+                    AnyOutcome::Table(t) => Some(t.clone()),
+                    AnyOutcome::Time(_) => None,
+                })
+                .collect();
+            let r = Report::build(p, &outs);
+            let mut result = empty(r.warnings.clone());
+            result.accuracy = Some(r.summary.accuracy.clone());
+            result.balanced_accuracy = Some(r.summary.balanced_accuracy.clone());
+            result.null = r.shuffle.null.clone();
+            result.p_value = r.shuffle.p_value;
+            Scored {
+                observed: r.shuffle.observed,
+                curve: Vec::new(),
+                null_curves: Vec::new(),
+                result,
+            }
+        }
+        AnyPlan::Time(p) => {
+            let outs: Vec<TimeOutcome> = outs
+                .iter()
+                .filter_map(|o| match o {
+                    AnyOutcome::Time(t) => Some(t.clone()),
+                    AnyOutcome::Table(_) => None,
+                })
+                .collect();
+            let r = TimeReport::build(p, &outs);
+            let span = |v: &[f64]| stats::mean(v);
+            let acc: Vec<f64> = r.repeats.iter().map(|o| span(&o.accuracy)).collect();
+            let bacc: Vec<f64> = r
+                .repeats
+                .iter()
+                .map(|o| span(&o.balanced_accuracy))
+                .collect();
+            let observed = stats::mean(match r.design.headline {
+                Headline::Accuracy => &acc,
+                Headline::BalancedAccuracy => &bacc,
+            });
+            let null: Vec<f64> = r.shuffle.null.iter().map(|c| span(c)).collect();
+            let mut result = empty(r.warnings.clone());
+            result.p_value = (!null.is_empty()).then(|| permutation_p(observed, &null));
+            result.accuracy = Some(Spread::of(&acc));
+            result.balanced_accuracy = Some(Spread::of(&bacc));
+            result.null = null;
+            result.curve = Some(r.curve());
+            result.clusters = Some(r.clusters.clone());
+            Scored {
+                observed,
+                curve: r.curve(),
+                null_curves: r.shuffle.null.clone(),
+                result,
+            }
+        }
+    }
+}
+
+/// The group curve, its spread across units, and its cluster test with the sessions' null curves drawn as the
+/// scalar test draws them.
+fn group_time(
+    plan: &StudyPlan,
+    first: &crate::analyses::time_course::TimePlan,
+    scored: &[Scored],
+    picks: &[Vec<usize>],
+) -> GroupTime {
+    let win = &first.data.windows;
+    let nw = win.len();
+    let unit_curves: Vec<Vec<f64>> = (0..nw)
+        .map(|w| {
+            let at: Vec<f64> = scored.iter().map(|s| s.curve[w]).collect();
+            plan.units.means(&at)
+        })
+        .collect(); // [window][unit]
+    let mean: Vec<f64> = unit_curves.iter().map(|u| stats::mean(u)).collect();
+    let test = (!picks.is_empty()).then(|| {
+        let null_curves: Vec<Vec<Vec<f64>>> = scored
+            .iter()
+            .map(|s| {
+                std::iter::once(s.curve.clone())
+                    .chain(s.null_curves.iter().cloned())
+                    .collect()
+            })
+            .collect();
+        let null = group::group_null(&plan.units, &null_curves, picks);
+        let refs: Vec<&[f64]> = null.iter().map(Vec::as_slice).collect();
+        clusters::test(&mean, &refs, 1, nw)
+    });
+    let alpha = plan.options.alpha;
+    let clusters: Vec<TimeCluster> = test
+        .iter()
+        .flat_map(|t| &t.clusters)
+        .map(|c| {
+            let (a, b) = (c.cells[0], *c.cells.last().expect("a cluster has cells"));
+            TimeCluster {
+                start: win[a].time,
+                end: win[b].time,
+                window_start: win[a].start,
+                window_end: win[b].end,
+                first_window: a,
+                last_window: b,
+                mass: c.mass,
+                p_value: c.p_value,
+                significant: c.p_value < alpha,
+            }
+        })
+        .collect();
+    let windows = (0..nw)
+        .map(|w| GroupWindow {
+            index: w,
+            start: win[w].start,
+            end: win[w].end,
+            time: win[w].time,
+            mean: mean[w],
+            sd: stats::sd(&unit_curves[w]),
+            null_p95: test.as_ref().map(|t| t.thresholds[w]),
+            significant: clusters
+                .iter()
+                .any(|c| c.significant && (c.first_window..=c.last_window).contains(&w)),
+        })
+        .collect();
+    GroupTime {
+        windows,
+        clusters,
+        alpha,
+        cluster_percentile: CLUSTER_PERCENTILE,
+    }
+}
+
+/// The pooled population's own finished analysis (its JSON, text, methods and figures).
+pub fn pooled_finished(pooled: &AnyPlan, outcomes: &[StudyOutcome]) -> Finished {
+    match pooled {
+        AnyPlan::Table(p) => {
+            let outs: Vec<Outcome> = outcomes
+                .iter()
+                .filter_map(|o| match &o.outcome {
+                    AnyOutcome::Table(t) => Some(t.clone()),
+                    AnyOutcome::Time(_) => None,
+                })
+                .collect();
+            Analysis::finish(p, &outs)
+        }
+        AnyPlan::Time(p) => {
+            let outs: Vec<TimeOutcome> = outcomes
+                .iter()
+                .filter_map(|o| match &o.outcome {
+                    AnyOutcome::Time(t) => Some(t.clone()),
+                    AnyOutcome::Table(_) => None,
+                })
+                .collect();
+            Analysis::finish(p, &outs)
+        }
+    }
+}

@@ -1,0 +1,676 @@
+//! Studies of many sessions: calibration of the group tests under the null, their power and the prevalence bound
+//! with information in some sessions, pooled time courses, session seeds, flagged sessions, and the page's JSON
+//! against the CLI's.
+
+use popdecode::analyses::study::plan::{AnyOutcome, StudyOutcome};
+use popdecode::analyses::study::{from_files, StudyOptions, StudyPlan, StudyReport, StudyRequest};
+use popdecode::analyses::time_course::pooled::Pool;
+use popdecode::analyses::trial_table::{run_all, Plan};
+use popdecode::analyses::Analysis;
+use popdecode::data::time::TimeDataset;
+use popdecode::input::study::StudyRow;
+use popdecode::input::{self, FileBytes};
+use popdecode::recipe::windows::sliding;
+use popdecode::recipe::{Classifier, Folds, Recipe, TimeSettings};
+use popdecode::rng::{task_rng, Stream};
+use popdecode::simulate::{binned, csv, study, Scenario, StudyScenario, TimeScenario};
+use popdecode::stats::binomial;
+use std::path::PathBuf;
+use std::process::Command;
+
+/// A trial table of one invented session: two conditions, `tuning` 0 for no information.
+fn session_csv(tuning: f64, seed: u64) -> String {
+    csv(&Scenario {
+        classes: vec!["a".into(), "b".into()],
+        trials_per_class: vec![12, 12],
+        units: 6,
+        tuning,
+        tuned_fraction: 1.0,
+        blocks_per_class: 0,
+        block_offset: 0.0,
+        sessions: 0,
+        seed,
+    })
+}
+
+/// A small, fast protocol. Repeats per shuffle equal the observed repeats, so that under the null the observed
+/// score is exchangeable with the shuffles' and the tests should reject at their nominal rate, not below it.
+fn small_recipe(seed: u64) -> Recipe {
+    let mut r = Recipe::new("odour");
+    r.classifier = Classifier::NearestMean;
+    r.folds = Folds::K(3);
+    r.repeats = 2;
+    r.shuffles = 39;
+    r.shuffle_repeats = Some(2);
+    r.seed = seed;
+    r
+}
+
+/// A study of in-memory trial tables, through the loader the page uses.
+fn table_study(tunings: &[f64], seed: u64, draws: usize) -> StudyReport {
+    let texts: Vec<(String, String)> = tunings
+        .iter()
+        .enumerate()
+        .map(|(i, &t)| (format!("s{i}.csv"), session_csv(t, seed * 100 + i as u64)))
+        .collect();
+    let files: Vec<FileBytes> = texts
+        .iter()
+        .map(|(name, text)| FileBytes {
+            name,
+            bytes: text.as_bytes(),
+        })
+        .collect();
+    let rows = texts
+        .iter()
+        .enumerate()
+        .map(|(i, (name, _))| StudyRow {
+            file: name.clone(),
+            session: format!("s{i}"),
+            subject: None,
+            trials: None,
+        })
+        .collect();
+    let request = StudyRequest {
+        options: StudyOptions {
+            group_draws: draws,
+            ..StudyOptions::default()
+        },
+        sessions: Some(rows),
+        table: None,
+    };
+    let plan = from_files(&files, &small_recipe(seed), request).expect("a valid study");
+    let outcomes: Vec<StudyOutcome> = plan.tasks().into_iter().map(|t| plan.run(t)).collect();
+    StudyReport::build(&plan, &outcomes, None)
+}
+
+/// The 99 % two-sided binomial range of a count of rejections at rate `alpha` over `n` tries.
+fn binomial_99(n: u64, alpha: f64) -> (u64, u64) {
+    (
+        binomial::quantile(0.005, n, alpha),
+        binomial::quantile(0.995, n, alpha),
+    )
+}
+
+/// Under the null (no session carries information), the group permutation test (Stelzer, Chen & Turner 2013)
+/// rejects at about α, and the prevalence inference (Allefeld, Görgen & Haynes 2016) claims a prevalence above 0 at
+/// most at α: 600 invented studies of five sessions each; the rate must lie in the binomial 99 % range. (Measured
+/// once on 3000 further studies: 4.9 % and 3.9 %.)
+#[test]
+fn group_tests_keep_their_error_rate_without_information() {
+    let studies = 600u64;
+    let (mut group, mut prevalence) = (0u64, 0u64);
+    for k in 0..studies {
+        let r = table_study(&[0.0; 5], k + 1, 999);
+        let g = r.group.as_ref().unwrap();
+        group += u64::from(g.p_value.unwrap() < 0.05);
+        prevalence += u64::from(r.prevalence.as_ref().unwrap().gamma0.is_some());
+    }
+    let (lo, hi) = binomial_99(studies, 0.05);
+    eprintln!("measured, no information: group test significant in {group}, prevalence claimed in {prevalence} of {studies} (range {lo}-{hi})");
+    assert!(
+        (lo..=hi).contains(&group),
+        "group test rejected in {group} of {studies} null studies; the binomial 99 % range at α = 0.05 is {lo}–{hi}"
+    );
+    assert!(
+        prevalence <= hi,
+        "prevalence above 0 claimed in {prevalence} of {studies} null studies (at most {hi} allowed)"
+    );
+}
+
+/// With information in 6 of 10 sessions, the group test finds it, and the prevalence bound exceeds the true
+/// prevalence 0.6 at most at α (Allefeld, Görgen & Haynes 2016: the bound is a lower confidence bound).
+#[test]
+fn information_in_six_of_ten_sessions_is_found_and_not_overstated() {
+    let studies = 200u64;
+    let (mut found, mut over) = (0u64, 0u64);
+    let mut tunings = [0.0; 10];
+    tunings[..6].fill(0.8);
+    for k in 0..studies {
+        let r = table_study(&tunings, 1000 + k, 999);
+        found += u64::from(r.group.as_ref().unwrap().p_value.unwrap() < 0.05);
+        over += u64::from(
+            r.prevalence
+                .as_ref()
+                .unwrap()
+                .gamma0
+                .is_some_and(|g| g > 0.6),
+        );
+    }
+    assert!(
+        found >= studies * 95 / 100,
+        "the group test found the information in only {found} of {studies} studies"
+    );
+    let (_, hi) = binomial_99(studies, 0.05);
+    eprintln!("measured, six of ten informative: group test significant in {found}, bound above 0.6 in {over} of {studies}");
+    assert!(
+        over <= hi,
+        "the prevalence bound exceeded 0.6 in {over} of {studies} studies (at most {hi} allowed)"
+    );
+    // With information in every session, the bound does claim a prevalence (so the check above is not empty).
+    let all = table_study(&[0.8; 10], 77, 9999);
+    let bound = all.prevalence.unwrap().gamma0;
+    assert!(bound.is_some_and(|g| g > 0.3), "{bound:?}");
+}
+
+/// A session of a study gives, number for number, what the same file decoded alone with the session's seed gives:
+/// each session runs on its own random streams, whatever else is in the study.
+#[test]
+fn a_session_is_its_own_analysis_under_its_seed() {
+    let r = table_study(&[0.8, 0.0, 0.4], 7, 99);
+    let s = &r.sessions[2];
+    let alone = small_recipe(s.seed);
+    let text = session_csv(0.4, 7 * 100 + 2);
+    let data = input::trial_table("s2.csv", text.as_bytes(), &alone.columns).unwrap();
+    let one = run_all(&Plan::new(data, &alone).unwrap());
+    assert_eq!(s.accuracy.as_ref().unwrap(), &one.summary.accuracy);
+    assert_eq!(s.null, one.shuffle.null);
+    assert_eq!(s.p_value, one.shuffle.p_value);
+}
+
+/// Invented binned sessions over time whose information lies in known windows.
+fn timed_session(info: (f64, f64), seed: u64) -> TimeDataset {
+    let scenario = TimeScenario {
+        classes: vec!["a".into(), "b".into(), "c".into()],
+        trials_per_class: 20,
+        units: 10,
+        tuning: 0.7,
+        tuned_fraction: 0.5,
+        info_start: info.0,
+        info_end: info.1,
+        start: -0.4,
+        end: 0.8,
+        sessions: 0,
+        absolute_times: false,
+        seed,
+    };
+    let text = binned(&scenario, 0.1);
+    let settings = TimeSettings::binned("trial", "time");
+    let file = FileBytes {
+        name: "s.csv",
+        bytes: text.as_bytes(),
+    };
+    input::time_course(&[file], &Recipe::new("odour").columns, &settings.input).unwrap()
+}
+
+/// Three sessions pooled over time: two carry the odour from 0 to 0.3 s, one from 0.5 to 0.8 s; the pooled
+/// population's cluster test finds both spans and nothing before odour onset.
+#[test]
+fn a_pooled_time_course_finds_the_windows_that_hold_information() {
+    let sessions = vec![
+        ("A".to_string(), timed_session((0.0, 0.3), 11)),
+        ("B".to_string(), timed_session((0.5, 0.8), 12)),
+        ("C".to_string(), timed_session((0.0, 0.3), 13)),
+    ];
+    let mut recipe = Recipe::new("odour");
+    recipe.classifier = Classifier::ShrinkageLda;
+    recipe.repeats = 5;
+    recipe.shuffles = 100;
+    recipe.shuffle_repeats = Some(2);
+    recipe.time = Some(TimeSettings::binned("trial", "time"));
+    let plan = popdecode::analyses::time_course::TimePlan::pooled(sessions, &recipe).unwrap();
+    assert_eq!(
+        plan.scheme.split,
+        popdecode::resample::Split::Pseudo { folds: 5 }
+    );
+    let report = popdecode::analyses::time_course::run_all(&plan);
+    let significant = |t: f64| {
+        report
+            .windows
+            .iter()
+            .find(|w| (w.time - t).abs() < 1e-9)
+            .unwrap()
+            .significant
+    };
+    for t in [0.05, 0.15, 0.25, 0.55, 0.65, 0.75] {
+        assert!(significant(t), "window at {t} s: {:?}", report.curve());
+    }
+    for t in [-0.35, -0.25, -0.15, -0.05] {
+        assert!(!significant(t), "window at {t} s: {:?}", report.curve());
+    }
+    assert!(report
+        .warnings
+        .iter()
+        .any(|w| w.contains("noise correlations")));
+}
+
+/// Training and test pseudo-trials never share a real trial, and a pseudo-trial takes the same real trials at every
+/// window: every value is unique to its (session, trial, neuron, window), so it betrays where it came from.
+#[test]
+fn pooled_pseudo_trials_use_disjoint_real_trials_at_every_window() {
+    let windows = sliding(0.0, 0.3, 0.1, 0.1).unwrap();
+    let make = |s: usize, n_trials: usize, n_neurons: usize| {
+        let nw = windows.len();
+        let y: Vec<usize> = (0..n_trials).map(|t| t % 2).collect();
+        let x = ndarray::Array3::from_shape_fn((nw, n_trials, n_neurons), |(w, t, u)| {
+            (s * 1_000_000 + t * 1000 + u * 10 + w) as f64
+        });
+        TimeDataset {
+            source: format!("s{s}"),
+            files: Vec::new(),
+            x,
+            windows: windows.clone(),
+            trial_ids: (0..n_trials).map(|t| t.to_string()).collect(),
+            y,
+            classes: vec!["a".into(), "b".into()],
+            groups: None,
+            group_names: Vec::new(),
+            neurons: (0..n_neurons).map(|u| format!("u{u}")).collect(),
+            label_column: "cond".into(),
+            group_column: None,
+            spikes_outside: 0,
+            spikes_total: 0,
+            warnings: Vec::new(),
+        }
+    };
+    let sessions = vec![
+        ("s0".to_string(), make(0, 23, 3)),
+        ("s1".to_string(), make(1, 30, 2)),
+        ("s2".to_string(), make(2, 17, 4)),
+    ];
+    let (data, pool) = Pool::new(sessions).unwrap();
+    let width = data.neurons.len();
+    assert_eq!(width, 9);
+    let labels = data.y.clone();
+    for repeat in 0..5 {
+        let draw = pool.draw(&labels, 4, 2, &mut task_rng(9, Stream::Repeat, repeat, 0));
+        let all: Vec<usize> = (0..draw.y.len()).collect();
+        // (session, trial) -> fold, from window 0; every other window must agree value by value.
+        let mut fold_of = std::collections::BTreeMap::new();
+        let mut trial_at: Vec<Vec<(usize, usize)>> = Vec::new();
+        for w in 0..windows.len() {
+            let rows = pool.rows(&draw, w, &all);
+            for (pos, row) in rows.chunks_exact(width).enumerate() {
+                let mut from = Vec::new();
+                let mut per_session = [None; 3];
+                for &v in row {
+                    let v = v as usize;
+                    let (s, t, ww) = (v / 1_000_000, v / 1000 % 1000, v % 10);
+                    assert_eq!(ww, w, "a value from another window");
+                    match per_session[s] {
+                        None => per_session[s] = Some(t),
+                        Some(t0) => assert_eq!(t0, t, "one session's neurons from two trials"),
+                    }
+                    from.push((s, t));
+                }
+                assert!(
+                    per_session.iter().all(Option::is_some),
+                    "a session is missing"
+                );
+                for (s, t) in per_session.iter().enumerate().map(|(s, t)| (s, t.unwrap())) {
+                    assert_eq!(
+                        labels_of(&pool, s, t),
+                        draw.y[pos],
+                        "a trial of another condition"
+                    );
+                    let fold = *fold_of.entry((s, t)).or_insert(draw.fold[pos]);
+                    assert_eq!(fold, draw.fold[pos], "real trial ({s}, {t}) in two folds");
+                }
+                if w == 0 {
+                    trial_at.push(from);
+                } else {
+                    assert_eq!(
+                        trial_at[pos], from,
+                        "pseudo-trial {pos} changed trials at window {w}"
+                    );
+                }
+            }
+        }
+        // No real trial is used twice.
+        let mut used: Vec<(usize, usize)> = trial_at
+            .iter()
+            .flat_map(|f| {
+                let mut v = f.clone();
+                v.dedup();
+                v
+            })
+            .collect();
+        let n = used.len();
+        used.sort_unstable();
+        used.dedup();
+        assert_eq!(used.len(), n, "a real trial joins two pseudo-trials");
+    }
+}
+
+fn labels_of(pool: &Pool, s: usize, t: usize) -> usize {
+    pool.sessions[s].y[t]
+}
+
+/// Sessions that cannot enter (other label values; too few trials of a class for the folds) stop the study with
+/// every reason, unless the user agrees to leave them out; then the result lists them.
+#[test]
+fn flagged_sessions_are_named_and_left_out_only_with_agreement() {
+    let good: Vec<String> = (0..3).map(|i| session_csv(0.5, 50 + i)).collect();
+    let other_labels = session_csv(0.5, 60).replace(",b,", ",c,");
+    let few = {
+        let text = session_csv(0.5, 61);
+        let mut lines: Vec<&str> = text.lines().collect();
+        let header = lines.remove(0);
+        let mut kept = vec![header];
+        let mut b = 0;
+        for l in lines {
+            if l.contains(",b,") {
+                b += 1;
+                if b > 2 {
+                    continue;
+                }
+            }
+            kept.push(l);
+        }
+        kept.join("\n") + "\n"
+    };
+    let mut texts: Vec<(String, String)> = good
+        .into_iter()
+        .enumerate()
+        .map(|(i, t)| (format!("g{i}.csv"), t))
+        .collect();
+    texts.push(("odd.csv".into(), other_labels));
+    texts.push(("few.csv".into(), few));
+    let table: String = std::iter::once("file,session\n".to_string())
+        .chain(
+            texts
+                .iter()
+                .map(|(n, _)| format!("{n},{}\n", n.trim_end_matches(".csv"))),
+        )
+        .collect();
+    let mut files = vec![FileBytes {
+        name: "study.csv",
+        bytes: table.as_bytes(),
+    }];
+    files.extend(texts.iter().map(|(n, t)| FileBytes {
+        name: n,
+        bytes: t.as_bytes(),
+    }));
+    let recipe = small_recipe(3);
+    let e = from_files(&files, &recipe, StudyRequest::default())
+        .err()
+        .unwrap()
+        .to_string();
+    assert!(
+        e.contains("'odd': its label values (a, c) differ from the study's (a, b)")
+            && e.contains("'few'")
+            && e.contains("fewer than the 3 folds")
+            && !e.contains("--"),
+        "{e}"
+    );
+    let request = StudyRequest {
+        options: StudyOptions {
+            leave_out_flagged: true,
+            group_draws: 99,
+            ..StudyOptions::default()
+        },
+        ..StudyRequest::default()
+    };
+    let plan: StudyPlan = from_files(&files, &recipe, request).unwrap();
+    assert_eq!(plan.sessions.len(), 3);
+    let finished = plan.finish(
+        &plan
+            .tasks()
+            .into_iter()
+            .map(|t| plan.run(t))
+            .collect::<Vec<_>>(),
+    );
+    let v: serde_json::Value = serde_json::from_str(&finished.json).unwrap();
+    let left: Vec<&str> = v["left_out"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|l| l["session"].as_str().unwrap())
+        .collect();
+    assert_eq!(left, vec!["odd", "few"]);
+    assert!(finished.methods.unwrap().contains("left out"));
+    assert!(v["warnings"][0].as_str().unwrap().contains("left out"));
+}
+
+// ---- the command line and the page's bridge ----
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_popdecode"))
+}
+
+fn samples() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("samples/study")
+}
+
+fn temp_dir(name: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("popdecode-study-{name}-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    dir
+}
+
+/// The CLI's study JSON for a study table of the samples.
+fn cli_json(table: &str, extra: &[&str], threads: &str) -> String {
+    let dir = temp_dir(&format!("{table}-{threads}-{}", extra.join("")));
+    let json = dir.join("study.json");
+    let out = bin()
+        .arg("study")
+        .arg(samples().join(table))
+        .args(["--label", "odour", "--repeats", "3", "--shuffles", "20"])
+        .args(["--group-draws", "500", "--quiet", "--threads", threads])
+        .arg("--json")
+        .arg(&json)
+        .args(extra)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    std::fs::read_to_string(json).unwrap()
+}
+
+/// The page's JSON: the same files handed to the bridge's loader by name (as dropped), the recipe the CLI wrote,
+/// the tasks run in reverse order.
+fn page_json(table: &str, cli: &str, options: serde_json::Value) -> String {
+    let v: serde_json::Value = serde_json::from_str(cli).unwrap();
+    let recipe = Recipe::from_json("recipe", &v["recipe"].to_string()).unwrap();
+    let table_text = std::fs::read(samples().join(table)).unwrap();
+    let rows = input::study::read(table, &table_text).unwrap();
+    let contents: Vec<(String, Vec<u8>)> = rows
+        .sessions
+        .iter()
+        .map(|r| {
+            (
+                r.file.clone(),
+                std::fs::read(samples().join(&r.file)).unwrap(),
+            )
+        })
+        .collect();
+    let mut files = vec![FileBytes {
+        name: table,
+        bytes: &table_text,
+    }];
+    files.extend(
+        contents
+            .iter()
+            .map(|(n, b)| FileBytes { name: n, bytes: b }),
+    );
+    let request: StudyRequest = serde_json::from_value(options).unwrap();
+    let plan = from_files(&files, &recipe, request).unwrap();
+    let mut tasks = plan.tasks();
+    tasks.reverse();
+    let outcomes: Vec<StudyOutcome> = tasks
+        .into_iter()
+        .map(|t| {
+            // Through JSON, as a worker hands an outcome to the page.
+            let text = serde_json::to_string(&plan.run(t)).unwrap();
+            serde_json::from_str(&text).unwrap()
+        })
+        .collect();
+    plan.finish(&outcomes).json + "\n"
+}
+
+#[test]
+fn page_json_equals_the_cli_json_and_threads_change_nothing() {
+    let one = cli_json("study.csv", &[], "1");
+    let three = cli_json("study.csv", &[], "3");
+    assert_eq!(one, three);
+    let page = page_json("study.csv", &one, serde_json::json!({ "group_draws": 500 }));
+    assert_eq!(page, one);
+    let v: serde_json::Value = serde_json::from_str(&one).unwrap();
+    assert_eq!(v["schema"], "popdecode-study/1");
+    assert_eq!(v["sessions"].as_array().unwrap().len(), 10);
+    assert_eq!(v["study"]["subjects"], 4);
+    for key in ["mean", "p_value"] {
+        assert!(v["group"][key].is_number(), "group.{key}");
+    }
+    assert!(v["prevalence"]["global_p"].is_number());
+    assert!(v["sessions"][0]["accuracy"]["mean"].is_number());
+    assert!(v["sessions"][0]["p_value"].is_number());
+}
+
+#[test]
+fn pooled_page_json_over_time_equals_the_cli_json() {
+    let args = ["--binned", "--pool", "--classifier", "nearest-mean"];
+    let cli = cli_json("study_time.csv", &args, "2");
+    let page = page_json(
+        "study_time.csv",
+        &cli,
+        serde_json::json!({ "pool": true, "group_draws": 500 }),
+    );
+    assert_eq!(page, cli);
+    let v: serde_json::Value = serde_json::from_str(&cli).unwrap();
+    assert_eq!(v["pooled"]["schema"], "popdecode-timecourse/1");
+    assert_eq!(v["pooled"]["design"]["split"]["pseudo"]["folds"], 5);
+    assert!(v["group"].is_null());
+    let warnings = v["pooled"]["warnings"].to_string() + &v["warnings"].to_string();
+    assert!(warnings.contains("noise correlations") && warnings.contains("pooled"));
+}
+
+#[test]
+fn the_cli_names_flagged_sessions_and_its_flag() {
+    let dir = temp_dir("flagged");
+    for f in ["m1-d1.csv", "m2-d1.csv", "m4-d1.csv"] {
+        std::fs::copy(samples().join(f), dir.join(f)).unwrap();
+    }
+    let odd = std::fs::read_to_string(samples().join("m4-d2.csv"))
+        .unwrap()
+        .replace("hexanal", "vanillin");
+    std::fs::write(dir.join("odd.csv"), odd).unwrap();
+    std::fs::write(
+        dir.join("study.csv"),
+        "file,session\nm1-d1.csv,a\nm2-d1.csv,b\nm4-d1.csv,c\nodd.csv,d\n",
+    )
+    .unwrap();
+    let run = |extra: &[&str]| {
+        bin()
+            .arg("study")
+            .arg(dir.join("study.csv"))
+            .args([
+                "--label",
+                "odour",
+                "--repeats",
+                "2",
+                "--shuffles",
+                "5",
+                "--quiet",
+            ])
+            .args(extra)
+            .output()
+            .unwrap()
+    };
+    let out = run(&[]);
+    assert_eq!(out.status.code(), Some(2));
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        stderr.contains("'d': its label values") && stderr.contains("--leave-out-flagged"),
+        "{stderr}"
+    );
+    assert_eq!(stderr.lines().count(), 1, "{stderr}");
+    let out = run(&["--leave-out-flagged"]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(String::from_utf8_lossy(&out.stdout).contains("left out with your agreement: 'd'"));
+}
+
+/// Outcomes of a study carry their session, so a face can route them; a time study's outcomes are time outcomes.
+#[test]
+fn study_tasks_are_session_by_repeat_and_shuffle() {
+    let files = study(&StudyScenario::mice());
+    let mut all = vec![FileBytes {
+        name: "study.csv",
+        bytes: files.table.as_bytes(),
+    }];
+    all.extend(files.files.iter().map(|(n, t)| FileBytes {
+        name: n,
+        bytes: t.as_bytes(),
+    }));
+    let mut recipe = Recipe::new("odour");
+    recipe.repeats = 3;
+    recipe.shuffles = 4;
+    let plan = from_files(&all, &recipe, StudyRequest::default()).unwrap();
+    let tasks = plan.tasks();
+    assert_eq!(tasks.len(), 10 * (3 + 4));
+    assert_eq!(tasks[7].session, Some(1));
+    let o = plan.run(tasks[7]);
+    assert_eq!(o.session, Some(1));
+    assert!(matches!(o.outcome, AnyOutcome::Table(_)));
+    assert_eq!(
+        plan.fits_in(tasks[3]),
+        5 * 3,
+        "a shuffle runs its repeats' folds"
+    );
+}
+
+/// Spike-event sessions, named with their trial tables in a `trials` column, are counted into the recipe's windows
+/// one session at a time; each session reports both its files.
+#[test]
+fn spike_event_sessions_come_with_their_trial_tables() {
+    let dir = temp_dir("events");
+    let mut table = String::from("file,trials,session\n");
+    for i in 0..3u64 {
+        let files = popdecode::simulate::spike_events(&TimeScenario {
+            trials_per_class: 12,
+            units: 8,
+            seed: 40 + i,
+            ..TimeScenario::odours()
+        });
+        std::fs::write(dir.join(format!("e{i}.csv")), files.events).unwrap();
+        std::fs::write(dir.join(format!("t{i}.csv")), files.trials).unwrap();
+        table.push_str(&format!("e{i}.csv,t{i}.csv,s{i}\n"));
+    }
+    std::fs::write(dir.join("study.csv"), table).unwrap();
+    let json = dir.join("out.json");
+    let run = |extra: &[&str]| {
+        bin()
+            .arg("study")
+            .arg(dir.join("study.csv"))
+            .args([
+                "--label",
+                "odour",
+                "--repeats",
+                "2",
+                "--shuffles",
+                "5",
+                "--quiet",
+            ])
+            .args(["--classifier", "nearest-mean", "--group-draws", "100"])
+            .args(extra)
+            .output()
+            .unwrap()
+    };
+    let out = run(&[]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("--start and --end"));
+    let out = run(&[
+        "--start", "-0.5", "--end", "1", "--width", "0.25", "--step", "0.25", "--json",
+    ]
+    .into_iter()
+    .chain([json.to_str().unwrap()])
+    .collect::<Vec<_>>());
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(json).unwrap()).unwrap();
+    assert_eq!(v["study"]["kind"], "events");
+    assert_eq!(v["time"]["windows"].as_array().unwrap().len(), 6);
+    let files = v["sessions"][1]["files"].as_array().unwrap();
+    assert_eq!(files[0]["file"], "e1.csv");
+    assert_eq!(files[1]["file"], "t1.csv");
+}
