@@ -245,6 +245,49 @@ fn neuron_analyses_in_parts_equal_one_run() {
     combined_equals_single("neurons", &analysis, &[1, 3, 7]);
 }
 
+/// A study: every session's files are recorded in the part file, and the group statistics are made from all of
+/// the sessions' outcomes once they are combined.
+#[test]
+fn study_in_parts_equals_one_run() {
+    let table = sample("study/study.csv");
+    let analysis = [
+        "study",
+        &table,
+        "--label",
+        "odour",
+        "--classifier",
+        "nearest-mean",
+        "--repeats",
+        "2",
+        "--shuffles",
+        "4",
+        "--group-draws",
+        "200",
+    ];
+    combined_equals_single("study", &analysis, &[1, 3, 7]);
+}
+
+/// A study pooled over time: sessions' neurons as one pseudo-population at every window.
+#[test]
+fn pooled_study_over_time_in_parts_equals_one_run() {
+    let table = sample("study/study_time.csv");
+    let analysis = [
+        "study",
+        &table,
+        "--binned",
+        "--pool",
+        "--label",
+        "odour",
+        "--classifier",
+        "nearest-mean",
+        "--repeats",
+        "2",
+        "--shuffles",
+        "3",
+    ];
+    combined_equals_single("study-pooled", &analysis, &[1, 3]);
+}
+
 /// A small decode split into 3 parts in `dir`, on a copy of the sample there (so a test may change it).
 fn three_parts(dir: &Path, extra: &[&str]) -> Vec<PathBuf> {
     let csv = dir.join("data.csv");
