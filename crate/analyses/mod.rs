@@ -13,7 +13,7 @@ pub mod trial_table;
 
 use crate::data::trials::Trials;
 use crate::decoders;
-use crate::error::Result;
+use crate::error::{Error, Result};
 use crate::recipe::Recipe;
 use crate::resample::{Scheme, Split};
 use serde::de::DeserializeOwned;
@@ -57,6 +57,14 @@ pub struct Finished {
 /// The recipe's resampling scheme resolved against the trials, with the decoder's own cautions (a kernel too large
 /// for a browser tab) ahead of the scheme's.
 pub fn resolve_scheme(trials: &Trials, recipe: &Recipe) -> Result<Scheme> {
+    decoders::require_classes(recipe.classifier)?;
+    if let Some(a) = &recipe.across {
+        return Err(Error::Recipe(format!(
+            "this recipe trains and tests across levels of '{}': it is an analysis of generalization across \
+             conditions",
+            a.column
+        )));
+    }
     let mut scheme = Scheme::resolve(trials, recipe)?;
     if !matches!(scheme.split, Split::Pseudo { .. }) {
         if let Some(w) = decoders::memory_warning(recipe.classifier, scheme.trials_per_repeat) {

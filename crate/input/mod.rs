@@ -6,10 +6,13 @@
 //! | binned table (CSV, one row per trial × bin) | [`binned`] | `TimeDataset` |
 //! | spike events (CSV) + trial table | [`events`] | `TimeDataset` |
 //! | NWB 2.x (HDF5), or its compact [`extract`] | [`nwb`], [`units`], [`nwb_counts`] | `TimeDataset` |
+//! | any of these with the label read as numbers | [`target`] | `TargetData` |
+//! | any of these with a second column's level per trial | [`across`] | `AcrossData` |
 //!
 //! Every reader takes a file's name and bytes (the core never touches the filesystem, so the page and the CLI share
 //! every line of parsing), and every error names the file, the line and the column.
 
+pub mod across;
 pub mod binned;
 pub mod events;
 pub mod extract;
@@ -17,6 +20,8 @@ pub mod nwb;
 pub mod nwb_counts;
 pub mod spike_counts;
 pub mod table;
+pub mod target;
+pub mod trial_column;
 pub mod trial_labels;
 pub mod trial_table;
 pub mod units;

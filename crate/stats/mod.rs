@@ -1,7 +1,10 @@
-//! Summaries across repeats, permutation p-values and the binomial chance threshold.
+//! Summaries across repeats, permutation p-values and the binomial chance threshold; scores of continuous and
+//! circular decoders ([`regression`], [`circular`]).
 
 pub mod binomial;
+pub mod circular;
 pub mod clusters;
+pub mod regression;
 
 use serde::{Deserialize, Serialize};
 
