@@ -1,13 +1,17 @@
-//! Analyses, one folder each: the trial table ([`trial_table`]), the time course ([`time_course`]) and what each
-//! neuron contributes ([`neurons`]). Each folder holds its plan (the tasks), its report schema, its text, its
-//! methods paragraph and its figures.
+//! Analyses, one folder each: the trial table ([`trial_table`]), the time course ([`time_course`]), what each
+//! neuron contributes ([`neurons`]), generalization across conditions ([`across`]) and decoding a continuous or
+//! circular variable ([`continuous`]); [`over_time`] holds what the analyses over time share. Each folder holds its
+//! plan (the tasks), its report schema, its text, its methods paragraph and its figures.
 //!
 //! Every analysis offers its faces the same shape ([`Analysis`]): a checked plan lists independent tasks, any task
 //! runs anywhere and in any order from its own random stream, and `finish` turns the outcomes, in any order, into
 //! the result. A face only decides where tasks run (rayon threads, a pool of Web Workers), so the numbers never
 //! depend on it.
 
+pub mod across;
+pub mod continuous;
 pub mod neurons;
+pub mod over_time;
 pub mod time_course;
 pub mod trial_table;
 
