@@ -381,42 +381,69 @@ impl ContextScenario {
     }
 }
 
+/// The drawn population of a [`ContextScenario`] and its shuffled trial order.
+struct ContextPopulation {
+    baseline: Vec<f64>,
+    offset: Vec<Vec<f64>>,
+    weights: Vec<f64>,
+    /// (context, choice) of each trial, in trial order.
+    order: Vec<(usize, usize)>,
+}
+
+impl ContextScenario {
+    fn population(&self, rng: &mut impl rand_core::RngCore) -> ContextPopulation {
+        let (nc, u) = (self.contexts.len(), self.units);
+        let baseline = (0..u).map(|_| 8.0 + 16.0 * crate::rng::unit(rng)).collect();
+        let offset = (0..nc)
+            .map(|_| (0..u).map(|_| self.context_offset * normal(rng)).collect())
+            .collect();
+        let weights = (0..u).map(|_| self.choice_gain * normal(rng)).collect();
+        let mut order: Vec<(usize, usize)> = (0..nc)
+            .flat_map(|c| {
+                (0..self.choices.len())
+                    .flat_map(move |k| std::iter::repeat_n((c, k), self.trials_per_cell))
+            })
+            .collect();
+        shuffle(rng, &mut order);
+        ContextPopulation {
+            baseline,
+            offset,
+            weights,
+            order,
+        }
+    }
+
+    /// A unit's rate in context `c` for choice `k`; `informative` false leaves the choice out.
+    fn rate(
+        &self,
+        pop: &ContextPopulation,
+        c: usize,
+        k: usize,
+        unit: usize,
+        informative: bool,
+    ) -> f64 {
+        // Orthogonal: context c's choice is carried by units c, c + n, c + 2n, … only (disjoint sets).
+        let carries = self.shared || unit % self.contexts.len() == c;
+        let side = if informative && carries {
+            k as f64 - 0.5
+        } else {
+            0.0
+        };
+        (pop.baseline[unit] + pop.offset[c][unit] + side * pop.weights[unit]).max(0.5)
+    }
+}
+
 /// The trial table: `trial_id`, `choice`, `context`, `session`, `unit_01`…
 pub fn context_csv(s: &ContextScenario) -> String {
     let mut rng = task_rng(s.seed, Stream::Simulation, 3, 0);
-    let (nc, u) = (s.contexts.len(), s.units);
-    let baseline: Vec<f64> = (0..u)
-        .map(|_| 8.0 + 16.0 * crate::rng::unit(&mut rng))
-        .collect();
-    let offset: Vec<Vec<f64>> = (0..nc)
-        .map(|_| {
-            (0..u)
-                .map(|_| s.context_offset * normal(&mut rng))
-                .collect()
-        })
-        .collect();
-    let shared: Vec<f64> = (0..u).map(|_| s.choice_gain * normal(&mut rng)).collect();
-    // Orthogonal: context c's choice is carried by units c, c + nc, c + 2nc, … only (disjoint sets).
-    let weight = |c: usize, unit: usize| {
-        if s.shared || unit % nc == c {
-            shared[unit]
-        } else {
-            0.0
-        }
-    };
-    let mut order: Vec<(usize, usize)> = (0..nc)
-        .flat_map(|c| {
-            (0..s.choices.len()).flat_map(move |k| std::iter::repeat_n((c, k), s.trials_per_cell))
-        })
-        .collect();
-    shuffle(&mut rng, &mut order);
+    let pop = s.population(&mut rng);
     let mut out = String::from("trial_id,choice,context,session");
-    for unit in 0..u {
+    for unit in 0..s.units {
         write!(out, ",unit_{:02}", unit + 1).unwrap();
     }
     out.push('\n');
-    let total = order.len();
-    for (t, &(c, k)) in order.iter().enumerate() {
+    let total = pop.order.len();
+    for (t, &(c, k)) in pop.order.iter().enumerate() {
         let session = t * s.sessions.max(1) / total + 1;
         write!(
             out,
@@ -426,13 +453,53 @@ pub fn context_csv(s: &ContextScenario) -> String {
             s.contexts[c]
         )
         .unwrap();
-        let side = k as f64 - 0.5;
-        for unit in 0..u {
-            let rate = (baseline[unit] + offset[c][unit] + side * weight(c, unit)).max(0.5);
-            let spikes = poisson(&mut rng, rate * WINDOW_S);
+        for unit in 0..s.units {
+            let spikes = poisson(&mut rng, s.rate(&pop, c, k, unit, true) * WINDOW_S);
             write!(out, ",{}", spikes as f64 / WINDOW_S).unwrap();
         }
         out.push('\n');
+    }
+    out
+}
+
+/// The same population over time, as a binned table: Poisson counts in bins of `bin` s from `start` to `end`
+/// (in Hz); the choice is carried only in bins whose centre lies in [`info.0`, `info.1`), the context offsets
+/// throughout. Columns `trial`, `time`, `choice`, `context`, `session`, then `u01`…
+pub fn context_binned(
+    s: &ContextScenario,
+    start: f64,
+    end: f64,
+    bin: f64,
+    info: (f64, f64),
+) -> String {
+    let mut rng = task_rng(s.seed, Stream::Simulation, 5, 0);
+    let pop = s.population(&mut rng);
+    let mut out = String::from("trial,time,choice,context,session");
+    for unit in 0..s.units {
+        write!(out, ",u{:02}", unit + 1).unwrap();
+    }
+    out.push('\n');
+    let bins = ((end - start) / bin).round() as usize;
+    let total = pop.order.len();
+    for (t, &(c, k)) in pop.order.iter().enumerate() {
+        let session = t * s.sessions.max(1) / total + 1;
+        for b in 0..bins {
+            let time = start + (b as f64 + 0.5) * bin;
+            let informative = time >= info.0 && time < info.1;
+            write!(
+                out,
+                "tr{:04},{time:.4},{},{},s{session}",
+                t + 1,
+                s.choices[k],
+                s.contexts[c]
+            )
+            .unwrap();
+            for unit in 0..s.units {
+                let spikes = poisson(&mut rng, s.rate(&pop, c, k, unit, informative) * bin);
+                write!(out, ",{}", spikes as f64 / bin).unwrap();
+            }
+            out.push('\n');
+        }
     }
     out
 }
