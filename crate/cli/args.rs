@@ -30,7 +30,8 @@ pub struct ColumnArgs {
     /// Leave out trials with missing cells instead of stopping.
     #[arg(long)]
     pub drop_missing: bool,
-    /// Decoder: linear-svm, shrinkage-lda, logistic, gaussian-nb, poisson-nb or nearest-mean [default: linear-svm].
+    /// Decoder: linear-svm, shrinkage-lda, logistic, gaussian-nb, poisson-nb, nearest-mean or rbf-svm; for a
+    /// numeric label ridge, or circular-ridge for angles (with --angle-unit) [default: linear-svm].
     #[arg(long, value_parser = parse_classifier)]
     pub classifier: Option<Classifier>,
     /// Regularisation constant C of the linear SVM and logistic regression [default: 1].
@@ -91,7 +92,11 @@ pub struct RunArgs {
 
 fn parse_classifier(s: &str) -> Result<Classifier, String> {
     Classifier::from_name(s).ok_or_else(|| {
-        let names: Vec<&str> = Classifier::ALL.iter().map(|c| c.name()).collect();
+        let names: Vec<&str> = Classifier::ALL
+            .iter()
+            .chain(&Classifier::REGRESSORS)
+            .map(|c| c.name())
+            .collect();
         format!(
             "unknown classifier '{s}'; choose one of: {}",
             names.join(", ")

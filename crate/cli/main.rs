@@ -9,6 +9,7 @@ mod inspect;
 mod neurons;
 mod predict;
 mod run;
+mod targets;
 mod timecourse;
 
 use clap::{Parser, Subcommand};

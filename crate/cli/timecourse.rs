@@ -3,6 +3,7 @@
 use crate::args::{base_recipe, show, ColumnArgs, RunArgs};
 use crate::files::{display_name, open_source, read};
 use crate::run::analyse;
+use crate::targets::{decode_time, TargetArgs};
 use clap::Args;
 use popdecode::analyses::time_course::TimePlan;
 use popdecode::input::{self, extract, FileBytes};
@@ -60,6 +61,8 @@ pub struct TimecourseArgs {
     pub units: Vec<String>,
     #[command(flatten)]
     pub columns: ColumnArgs,
+    #[command(flatten)]
+    pub targets: TargetArgs,
     #[command(flatten)]
     pub run: RunArgs,
 }
@@ -217,6 +220,7 @@ pub fn run(args: TimecourseArgs) -> Result<(), String> {
         );
     }
     recipe.time = Some(time_settings(&args, recipe.time.take())?);
+    args.targets.apply(&mut recipe)?;
     recipe.validate().map_err(show)?;
     let paths: Vec<&PathBuf> = match (&args.events, &args.trials, &args.csv, &args.nwb) {
         (_, _, _, Some(n)) => vec![n],
@@ -240,6 +244,9 @@ pub fn run(args: TimecourseArgs) -> Result<(), String> {
         .iter()
         .map(|(name, bytes)| FileBytes { name, bytes })
         .collect();
+    if let Some(done) = decode_time(&recipe, &files, &args.run) {
+        return done;
+    }
     let settings = recipe.time.as_ref().expect("set above");
     let data = input::time_course(&files, &recipe.columns, &settings.input).map_err(show)?;
     let plan = TimePlan::new(data, &recipe).map_err(show)?;

@@ -48,6 +48,20 @@ impl Axis {
         Axis { lo, hi, format }
     }
 
+    /// [`Axis::fit`] with tick labels as precise as the tick step needs (whole numbers for steps of 1 or more).
+    pub fn auto(values: impl IntoIterator<Item = f64>, bounds: Option<(f64, f64)>) -> Axis {
+        let mut a = Axis::fit(values, plain, bounds);
+        let step = tick_step(a.hi - a.lo, 6.0);
+        a.format = if step >= 1.0 {
+            plain
+        } else if step >= 0.01 {
+            decimals
+        } else {
+            thousandths
+        };
+        a
+    }
+
     fn ticks(&self) -> Vec<f64> {
         let step = tick_step(self.hi - self.lo, 6.0);
         let mut out = Vec::new();
@@ -65,6 +79,16 @@ pub fn decimals(v: f64) -> String {
     let t = format!("{v:.2}");
     if t == "-0.00" {
         "0.00".into()
+    } else {
+        t
+    }
+}
+
+/// Three decimals ("0.005").
+pub fn thousandths(v: f64) -> String {
+    let t = format!("{v:.3}");
+    if t == "-0.000" {
+        "0.000".into()
     } else {
         t
     }
@@ -168,23 +192,31 @@ pub fn histogram(
     svg
 }
 
-/// One point per (actual, predicted) pair, with the identity line (a perfect decoder's points lie on it).
+/// One point per (actual, predicted) pair, with the identity line (a perfect decoder's points lie on it), and a
+/// note under the title saying what the points are.
 pub fn scatter(
     title: &str,
-    x_label: &str,
-    y_label: &str,
+    note: &str,
+    labels: (&str, &str),
     actual: &[f64],
     predicted: &[f64],
     axis: Axis,
 ) -> String {
+    let (x_label, y_label) = labels;
     let size = 300.0;
-    let (x0, y0) = (LEFT + 10.0, TOP + 6.0);
-    let (w, h) = ((x0 + size + 40.0).max(420.0), y0 + size + 56.0);
+    let (x0, y0) = (LEFT + 10.0, TOP + 12.0);
+    let (w, h) = (W, y0 + size + 56.0);
     let (lo, hi) = (axis.lo, axis.hi);
     let px = |v: f64| x0 + (v - lo) / (hi - lo) * size;
     let py = |v: f64| y0 + size - (v - lo) / (hi - lo) * size;
     let mut svg = String::new();
     open(&mut svg, title, w, h);
+    write!(
+        svg,
+        r#"<text x="{LEFT}" y="38" fill="{INK}">{}</text>"#,
+        esc(note)
+    )
+    .unwrap();
     write!(
         svg,
         r#"<rect x="{x0}" y="{y0}" width="{size}" height="{size}" fill="none" stroke="{INK}"/><path d="M{x0} {b} L{r} {y0}" stroke="{INK}" stroke-opacity="0.6" stroke-dasharray="4 3"/>"#,
@@ -265,7 +297,31 @@ pub fn curve(c: &Curve) -> String {
     let (pw, ph) = (W - LEFT - RIGHT, H - TOP - BOTTOM - 18.0);
     let x = |t: f64| LEFT + (t - t0) / (t1 - t0) * pw;
     let y = |v: f64| TOP + ph - (v.clamp(lo, hi) - lo) / (hi - lo) * ph;
-    let height = H + 28.0;
+    // The legend in words under the axis label, wrapped onto more rows when it does not fit in one.
+    let reference = c
+        .reference
+        .map(|(_, label)| (INK, "2 3", label.to_string()));
+    let mut items: Vec<(&str, &str, String, bool)> = c
+        .series
+        .iter()
+        .map(|s| (s.colour, s.dash, s.label.to_string(), false))
+        .chain(reference.map(|(a, b, l)| (a, b, l, false)))
+        .collect();
+    if !c.spans.is_empty() {
+        items.push((INK, "", c.span_label.clone(), true));
+    }
+    let mut placed = Vec::new();
+    let (mut lx, mut row) = (LEFT, 0usize);
+    for (colour, dash, label, bar) in items {
+        let advance = 48.0 + 7.0 * label.chars().count() as f64;
+        if lx > LEFT && lx + advance > W - RIGHT {
+            lx = LEFT;
+            row += 1;
+        }
+        placed.push((lx, row, colour, dash, label, bar));
+        lx += advance;
+    }
+    let height = H + 28.0 + 18.0 * row as f64;
     let mut svg = String::new();
     open(&mut svg, &c.title, W, height);
     let path = |values: &[f64]| {
@@ -378,33 +434,28 @@ pub fn curve(c: &Curve) -> String {
         yl = esc(c.y_label)
     )
     .unwrap();
-    let ly = height - 12.0;
-    let mut lx = LEFT;
-    let reference = c.reference.map(|(_, label)| (INK, "2 3", label));
-    for (colour, dash, label) in c
-        .series
-        .iter()
-        .map(|s| (s.colour, s.dash, s.label))
-        .chain(reference)
-    {
+    for (lx, row, colour, dash, label, bar) in placed {
+        let ly = H + 16.0 + 18.0 * row as f64;
+        if bar {
+            write!(
+                svg,
+                r#"<rect x="{lx}" y="{}" width="22" height="6" fill="{colour}"/>"#,
+                ly - 3.0
+            )
+            .unwrap();
+        } else {
+            write!(
+                svg,
+                r#"<path d="M{lx} {ly} h22" stroke="{colour}" stroke-width="2" stroke-dasharray="{dash}"/>"#
+            )
+            .unwrap();
+        }
         write!(
             svg,
-            r#"<path d="M{lx} {ly} h22" stroke="{colour}" stroke-width="2" stroke-dasharray="{dash}"/><text x="{tx}" y="{ty}" fill="{INK}">{l}</text>"#,
-            tx = lx + 28.0,
-            ty = ly + 4.0,
-            l = esc(label)
-        )
-        .unwrap();
-        lx += 36.0 + 6.5 * label.chars().count() as f64;
-    }
-    if !c.spans.is_empty() {
-        write!(
-            svg,
-            r#"<rect x="{lx}" y="{}" width="22" height="6" fill="{INK}"/><text x="{}" y="{}" fill="{INK}">{}</text>"#,
-            ly - 3.0,
+            r#"<text x="{}" y="{}" fill="{INK}">{}</text>"#,
             lx + 28.0,
             ly + 4.0,
-            esc(&c.span_label)
+            esc(&label)
         )
         .unwrap();
     }

@@ -13,7 +13,7 @@ use crate::report::text::{p_text, pct, seconds as s};
 fn files(i: &AcrossInput) -> String {
     i.files
         .iter()
-        .map(|f| format!("{} (SHA-256 {})", f.file, f.sha256))
+        .map(|f| format!("file {}, SHA-256 {}", f.file, f.sha256))
         .collect::<Vec<_>>()
         .join("; ")
 }

@@ -165,6 +165,17 @@ impl AcrossPlan {
             )?
             .filter(|_| count_scale.is_none()),
         );
+        let all_kept = assignments
+            .iter()
+            .all(|a| a.train_size == a.train_trials.len() && a.test_size == a.test_trials.len());
+        if recipe.balance && all_kept {
+            warnings.push(
+                "every level × class cell holds the same number of trials, so balancing leaves every trial in and \
+                 the generalization score is the same in every repeat (its SD over repeats is 0); repeats can vary only \
+                 the folds of the within-condition score"
+                    .to_string(),
+            );
+        }
         if !recipe.balance {
             warnings.push(
                 "balancing is off: the training and testing sets keep their label and level proportions, and \

@@ -4,7 +4,7 @@
 use super::report::{AcrossReport, AcrossTimeReport};
 use super::text::arrow;
 use crate::report::figures::{curve, matrix, Axis, Curve, Series};
-use crate::report::svg::{esc, histogram, open, Marker, BAR, INK, LEFT, NULL_BAR};
+use crate::report::svg::{esc, histogram, open, Marker, BAR, INK, LEFT, NULL_BAR, W};
 use crate::report::text::{clip, p_text, pct, seconds};
 use crate::resample::Headline;
 use std::fmt::Write;
@@ -44,7 +44,7 @@ pub fn assignments(r: &AcrossReport) -> String {
     let row_h = 26.0;
     let plot_w = 300.0;
     let (x0, y0) = (label_w, 56.0);
-    let (w, h) = (x0 + plot_w + 30.0, y0 + row_h * rows.len() as f64 + 78.0);
+    let (w, h) = (W, y0 + row_h * rows.len() as f64 + 104.0);
     let x = |v: f64| x0 + (v.clamp(axis.lo, axis.hi) - axis.lo) / (axis.hi - axis.lo) * plot_w;
     let mut svg = String::new();
     open(
@@ -53,7 +53,7 @@ pub fn assignments(r: &AcrossReport) -> String {
             "'{}' trained at some levels of '{}', tested at others",
             r.input.label_column, r.input.across_column
         ),
-        w.max(LEFT + 480.0),
+        w,
         h,
     );
     let bottom = y0 + row_h * rows.len() as f64;
@@ -116,22 +116,28 @@ pub fn assignments(r: &AcrossReport) -> String {
         .unwrap();
         k += 1.0;
     }
-    let ly = bottom + 44.0;
     write!(
         svg,
-        r#"<text x="{:.1}" y="{:.1}" text-anchor="middle" fill="{INK}">{}</text><circle cx="{LEFT}" cy="{ly}" r="5" fill="{BAR}"/><text x="{}" y="{}" fill="{INK}">generalization, mean ± SD over repeats</text><circle cx="{}" cy="{ly}" r="5" fill="white" stroke="{WITHIN}" stroke-width="2"/><text x="{}" y="{}" fill="{INK}">within the testing levels</text><path d="M{} {} v12" stroke="{NULL_BAR}" stroke-width="3"/><text x="{}" y="{}" fill="{INK}">null 95th pct</text>"#,
+        r#"<text x="{:.1}" y="{:.1}" text-anchor="middle" fill="{INK}">{}</text>"#,
         x0 + plot_w / 2.0,
         bottom + 32.0,
-        r.design.headline.name(),
-        LEFT + 10.0,
-        ly + 4.0,
-        LEFT + 262.0,
-        LEFT + 272.0,
-        ly + 4.0,
-        LEFT + 430.0,
-        ly - 6.0,
-        LEFT + 438.0,
-        ly + 4.0
+        r.design.headline.name()
+    )
+    .unwrap();
+    // The legend in words, two rows.
+    let (ly, ly2) = (bottom + 56.0, bottom + 76.0);
+    write!(
+        svg,
+        r#"<circle cx="{l}" cy="{ly}" r="5" fill="{BAR}"/><text x="{t}" y="{a}" fill="{INK}">generalization, mean ± SD over repeats</text><circle cx="{m}" cy="{ly}" r="5" fill="white" stroke="{WITHIN}" stroke-width="2"/><text x="{n}" y="{a}" fill="{INK}">within the testing levels</text><path d="M{l} {b} v12" stroke="{NULL_BAR}" stroke-width="3"/><text x="{t}" y="{c}" fill="{INK}">null 95th percentile (labels permuted within levels)</text><path d="M{m2} {ly2} h22" stroke="{INK}" stroke-dasharray="2 3"/><text x="{n2}" y="{c}" fill="{INK}">chance</text>"#,
+        l = LEFT,
+        t = LEFT + 12.0,
+        a = ly + 4.0,
+        m = LEFT + 290.0,
+        n = LEFT + 302.0,
+        b = ly2 - 6.0,
+        c = ly2 + 4.0,
+        m2 = LEFT + 360.0,
+        n2 = LEFT + 388.0
     )
     .unwrap();
     svg.push_str("</svg>");

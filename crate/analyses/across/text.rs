@@ -22,7 +22,9 @@ fn what(
     levels: usize,
     first: (&[String], &[String]),
 ) -> String {
-    if dichotomies {
+    if dichotomies && levels == 2 {
+        "in both directions between its 2 levels".to_string()
+    } else if dichotomies {
         format!(
             "over all {assignments} balanced dichotomies of its {levels} levels (cross-condition generalization \
              performance)"

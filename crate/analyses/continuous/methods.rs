@@ -35,7 +35,7 @@ fn variable(t: &TargetInfo) -> String {
 fn files(i: &InputInfo) -> String {
     i.files
         .iter()
-        .map(|f| format!("{} (SHA-256 {})", f.file, f.sha256))
+        .map(|f| format!("file {}, SHA-256 {}", f.file, f.sha256))
         .collect::<Vec<_>>()
         .join("; ")
 }
@@ -121,19 +121,29 @@ pub fn paragraph(r: &ContinuousReport) -> String {
     }
     out.extend(protocol(rc, &r.design, &r.input, t, false));
     let h = r.headline();
+    let others = if t.unit.is_some() {
+        format!(
+            ", the R² of the (cosine, sine) pair {} ± {} and the circular correlation {} ± {}",
+            num(r.summary.r2.mean),
+            num(r.summary.r2.sd),
+            num(r.summary.correlation.mean),
+            num(r.summary.correlation.sd)
+        )
+    } else {
+        format!(
+            ", and Pearson's correlation {} ± {}",
+            num(r.summary.correlation.mean),
+            num(r.summary.correlation.sd)
+        )
+    };
     out.push(format!(
         "Across repeats the {} was {} ± {} (mean ± SD over repeats, which is not a confidence interval; 2.5th–97.5th \
-         percentiles {}–{}), R² {} ± {} and the {} {} ± {}.",
+         percentiles {}–{}){others}.",
         if t.unit.is_some() { "mean absolute angular error" } else { "out-of-sample R²" },
         headline_value(t, h.mean),
         headline_value(t, h.sd),
         headline_value(t, h.p2_5),
         headline_value(t, h.p97_5),
-        num(r.summary.r2.mean),
-        num(r.summary.r2.sd),
-        if t.unit.is_some() { "circular correlation" } else { "correlation" },
-        num(r.summary.correlation.mean),
-        num(r.summary.correlation.sd)
     ));
     if let (Some(p), Some(mean)) = (r.shuffle.p_value, r.shuffle.null_mean) {
         out.push(format!(

@@ -59,7 +59,7 @@ impl Analysis for ContinuousPlan {
         if self.data.features.is_time() {
             let r = ContinuousTimeReport::build(self, outcomes);
             let at = r.predictions.time.map_or(String::new(), |t| {
-                format!(", best window at {} s", crate::report::text::seconds(t))
+                format!(", best window ({} s)", crate::report::text::seconds(t))
             });
             let files = [
                 ("curve.svg", Some(plots::time_curve(&r))),

@@ -11,8 +11,7 @@ use crate::report::text::{p_text, seconds};
 fn value_format(t: &TargetInfo) -> fn(f64) -> String {
     match t.unit {
         Some(AngleUnit::Radians) => decimals,
-        Some(AngleUnit::Degrees) => plain,
-        None => decimals,
+        Some(AngleUnit::Degrees) | None => plain,
     }
 }
 
@@ -21,31 +20,31 @@ pub fn predicted_vs_actual(t: &TargetInfo, p: &PredictionTable, when: &str) -> O
     if p.predicted.is_empty() {
         return None;
     }
-    let bounds = t.unit.map(|u| (0.0f64.min(t.min), u.turn().max(t.max)));
-    let axis = Axis::fit(
-        p.actual.iter().chain(&p.predicted).copied(),
-        value_format(t),
-        bounds,
-    );
+    let values = p.actual.iter().chain(&p.predicted).copied();
+    let axis = match t.unit {
+        Some(u) => Axis::fit(
+            values,
+            value_format(t),
+            Some((0.0f64.min(t.min), u.turn().max(t.max))),
+        ),
+        None => Axis::auto(values, None),
+    };
     let unit = t.unit.map_or(String::new(), |u| format!(" ({})", u.name()));
     Some(scatter(
-        &format!(
-            "Predicted against actual '{}' (repeat 1, every test trial{when})",
-            t.column
-        ),
-        &format!("actual{unit}"),
-        &format!("predicted{unit}"),
+        &format!("Predicted against actual '{}'", t.column),
+        &format!("one point per trial, each predicted by its test fold, repeat 1{when}"),
+        (&format!("actual{unit}"), &format!("predicted{unit}")),
         &p.actual,
         &p.predicted,
         axis,
     ))
 }
 
-fn headline_format(t: &TargetInfo) -> fn(f64) -> String {
-    if t.unit.is_some() {
-        value_format(t)
-    } else {
-        decimals
+/// An axis for the headline score: angles in their unit, R² as precise as its ticks need.
+fn headline_axis(t: &TargetInfo, values: impl IntoIterator<Item = f64>) -> Axis {
+    match t.unit {
+        Some(_) => Axis::fit(values, value_format(t), None),
+        None => Axis::auto(values, None),
     }
 }
 
@@ -72,10 +71,9 @@ pub fn score_distribution(r: &ContinuousReport) -> String {
             colour: INK,
         });
     }
-    let axis = Axis::fit(
+    let axis = headline_axis(
+        t,
         values.iter().copied().chain(markers.iter().map(|m| m.at)),
-        headline_format(t),
-        None,
     );
     histogram(
         &format!(
@@ -118,14 +116,13 @@ pub fn null_distribution(r: &ContinuousReport) -> Option<String> {
             colour: INK,
         },
     ];
-    let axis = Axis::fit(
+    let axis = headline_axis(
+        t,
         r.shuffle
             .null
             .iter()
             .copied()
             .chain([r.shuffle.observed, cut]),
-        headline_format(t),
-        None,
     );
     Some(histogram(
         &format!(
@@ -177,7 +174,7 @@ pub fn time_curve(r: &ContinuousTimeReport) -> String {
         .flat_map(|(m, s)| [m + s, m - s])
         .chain(threshold.iter().copied())
         .chain(t.unit.is_none().then_some(0.0));
-    let axis = Axis::fit(extent, headline_format(t), None);
+    let axis = headline_axis(t, extent);
     let alpha = r.recipe.time.as_ref().map_or(0.05, |t| t.alpha);
     curve(&Curve {
         title: format!(
