@@ -3,10 +3,10 @@
 use crate::args::{base_recipe, show, RunArgs, TableArgs};
 use crate::files::{display_name, read};
 use crate::run::analyse;
-use crate::targets::{decode_table, TargetArgs};
+use crate::targets::{decode_other, TargetArgs};
 use clap::Args;
 use popdecode::analyses::trial_table::Plan;
-use popdecode::input;
+use popdecode::input::{self, FileBytes};
 
 #[derive(Args)]
 pub struct DecodeArgs {
@@ -26,7 +26,12 @@ pub fn run(args: DecodeArgs) -> Result<(), String> {
     }
     recipe.validate().map_err(show)?;
     let bytes = read(&args.table.csv)?;
-    if let Some(done) = decode_table(&recipe, &display_name(&args.table.csv), &bytes, &args.run) {
+    let name = display_name(&args.table.csv);
+    let file = [FileBytes {
+        name: &name,
+        bytes: &bytes,
+    }];
+    if let Some(done) = decode_other(&recipe, &file, &args.run) {
         return done;
     }
     let data = input::trial_table(&display_name(&args.table.csv), &bytes, &recipe.columns)

@@ -6,7 +6,7 @@ use crate::run::analyse;
 use clap::Args;
 use popdecode::analyses::across::AcrossPlan;
 use popdecode::analyses::continuous::ContinuousPlan;
-use popdecode::input::{self, FileBytes};
+use popdecode::input::FileBytes;
 use popdecode::recipe::{Across, AngleUnit, Assignment, Classifier, Recipe};
 
 /// Generalization across conditions, and continuous or circular labels.
@@ -78,46 +78,24 @@ impl TargetArgs {
     }
 }
 
-/// Run a trial table as a continuous or across-conditions analysis when the recipe is one; `None` otherwise.
-pub fn decode_table(
-    recipe: &Recipe,
-    name: &str,
-    bytes: &[u8],
-    run: &RunArgs,
-) -> Option<Result<(), String>> {
-    if recipe.classifier.is_regression() {
-        return Some((|| {
-            let data = input::target::trial_table(name, bytes, &recipe.columns).map_err(show)?;
-            analyse(&ContinuousPlan::new(data, recipe).map_err(show)?, run)
-        })());
-    }
-    let across = recipe.across.as_ref()?;
-    Some((|| {
-        let data = input::across::trial_table(name, bytes, &recipe.columns, &across.column)
-            .map_err(show)?;
-        analyse(&AcrossPlan::new(data, recipe).map_err(show)?, run)
-    })())
-}
-
-/// Run a recording as a continuous or across-conditions analysis when the recipe is one; `None` otherwise.
-pub fn decode_time(
+/// Run a trial table (one file) or a recording (its files, the recipe having time settings) as a continuous or
+/// across-conditions analysis when the recipe is one; `None` otherwise.
+pub fn decode_other(
     recipe: &Recipe,
     files: &[FileBytes],
     run: &RunArgs,
 ) -> Option<Result<(), String>> {
-    let settings = recipe.time.as_ref()?;
     if recipe.classifier.is_regression() {
-        return Some((|| {
-            let data = input::target::time_course(files, &recipe.columns, &settings.input)
-                .map_err(show)?;
-            analyse(&ContinuousPlan::new(data, recipe).map_err(show)?, run)
-        })());
+        return Some(
+            ContinuousPlan::from_files(files, recipe)
+                .map_err(show)
+                .and_then(|p| analyse(&p, run)),
+        );
     }
-    let across = recipe.across.as_ref()?;
-    Some((|| {
-        let data =
-            input::across::time_course(files, &recipe.columns, &settings.input, &across.column)
-                .map_err(show)?;
-        analyse(&AcrossPlan::new(data, recipe).map_err(show)?, run)
-    })())
+    recipe.across.as_ref()?;
+    Some(
+        AcrossPlan::from_files(files, recipe)
+            .map_err(show)
+            .and_then(|p| analyse(&p, run)),
+    )
 }

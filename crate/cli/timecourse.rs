@@ -3,7 +3,7 @@
 use crate::args::{base_recipe, show, ColumnArgs, RunArgs};
 use crate::files::{display_name, open_source, read};
 use crate::run::analyse;
-use crate::targets::{decode_time, TargetArgs};
+use crate::targets::{decode_other, TargetArgs};
 use clap::Args;
 use popdecode::analyses::time_course::TimePlan;
 use popdecode::input::{self, extract, FileBytes};
@@ -244,7 +244,7 @@ pub fn run(args: TimecourseArgs) -> Result<(), String> {
         .iter()
         .map(|(name, bytes)| FileBytes { name, bytes })
         .collect();
-    if let Some(done) = decode_time(&recipe, &files, &args.run) {
+    if let Some(done) = decode_other(&recipe, &files, &args.run) {
         return done;
     }
     let settings = recipe.time.as_ref().expect("set above");

@@ -17,6 +17,7 @@
 use crate::data::across::AcrossData;
 use crate::decoders::{self, check_counts, cross_validate, Decoder, FittedPipeline, FoldSet};
 use crate::error::{Error, Result};
+use crate::input::{self, FileBytes};
 use crate::recipe::{Assignment, Folds, Recipe, Setting, TimeInput};
 use crate::resample::score::accuracies;
 use crate::resample::{balance, grouped_folds, permute_labels, stratified_folds, Headline, Task};
@@ -109,6 +110,26 @@ pub struct AcrossPlan {
 }
 
 impl AcrossPlan {
+    /// Read the files a recipe describes — one trial table, or a recording when the recipe has time settings — and
+    /// check the recipe against them: the one door every face uses.
+    pub fn from_files(files: &[FileBytes], recipe: &Recipe) -> Result<AcrossPlan> {
+        let column = &recipe
+            .across
+            .as_ref()
+            .ok_or_else(|| {
+                Error::Recipe("this recipe names no column to generalize across".into())
+            })?
+            .column;
+        let data = match (&recipe.time, files) {
+            (Some(t), _) => input::across::time_course(files, &recipe.columns, &t.input, column)?,
+            (None, [file]) => {
+                input::across::trial_table(file.name, file.bytes, &recipe.columns, column)?
+            }
+            (None, _) => return Err(Error::Recipe("a trial table is one file".into())),
+        };
+        AcrossPlan::new(data, recipe)
+    }
+
     pub fn new(data: AcrossData, recipe: &Recipe) -> Result<AcrossPlan> {
         recipe.validate()?;
         decoders::require_classes(recipe.classifier)?;

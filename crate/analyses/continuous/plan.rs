@@ -11,6 +11,7 @@
 use crate::data::target::TargetData;
 use crate::decoders::ridge::{self, ALPHA_GRID};
 use crate::error::{Error, Result};
+use crate::input::{self, FileBytes};
 use crate::recipe::{AngleUnit, Classifier, Folds, Recipe};
 use crate::resample::{grouped_folds, kfold, permute_labels, Task};
 use crate::rng::{task_rng, Stream};
@@ -79,6 +80,17 @@ pub struct ContinuousPlan {
 }
 
 impl ContinuousPlan {
+    /// Read the files a recipe describes — one trial table, or a recording when the recipe has time settings — and
+    /// check the recipe against them: the one door every face uses.
+    pub fn from_files(files: &[FileBytes], recipe: &Recipe) -> Result<ContinuousPlan> {
+        let data = match (&recipe.time, files) {
+            (Some(t), _) => input::target::time_course(files, &recipe.columns, &t.input)?,
+            (None, [file]) => input::target::trial_table(file.name, file.bytes, &recipe.columns)?,
+            (None, _) => return Err(Error::Recipe("a trial table is one file".into())),
+        };
+        ContinuousPlan::new(data, recipe)
+    }
+
     pub fn new(data: TargetData, recipe: &Recipe) -> Result<ContinuousPlan> {
         recipe.validate()?;
         let src = data.features.source.clone();
