@@ -632,12 +632,13 @@ mod tests {
     fn text_from_files_is_escaped() {
         let svg = scatter(
             "<b>",
-            "x&y",
-            "y",
+            "<i>",
+            ("x&y", "y"),
             &[1.0],
             &[1.0],
             Axis::fit([0.0, 1.0], decimals, None),
         );
-        assert!(svg.contains("&lt;b&gt;") && svg.contains("x&amp;y") && !svg.contains("<b>"));
+        assert!(svg.contains("&lt;b&gt;") && svg.contains("&lt;i&gt;") && svg.contains("x&amp;y"));
+        assert!(!svg.contains("<b>") && !svg.contains("<i>"));
     }
 }
