@@ -14,6 +14,8 @@ use std::fmt::Write;
 pub struct Axis {
     pub lo: f64,
     pub hi: f64,
+    /// Distance between ticks; `lo` and `hi` are multiples of it unless a bound cut them.
+    pub step: f64,
     pub format: fn(f64) -> String,
 }
 
@@ -35,8 +37,8 @@ impl Axis {
         if hi - lo < 1e-9 {
             (lo, hi) = (lo - 0.5 * lo.abs().max(1e-3), hi + 0.5 * hi.abs().max(1e-3));
         }
-        let step = tick_step(hi - lo, 6.0);
         let pad = (hi - lo) * 0.04;
+        let step = tick_step(hi - lo + 2.0 * pad, 6.0);
         let (mut lo, mut hi) = (
             ((lo - pad) / step).floor() * step,
             ((hi + pad) / step).ceil() * step,
@@ -45,16 +47,20 @@ impl Axis {
             lo = lo.max(a);
             hi = hi.min(b);
         }
-        Axis { lo, hi, format }
+        Axis {
+            lo,
+            hi,
+            step,
+            format,
+        }
     }
 
     /// [`Axis::fit`] with tick labels as precise as the tick step needs (whole numbers for steps of 1 or more).
     pub fn auto(values: impl IntoIterator<Item = f64>, bounds: Option<(f64, f64)>) -> Axis {
         let mut a = Axis::fit(values, plain, bounds);
-        let step = tick_step(a.hi - a.lo, 6.0);
-        a.format = if step >= 1.0 {
+        a.format = if a.step >= 1.0 {
             plain
-        } else if step >= 0.01 {
+        } else if a.step >= 0.01 {
             decimals
         } else {
             thousandths
@@ -63,7 +69,7 @@ impl Axis {
     }
 
     fn ticks(&self) -> Vec<f64> {
-        let step = tick_step(self.hi - self.lo, 6.0);
+        let step = self.step;
         let mut out = Vec::new();
         let mut k = (self.lo / step).ceil();
         while k * step <= self.hi + step * 1e-6 {
@@ -620,8 +626,14 @@ mod tests {
         let a = Axis::fit([0.13, 0.71], decimals, None);
         assert!(a.lo <= 0.13 && a.hi >= 0.71, "{} {}", a.lo, a.hi);
         let t = a.ticks();
+        // Span 0.58 plus 4 % padding each side is 0.63: the round step for about six ticks is 0.2 (0.63 / 6 > 0.1),
+        // and the range is snapped to it, so the ticks run from lo to hi.
         assert!(
-            t.windows(2).all(|w| ((w[1] - w[0]) - 0.1).abs() < 1e-9),
+            t.windows(2).all(|w| ((w[1] - w[0]) - 0.2).abs() < 1e-9),
+            "{t:?}"
+        );
+        assert!(
+            (t[0] - a.lo).abs() < 1e-9 && (t[t.len() - 1] - a.hi).abs() < 1e-9,
             "{t:?}"
         );
         let bounded = Axis::fit([-3.0, 170.0], plain, Some((0.0, 180.0)));

@@ -102,7 +102,7 @@ pub fn assignments(r: &AcrossReport) -> String {
         x0 + plot_w
     )
     .unwrap();
-    let step = crate::report::svg::tick_step(axis.hi - axis.lo, 6.0);
+    let step = axis.step;
     let mut k = (axis.lo / step).ceil();
     while k * step <= axis.hi + 1e-9 {
         let t = k * step;
