@@ -138,6 +138,53 @@ fn each_set_is_balanced_within_level_and_class() {
     assert!(d.train.iter().all(|i| !d.test.contains(i)));
 }
 
+/// Leakage check: the testing trials' labels never reach the decoder. With every cell the same size, balancing
+/// keeps every trial whatever the labels, so swapping the labels of the testing level leaves every generalization
+/// decision unchanged and turns the accuracy a into 1 − a.
+#[test]
+fn testing_labels_never_reach_the_decoder() {
+    let s = ContextScenario {
+        trials_per_cell: 30,
+        ..ContextScenario::choices()
+    };
+    let r = recipe(&[(&["citral"], &["hexanal"])], 1, 0);
+    let csv = context_csv(&s);
+    let swapped: String = csv
+        .lines()
+        .map(|l| {
+            let l = if l.contains(",left,hexanal,") {
+                l.replace(",left,hexanal,", ",right,hexanal,")
+            } else {
+                l.replace(",right,hexanal,", ",left,hexanal,")
+            };
+            format!("{l}\n")
+        })
+        .collect();
+    let report = |text: &str| {
+        let data =
+            input::across::trial_table("choices.csv", text.as_bytes(), &r.columns, "context")
+                .unwrap();
+        run_all(&AcrossPlan::new(data, &r).unwrap())
+    };
+    let (a, b) = (report(&csv), report(&swapped));
+    assert_eq!(
+        a.first_repeat[0].decisions.predicted,
+        b.first_repeat[0].decisions.predicted
+    );
+    assert_eq!(
+        a.first_repeat[0].decisions.test,
+        b.first_repeat[0].decisions.test
+    );
+    let (acc, flipped) = (
+        a.assignments[0].accuracy.mean,
+        b.assignments[0].accuracy.mean,
+    );
+    assert!(
+        (acc + flipped - 1.0).abs() < 1e-12 && acc > 0.8,
+        "{acc} {flipped}"
+    );
+}
+
 /// Over time: the choice is carried from 0.2 to 0.6 s in both contexts by a shared code; generalization is
 /// significant there and only there, and the train × test matrix's diagonal equals the curve.
 #[test]

@@ -337,6 +337,46 @@ mod tests {
     }
 
     #[test]
+    fn a_fold_is_predicted_by_a_model_that_never_saw_it() {
+        // Leakage check: a test fold's targets can be anything at all (here replaced by huge values) without
+        // changing a bit of its predictions, and the predictions equal a model fitted on the other rows alone.
+        let (n, p) = (30, 3);
+        let x: Vec<f64> = (0..n * p).map(|i| ((i * 37) % 23) as f64 - 11.0).collect();
+        let mut y: Vec<f64> = (0..n)
+            .map(|i| x[i * p] * 0.5 - x[i * p + 2] + (i % 3) as f64)
+            .collect();
+        let fold: Vec<usize> = (0..n).map(|i| i % 3).collect();
+        let before = cross_validate(&x, p, &y, 1, &fold, 3);
+        for i in (0..n).filter(|i| fold[*i] == 0) {
+            y[i] = 1e6 * (i as f64 + 1.0);
+        }
+        let after = cross_validate(&x, p, &y, 1, &fold, 3);
+        let train: Vec<usize> = (0..n).filter(|i| fold[*i] != 0).collect();
+        let test: Vec<usize> = (0..n).filter(|i| fold[*i] == 0).collect();
+        let rows = |idx: &[usize]| {
+            idx.iter()
+                .flat_map(|&i| x[i * p..(i + 1) * p].to_vec())
+                .collect::<Vec<_>>()
+        };
+        let direct = FittedRidge::fit(
+            &rows(&train),
+            train.len(),
+            p,
+            &train.iter().map(|&i| y[i]).collect::<Vec<_>>(),
+            1,
+        )
+        .predict(rows(&test));
+        for (t, &i) in test.iter().enumerate() {
+            assert_eq!(before.predicted[i].to_bits(), after.predicted[i].to_bits());
+            assert_eq!(after.predicted[i].to_bits(), direct[t].to_bits());
+        }
+        assert_ne!(
+            before.predicted[1], after.predicted[1],
+            "fold 1 did train on fold 0's changed targets"
+        );
+    }
+
+    #[test]
     fn inner_errors_equal_separate_fits_on_each_inner_fold() {
         // The shared Gram matrix per inner fold must give what a separate fit per (inner fold, α) gives.
         let n = 23;
