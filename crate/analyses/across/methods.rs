@@ -5,9 +5,8 @@ use super::report::{AcrossDesign, AcrossInput, AcrossReport, AcrossTimeReport, S
 use super::text::arrow;
 use crate::analyses::over_time::{cluster_sentence, windows_sentence};
 use crate::analyses::time_course::report::ONSET_CAVEAT;
-use crate::decoders;
 use crate::recipe::Recipe;
-use crate::report::methods::class_counts;
+use crate::report::methods::{class_counts, fitting};
 use crate::report::text::{p_text, pct, seconds as s};
 
 fn files(i: &AcrossInput) -> String {
@@ -79,9 +78,13 @@ fn design(
         if per_window { " at each window" } else { "" },
         if per_window { " at the same window" } else { "" }
     ));
-    out.push(format!(
-        "The decoder was {}.",
-        decoders::describe(rc.classifier, (!rc.tune).then_some(rc.c))
+    out.push(fitting(rc).replace(
+        "Within each training fold,",
+        if per_window {
+            "Within each training set and window (and each training fold of the within-condition score),"
+        } else {
+            "Within each training set (and each training fold of the within-condition score),"
+        },
     ));
     let group = i.group_column.as_deref().unwrap_or("");
     let splits: Vec<String> = within
