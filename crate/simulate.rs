@@ -4,6 +4,11 @@
 //! baseline rate and a log-normal tuning to each odour; a trial's rate is counted as Poisson spikes in a 0.5 s
 //! window and written in Hz. Optionally the conditions are run in blocks, each block with its own offset on every
 //! unit and a slow drift over the session — the situation in which random folds mistake "when" for "what".
+//!
+//! Two more scenarios of our own: choices made in several odour contexts, with a code for the choice that is shared
+//! across contexts or orthogonal between them ([`ContextScenario`], for generalization across conditions), and a
+//! population tuned linearly to running speed and with von Mises curves to heading ([`MotionScenario`], for
+//! continuous and circular decoding).
 
 use crate::rng::{normal, poisson, shuffle, task_rng, Stream};
 use std::fmt::Write;
@@ -464,4 +469,321 @@ pub fn study(s: &StudyScenario) -> StudyFiles {
         files.push((name, text));
     }
     StudyFiles { table, files }
+}
+
+/// An invented population recorded while choices (left or right) are made in several contexts (the odour that
+/// cued the rule): each unit has a baseline rate, an offset per context, and for the units that carry the choice a
+/// shift of ± half its choice weight. With a shared code the choice weights are the same in every context; with an
+/// orthogonal code each context's choice is carried by its own disjoint set of units. Spikes are Poisson counts in a
+/// 0.5 s window, written in Hz.
+#[derive(Debug, Clone)]
+pub struct ContextScenario {
+    pub choices: Vec<String>,
+    pub contexts: Vec<String>,
+    /// Trials of each (context, choice).
+    pub trials_per_cell: usize,
+    pub units: usize,
+    /// Whether the choice weights are shared across contexts (else each context uses its own units).
+    pub shared: bool,
+    /// Scale of the choice weights (Hz; the left–right difference on a unit is this times a standard normal draw).
+    pub choice_gain: f64,
+    /// SD of each context's offset per unit (Hz).
+    pub context_offset: f64,
+    pub sessions: usize,
+    pub seed: u64,
+}
+
+impl ContextScenario {
+    /// Left or right choices in two odour contexts, 60 trials per choice and context, 40 units, a shared code.
+    pub fn choices() -> ContextScenario {
+        ContextScenario {
+            choices: vec!["left".into(), "right".into()],
+            contexts: vec!["citral".into(), "hexanal".into()],
+            trials_per_cell: 60,
+            units: 40,
+            shared: true,
+            choice_gain: 3.0,
+            context_offset: 2.0,
+            sessions: 3,
+            seed: 2028,
+        }
+    }
+}
+
+/// The drawn population of a [`ContextScenario`] and its shuffled trial order.
+struct ContextPopulation {
+    baseline: Vec<f64>,
+    offset: Vec<Vec<f64>>,
+    weights: Vec<f64>,
+    /// (context, choice) of each trial, in trial order.
+    order: Vec<(usize, usize)>,
+}
+
+impl ContextScenario {
+    fn population(&self, rng: &mut impl rand_core::RngCore) -> ContextPopulation {
+        let (nc, u) = (self.contexts.len(), self.units);
+        let baseline = (0..u).map(|_| 8.0 + 16.0 * crate::rng::unit(rng)).collect();
+        let offset = (0..nc)
+            .map(|_| (0..u).map(|_| self.context_offset * normal(rng)).collect())
+            .collect();
+        let weights = (0..u).map(|_| self.choice_gain * normal(rng)).collect();
+        let mut order: Vec<(usize, usize)> = (0..nc)
+            .flat_map(|c| {
+                (0..self.choices.len())
+                    .flat_map(move |k| std::iter::repeat_n((c, k), self.trials_per_cell))
+            })
+            .collect();
+        shuffle(rng, &mut order);
+        ContextPopulation {
+            baseline,
+            offset,
+            weights,
+            order,
+        }
+    }
+
+    /// A unit's rate in context `c` for choice `k`; `informative` false leaves the choice out.
+    fn rate(
+        &self,
+        pop: &ContextPopulation,
+        c: usize,
+        k: usize,
+        unit: usize,
+        informative: bool,
+    ) -> f64 {
+        // Orthogonal: context c's choice is carried by units c, c + n, c + 2n, … only (disjoint sets).
+        let carries = self.shared || unit % self.contexts.len() == c;
+        let side = if informative && carries {
+            k as f64 - 0.5
+        } else {
+            0.0
+        };
+        (pop.baseline[unit] + pop.offset[c][unit] + side * pop.weights[unit]).max(0.5)
+    }
+}
+
+/// The trial table: `trial_id`, `choice`, `context`, `session`, `unit_01`…
+pub fn context_csv(s: &ContextScenario) -> String {
+    let mut rng = task_rng(s.seed, Stream::Simulation, 3, 0);
+    let pop = s.population(&mut rng);
+    let mut out = String::from("trial_id,choice,context,session");
+    for unit in 0..s.units {
+        write!(out, ",unit_{:02}", unit + 1).unwrap();
+    }
+    out.push('\n');
+    let total = pop.order.len();
+    for (t, &(c, k)) in pop.order.iter().enumerate() {
+        let session = t * s.sessions.max(1) / total + 1;
+        write!(
+            out,
+            "t{:04},{},{},s{session}",
+            t + 1,
+            s.choices[k],
+            s.contexts[c]
+        )
+        .unwrap();
+        for unit in 0..s.units {
+            let spikes = poisson(&mut rng, s.rate(&pop, c, k, unit, true) * WINDOW_S);
+            write!(out, ",{}", spikes as f64 / WINDOW_S).unwrap();
+        }
+        out.push('\n');
+    }
+    out
+}
+
+/// The same population over time, as a binned table: Poisson counts in bins of `bin` s from `start` to `end`
+/// (in Hz); the choice is carried only in bins whose centre lies in [`info.0`, `info.1`), the context offsets
+/// throughout. Columns `trial`, `time`, `choice`, `context`, `session`, then `u01`…
+pub fn context_binned(
+    s: &ContextScenario,
+    start: f64,
+    end: f64,
+    bin: f64,
+    info: (f64, f64),
+) -> String {
+    let mut rng = task_rng(s.seed, Stream::Simulation, 5, 0);
+    let pop = s.population(&mut rng);
+    let mut out = String::from("trial,time,choice,context,session");
+    for unit in 0..s.units {
+        write!(out, ",u{:02}", unit + 1).unwrap();
+    }
+    out.push('\n');
+    let bins = ((end - start) / bin).round() as usize;
+    let total = pop.order.len();
+    for (t, &(c, k)) in pop.order.iter().enumerate() {
+        let session = t * s.sessions.max(1) / total + 1;
+        for b in 0..bins {
+            let time = start + (b as f64 + 0.5) * bin;
+            let informative = time >= info.0 && time < info.1;
+            write!(
+                out,
+                "tr{:04},{time:.4},{},{},s{session}",
+                t + 1,
+                s.choices[k],
+                s.contexts[c]
+            )
+            .unwrap();
+            for unit in 0..s.units {
+                let spikes = poisson(&mut rng, s.rate(&pop, c, k, unit, informative) * bin);
+                write!(out, ",{}", spikes as f64 / bin).unwrap();
+            }
+            out.push('\n');
+        }
+    }
+    out
+}
+
+/// An invented population recorded while an animal runs: on every trial a running speed (uniform between
+/// `speed_min` and `speed_max`, cm/s) and a heading (uniform on the circle, degrees), drawn independently. Each unit
+/// has a baseline rate, a linear slope on speed, and von Mises tuning to heading (`amplitude · exp(κ(cos(θ − φ) −
+/// 1))`, preferred heading φ); its rate on a trial is their sum plus Gaussian noise of SD `noise` Hz (a stand-in for
+/// spike-count variability that keeps the optimal linear decoder's R² computable in closed form).
+#[derive(Debug, Clone)]
+pub struct MotionScenario {
+    pub trials: usize,
+    pub units: usize,
+    pub speed_min: f64,
+    pub speed_max: f64,
+    /// SD of each unit's speed slope (Hz per cm/s).
+    pub speed_slope: f64,
+    /// Heading amplitudes are uniform between 0 and this (Hz).
+    pub heading_amplitude: f64,
+    /// Von Mises concentration κ of the heading tuning.
+    pub kappa: f64,
+    pub noise: f64,
+    pub sessions: usize,
+    pub seed: u64,
+}
+
+/// The drawn parameters of a [`MotionScenario`]'s units.
+#[derive(Debug, Clone)]
+pub struct MotionUnits {
+    pub baseline: Vec<f64>,
+    pub slope: Vec<f64>,
+    pub amplitude: Vec<f64>,
+    /// Preferred heading, radians.
+    pub preferred: Vec<f64>,
+}
+
+impl MotionScenario {
+    /// 300 trials, 30 units, speeds 5–45 cm/s, heading tuning with κ = 2.
+    pub fn running() -> MotionScenario {
+        MotionScenario {
+            trials: 300,
+            units: 30,
+            speed_min: 5.0,
+            speed_max: 45.0,
+            speed_slope: 0.12,
+            heading_amplitude: 8.0,
+            kappa: 2.0,
+            noise: 4.0,
+            sessions: 3,
+            seed: 2029,
+        }
+    }
+
+    fn draw_units(&self, rng: &mut impl rand_core::RngCore) -> MotionUnits {
+        let u = self.units;
+        MotionUnits {
+            baseline: (0..u)
+                .map(|_| 15.0 + 15.0 * crate::rng::unit(rng))
+                .collect(),
+            slope: (0..u).map(|_| self.speed_slope * normal(rng)).collect(),
+            amplitude: (0..u)
+                .map(|_| self.heading_amplitude * crate::rng::unit(rng))
+                .collect(),
+            preferred: (0..u)
+                .map(|_| 2.0 * std::f64::consts::PI * crate::rng::unit(rng))
+                .collect(),
+        }
+    }
+
+    /// The units' parameters as [`motion_csv`] and [`motion_binned`] draw them.
+    pub fn units(&self) -> MotionUnits {
+        self.draw_units(&mut task_rng(self.seed, Stream::Simulation, 4, 0))
+    }
+
+    /// A unit's mean rate at speed `s` and heading `theta` (radians).
+    fn rate(&self, p: &MotionUnits, unit: usize, s: f64, theta: f64) -> f64 {
+        let centre = 0.5 * (self.speed_min + self.speed_max);
+        let heading = p.amplitude[unit]
+            * libm::exp(self.kappa * (libm::cos(theta - p.preferred[unit]) - 1.0));
+        p.baseline[unit] + p.slope[unit] * (s - centre) + heading
+    }
+}
+
+/// The trial table: `trial_id`, `speed` (cm/s), `heading` (degrees, [0, 360)), `session`, `unit_01`… (Hz).
+pub fn motion_csv(s: &MotionScenario) -> String {
+    let mut rng = task_rng(s.seed, Stream::Simulation, 4, 0);
+    let p = s.draw_units(&mut rng);
+    let mut out = String::from("trial_id,speed,heading,session");
+    for unit in 0..s.units {
+        write!(out, ",unit_{:02}", unit + 1).unwrap();
+    }
+    out.push('\n');
+    for t in 0..s.trials {
+        let speed = s.speed_min + (s.speed_max - s.speed_min) * crate::rng::unit(&mut rng);
+        let theta = 2.0 * std::f64::consts::PI * crate::rng::unit(&mut rng);
+        let session = t * s.sessions.max(1) / s.trials + 1;
+        write!(
+            out,
+            "t{:04},{speed:.3},{:.3},s{session}",
+            t + 1,
+            theta.to_degrees()
+        )
+        .unwrap();
+        for unit in 0..s.units {
+            let rate = s.rate(&p, unit, speed, theta) + s.noise * normal(&mut rng);
+            write!(out, ",{rate:.3}").unwrap();
+        }
+        out.push('\n');
+    }
+    out
+}
+
+/// A binned table of the same population over time: bins of `bin` s from `start` to `end`; the units follow speed
+/// and heading only in bins whose centre lies in [`info_start`, `info_end`), and fire at their baseline (plus noise)
+/// elsewhere. Columns `trial`, `time` (bin centre), `speed`, `heading`, `session`, then `u01`…
+pub fn motion_binned(
+    s: &MotionScenario,
+    start: f64,
+    end: f64,
+    bin: f64,
+    info: (f64, f64),
+) -> String {
+    let mut rng = task_rng(s.seed, Stream::Simulation, 4, 0);
+    let p = s.draw_units(&mut rng);
+    let mut out = String::from("trial,time,speed,heading,session");
+    for unit in 0..s.units {
+        write!(out, ",u{:02}", unit + 1).unwrap();
+    }
+    out.push('\n');
+    let bins = ((end - start) / bin).round() as usize;
+    let centre = 0.5 * (s.speed_min + s.speed_max);
+    for t in 0..s.trials {
+        let speed = s.speed_min + (s.speed_max - s.speed_min) * crate::rng::unit(&mut rng);
+        let theta = 2.0 * std::f64::consts::PI * crate::rng::unit(&mut rng);
+        let session = t * s.sessions.max(1) / s.trials + 1;
+        for b in 0..bins {
+            let time = start + (b as f64 + 0.5) * bin;
+            write!(
+                out,
+                "tr{:04},{time:.4},{speed:.3},{:.3},s{session}",
+                t + 1,
+                theta.to_degrees()
+            )
+            .unwrap();
+            let informative = time >= info.0 && time < info.1;
+            for unit in 0..s.units {
+                let mean = if informative {
+                    s.rate(&p, unit, speed, theta)
+                } else {
+                    s.rate(&p, unit, centre, p.preferred[unit] + std::f64::consts::PI)
+                };
+                write!(out, ",{:.3}", mean + s.noise * normal(&mut rng)).unwrap();
+            }
+            out.push('\n');
+        }
+    }
+    out
 }

@@ -288,6 +288,50 @@ fn pooled_study_over_time_in_parts_equals_one_run() {
     combined_equals_single("study-pooled", &analysis, &[1, 3]);
 }
 
+/// Generalization across conditions, routed from `decode`: the part file names the analysis it was routed to.
+#[test]
+fn across_conditions_in_parts_equals_one_run() {
+    let csv = sample("choices.csv");
+    let analysis = [
+        "decode",
+        &csv,
+        "--label",
+        "choice",
+        "--ignore",
+        "session",
+        "--across",
+        "context",
+        "--classifier",
+        "shrinkage-lda",
+        "--repeats",
+        "3",
+        "--shuffles",
+        "4",
+    ];
+    combined_equals_single("across", &analysis, &[1, 3, 7]);
+}
+
+/// A continuous variable over time, routed from `timecourse`.
+#[test]
+fn continuous_time_course_in_parts_equals_one_run() {
+    let csv = sample("running_binned.csv");
+    let analysis = [
+        "timecourse",
+        &csv,
+        "--label",
+        "speed",
+        "--ignore",
+        "heading,session",
+        "--classifier",
+        "ridge",
+        "--repeats",
+        "2",
+        "--shuffles",
+        "3",
+    ];
+    combined_equals_single("continuous", &analysis, &[1, 3]);
+}
+
 /// A small decode split into 3 parts in `dir`, on a copy of the sample there (so a test may change it).
 fn three_parts(dir: &Path, extra: &[&str]) -> Vec<PathBuf> {
     let csv = dir.join("data.csv");

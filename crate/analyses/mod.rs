@@ -1,20 +1,25 @@
 //! Analyses, one folder each: the trial table ([`trial_table`]), the time course ([`time_course`]), what each
-//! neuron contributes ([`neurons`]) and studies of many sessions ([`study`]). Each folder holds its plan (the
-//! tasks), its report schema, its text, its methods paragraph and its figures.
+//! neuron contributes ([`neurons`]), studies of many sessions ([`study`]), generalization across conditions
+//! ([`across`]) and decoding a continuous or circular variable ([`continuous`]); [`over_time`] holds what the
+//! analyses over time share. Each folder holds its plan (the tasks), its report schema, its text, its methods
+//! paragraph and its figures.
 //!
 //! Every analysis offers its faces the same shape ([`Analysis`]): a checked plan lists independent tasks, any task
 //! runs anywhere and in any order from its own random stream, and `finish` turns the outcomes, in any order, into
 //! the result. A face only decides where tasks run (rayon threads, a pool of Web Workers), so the numbers never
 //! depend on it.
 
+pub mod across;
+pub mod continuous;
 pub mod neurons;
+pub mod over_time;
 pub mod study;
 pub mod time_course;
 pub mod trial_table;
 
 use crate::data::trials::Trials;
 use crate::decoders;
-use crate::error::Result;
+use crate::error::{Error, Result};
 use crate::recipe::Recipe;
 use crate::resample::{Scheme, Split};
 use serde::de::DeserializeOwned;
@@ -58,6 +63,14 @@ pub struct Finished {
 /// The recipe's resampling scheme resolved against the trials, with the decoder's own cautions (a kernel too large
 /// for a browser tab) ahead of the scheme's.
 pub fn resolve_scheme(trials: &Trials, recipe: &Recipe) -> Result<Scheme> {
+    decoders::require_classes(recipe.classifier)?;
+    if let Some(a) = &recipe.across {
+        return Err(Error::Recipe(format!(
+            "this recipe trains and tests across levels of '{}': it is an analysis of generalization across \
+             conditions",
+            a.column
+        )));
+    }
     let mut scheme = Scheme::resolve(trials, recipe)?;
     if !matches!(scheme.split, Split::Pseudo { .. }) {
         if let Some(w) = decoders::memory_warning(recipe.classifier, scheme.trials_per_repeat) {

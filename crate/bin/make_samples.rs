@@ -1,7 +1,8 @@
 //! Writes the invented demo tables in `samples/`: `cargo run --release --example make-samples`.
 
 use popdecode::simulate::{
-    binned, csv, spike_events, study, Scenario, StudyScenario, TimeScenario,
+    binned, context_binned, context_csv, csv, motion_binned, motion_csv, spike_events, study,
+    ContextScenario, MotionScenario, Scenario, StudyScenario, TimeScenario,
 };
 
 fn main() -> std::io::Result<()> {
@@ -36,6 +37,30 @@ fn main() -> std::io::Result<()> {
             std::fs::write(studies.join(name), text)?;
         }
     }
+    let choices = ContextScenario::choices();
+    std::fs::write(dir.join("choices.csv"), context_csv(&choices))?;
+    let over_time = ContextScenario {
+        trials_per_cell: 30,
+        units: 24,
+        choice_gain: 8.0,
+        seed: 2030,
+        ..choices
+    };
+    std::fs::write(
+        dir.join("choices_binned.csv"),
+        context_binned(&over_time, -0.4, 1.0, 0.1, (0.2, 0.6)),
+    )?;
+    let running = MotionScenario::running();
+    std::fs::write(dir.join("running.csv"), motion_csv(&running))?;
+    let running_over_time = MotionScenario {
+        trials: 150,
+        units: 16,
+        ..running
+    };
+    std::fs::write(
+        dir.join("running_binned.csv"),
+        motion_binned(&running_over_time, -0.4, 1.0, 0.1, (0.2, 0.6)),
+    )?;
     println!("wrote {}", dir.display());
     Ok(())
 }

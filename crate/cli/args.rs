@@ -31,7 +31,8 @@ pub struct ColumnArgs {
     #[arg(long)]
     pub drop_missing: bool,
     /// Decoder: linear-svm, shrinkage-lda, logistic, gaussian-nb, poisson-nb, nearest-mean (correlation with class
-    /// means; blind to a shift or gain shared by all neurons) or rbf-svm (Gaussian kernel) [default: linear-svm].
+    /// means; blind to a shift or gain shared by all neurons) or rbf-svm (Gaussian kernel); for a numeric label
+    /// ridge, or circular-ridge for angles (with --angle-unit) [default: linear-svm].
     #[arg(long, value_parser = parse_classifier)]
     pub classifier: Option<Classifier>,
     /// Regularisation constant C of the linear SVM, the Gaussian-kernel SVM and logistic regression [default: 1].
@@ -128,7 +129,11 @@ fn parse_part(s: &str) -> Result<Part, String> {
 
 fn parse_classifier(s: &str) -> Result<Classifier, String> {
     Classifier::from_name(s).ok_or_else(|| {
-        let names: Vec<&str> = Classifier::ALL.iter().map(|c| c.name()).collect();
+        let names: Vec<&str> = Classifier::ALL
+            .iter()
+            .chain(&Classifier::REGRESSORS)
+            .map(|c| c.name())
+            .collect();
         format!(
             "unknown classifier '{s}'; choose one of: {}",
             names.join(", ")

@@ -3,6 +3,7 @@
 use crate::args::{base_recipe, show, RunArgs, TableArgs};
 use crate::files::{display_name, read};
 use crate::run::{analyse, Inputs, Loaded};
+use crate::targets::{self, TargetArgs};
 use clap::Args;
 use popdecode::analyses::trial_table::Plan;
 use popdecode::data::SourceFile;
@@ -20,12 +21,15 @@ pub struct DecodeArgs {
     #[arg(long)]
     pub pairwise: bool,
     #[command(flatten)]
+    pub targets: TargetArgs,
+    #[command(flatten)]
     pub run: RunArgs,
 }
 
 pub fn run(args: DecodeArgs) -> Result<(), String> {
     let mut recipe = base_recipe(&args.run, &args.table.columns)?;
     recipe.pairwise |= args.pairwise;
+    args.targets.apply(&mut recipe)?;
     if recipe.time.is_some() {
         return Err("this recipe is for a time course; run it with 'popdecode timecourse'".into());
     }
@@ -36,6 +40,9 @@ pub fn run(args: DecodeArgs) -> Result<(), String> {
         options: serde_json::json!({}),
         paths: vec![args.table.csv],
     };
+    if let Some(done) = targets::route(&inputs, &args.run) {
+        return done;
+    }
     analyse(&inputs, load, &args.run)
 }
 

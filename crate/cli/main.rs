@@ -12,6 +12,7 @@ mod part;
 mod predict;
 mod run;
 mod study;
+mod targets;
 mod timecourse;
 
 use clap::{Parser, Subcommand};

@@ -3,6 +3,7 @@
 use crate::args::{base_recipe, show, ColumnArgs, RunArgs};
 use crate::files::{display_name, open_source, read};
 use crate::run::{analyse, Inputs, Loaded};
+use crate::targets::{self, TargetArgs};
 use clap::Args;
 use popdecode::analyses::time_course::TimePlan;
 use popdecode::input::{self, extract, FileBytes};
@@ -31,6 +32,8 @@ pub struct TimecourseArgs {
     pub time: TimeFlags,
     #[command(flatten)]
     pub columns: ColumnArgs,
+    #[command(flatten)]
+    pub targets: TargetArgs,
     #[command(flatten)]
     pub run: RunArgs,
 }
@@ -275,6 +278,7 @@ pub fn run(args: TimecourseArgs) -> Result<(), String> {
         }
     };
     recipe.time = Some(time_settings(source, &args.time, recipe.time.take())?);
+    args.targets.apply(&mut recipe)?;
     recipe.validate().map_err(show)?;
     let paths: Vec<PathBuf> = match (args.events, args.trials, args.csv, args.nwb) {
         (_, _, _, Some(n)) => vec![n],
@@ -288,6 +292,9 @@ pub fn run(args: TimecourseArgs) -> Result<(), String> {
         options: serde_json::json!({}),
         paths,
     };
+    if let Some(done) = targets::route(&inputs, &args.run) {
+        return done;
+    }
     analyse(&inputs, load, &args.run)
 }
 
@@ -299,9 +306,26 @@ pub fn load(inputs: &Inputs) -> Result<Loaded<TimePlan>, String> {
         .time
         .as_ref()
         .ok_or("a time course's recipe has time settings")?;
-    let nwb = matches!(settings.input, TimeInput::Nwb { .. });
-    // An NWB file is read lazily into its extract (units and trials only), exactly as the page does.
-    let contents: Vec<(String, Vec<u8>)> = inputs
+    let contents = read_inputs(inputs)?;
+    let files: Vec<FileBytes> = contents
+        .iter()
+        .map(|(name, bytes)| FileBytes { name, bytes })
+        .collect();
+    let data = input::time_course(&files, &recipe.columns, &settings.input).map_err(show)?;
+    let files = data.files.clone();
+    let plan = TimePlan::new(data, recipe).map_err(show)?;
+    Ok(Loaded { plan, files })
+}
+
+/// The input files' names and bytes; an NWB file is read lazily into its extract (units and trials only), exactly
+/// as the page does.
+pub fn read_inputs(inputs: &Inputs) -> Result<Vec<(String, Vec<u8>)>, String> {
+    let nwb = inputs
+        .recipe
+        .time
+        .as_ref()
+        .is_some_and(|t| matches!(t.input, TimeInput::Nwb { .. }));
+    inputs
         .paths
         .iter()
         .map(|p| {
@@ -313,13 +337,5 @@ pub fn load(inputs: &Inputs) -> Result<Loaded<TimePlan>, String> {
             };
             Ok((name, bytes))
         })
-        .collect::<Result<_, String>>()?;
-    let files: Vec<FileBytes> = contents
-        .iter()
-        .map(|(name, bytes)| FileBytes { name, bytes })
-        .collect();
-    let data = input::time_course(&files, &recipe.columns, &settings.input).map_err(show)?;
-    let files = data.files.clone();
-    let plan = TimePlan::new(data, recipe).map_err(show)?;
-    Ok(Loaded { plan, files })
+        .collect()
 }

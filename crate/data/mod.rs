@@ -1,8 +1,13 @@
 //! The in-memory data every analysis works on: trials × features ([`Dataset`]), trials × windows × neurons
 //! ([`time::TimeDataset`]), their labels and groups ([`trials::Trials`]), and how labels are ordered
-//! ([`labels`]). Readers of files (`input/`) produce these; nothing here reads a file.
+//! ([`labels`]); for the analyses that read one or many windows alike, activity with its provenance
+//! ([`features::Features`]) with a number per trial ([`target::TargetData`]) or a label and a second column's level
+//! per trial ([`across::AcrossData`]). Readers of files (`input/`) produce these; nothing here reads a file.
 
+pub mod across;
+pub mod features;
 pub mod labels;
+pub mod target;
 pub mod time;
 pub mod trials;
 

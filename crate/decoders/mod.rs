@@ -11,6 +11,7 @@ pub mod logistic;
 pub mod nearest_mean;
 pub mod poisson_nb;
 pub mod rbf_svm;
+pub mod ridge;
 pub mod shrinkage_lda;
 pub mod simd;
 pub mod standardise;
@@ -315,6 +316,10 @@ pub trait Model: Send {
 }
 
 /// The decoder a recipe names, with its setting chosen inside each training fold when `tune` is set.
+///
+/// Decoders of classes only: the regressors (`ridge`, `circular-ridge`) are fitted by [`ridge`], and every analysis
+/// of classes refuses them with a message before it builds a decoder (`analyses::resolve_scheme`,
+/// `predict_with_folds`).
 pub fn build(classifier: Classifier, c: f64, tune: bool) -> Box<dyn Decoder> {
     match (tune, classifier.grid()) {
         (true, Some(grid)) => Box::new(tuning::Tuned {
@@ -349,7 +354,23 @@ fn build_plain(classifier: Classifier, c: f64) -> Box<dyn Decoder> {
             c,
             gamma_factor: 1.0,
         }),
+        Classifier::Ridge | Classifier::CircularRidge => unreachable!(
+            "{} predicts numbers; analyses of classes refuse it before building a decoder",
+            classifier.name()
+        ),
     }
+}
+
+/// A message refusing a regressor where classes are decoded, or `Ok` for a decoder of classes.
+pub fn require_classes(classifier: Classifier) -> crate::Result<()> {
+    if classifier.is_regression() {
+        return Err(crate::Error::Recipe(format!(
+            "{} decodes a continuous variable; this analysis decodes classes, so choose a decoder of classes ({})",
+            classifier.name(),
+            Classifier::ALL.map(Classifier::name).join(", ")
+        )));
+    }
+    Ok(())
 }
 
 /// One sentence for the methods paragraph: the decoder, its setting and its citation, as it was fitted on
@@ -407,7 +428,30 @@ pub fn describe(classifier: Classifier, c: Option<f64>, features: usize) -> Stri
              with second-order working-set selection (Fan, Chen & Lin, 2005; tolerance {})",
             rbf_svm::TOLERANCE
         ),
+        Classifier::Ridge => format!(
+            "ridge regression (least squares with an L2 penalty α on the weights of the standardised features; the \
+             target centred on the training-fold mean, which is the unpenalised intercept), {}",
+            ridge_alpha_choice()
+        ),
+        Classifier::CircularRidge => format!(
+            "ridge regression of the angle's cosine and sine (two outputs sharing one penalty α, each centred on its \
+             training-fold mean), the predicted angle being atan2(predicted sine, predicted cosine), {}",
+            ridge_alpha_choice()
+        ),
     }
+}
+
+/// How ridge's penalty is chosen, as the methods paragraph says it.
+fn ridge_alpha_choice() -> String {
+    let grid: Vec<String> = ridge::ALPHA_GRID.iter().map(|a| a.to_string()).collect();
+    format!(
+        "with α chosen within each training fold by nested cross-validation: the training trials were dealt in \
+         turn into {} inner folds, every α in {{{}}} was scored by the mean over inner folds of the mean squared \
+         error of the full pipeline (standardisation and centring refitted on each inner training fold), and the best \
+         (the larger on ties) was refitted on the whole training fold; the test fold was never used to choose it",
+        ridge::INNER_FOLDS,
+        grid.join(", ")
+    )
 }
 
 /// Standardisation plus decoder, both fitted on one training fold. `scaler` is `None` for decoders fitted by their

@@ -7,10 +7,13 @@
 //! | spike events (CSV) + trial table | [`events`] | `TimeDataset` |
 //! | NWB 2.x (HDF5), or its compact [`extract`] | [`nwb`], [`units`], [`nwb_counts`] | `TimeDataset` |
 //! | study table (CSV, one row per session) | [`study`] | the sessions, each read by the readers above |
+//! | any of these with the label read as numbers | [`target`] | `TargetData` |
+//! | any of these with a second column's level per trial | [`across`] | `AcrossData` |
 //!
 //! Every reader takes a file's name and bytes (the core never touches the filesystem, so the page and the CLI share
 //! every line of parsing), and every error names the file, the line and the column.
 
+pub mod across;
 pub mod binned;
 pub mod events;
 pub mod extract;
@@ -19,6 +22,8 @@ pub mod nwb_counts;
 pub mod spike_counts;
 pub mod study;
 pub mod table;
+pub mod target;
+pub mod trial_column;
 pub mod trial_labels;
 pub mod trial_table;
 pub mod units;

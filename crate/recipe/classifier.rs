@@ -1,11 +1,16 @@
 //! The decoders a recipe can name, and the settings nested cross-validation chooses among.
 //!
-//! Only names and facts about settings live here; `decoders/` builds and describes each decoder.
+//! Only names and facts about settings live here; `decoders/` builds and describes each decoder. Most decoders
+//! predict a class ([`Classifier::ALL`]); two predict a number ([`Classifier::REGRESSORS`]): ridge regression of a
+//! continuous variable, and ridge regression of an angle's sine and cosine. An analysis of classes refuses the
+//! regressors and an analysis of a continuous variable refuses the classifiers, each with a message.
 
 use serde::{Deserialize, Serialize};
 
 /// The grid of C values tried (10⁻³ … 10³).
 pub const C_GRID: [f64; 7] = [1e-3, 1e-2, 1e-1, 1.0, 1e1, 1e2, 1e3];
+/// The ridge penalties α tried inside each training fold (10⁻² … 10⁵, on standardised features).
+pub const ALPHA_GRID: [f64; 8] = [1e-2, 1e-1, 1.0, 1e1, 1e2, 1e3, 1e4, 1e5];
 /// Factors on the default kernel width tried for the Gaussian-kernel SVM.
 pub const GAMMA_FACTORS: [f64; 3] = [0.1, 1.0, 10.0];
 
@@ -38,9 +43,14 @@ pub enum Classifier {
     PoissonNb,
     Logistic,
     RbfSvm,
+    /// Ridge regression of a continuous variable (its penalty chosen inside each training fold).
+    Ridge,
+    /// Ridge regression of an angle's sine and cosine, read back as an angle.
+    CircularRidge,
 }
 
 impl Classifier {
+    /// Every decoder of classes (the regressors are [`Classifier::REGRESSORS`]).
     pub const ALL: [Classifier; 7] = [
         Classifier::LinearSvm,
         Classifier::ShrinkageLda,
@@ -50,6 +60,9 @@ impl Classifier {
         Classifier::Logistic,
         Classifier::RbfSvm,
     ];
+
+    /// The decoders of a continuous variable.
+    pub const REGRESSORS: [Classifier; 2] = [Classifier::Ridge, Classifier::CircularRidge];
 
     /// The spelling used in recipes and on the command line.
     pub fn name(self) -> &'static str {
@@ -61,11 +74,21 @@ impl Classifier {
             Classifier::PoissonNb => "poisson-nb",
             Classifier::Logistic => "logistic",
             Classifier::RbfSvm => "rbf-svm",
+            Classifier::Ridge => "ridge",
+            Classifier::CircularRidge => "circular-ridge",
         }
     }
 
     pub fn from_name(name: &str) -> Option<Classifier> {
-        Classifier::ALL.into_iter().find(|c| c.name() == name)
+        Classifier::ALL
+            .into_iter()
+            .chain(Classifier::REGRESSORS)
+            .find(|c| c.name() == name)
+    }
+
+    /// Whether the decoder predicts a number (a continuous or circular variable) rather than a class.
+    pub fn is_regression(self) -> bool {
+        matches!(self, Classifier::Ridge | Classifier::CircularRidge)
     }
 
     /// Whether the regularisation constant C means anything for this decoder.

@@ -7,6 +7,8 @@
 //! error type. What a setting *means* lives with the layer that acts on it (a decoder's name here, its fitting in
 //! `decoders/`; a unit filter's rule here, its application to a recording in `input/`).
 
+pub mod across;
+pub mod angle;
 pub mod classifier;
 pub mod columns;
 pub mod limits;
@@ -14,6 +16,8 @@ pub mod time;
 pub mod units;
 pub mod windows;
 
+pub use across::{Across, Assignment};
+pub use angle::AngleUnit;
 pub use classifier::{Classifier, Setting};
 pub use columns::Columns;
 pub use time::{GeneralizationNull, TimeInput, TimeSettings};
@@ -110,6 +114,12 @@ pub struct Recipe {
     /// Trial tables with more than two classes: also decode every pair of classes on its own.
     #[serde(default, skip_serializing_if = "std::ops::Not::not")]
     pub pairwise: bool,
+    /// Generalization across conditions: train at some levels of a second column, test at others.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub across: Option<Across>,
+    /// For `circular-ridge`: the unit the label column's angles are written in.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub angle_unit: Option<AngleUnit>,
 }
 
 impl Recipe {
@@ -132,6 +142,8 @@ impl Recipe {
             seed: 1,
             time: None,
             pairwise: false,
+            across: None,
+            angle_unit: None,
         }
     }
 
@@ -177,6 +189,7 @@ impl Recipe {
         if self.columns.label.trim().is_empty() {
             return Err(Error::Recipe("name the label column".into()));
         }
+        self.validate_targets()?;
         if self.tune && self.classifier.grid().is_none() {
             return Err(Error::Recipe(format!(
                 "{} has no setting to choose; tuning applies to linear-svm and logistic",
@@ -224,6 +237,59 @@ impl Recipe {
         }
         Ok(())
     }
+
+    /// What the decoded variable allows: a regressor with neither pseudo-populations nor generalization across
+    /// conditions, an angle unit exactly when the decoder reads angles.
+    fn validate_targets(&self) -> Result<()> {
+        let name = self.classifier.name();
+        if self.classifier.is_regression() {
+            if self.tune {
+                return Err(Error::Recipe(format!(
+                    "{name} always chooses its penalty inside each training fold; there is nothing more to tune"
+                )));
+            }
+            if self.columns.pseudo.is_some() {
+                return Err(Error::Recipe(format!(
+                    "{name} decodes a continuous variable from a trial table of simultaneously recorded neurons; \
+                     pseudo-populations are built for classes only"
+                )));
+            }
+            if self.across.is_some() {
+                return Err(Error::Recipe(format!(
+                    "generalization across conditions decodes classes; {name} decodes a continuous variable, so \
+                     choose a decoder of classes for it"
+                )));
+            }
+        }
+        match (self.classifier, self.angle_unit) {
+            (Classifier::CircularRidge, None) => Err(Error::Recipe(
+                "circular-ridge reads angles: give their unit (degrees or radians)".into(),
+            )),
+            (c, Some(_)) if c != Classifier::CircularRidge => Err(Error::Recipe(format!(
+                "an angle unit applies to circular-ridge only, not to {}",
+                c.name()
+            ))),
+            _ => Ok(()),
+        }?;
+        if let Some(a) = &self.across {
+            a.validate()?;
+            if self.columns.pseudo.is_some() {
+                return Err(Error::Recipe(
+                    "generalization across conditions needs simultaneously recorded neurons; it does not combine \
+                     separate sessions into pseudo-trials"
+                        .into(),
+                ));
+            }
+            if a.column == self.columns.label {
+                return Err(Error::Recipe(format!(
+                    "'{}' is both the label and the column split into training and testing levels; choose \
+                     different columns",
+                    a.column
+                )));
+            }
+        }
+        Ok(())
+    }
 }
 
 #[cfg(test)]
@@ -237,6 +303,66 @@ mod tests {
         r.columns.group = Some("session".into());
         let back = Recipe::from_json("r.json", &r.to_json()).unwrap();
         assert_eq!(back, r);
+    }
+
+    #[test]
+    fn new_fields_round_trip_and_old_recipes_still_load() {
+        let mut r = Recipe::new("heading");
+        r.classifier = Classifier::CircularRidge;
+        r.angle_unit = Some(AngleUnit::Degrees);
+        assert_eq!(Recipe::from_json("r.json", &r.to_json()).unwrap(), r);
+        let mut a = Recipe::new("choice");
+        a.across = Some(Across {
+            column: "context".into(),
+            assignments: vec![Assignment {
+                train: vec!["A".into()],
+                test: vec!["B".into()],
+            }],
+        });
+        assert_eq!(Recipe::from_json("r.json", &a.to_json()).unwrap(), a);
+        // A recipe written before these fields existed has neither key.
+        let old = Recipe::new("odour").to_json();
+        assert!(!old.contains("across") && !old.contains("angle_unit"));
+        assert_eq!(Recipe::from_json("r.json", &old).unwrap().across, None);
+    }
+
+    #[test]
+    fn regressors_and_angle_units_go_together() {
+        let mut r = Recipe::new("heading");
+        r.classifier = Classifier::CircularRidge;
+        assert!(r
+            .validate()
+            .unwrap_err()
+            .to_string()
+            .contains("degrees or radians"));
+        r.classifier = Classifier::LinearSvm;
+        r.angle_unit = Some(AngleUnit::Radians);
+        assert!(r
+            .validate()
+            .unwrap_err()
+            .to_string()
+            .contains("circular-ridge only"));
+        r.angle_unit = None;
+        r.classifier = Classifier::Ridge;
+        r.across = Some(Across {
+            column: "context".into(),
+            assignments: Vec::new(),
+        });
+        assert!(r
+            .validate()
+            .unwrap_err()
+            .to_string()
+            .contains("decodes classes"));
+        r.classifier = Classifier::LinearSvm;
+        r.across.as_mut().unwrap().assignments = vec![Assignment {
+            train: vec!["A".into()],
+            test: vec!["A".into()],
+        }];
+        assert!(r
+            .validate()
+            .unwrap_err()
+            .to_string()
+            .contains("both a training and a testing level"));
     }
 
     #[test]

@@ -1,8 +1,9 @@
 //! What every analysis's report shares: the software, the design and chance level of the resampling, fit counts
 //! and their warnings, the settings chosen by nested cross-validation; and, in submodules, text formatting
-//! ([`text`]), methods sentences ([`methods`]) and SVG primitives ([`svg`]). Each analysis has its own schema, in
-//! its own folder under `analyses/`.
+//! ([`text`]), methods sentences ([`methods`]), SVG primitives ([`svg`]) and figures on any scale ([`figures`]).
+//! Each analysis has its own schema, in its own folder under `analyses/`.
 
+pub mod figures;
 pub mod methods;
 pub mod svg;
 pub mod text;

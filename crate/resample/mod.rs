@@ -61,6 +61,18 @@ pub fn stratified_folds(
     fold
 }
 
+/// Plain k-fold for a continuous target (no classes to stratify by): the positions `0..n` in random order, dealt
+/// round-robin, so fold sizes differ by at most one.
+pub fn kfold(rng: &mut impl RngCore, n: usize, k: usize) -> Vec<usize> {
+    let mut order: Vec<usize> = (0..n).collect();
+    shuffle(rng, &mut order);
+    let mut fold = vec![0; n];
+    for (dealt, &pos) in order.iter().enumerate() {
+        fold[pos] = dealt % k;
+    }
+    fold
+}
+
 /// Grouped k-fold: a group's trials always share a fold. With `k` or fewer groups, each group is its own fold
 /// (leave-one-group-out). Otherwise groups, in random order, are sorted by size (largest first; the shuffle breaks
 /// ties at random) and each goes to the fold with the fewest trials so far, which evens out fold sizes.
@@ -160,6 +172,19 @@ mod tests {
         let sizes: Vec<usize> = (0..5)
             .map(|f| fold.iter().filter(|&&x| x == f).count())
             .collect();
+        assert!(
+            sizes.iter().max().unwrap() - sizes.iter().min().unwrap() <= 1,
+            "{sizes:?}"
+        );
+    }
+
+    #[test]
+    fn kfold_sizes_differ_by_at_most_one() {
+        let fold = kfold(&mut task_rng(5, Stream::Repeat, 0, 0), 23, 5);
+        let sizes: Vec<usize> = (0..5)
+            .map(|f| fold.iter().filter(|&&x| x == f).count())
+            .collect();
+        assert_eq!(sizes.iter().sum::<usize>(), 23);
         assert!(
             sizes.iter().max().unwrap() - sizes.iter().min().unwrap() <= 1,
             "{sizes:?}"

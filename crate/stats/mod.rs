@@ -1,11 +1,14 @@
-//! Summaries across repeats, permutation p-values, the binomial chance threshold, cluster tests and group-level
-//! tests across the sessions of a study.
+//! Summaries across repeats, permutation p-values, the binomial chance threshold, cluster tests, group-level
+//! tests across the sessions of a study, and scores of continuous and circular decoders ([`regression`],
+//! [`circular`]).
 
 pub mod binomial;
+pub mod circular;
 pub mod clusters;
 pub mod fdr;
 pub mod group;
 pub mod intervals;
+pub mod regression;
 pub mod roc;
 
 use serde::{Deserialize, Serialize};

@@ -9,7 +9,7 @@
 
 use super::data::{self, Decoded};
 use super::request::{err, options, recipe, Files, Request};
-use super::{neurons, study, time_course, trial_table};
+use super::{across, continuous, neurons, study, time_course, trial_table};
 use crate::analyses::{Analysis, Finished};
 use crate::recipe::Recipe;
 use serde_json::{json, Map, Value};
@@ -64,6 +64,8 @@ fn job(
         "time" => Ok(Box::new(time_course::plan(data, recipe)?)),
         "neurons" => Ok(Box::new(neurons::plan(data, recipe, options)?)),
         "study" => Ok(Box::new(study::plan(data, recipe, options)?)),
+        "across" => Ok(Box::new(across::plan(data, recipe)?)),
+        "continuous" => Ok(Box::new(continuous::plan(data, recipe)?)),
         other => Err(err(format!("unknown kind of analysis '{other}'"))),
     }
 }

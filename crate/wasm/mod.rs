@@ -12,6 +12,8 @@
 //! core's message, and a panic hook records the message of any bug, which the page reads with [`last_panic`] when
 //! the wasm instance traps, instead of dying silently.
 
+mod across;
+mod continuous;
 mod data;
 mod inspect;
 mod job;

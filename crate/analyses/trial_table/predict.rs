@@ -54,6 +54,7 @@ fn cross_validated(
             data.n_trials()
         )));
     }
+    decoders::require_classes(recipe.classifier)?;
     let decoder = decoders::build(recipe.classifier, recipe.c, recipe.tune);
     let x = data.x.as_standard_layout();
     // Fold numbers as given, renumbered 0, 1, … in ascending order.
