@@ -23,6 +23,12 @@ pub enum Stream {
     Simulation = 4,
     /// Random subsets of neurons (the neuron-dropping curve).
     Subset = 5,
+    /// Which real trials a power-analysis subsample keeps.
+    PowerTrials = 6,
+    /// Which recorded neurons the power analysis copies as noise neurons, and how it permutes their trials.
+    NoiseNeurons = 7,
+    /// The seed of one power-analysis subsample's own protocol (its repeats and shuffles).
+    PowerProtocol = 8,
 }
 
 /// A generator for task `(a, b)` of kind `kind` under `seed`.

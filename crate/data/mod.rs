@@ -78,6 +78,20 @@ impl Dataset {
         }
     }
 
+    /// Only the trials `rows` (indices, in that order), with their labels and groups; the classes stay as they are.
+    pub fn with_trials(&self, rows: &[usize]) -> Dataset {
+        Dataset {
+            x: self.x.select(ndarray::Axis(0), rows),
+            y: rows.iter().map(|&i| self.y[i]).collect(),
+            groups: self
+                .groups
+                .as_ref()
+                .map(|g| rows.iter().map(|&i| g[i]).collect()),
+            warnings: Vec::new(),
+            ..self.clone()
+        }
+    }
+
     /// Trials per class, in class order.
     pub fn class_counts(&self) -> Vec<usize> {
         self.trials().class_counts()

@@ -9,12 +9,14 @@
 
 pub mod classifier;
 pub mod columns;
+pub mod power;
 pub mod time;
 pub mod units;
 pub mod windows;
 
 pub use classifier::{Classifier, Setting};
 pub use columns::Columns;
+pub use power::PowerSettings;
 pub use time::{TimeInput, TimeSettings};
 pub use units::UnitFilter;
 
@@ -106,6 +108,9 @@ pub struct Recipe {
     /// Time-resolved analyses only: where the windows come from, and the time-course statistics.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub time: Option<TimeSettings>,
+    /// Power analyses only: the grids, subsamples and significance level of planning the next recording.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub power: Option<PowerSettings>,
 }
 
 impl Recipe {
@@ -127,6 +132,7 @@ impl Recipe {
             shuffle_repeats: None,
             seed: 1,
             time: None,
+            power: None,
         }
     }
 
@@ -177,6 +183,9 @@ impl Recipe {
                 "{} has no setting to choose; tuning applies to linear-svm and logistic",
                 self.classifier.name()
             )));
+        }
+        if let Some(p) = &self.power {
+            p.validate()?;
         }
         if let Some(t) = &self.time {
             if self.columns.pseudo.is_some() {
