@@ -1,7 +1,10 @@
-//! Summaries across repeats, permutation p-values and the binomial chance threshold.
+//! Summaries across repeats, permutation p-values and the binomial chance threshold; Student's t ([`student_t`])
+//! and the inverse power-law learning curve ([`learning_curve`]) of the power analysis's extrapolation.
 
 pub mod binomial;
 pub mod clusters;
+pub mod learning_curve;
+pub mod student_t;
 
 use serde::{Deserialize, Serialize};
 
