@@ -1,6 +1,6 @@
-//! Analyses, one folder each: the trial table ([`trial_table`]), the time course ([`time_course`]) and what each
-//! neuron contributes ([`neurons`]). Each folder holds its plan (the tasks), its report schema, its text, its
-//! methods paragraph and its figures.
+//! Analyses, one folder each: the trial table ([`trial_table`]), the time course ([`time_course`]), what each
+//! neuron contributes ([`neurons`]) and planning the next recording ([`power`]). Each folder holds its plan (the
+//! tasks), its report schema, its text, its methods paragraph and its figures.
 //!
 //! Every analysis offers its faces the same shape ([`Analysis`]): a checked plan lists independent tasks, any task
 //! runs anywhere and in any order from its own random stream, and `finish` turns the outcomes, in any order, into
@@ -8,6 +8,7 @@
 //! depend on it.
 
 pub mod neurons;
+pub mod power;
 pub mod time_course;
 pub mod trial_table;
 

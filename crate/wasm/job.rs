@@ -5,7 +5,7 @@
 //! JavaScript double conversion (serde_json's `float_roundtrip` keeps the parse exact).
 
 use super::request::{err, Request};
-use super::{neurons, time_course, trial_table};
+use super::{neurons, power, time_course, trial_table};
 use crate::analyses::{Analysis, Finished};
 use serde_json::{json, Map, Value};
 use wasm_bindgen::prelude::*;
@@ -55,6 +55,7 @@ fn load(
         "table" => Ok(Box::new(trial_table::load(request)?)),
         "time" => Ok(Box::new(time_course::load(request)?)),
         "neurons" => Ok(Box::new(neurons::load(request)?)),
+        "power" => Ok(Box::new(power::load(request)?)),
         other => Err(err(format!("unknown kind of analysis '{other}'"))),
     }
 }

@@ -3,7 +3,7 @@
 //! Every analysis reaches the page through one shape ([`job`]): `prepare` checks the files against the recipe and
 //! lists the tasks, a worker's [`job::Runner`] runs tasks one at a time, and `finish` assembles the outcomes into the
 //! result, its text, methods paragraph, figures and tables. Each analysis adds only its loader (`trial_table.rs`,
-//! `time_course.rs`, `neurons.rs`).
+//! `time_course.rs`, `neurons.rs`, `power.rs`).
 //!
 //! Nothing here may panic across the boundary unnoticed: every fallible call returns `Result<_, JsValue>` with the
 //! core's message, and a panic hook records the message of any bug, which the page reads with [`last_panic`] when
@@ -13,6 +13,7 @@ mod inspect;
 mod job;
 mod neurons;
 mod nwb;
+mod power;
 mod request;
 mod time_course;
 mod trial_table;
