@@ -70,8 +70,9 @@ pub fn paragraph(r: &PowerReport) -> String {
     ));
     match &r.extrapolation {
         Some(e) => s.push(format!(
-            "Beyond the recorded trials, accuracy was extrapolated up to {} trials per condition by an {}; {}.",
+            "Beyond the recorded trials, accuracy was extrapolated up to {} trials per condition ({}) by an {}; {}.",
             e.points.last().map_or(0, |p| p.per_class),
+            e.model,
             e.method,
             r.extrapolation_note
         )),
@@ -80,8 +81,8 @@ pub fn paragraph(r: &PowerReport) -> String {
             r.extrapolation_note
         )),
     }
-    for w in &r.warnings {
-        s.push(format!("Note: {w}."));
+    for c in r.cautions() {
+        s.push(format!("Note: {c}."));
     }
     s.push(format!(
         "Random streams were ChaCha20 generators derived from seed {} and each task's coordinates, so the analysis \

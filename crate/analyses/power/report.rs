@@ -211,8 +211,15 @@ impl PowerReport {
                 .iter()
                 .map(|o| (o.fits, o.capped_fits, o.single_class_fits)),
         );
+        let protocol = Protocol {
+            folds: plan.recipe.folds,
+            repeats: plan.recipe.repeats,
+            shuffles,
+            shuffle_repeats: plan.recipe.shuffle_repeats(),
+        };
         let mut warnings = fits.with_warnings(&plan.plan.scheme.warnings);
-        warnings.extend(cautions(plan));
+        let largest = g.trials.last().copied().unwrap_or(0);
+        warnings.extend(cautions(&data.class_counts(), largest, &protocol, alpha));
         PowerReport {
             schema: POWER_SCHEMA.into(),
             software: Software::current(),
@@ -229,12 +236,7 @@ impl PowerReport {
                 "balanced_accuracy"
             }
             .into(),
-            protocol: Protocol {
-                folds: plan.recipe.folds,
-                repeats: plan.recipe.repeats,
-                shuffles,
-                shuffle_repeats: plan.recipe.shuffle_repeats(),
-            },
+            protocol,
             alpha,
             test_size: test_size(alpha, shuffles),
             spread: SPREAD_NOTE.into(),
@@ -261,26 +263,39 @@ pub fn test_size(alpha: f64, shuffles: usize) -> f64 {
     libm::floor(alpha * m1 + 1e-9) / m1
 }
 
-/// The cautions that belong to this result (also in the text and the methods paragraph).
-pub fn cautions(plan: &PowerPlan) -> Vec<String> {
-    let smallest = plan.plan.data.class_counts().into_iter().min().unwrap_or(0);
-    let largest = plan.grids.trials.last().copied().unwrap_or(0);
+/// The cautions that belong to this result, from the class counts, the largest trials size, the protocol and α
+/// (in the JSON `warnings`, the text and the methods paragraph).
+pub fn cautions(
+    class_counts: &[usize],
+    largest: usize,
+    protocol: &Protocol,
+    alpha: f64,
+) -> Vec<String> {
+    let smallest = class_counts.iter().copied().min().unwrap_or(0);
     let mut out = vec![format!(
         "trial subsamples are drawn from the recorded trials, so two subsamples of n trials per class share on \
          average n/N of each class's trials (at {largest} of the {smallest} trials of the smallest class: {}); near \
          the recorded size the power measured describes this recording more than new recordings of that size",
         pct(largest as f64 / smallest.max(1) as f64)
     )];
-    if plan.recipe.shuffle_repeats() < plan.recipe.repeats {
+    if protocol.shuffle_repeats < protocol.repeats {
         out.push(format!(
             "each shuffle ran {} repeats against the observed {}: the test stays valid but is conservative, so \
              without information subsamples are significant less often than {}, and power is underestimated",
-            plan.recipe.shuffle_repeats(),
-            plan.recipe.repeats,
-            pct(test_size(plan.settings.alpha, plan.recipe.shuffles))
+            protocol.shuffle_repeats,
+            protocol.repeats,
+            pct(test_size(alpha, protocol.shuffles))
         ));
     }
     out
+}
+
+impl PowerReport {
+    /// This result's cautions (they are also among `warnings`).
+    pub fn cautions(&self) -> Vec<String> {
+        let largest = self.trials.last().map_or(0, |t| t.per_class);
+        cautions(&self.class_counts, largest, &self.protocol, self.alpha)
+    }
 }
 
 /// The draw of a task (to order a grid point's subsamples).

@@ -7,13 +7,13 @@ use std::fmt::Write;
 
 /// The one sentence a reader needs first: the fewest trials per class reaching 80 % power, or that none did.
 pub fn headline_sentence(r: &PowerReport) -> String {
-    let target = TARGET_POWER;
-    match r.trials.iter().find(|t| t.summary.power >= target) {
+    let target = format!("{:.0} %", TARGET_POWER * 100.0);
+    match r.trials.iter().find(|t| t.summary.power >= TARGET_POWER) {
         Some(t) => format!(
             "At {} trials per class, the fewest measured to reach {} power, {} of {} subsamples of this recording \
              decoded '{}' significantly at α = {}.",
             t.per_class,
-            pct(target),
+            target,
             t.summary.significant,
             t.summary.subsamples,
             label(r),
@@ -24,7 +24,7 @@ pub fn headline_sentence(r: &PowerReport) -> String {
             format!(
                 "No measured size reached {} power: at {} trials per class (the most measured), {} of {} \
                  subsamples decoded '{}' significantly at α = {}.",
-                pct(target),
+                target,
                 last.per_class,
                 last.summary.significant,
                 last.summary.subsamples,
