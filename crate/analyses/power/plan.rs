@@ -136,41 +136,44 @@ impl PowerPlan {
             })
             .collect::<Result<_>>()?;
         let (n, p) = (out.plan.data.n_trials(), out.plan.data.n_features());
-        let widest = p + out.grids.noise.last().copied().unwrap_or(0);
-        if n * widest > MAX_VALUES {
+        let widest = p.saturating_add(out.grids.noise.last().copied().unwrap_or(0));
+        if n.saturating_mul(widest) > MAX_VALUES {
             return Err(Error::Design(format!(
-                "adding {} noise neurons makes {n} trials × {widest} neurons = {} values per subsample, more than \
-                 the {MAX_VALUES} allowed; add fewer noise neurons",
-                widest - p,
-                n * widest
+                "adding {} noise neurons makes {n} trials × {widest} neurons, more than the {MAX_VALUES} values a \
+                 subsample may hold; add fewer noise neurons",
+                widest - p
             )));
         }
-        let total: u64 = out.tasks().iter().map(|&t| out.fits_in(t) as u64).sum();
+        // Counted per grid point, so that an absurd setting is refused without listing its tasks.
+        let (mut tasks, mut total) = (0u64, 0u64);
+        for point in out.points() {
+            let draws = out.draws(point) as u64;
+            tasks = tasks.saturating_add(draws);
+            total = total.saturating_add(draws.saturating_mul(out.fits_in(point) as u64));
+        }
         if total > MAX_FITS {
             return Err(Error::Design(format!(
-                "this power analysis needs {total} fits over {} subsamples, more than the {MAX_FITS} allowed; \
-                 lower the subsamples per size, the repeats or shuffles of each subsample, or the number of sizes",
-                out.tasks().len()
+                "this power analysis needs {total} fits over {tasks} subsamples, more than the {MAX_FITS} allowed; \
+                 lower the subsamples per size, the repeats or shuffles of each subsample, or the number of sizes"
             )));
         }
         Ok(out)
     }
 
     /// Draws at a grid point: one where every draw would decode the same data (every neuron; no noise neurons).
-    pub fn draws(&self, task_axis: PowerTask) -> usize {
+    pub fn draws(&self, point: PowerTask) -> usize {
         let p = self.plan.data.n_features();
-        match task_axis {
+        match point {
             PowerTask::Neurons { size, .. } if size == p => 1,
             PowerTask::Noise { added: 0, .. } => 1,
             _ => self.settings.subsamples,
         }
     }
 
-    /// Every task: the trials axis, the neurons axis, then the noise axis, each by size and then draw.
-    pub fn tasks(&self) -> Vec<PowerTask> {
+    /// Every grid point (as its task with draw 0): the trials axis, the neurons axis, then the noise axis.
+    fn points(&self) -> impl Iterator<Item = PowerTask> + '_ {
         let g = &self.grids;
-        let points = g
-            .trials
+        g.trials
             .iter()
             .map(|&per_class| PowerTask::Trials { per_class, draw: 0 })
             .chain(
@@ -182,8 +185,12 @@ impl PowerPlan {
                 g.noise
                     .iter()
                     .map(|&added| PowerTask::Noise { added, draw: 0 }),
-            );
-        points
+            )
+    }
+
+    /// Every task: the trials axis, the neurons axis, then the noise axis, each by size and then draw.
+    pub fn tasks(&self) -> Vec<PowerTask> {
+        self.points()
             .flat_map(|point| (0..self.draws(point)).map(move |d| with_draw(point, d)))
             .collect()
     }
@@ -202,7 +209,10 @@ impl PowerPlan {
             }
             _ => self.plan.scheme.folds(),
         };
-        (self.recipe.repeats + self.recipe.shuffles * self.recipe.shuffle_repeats()) * folds
+        let r = &self.recipe;
+        r.repeats
+            .saturating_add(r.shuffles.saturating_mul(r.shuffle_repeats()))
+            .saturating_mul(folds)
     }
 
     /// Run one subsample's protocol: its observed repeats and its shuffles, scored as the trial-table analysis
