@@ -34,6 +34,12 @@ pub enum Stream {
     Session = 9,
     /// The second-level draws of a study's group tests (one null value per session, many times).
     GroupNull = 10,
+    /// Which real trials a power-analysis subsample keeps.
+    PowerTrials = 11,
+    /// Which recorded neurons the power analysis copies as noise neurons, and how it permutes their trials.
+    NoiseNeurons = 12,
+    /// The seed of one power-analysis subsample's own protocol (its repeats and shuffles).
+    PowerProtocol = 13,
 }
 
 /// A generator for task `(a, b)` of kind `kind` under `seed`.

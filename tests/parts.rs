@@ -332,6 +332,35 @@ fn continuous_time_course_in_parts_equals_one_run() {
     combined_equals_single("continuous", &analysis, &[1, 3]);
 }
 
+/// The power analysis: its grids travel in the recipe, and the learning curve is fitted once every part is in.
+#[test]
+fn power_analysis_in_parts_equals_one_run() {
+    let csv = sample("odours.csv");
+    let analysis = [
+        "power",
+        &csv,
+        "--label",
+        "odour",
+        "--ignore",
+        "session",
+        "--classifier",
+        "nearest-mean",
+        "--per-class",
+        "20,40",
+        "--neurons",
+        "4,16",
+        "--added",
+        "0,20",
+        "--subsamples",
+        "3",
+        "--repeats",
+        "2",
+        "--shuffles",
+        "4",
+    ];
+    combined_equals_single("power", &analysis, &[1, 3, 7]);
+}
+
 /// A small decode split into 3 parts in `dir`, on a copy of the sample there (so a test may change it).
 fn three_parts(dir: &Path, extra: &[&str]) -> Vec<PathBuf> {
     let csv = dir.join("data.csv");

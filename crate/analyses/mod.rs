@@ -1,8 +1,8 @@
 //! Analyses, one folder each: the trial table ([`trial_table`]), the time course ([`time_course`]), what each
 //! neuron contributes ([`neurons`]), studies of many sessions ([`study`]), generalization across conditions
-//! ([`across`]) and decoding a continuous or circular variable ([`continuous`]); [`over_time`] holds what the
-//! analyses over time share. Each folder holds its plan (the tasks), its report schema, its text, its methods
-//! paragraph and its figures.
+//! ([`across`]), decoding a continuous or circular variable ([`continuous`]) and planning the next recording
+//! ([`power`]); [`over_time`] holds what the analyses over time share. Each folder holds its plan (the tasks), its
+//! report schema, its text, its methods paragraph and its figures.
 //!
 //! Every analysis offers its faces the same shape ([`Analysis`]): a checked plan lists independent tasks, any task
 //! runs anywhere and in any order from its own random stream, and `finish` turns the outcomes, in any order, into
@@ -13,6 +13,7 @@ pub mod across;
 pub mod continuous;
 pub mod neurons;
 pub mod over_time;
+pub mod power;
 pub mod study;
 pub mod time_course;
 pub mod trial_table;

@@ -5,7 +5,7 @@
 
 use crate::part::{self, Read};
 use crate::run::{deliver, Loaded, Outputs};
-use crate::{decode, neurons, study, targets, timecourse};
+use crate::{decode, neurons, power, study, targets, timecourse};
 use clap::Args;
 use popdecode::analyses::Analysis;
 use std::path::PathBuf;
@@ -42,6 +42,7 @@ pub fn run(args: CombineArgs) -> Result<(), String> {
         timecourse::NAME => finish(timecourse::load(&inputs)?, parts, &args),
         neurons::NAME => finish(neurons::load(&inputs)?, parts, &args),
         study::NAME => finish(study::load(&inputs)?, parts, &args),
+        power::NAME => finish(power::load(&inputs)?, parts, &args),
         targets::ACROSS => finish(targets::load_across(&inputs)?, parts, &args),
         targets::CONTINUOUS => finish(targets::load_continuous(&inputs)?, parts, &args),
         other => Err(format!(

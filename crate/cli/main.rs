@@ -9,6 +9,7 @@ mod files;
 mod inspect;
 mod neurons;
 mod part;
+mod power;
 mod predict;
 mod run;
 mod study;
@@ -38,6 +39,8 @@ enum Command {
     Timecourse(Box<timecourse::TimecourseArgs>),
     /// What each neuron contributes: neuron-dropping curve, each neuron alone, weights and activation patterns.
     Neurons(neurons::NeuronsArgs),
+    /// Planning the next recording: accuracy and power against trials per class, neurons and added noise neurons.
+    Power(Box<power::PowerArgs>),
     /// What an NWB file holds: units, spikes, trials and the trials table's columns.
     Inspect(inspect::InspectArgs),
     /// Cross-validated predictions on fold numbers you supply in a column (no balancing, no repeats).
@@ -54,6 +57,7 @@ fn main() -> ExitCode {
         Command::Decode(args) => decode::run(args),
         Command::Timecourse(args) => timecourse::run(*args),
         Command::Neurons(args) => neurons::run(args),
+        Command::Power(args) => power::run(*args),
         Command::Inspect(args) => inspect::run(args),
         Command::Predict(args) => predict::run(args),
         Command::Combine(args) => combine::run(args),

@@ -83,6 +83,20 @@ impl Dataset {
         }
     }
 
+    /// Only the trials `rows` (indices, in that order), with their labels and groups; the classes stay as they are.
+    pub fn with_trials(&self, rows: &[usize]) -> Dataset {
+        Dataset {
+            x: self.x.select(ndarray::Axis(0), rows),
+            y: rows.iter().map(|&i| self.y[i]).collect(),
+            groups: self
+                .groups
+                .as_ref()
+                .map(|g| rows.iter().map(|&i| g[i]).collect()),
+            warnings: Vec::new(),
+            ..self.clone()
+        }
+    }
+
     /// Only the trials of `keep` (class indices, ascending), relabelled 0, 1, … in that order; groups no trial
     /// is left in are dropped (and the others renumbered, with the sessions of a pseudo-population's features).
     pub fn with_classes(&self, keep: &[usize]) -> Dataset {

@@ -12,6 +12,7 @@ pub mod angle;
 pub mod classifier;
 pub mod columns;
 pub mod limits;
+pub mod power;
 pub mod time;
 pub mod units;
 pub mod windows;
@@ -20,6 +21,7 @@ pub use across::{Across, Assignment};
 pub use angle::AngleUnit;
 pub use classifier::{Classifier, Setting};
 pub use columns::Columns;
+pub use power::PowerSettings;
 pub use time::{GeneralizationNull, TimeInput, TimeSettings};
 pub use units::UnitFilter;
 
@@ -120,6 +122,9 @@ pub struct Recipe {
     /// For `circular-ridge`: the unit the label column's angles are written in.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub angle_unit: Option<AngleUnit>,
+    /// Power analyses only: the grids, subsamples and significance level of planning the next recording.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub power: Option<PowerSettings>,
 }
 
 impl Recipe {
@@ -144,6 +149,7 @@ impl Recipe {
             pairwise: false,
             across: None,
             angle_unit: None,
+            power: None,
         }
     }
 
@@ -200,6 +206,9 @@ impl Recipe {
             return Err(Error::Recipe(
                 "pairwise decoding is for trial tables; a time course cannot run it yet".into(),
             ));
+        }
+        if let Some(p) = &self.power {
+            p.validate()?;
         }
         if let Some(t) = &self.time {
             if self.columns.pseudo.is_some() {

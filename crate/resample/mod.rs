@@ -16,23 +16,40 @@ use rand_core::RngCore;
 
 /// Randomly undersample every class to the size of the smallest. Returns trial indices, sorted.
 pub fn balance(rng: &mut impl RngCore, y: &[usize], n_classes: usize) -> Vec<usize> {
-    let mut by_class: Vec<Vec<usize>> = vec![Vec::new(); n_classes];
-    for (i, &c) in y.iter().enumerate() {
-        by_class[c].push(i);
-    }
-    let smallest = by_class
+    let smallest = class_members(y, n_classes)
         .iter()
         .map(Vec::len)
         .filter(|&n| n > 0)
         .min()
         .unwrap_or(0);
-    let mut kept = Vec::with_capacity(smallest * n_classes);
+    undersample(rng, y, n_classes, smallest)
+}
+
+/// Keep `per_class` trials of every class (all of a class that has fewer), drawn at random without replacement
+/// (each class's trials shuffled in file order, the first `per_class` kept). Returns trial indices, sorted.
+pub fn undersample(
+    rng: &mut impl RngCore,
+    y: &[usize],
+    n_classes: usize,
+    per_class: usize,
+) -> Vec<usize> {
+    let mut by_class = class_members(y, n_classes);
+    let mut kept = Vec::with_capacity(per_class * n_classes);
     for members in &mut by_class {
         shuffle(rng, members);
-        kept.extend_from_slice(&members[..smallest.min(members.len())]);
+        kept.extend_from_slice(&members[..per_class.min(members.len())]);
     }
     kept.sort_unstable();
     kept
+}
+
+/// The trials of each class, in file order.
+fn class_members(y: &[usize], n_classes: usize) -> Vec<Vec<usize>> {
+    let mut by_class: Vec<Vec<usize>> = vec![Vec::new(); n_classes];
+    for (i, &c) in y.iter().enumerate() {
+        by_class[c].push(i);
+    }
+    by_class
 }
 
 /// Stratified k-fold: fold number of each of `trials`, so that every class is spread over the folds as evenly as

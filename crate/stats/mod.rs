@@ -1,6 +1,7 @@
 //! Summaries across repeats, permutation p-values, the binomial chance threshold, cluster tests, group-level
-//! tests across the sessions of a study, and scores of continuous and circular decoders ([`regression`],
-//! [`circular`]).
+//! tests across the sessions of a study, scores of continuous and circular decoders ([`regression`],
+//! [`circular`]), and Student's t ([`student_t`]) and the inverse power-law learning curve ([`learning_curve`]) of
+//! the power analysis's extrapolation.
 
 pub mod binomial;
 pub mod circular;
@@ -8,8 +9,10 @@ pub mod clusters;
 pub mod fdr;
 pub mod group;
 pub mod intervals;
+pub mod learning_curve;
 pub mod regression;
 pub mod roc;
+pub mod student_t;
 
 use serde::{Deserialize, Serialize};
 

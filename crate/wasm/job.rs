@@ -9,7 +9,7 @@
 
 use super::data::{self, Decoded};
 use super::request::{err, options, recipe, Files, Request};
-use super::{across, continuous, neurons, study, time_course, trial_table};
+use super::{across, continuous, neurons, power, study, time_course, trial_table};
 use crate::analyses::{Analysis, Finished};
 use crate::recipe::Recipe;
 use serde_json::{json, Map, Value};
@@ -66,6 +66,7 @@ fn job(
         "study" => Ok(Box::new(study::plan(data, recipe, options)?)),
         "across" => Ok(Box::new(across::plan(data, recipe)?)),
         "continuous" => Ok(Box::new(continuous::plan(data, recipe)?)),
+        "power" => Ok(Box::new(power::plan(data, recipe)?)),
         other => Err(err(format!("unknown kind of analysis '{other}'"))),
     }
 }

@@ -19,6 +19,7 @@ mod inspect;
 mod job;
 mod neurons;
 mod nwb;
+mod power;
 mod request;
 mod study;
 mod time_course;

@@ -16,7 +16,7 @@ pub mod plots;
 pub mod report;
 pub mod text;
 
-pub use plan::{sizes, MeanSd, NeuronOutcome, NeuronTask, NeuronsPlan};
+pub use plan::{sizes, subset, MeanSd, NeuronOutcome, NeuronTask, NeuronsPlan};
 
 use super::{Analysis, Finished};
 use crate::recipe::Recipe;

@@ -56,6 +56,19 @@ pub fn sizes(p: usize) -> Vec<usize> {
     out
 }
 
+/// Draw `draw` of a random subset of `size` of the `p` neurons, sorted: the first `size` of a shuffle from the
+/// stream (seed, subset, size, draw). The dropping curve and the power analysis's neurons axis draw the same subsets.
+pub fn subset(seed: u64, p: usize, size: usize, draw: usize) -> Vec<usize> {
+    let mut all: Vec<usize> = (0..p).collect();
+    shuffle(
+        &mut task_rng(seed, Stream::Subset, size as u64, draw as u64),
+        &mut all,
+    );
+    let mut chosen = all[..size].to_vec();
+    chosen.sort_unstable();
+    chosen
+}
+
 /// The neuron analyses of a recipe on a dataset.
 pub struct NeuronsPlan {
     /// The recipe as it runs; its shuffles are run for each neuron alone (none for the subsets).
@@ -121,16 +134,7 @@ impl NeuronsPlan {
     pub fn run(&self, task: NeuronTask) -> NeuronOutcome {
         let p = self.plan.data.n_features();
         let cols: Vec<usize> = match task {
-            NeuronTask::Subset { size, draw } => {
-                let mut all: Vec<usize> = (0..p).collect();
-                shuffle(
-                    &mut task_rng(self.recipe.seed, Stream::Subset, size as u64, draw as u64),
-                    &mut all,
-                );
-                let mut chosen = all[..size].to_vec();
-                chosen.sort_unstable();
-                chosen
-            }
+            NeuronTask::Subset { size, draw } => subset(self.recipe.seed, p, size, draw),
             NeuronTask::Single { neuron } => vec![neuron],
         };
         let sub = self.plan.data.with_features(&cols);
