@@ -103,15 +103,18 @@ test('pairwise decoding: the page\'s JSON is the command line\'s, and every inte
   const pairs = await cells(page, 'table.pairwise');
   assert.equal(r.pairwise.pairs.length, 6);
   assert.equal(pairs.length, 7);
+  // Balanced classes: every pair leads with accuracy, named in the heading.
+  assert.ok(r.pairwise.pairs.every((p) => p.headline === 'accuracy'));
+  assert.equal(pairs[0][1], 'accuracy, mean over repeats');
   r.pairwise.pairs.forEach((p, i) => {
     const row = pairs[i + 1];
     const sp = p[p.headline];
     assert.equal(row[0], `${p.classes[0]} vs ${p.classes[1]}`);
-    assert.equal(row[2], pct(sp.mean));
-    assert.equal(row[3], `${pct(sp.ci[0])} to ${pct(sp.ci[1])}`);
-    assert.equal(row[4], pct(p.auc.mean));
-    assert.equal(row[6], p.q_value.toPrecision(3));
-    assert.equal(row[7], p.discovery ? 'yes' : 'no');
+    assert.equal(row[1], pct(sp.mean));
+    assert.equal(row[2], `${pct(sp.ci[0])} to ${pct(sp.ci[1])}`);
+    assert.equal(row[3], pct(p.auc.mean));
+    assert.equal(row[5], p.q_value.toPrecision(3));
+    assert.equal(row[6], p.discovery ? 'yes' : 'no');
   });
   assert.ok(await page.isVisible('#views [data-figure=pairwise] img'), 'the pairwise heatmap is shown');
   // The exports: the heatmap as SVG (the core's figure) and the pairwise table as CSV with the JSON's numbers.

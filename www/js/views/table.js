@@ -86,11 +86,13 @@
       const pw = r.pairwise;
       if (!pw) return;
       const tested = pw.fdr !== undefined && pw.fdr !== null;
-      const headings = ['pair of classes', 'score', 'mean over repeats', '95 % confidence interval', 'AUC, mean over repeats'];
+      // The score in the heading when every pair leads with the same one, else in a column of its own.
+      const one = pw.pairs.every((p) => p.headline === pw.pairs[0].headline) ? SCORE_WORDS[pw.pairs[0].headline] : null;
+      const headings = ['pair of classes', ...(one ? [] : ['score']), `${one || 'score'}, mean over repeats`, '95 % confidence interval', 'AUC, mean over repeats'];
       if (tested) headings.push('p (own shuffles)', 'q (adjusted across pairs)', `discovery at a false-discovery rate of ${pw.fdr}?`);
       const rows = pw.pairs.map((p) => {
         const s = p[p.headline];
-        const row = [head(`${p.classes[0]} vs ${p.classes[1]}`), words(SCORE_WORDS[p.headline]), pct(s.mean), words(range(s.ci)), p.auc ? pct(p.auc.mean) : '—'];
+        const row = [head(`${p.classes[0]} vs ${p.classes[1]}`), ...(one ? [] : [words(SCORE_WORDS[p.headline])]), pct(s.mean), words(range(s.ci)), p.auc ? pct(p.auc.mean) : '—'];
         if (tested) row.push(pShown(p.p_value, r.shuffle.count), p3(p.q_value), words(p.discovery ? 'yes' : 'no'));
         return row;
       });
