@@ -8,6 +8,8 @@
 #   without slurm-wlm and munge
 #   the fuzzer (scripts/fuzz.sh) for FUZZ_SECONDS per input kind (default 45), one check: fails when it keeps a
 #   failing input, which then stays in tests/fuzz-regressions/ as a regression test
+#   the statically linked executable (tests/static_binary.sh: built by scripts/build-static.sh, run on the demo data
+#   with an empty environment, compared byte for byte with the normal build), one check; on x86-64 Linux only
 set -uo pipefail
 cd "$(dirname "$0")/.."
 mkdir -p test-output
@@ -56,6 +58,14 @@ if [ "$(id -u)" -ne 0 ] || ! command -v slurmctld >/dev/null 2>&1 || ! command -
 else
   cargo build --release --quiet --bin popdecode
   check slurm tests/slurm.sh
+fi
+
+echo "== the statically linked executable (musl target)"
+if [ "$(uname -s)-$(uname -m)" != "Linux-x86_64" ]; then
+  echo "SKIPPED: static-binary (the musl target is built and run on x86-64 Linux only)"
+else
+  cargo build --release --quiet --bin popdecode
+  check static-binary tests/static_binary.sh
 fi
 
 if [ -x scripts/build-web.sh ] && [ -d tests/browser ]; then
