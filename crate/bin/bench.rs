@@ -20,6 +20,11 @@
 //! memory (defaults: the target case, 1000 trials × 300 units × 40 windows, 5 folds × 10 repeats,
 //! 200 shuffles × 10 repeats, shrinkage LDA, every core). Prints the time and the fits per second.
 
+/// In the statically linked (musl) build, an allocator that keeps freed memory for reuse (Cargo.toml says why).
+#[cfg(target_env = "musl")]
+#[global_allocator]
+static ALLOCATOR: dlmalloc::GlobalDlmalloc = dlmalloc::GlobalDlmalloc;
+
 use popdecode::analyses::time_course::{TimePlan, TimeReport};
 use popdecode::analyses::trial_table::{run_all, Plan};
 use popdecode::data::time::TimeDataset;

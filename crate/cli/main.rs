@@ -16,6 +16,11 @@ mod study;
 mod targets;
 mod timecourse;
 
+/// In the statically linked (musl) build, an allocator that keeps freed memory for reuse (Cargo.toml says why).
+#[cfg(target_env = "musl")]
+#[global_allocator]
+static ALLOCATOR: dlmalloc::GlobalDlmalloc = dlmalloc::GlobalDlmalloc;
+
 use clap::{Parser, Subcommand};
 use std::io::Write;
 use std::process::ExitCode;

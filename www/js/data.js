@@ -8,6 +8,8 @@
   S.kind = 'table';
   S.files = {}; // slot -> { name, size, info } for 'table', 'events', 'trials', 'nwb'
   S.generation = 0; // counts loads: a record made from other files has another generation
+  S.pending = {}; // the latest load asked for each slot
+  S.forgotten = 0; // counts the times every file was forgotten (another kind of data chosen)
   S.features = { names: [], chosen: new Set(), disabled: new Set(), filter: '' };
   S.unitColumns = [];
 
@@ -70,6 +72,7 @@
     S.data = null;
     S.files = {};
     S.generation++;
+    S.forgotten++;
     $('data-view').hidden = true;
     $('data-status').textContent = '';
     PD.clearError('data-error');
@@ -84,12 +87,18 @@
   PD.loadInto = async function (slot, file) {
     PD.clearError('data-error');
     $('data-status').textContent = `Reading ${file.name} (${PD.bytes(file.size)})…`;
-    const gen = ++S.generation;
+    // A newer load into the same slot, or forgetting every file, makes this one stale; a load into the other slot
+    // (the spike events and the trial table are often chosen one right after the other) does not.
+    ++S.generation;
+    const token = {};
+    S.pending[slot] = token;
+    const forgotten = S.forgotten;
+    const stale = () => S.pending[slot] !== token || S.forgotten !== forgotten;
     let answer;
     try {
       answer = await dataWorker().ask('put', { slot, file });
     } catch (e) {
-      if (gen !== S.generation) return;
+      if (stale()) return;
       delete S.files[slot];
       $('data-status').textContent = '';
       PD.showError('data-error', e.message);
@@ -97,7 +106,7 @@
       PD.emit('data');
       return;
     }
-    if (gen !== S.generation) return;
+    if (stale()) return;
     S.files[slot] = { name: file.name, size: file.size, info: answer.info, read: answer.read };
     afterLoad(slot);
   };
