@@ -337,3 +337,61 @@ fn pairwise_decoding_reaches_every_output() {
         .unwrap()
         .contains("Pairwise decoding"));
 }
+
+/// Settings of one analysis given to another are refused with one message, never silently ignored: pairwise
+/// decoding across conditions or of a continuous variable, and a decoder of numbers for a study (said once for the
+/// study, not once per session).
+#[test]
+fn settings_that_do_not_combine_are_refused_once() {
+    let samples = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("samples");
+    let s = |name: &str| samples.join(name).to_str().unwrap().to_string();
+    let cases: [(Vec<String>, &str); 3] = [
+        (
+            vec![
+                "decode".into(),
+                s("choices.csv"),
+                "--label".into(),
+                "choice".into(),
+                "--across".into(),
+                "context".into(),
+                "--pairwise".into(),
+            ],
+            "not combined with training and testing across conditions",
+        ),
+        (
+            vec![
+                "decode".into(),
+                s("running.csv"),
+                "--label".into(),
+                "speed".into(),
+                "--classifier".into(),
+                "ridge".into(),
+                "--pairwise".into(),
+            ],
+            "a continuous variable has no pairs",
+        ),
+        (
+            vec![
+                "study".into(),
+                s("study/study.csv"),
+                "--label".into(),
+                "odour".into(),
+                "--classifier".into(),
+                "ridge".into(),
+            ],
+            "this analysis decodes classes",
+        ),
+    ];
+    for (args, expected) in cases {
+        let out = bin().args(&args).output().unwrap();
+        assert_eq!(out.status.code(), Some(2), "{args:?}");
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert!(err.contains(expected), "{args:?}: {err}");
+        assert_eq!(
+            err.matches("decodes classes").count().max(1),
+            1,
+            "said once: {err}"
+        );
+        assert_eq!(err.lines().count(), 1, "one line: {err}");
+    }
+}

@@ -135,6 +135,13 @@ impl AcrossPlan {
     pub fn new(data: AcrossData, recipe: &Recipe) -> Result<AcrossPlan> {
         recipe.validate()?;
         decoders::require_classes(recipe.classifier)?;
+        if recipe.pairwise {
+            return Err(Error::Recipe(
+                "pairwise decoding is an analysis of one recording's classes; it is not combined with training \
+                 and testing across conditions"
+                    .into(),
+            ));
+        }
         let across = recipe.across.as_ref().ok_or_else(|| {
             Error::Recipe("this recipe names no column to generalize across".into())
         })?;

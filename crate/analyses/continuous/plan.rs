@@ -93,6 +93,11 @@ impl ContinuousPlan {
 
     pub fn new(data: TargetData, recipe: &Recipe) -> Result<ContinuousPlan> {
         recipe.validate()?;
+        if recipe.pairwise {
+            return Err(Error::Recipe(
+                "pairwise decoding is for classes; a continuous variable has no pairs of conditions".into(),
+            ));
+        }
         let src = data.features.source.clone();
         let variable = match recipe.classifier {
             Classifier::Ridge => Variable::Linear,

@@ -90,7 +90,7 @@ pub enum AnyOutcome {
 impl AnyPlan {
     pub fn tasks(&self) -> Vec<Task> {
         match self {
-            // Whole-table tasks only: pairwise decoding is refused for studies (`check_recipe`).
+            // Whole-table tasks only: pairwise decoding is refused for studies (`assess`).
             AnyPlan::Table(p) => p
                 .tasks()
                 .into_iter()
@@ -359,6 +359,8 @@ pub fn assess(
                 .into(),
         ));
     }
+    // Said once for the study, not once per session.
+    crate::decoders::require_classes(recipe.classifier)?;
     if options.pool && recipe.columns.group.is_some() {
         return Err(Error::Recipe(
                 "pooled sessions are shuffled within sessions and split by their own folds; a group column cannot \
