@@ -149,6 +149,7 @@
       recipe.time.generalize = $('generalize').checked;
       recipe.time.alpha = number('alpha', 'Cluster α', (v) => v > 0 && v < 1, 'a number between 0 and 1 (for example 0.05)');
     }
+    if (S.kind === 'study') problems.push(...PD.studyProblems());
     return { recipe, problems };
   };
 
@@ -164,7 +165,7 @@
 
   // ---------- a recipe file into the form ----------
   PD.applyRecipe = function (r) {
-    const kind = r.time ? r.time.input.kind : 'table';
+    const kind = r.time ? r.time.input.kind : S.kind === 'study' ? 'study' : 'table';
     let note = '';
     if (kind !== S.kind) {
       PD.setKind(kind);
@@ -251,7 +252,8 @@
     const parts = [];
     const t = r.time && r.time.input;
     const windows = () => parts.push('--width', t.width, '--step', t.step, '--start', t.start, '--end', t.end);
-    if (!t) parts.push('popdecode decode', name('table', 'FILE'));
+    if (S.kind === 'study') parts.push('popdecode study', q(S.study && S.study.table ? S.study.table : 'STUDY.csv'));
+    else if (!t) parts.push('popdecode decode', name('table', 'FILE'));
     else if (t.kind === 'binned') parts.push('popdecode timecourse', name('table', 'FILE'), '--trial', q(t.trial), '--time', q(t.time));
     else if (t.kind === 'nwb') {
       parts.push('popdecode timecourse --nwb', name('nwb', 'FILE.nwb'));
@@ -294,6 +296,7 @@
       if (t.width !== undefined) parts.push(`windows ${t.width} s every ${t.step} s from ${t.start} to ${t.end} s`);
       if (r.time.generalize) parts.push('temporal generalization');
     }
+    parts.push(...PD.describeMore(r));
     return parts.join('; ');
   };
 
@@ -313,6 +316,7 @@
     if (!same(wt.input, nt.input)) out.push('the time settings (columns, windows or units)');
     if (!same(wt.generalize, nt.generalize)) out.push('Temporal generalization');
     if (!same(wt.alpha, nt.alpha)) out.push(`Cluster α (${show(wt.alpha)} → ${show(nt.alpha)})`);
+    out.push(...PD.moreChanges(was, now));
     return out;
   };
 }(window.PD));
