@@ -82,8 +82,10 @@ test('generalization across conditions: the page and the command line give the s
   assert.deepEqual(recipe.across, { column: 'context', assignments: [] });
   // Training on one level and testing on the other is one assignment; the record on view is then stale.
   await set(b.page, 'across-train', 'citral');
-  assert.match(await b.page.textContent('#views .stale'), /the condition column or its levels/);
+  await b.page.click('#across-start');
+  assert.match(await b.page.textContent('#across-test-error'), /the levels to test on/);
   await set(b.page, 'across-test', 'hexanal');
+  assert.match(await b.page.textContent('#views .stale'), /the condition column or its levels/);
   await runAndWait(b.page, '#across-start');
   const one = JSON.parse(await downloadText(b.page, '#export-json'));
   assert.deepEqual(one.assignments.map((a) => [a.train, a.test]), [[['citral'], ['hexanal']]]);

@@ -183,13 +183,16 @@
     $('power-shuffles').value = r.shuffles;
   }
 
-  // Called by PD.updateButtons: `ok` is whether the current data and settings can run.
+  // Called by PD.updateButtons: `ok` is whether the current data and settings can run as a decoding of classes.
+  // Generalization across conditions and continuous decoding have designs of their own (a numeric label has no
+  // classes), so they need only the data and a form without problems; the core checks their design at the run.
   PD.updateAnalysisButtons = function (ok) {
     fillPowerDefaults();
-    const off = !ok || !!S.run || S.kind === 'study';
+    const formOk = PD.dataReady() && S.check && !S.check.problems.length;
+    const off = !formOk || !!S.run || S.kind === 'study';
     $('across-start').disabled = off;
     $('continuous-start').disabled = off;
-    $('power-start').disabled = off || S.kind !== 'table';
+    $('power-start').disabled = !ok || !!S.run || S.kind !== 'table';
   };
 
   window.addEventListener('DOMContentLoaded', () => {
