@@ -14,8 +14,8 @@
   function grid(view, caption, head, points, size) {
     if (!points.length) return;
     PD.table(view, caption, [head, 'subsamples', 'accuracy, mean', 'SD', 'significant', 'power'],
-      points.map((p) => [{ text: String(size(p)), cls: 'text', header: true }, p.summary.subsamples,
-        pct(p.summary.accuracy.mean), pct(p.summary.accuracy.sd), p.summary.significant, pct(p.summary.power)]));
+      points.map((p) => [{ text: String(size(p)), cls: 'text', header: true }, p.subsamples,
+        pct(p.accuracy.mean), pct(p.accuracy.sd), p.significant, pct(p.power)]));
   }
 
   PD.views.power = function (record, view, ex) {
