@@ -6,6 +6,8 @@
 #   browser tests (node --test), when scripts/build-web.sh exists
 #   a real one-node SLURM running scripts/slurm/ (tests/slurm.sh), one check; skipped, saying so, without root or
 #   without slurm-wlm and munge
+#   the fuzzer (scripts/fuzz.sh) for FUZZ_SECONDS per input kind (default 45), one check: fails when it keeps a
+#   failing input, which then stays in tests/fuzz-regressions/ as a regression test
 set -uo pipefail
 cd "$(dirname "$0")/.."
 mkdir -p test-output
@@ -26,7 +28,7 @@ check() { # one named check that passes or fails as a whole
 }
 
 echo "== cargo test"
-cargo test --release 2>&1 | tee test-output/cargo-test.log | grep -E '^test result|FAILED|panicked'
+cargo test --release --no-fail-fast 2>&1 | tee test-output/cargo-test.log | grep -E '^test result|FAILED|panicked'
 if ! grep -q '^test result' test-output/cargo-test.log; then
   echo "cargo test did not run (build failure?)"; tail -n 30 test-output/cargo-test.log; failed=$((failed + 1))
 fi
@@ -44,6 +46,9 @@ source scripts/reference-venv.sh
 p=$(grep -Eo '[0-9]+ passed' test-output/pytest.log | tail -1 | grep -Eo '[0-9]+'); passed=$((passed + ${p:-0}))
 f=$(grep -Eo '[0-9]+ (failed|error)' test-output/pytest.log | grep -Eo '[0-9]+' | awk '{s+=$1} END {print s+0}'); failed=$((failed + ${f:-0}))
 [ "${p:-0}" -gt 0 ] || [ "${f:-0}" -gt 0 ] || { echo "pytest ran no test"; failed=$((failed + 1)); }
+
+echo "== fuzzing the readers and plans (${FUZZ_SECONDS:-45} s per kind)"
+check fuzz scripts/fuzz.sh "${FUZZ_SECONDS:-45}"
 
 echo "== a real SLURM (one node, started and stopped by tests/slurm.sh)"
 if [ "$(id -u)" -ne 0 ] || ! command -v slurmctld >/dev/null 2>&1 || ! command -v munged >/dev/null 2>&1; then

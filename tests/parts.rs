@@ -356,7 +356,9 @@ fn power_analysis_in_parts_equals_one_run() {
         "--repeats",
         "2",
         "--shuffles",
-        "4",
+        "19",
+        "--shuffle-repeats",
+        "1",
     ];
     combined_equals_single("power", &analysis, &[1, 3, 7]);
 }

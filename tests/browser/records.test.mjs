@@ -227,7 +227,7 @@ test('what will happen is said before it happens: scheme in words, identical rep
   assert.match(await page.textContent('#estimate'), /\d+ fits in \d+ tasks on 2 workers: about .* on this computer/);
   assert.equal(await page.isDisabled('#compare-start'), false);
   // A long run asks first; "Not now" starts nothing.
-  await set(page, 'repeats', 200000);
+  await set(page, 'repeats', 100000);
   await page.waitForFunction(() => /about [\d.]+ (min|h)/.test(document.getElementById('estimate').textContent), null, { timeout: 300_000 });
   await page.click('#start');
   await page.waitForSelector('#confirm:not([hidden])');

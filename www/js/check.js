@@ -43,6 +43,7 @@
     const c = $('classifier').value;
     $('c').disabled = !PD.WITH_C.includes(c) || $('tune').checked;
     $('tune').disabled = !PD.WITH_C.includes(c);
+    $('generalization-null').disabled = !$('generalize').checked;
     PD.saveSettings();
     const mine = ++seq;
     const { recipe, problems } = PD.readRecipe();

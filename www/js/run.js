@@ -50,7 +50,10 @@
   // The recipe and options each kind of run uses, from the form's recipe.
   PD.runRecipe = function (kind, base) {
     const recipe = JSON.parse(JSON.stringify(base));
-    if (kind === 'neurons') recipe.shuffles = 0;
+    // Pairwise decoding belongs to the main decoding only; the neuron analyses test each neuron against the
+    // shuffles only when asked (a shuffle test per neuron is many fits).
+    if (kind !== 'main') delete recipe.pairwise;
+    if (kind === 'neurons' && !$('neuron-shuffles').checked) recipe.shuffles = 0;
     if (kind === 'compare') { recipe.shuffles = 0; recipe.repeats = Math.min(recipe.repeats, 20); recipe.tune = false; }
     if (PD.ANALYSES[kind]) PD.ANALYSES[kind].recipe(recipe);
     return recipe;

@@ -13,7 +13,12 @@
     'rbf-svm': 'SVM, Gaussian kernel',
   };
   PD.SETTING_IDS = ['classifier', 'c', 'tune', 'folds', 'repeats', 'balance', 'shuffles', 'shuffle-repeats', 'seed',
-    'drop-missing', 'width', 'step', 't-start', 't-end', 'generalize', 'alpha', 'draws'];
+    'drop-missing', 'width', 'step', 't-start', 't-end', 'generalize', 'generalization-null', 'alpha', 'pairwise', 'draws',
+    'neuron-shuffles'];
+  PD.NULL_WORDS = {
+    'training-labels': 'null of the generalization matrix: training labels shuffled, test labels kept',
+    'all-labels': 'null of the generalization matrix: every label shuffled',
+  };
 
   // ---------- help disclosures and field messages ----------
   // Each field's help is behind a small "?" button (aria-expanded) and takes no space when closed; the control
@@ -128,6 +133,8 @@
     recipe.shuffles = whole('shuffles', 'Shuffles', 0);
     recipe.shuffle_repeats = $('shuffle-repeats').value.trim() === '' ? null : whole('shuffle-repeats', 'Repeats per shuffle (or empty)', 1);
     recipe.seed = whole('seed', 'Seed', 0);
+    // Written only when on, as the core writes a recipe (a recipe without it is not pairwise).
+    if (S.kind === 'table' && $('pairwise').checked) recipe.pairwise = true;
     const windows = () => {
       const w = { width: number('width', 'Window width', (v) => v > 0, 'a number of seconds above 0'),
         step: number('step', 'Window step', (v) => v > 0, 'a number of seconds above 0'),
@@ -147,6 +154,8 @@
     }
     if (recipe.time) {
       recipe.time.generalize = $('generalize').checked;
+      // The null matters only for the matrix: written with it, as the core writes the one it used.
+      if (recipe.time.generalize) recipe.time.generalization_null = $('generalization-null').value;
       recipe.time.alpha = number('alpha', 'Cluster α', (v) => v > 0 && v < 1, 'a number between 0 and 1 (for example 0.05)');
     }
     if (S.kind === 'study') problems.push(...PD.studyProblems());
@@ -181,8 +190,10 @@
     $('shuffle-repeats').value = r.shuffle_repeats === null || r.shuffle_repeats === undefined ? '' : r.shuffle_repeats;
     $('seed').value = r.seed;
     $('drop-missing').checked = !!r.columns.drop_missing;
+    $('pairwise').checked = !!r.pairwise;
     if (r.time) {
       $('generalize').checked = !!r.time.generalize;
+      $('generalization-null').value = r.time.generalization_null || 'training-labels';
       $('alpha').value = r.time.alpha;
       const t = r.time.input;
       if (t.kind === 'events' || t.kind === 'nwb') {
@@ -278,8 +289,10 @@
     if (r.shuffle_repeats !== null) parts.push('--shuffle-repeats', r.shuffle_repeats);
     if (!r.balance) parts.push('--no-balance');
     if (r.columns.drop_missing) parts.push('--drop-missing');
+    if (r.pairwise) parts.push('--pairwise');
     parts.push('--seed', r.seed);
     if (r.time && r.time.generalize) parts.push('--generalize');
+    if (r.time && r.time.generalization_null) parts.push('--generalization-null', r.time.generalization_null);
     if (r.time && r.time.alpha !== 0.05) parts.push('--alpha', r.time.alpha);
     return parts.join(' ');
   };
@@ -289,12 +302,14 @@
     const parts = [PD.DECODER_NAMES[r.classifier] + (r.tune ? ', C chosen inside each training fold' : PD.WITH_C.includes(r.classifier) ? `, C = ${r.c}` : '')];
     parts.push(`folds ${r.folds}`, PD.count(r.repeats, 'repeat'), PD.count(r.shuffles, 'shuffle'), `seed ${r.seed}`);
     if (!r.balance) parts.push('classes not balanced');
+    if (r.pairwise) parts.push('every pair of conditions also decoded on its own');
     parts.push(`label ‘${r.columns.label}’` + (r.columns.group ? `, groups ‘${r.columns.group}’` : '') +
       (r.columns.pseudo ? `, pseudo-trials across ‘${r.columns.pseudo}’` : ''));
     if (r.time) {
       const t = r.time.input;
       if (t.width !== undefined) parts.push(`windows ${t.width} s every ${t.step} s from ${t.start} to ${t.end} s`);
       if (r.time.generalize) parts.push('temporal generalization');
+      if (r.time.generalization_null) parts.push(PD.NULL_WORDS[r.time.generalization_null]);
     }
     parts.push(...PD.describeMore(r));
     return parts.join('; ');
@@ -306,15 +321,21 @@
     const same = (a, b) => JSON.stringify(a) === JSON.stringify(b);
     const named = [['classifier', 'Decoder'], ['c', 'C'], ['tune', 'Choose settings inside each training fold'],
       ['folds', 'Folds'], ['repeats', 'Repeats'], ['balance', 'Balance classes'], ['shuffles', 'Shuffles'],
-      ['shuffle_repeats', 'Repeats per shuffle'], ['seed', 'Seed']];
+      ['shuffle_repeats', 'Repeats per shuffle'], ['seed', 'Seed'], ['pairwise', 'Also decode every pair of conditions']];
     const show = (v) => (v === null || v === undefined ? 'empty' : v === true ? 'on' : v === false ? 'off' : String(v));
-    for (const [key, name] of named) if (!same(was[key], now[key])) out.push(`${name} (${show(was[key])} → ${show(now[key])})`);
+    // A switch left out of a recipe is off.
+    const flag = (k, v) => (k === 'pairwise' ? !!v : v);
+    for (const [key, name] of named) if (!same(flag(key, was[key]), flag(key, now[key]))) out.push(`${name} (${show(flag(key, was[key]))} → ${show(flag(key, now[key]))})`);
     const cols = [['label', 'Label column'], ['group', 'Group column'], ['pseudo', 'separate sessions'], ['drop_missing', 'Drop trials with missing values']];
     for (const [key, name] of cols) if (!same(was.columns[key], now.columns[key])) out.push(`${name} (${show(was.columns[key])} → ${show(now.columns[key])})`);
     if (!same(was.columns.features, now.columns.features) || !same(was.columns.ignore || [], now.columns.ignore || [])) out.push('Feature columns');
     const wt = was.time || {}; const nt = now.time || {};
     if (!same(wt.input, nt.input)) out.push('the time settings (columns, windows or units)');
     if (!same(wt.generalize, nt.generalize)) out.push('Temporal generalization');
+    const nullWords = (v) => (v === 'all-labels' ? 'every label shuffled' : v ? 'training labels shuffled' : 'none');
+    if (wt.generalize && nt.generalize && !same(wt.generalization_null, nt.generalization_null)) {
+      out.push(`Null for the generalization matrix (${nullWords(wt.generalization_null)} → ${nullWords(nt.generalization_null)})`);
+    }
     if (!same(wt.alpha, nt.alpha)) out.push(`Cluster α (${show(wt.alpha)} → ${show(nt.alpha)})`);
     out.push(...PD.moreChanges(was, now));
     return out;

@@ -60,13 +60,14 @@ window.PD = { state: {}, views: {} };
     generalize: '“Temporal generalization”', tune: '“Choose settings inside each training fold”',
     'no-balance': '“Balance classes”', pseudo: '“Neurons recorded in separate sessions?”', trial: '“Trial column”',
     time: '“Time column”', neuron: '“Neuron column”', align: '“Alignment column”', units: '“Keep units by”',
-    draws: '“random subsets per size”', recipe: 'the recipe',
+    draws: '“random subsets per size”', recipe: 'the recipe', pairwise: '“Also decode every pair of conditions”',
+    'generalization-null': '“Null for the generalization matrix”',
   };
   PD.FLAG_FIELDS = {
     folds: 'folds', repeats: 'repeats', shuffles: 'shuffles', 'shuffle-repeats': 'shuffle-repeats', seed: 'seed',
     c: 'c', width: 'width', step: 'step', start: 't-start', end: 't-end', alpha: 'alpha', draws: 'draws',
     label: 'label', group: 'group', trial: 'trial-col', time: 'time-col', neuron: 'neuron-col', align: 'align-col',
-    units: 'unit-col', pseudo: 'pseudo',
+    units: 'unit-col', pseudo: 'pseudo', pairwise: 'pairwise', 'generalization-null': 'generalization-null',
   };
 
   // A message in the page's words: no command-line flag, no parser's vocabulary (serde's "missing field `x`",

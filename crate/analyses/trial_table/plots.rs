@@ -197,7 +197,7 @@ pub fn pairwise(r: &Report) -> Option<String> {
     let cell = (360.0 / k as f64).clamp(28.0, 72.0);
     let label_w = 130.0;
     let (w, h) = (
-        (label_w + cell * k as f64 + 30.0).max(460.0),
+        (label_w + cell * k as f64 + 30.0).max(560.0),
         TOP + 30.0 + cell * k as f64 + 58.0,
     );
     let (x0, y0) = (label_w, TOP + 30.0);

@@ -25,8 +25,18 @@
       return [name, pct(h.mean), pct(h.sd), { text: score(r).replace('_', ' '), cls: 'text' }];
     });
     PD.table(view, `Decoders side by side (${record.recipe.repeats} repeats each, no shuffles)`,
-      time ? ['decoder', 'peak score, mean over repeats', 'score and time of the peak', ''] : ['decoder', 'score, mean over repeats', 'score, SD over repeats', 'score'],
+      time ? ['decoder', 'peak score, mean over repeats', 'score and time of the peak', ''] : ['decoder', 'score, mean over repeats', 'score, SD over repeats (not a confidence interval)', 'score'],
       body);
+    // Each decoder's cautions, said once with the decoders they concern.
+    const cautions = new Map();
+    rows.filter((x) => x.report).forEach((x) => (x.report.warnings || []).forEach((w) => {
+      cautions.set(w, [...(cautions.get(w) || []), PD.DECODER_NAMES[x.classifier]]);
+    }));
+    if (cautions.size) {
+      const ul = el('ul', null, 'warnings');
+      cautions.forEach((names, w) => ul.appendChild(el('li', `${PD.pageWords(w)} (${names.length === rows.length ? 'every decoder' : names.join(', ')})`)));
+      view.appendChild(ul);
+    }
     const csv = ['decoder,score,mean,sd'].concat(rows.filter((x) => x.report && !time).map((x) => {
       const h = x.report.summary[score(x.report)];
       return `${x.classifier},${score(x.report)},${h.mean},${h.sd}`;

@@ -40,11 +40,11 @@
       : (r.shuffle.count ? 'No significant cluster, so no onset.' : 'No shuffles were run, so nothing is tested.')));
     PD.figures(view, FIGURES(res), ex);
     TABLES.forEach((t) => t(view, r));
+    // The matrix's own caveat depends on its null and is among the report's warnings above.
     view.appendChild(el('p', 'Significance is cluster-corrected over all windows (and over the whole matrix for temporal ' +
       'generalization): a significant cluster shows information somewhere inside it, not at each of its windows, and does ' +
-      'not date an onset precisely. Where the testing window carries information, a decoder trained on a window without ' +
-      'any can still score away from chance by a chance alignment with it, so read off-diagonal cells trained before any ' +
-      'information with care.', 'note'));
+      'not date an onset precisely.' + (r.generalization ? ` The generalization matrix was tested against a ${
+        PD.NULL_WORDS[r.generalization.null_method].replace(/^null of the generalization matrix: /, 'null with ')}.` : ''), 'note'));
     PD.methods(view, res.methods);
     const items = [
       ['Results (JSON)', `Save the results of run ${record.id} as JSON`, ex.json],
