@@ -76,6 +76,10 @@ function head(blob) {
   return bytes.subarray(0, cut > 0 ? cut + 1 : LIMIT);
 }
 
+// A study's files (the study table, if any, and every session's file; an NWB file as its extract), in the order
+// they were dropped: each { name, blob }.
+let studyFiles = [];
+
 // The files as the core's bridge takes them: (name, bytes) twice; the second is empty for one file.
 function fileArgs(dataKind) {
   const one = (s) => [s.name, read(s.blob), '', new Uint8Array(0)];
@@ -86,9 +90,22 @@ function fileArgs(dataKind) {
 function ensureLoaded(msg) {
   if (loaded && loaded.key === msg.key) return loaded.value;
   if (loaded) { loaded.value.free(); loaded = null; }
-  const value = new wasm_bindgen.Loaded(msg.kind, ...fileArgs(msg.dataKind), msg.recipe);
+  let value;
+  if (msg.dataKind === 'study') {
+    const files = studyFileSet();
+    try { value = wasm_bindgen.Loaded.with_files(msg.kind, files, msg.recipe); } finally { files.free(); }
+  } else {
+    value = new wasm_bindgen.Loaded(msg.kind, ...fileArgs(msg.dataKind), msg.recipe);
+  }
   loaded = { key: msg.key, value };
   return value;
+}
+
+// The study's files as the core takes them (copied into the core's memory; the caller frees the set).
+function studyFileSet() {
+  const files = new wasm_bindgen.Files();
+  studyFiles.forEach((f) => files.add(f.name, read(f.blob)));
+  return files;
 }
 
 const handlers = {
@@ -140,6 +157,35 @@ const handlers = {
     const m = ensureLoaded(msg).matrix();
     return { value: m, transfer: [m.buffer] };
   },
+  // A study's files: each one's first rows (to tell the study table from the sessions, and to offer the columns
+  // of the first session); an NWB file is read into its extract here, as for one NWB file.
+  'study-put': (msg) => {
+    if (loaded) { loaded.value.free(); loaded = null; }
+    studyFiles = [];
+    return msg.files.map((file) => {
+      if (/\.nwb$/i.test(file.name)) {
+        dropped = file; blocks.clear();
+        const extract = wasm_bindgen.extract_nwb(file.name, file.size);
+        dropped = null; blocks.clear();
+        studyFiles.push({ name: file.name, blob: new Blob([extract]) });
+        return { name: file.name, nwb: JSON.parse(wasm_bindgen.inspect_nwb(file.name, extract)) };
+      }
+      studyFiles.push({ name: file.name, blob: file });
+      return { name: file.name, info: JSON.parse(wasm_bindgen.inspect(file.name, head(file))) };
+    });
+  },
+  // The study's sessions as they would enter (subject, trials, neurons, class counts) and those flagged, with why.
+  'study-sessions': (msg) => {
+    const files = studyFileSet();
+    try { return JSON.parse(wasm_bindgen.study_sessions(files, msg.recipe, msg.options)); } finally { files.free(); }
+  },
+  // A study table's rows (file, session, subject), so the page can let the user edit the subjects.
+  'study-rows': (msg) => wasm_bindgen.study_rows(msg.name, read(studyFiles.find((f) => f.name === msg.name).blob)),
+  // File i of an analysis that reads files, for a run worker (its buffer transferred).
+  file: (msg) => {
+    const bytes = ensureLoaded(msg).file(msg.index);
+    return { value: bytes, transfer: [bytes.buffer] };
+  },
   finish: (msg) => JSON.parse(ensureLoaded(msg).finish(msg.kind, msg.recipe, msg.options, msg.outcomes)),
 };
 
@@ -149,6 +195,15 @@ const runHandlers = {
   'run-init': async (msg) => {
     await startWasm(msg.module);
     runner = new wasm_bindgen.Runner(msg.kind, msg.header, msg.matrix, msg.recipe, msg.options);
+    return true;
+  },
+  // An analysis that reads files (a study, generalization across conditions, continuous decoding): the files
+  // themselves, as the data worker holds them.
+  'run-init-files': async (msg) => {
+    await startWasm(msg.module);
+    const files = new wasm_bindgen.Files();
+    msg.names.forEach((name, i) => files.add(name, msg.files[i]));
+    try { runner = wasm_bindgen.Runner.with_files(msg.kind, files, msg.recipe, msg.options); } finally { files.free(); }
     return true;
   },
   task: (msg) => runner.run(JSON.stringify(msg.task)),

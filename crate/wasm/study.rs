@@ -54,3 +54,11 @@ pub fn study_sessions(
     let assessed = assess_files(&files.bytes(), &recipe(recipe_json)?, request).map_err(err)?;
     Ok(assessed.listing().to_string())
 }
+
+/// The rows of a study table (file, session, subject, trials) as JSON: the page lists them with each subject
+/// editable and, when the user changes one, hands the rows back as the `sessions` option.
+#[wasm_bindgen]
+pub fn study_rows(name: &str, bytes: &[u8]) -> Result<String, JsValue> {
+    let table = crate::input::study::read(name, bytes).map_err(err)?;
+    Ok(serde_json::to_string(&table.sessions).expect("rows serialise"))
+}

@@ -12,10 +12,10 @@
   const rates = new Map(); // what sets the speed of a fit -> milliseconds per fit, measured once
 
   // The analysis kind a recipe runs as on the main button.
-  PD.mainKind = () => (PD.isTime() ? 'time' : 'table');
+  PD.mainKind = () => (S.kind === 'study' ? 'study' : PD.isTime() ? 'time' : 'table');
 
   // The data worker's cache key: what the file is read for (columns and time input), not the resampling settings.
-  PD.loadKey = (kind, recipe) => JSON.stringify([S.generation, kind === 'time' ? 'time' : 'table', recipe.columns,
+  PD.loadKey = (kind, recipe) => JSON.stringify([S.generation, PD.family(kind), recipe.columns,
     recipe.time ? recipe.time.input : null]);
 
   PD.request = (kind, recipe, options) => ({
@@ -33,6 +33,8 @@
     $('start').disabled = !ok || !!S.run;
     $('compare-start').disabled = !ok || !!S.run;
     $('neurons-start').disabled = !ok || !!S.run || S.kind !== 'table';
+    $('compare-start').disabled ||= S.kind === 'study';
+    PD.updateAnalysisButtons(ok);
     $('cancel').disabled = !S.run;
   };
 
@@ -56,7 +58,9 @@
     const speedKey = JSON.stringify([S.generation, kind, recipe.columns, recipe.time, recipe.classifier, recipe.c,
       recipe.tune, recipe.folds, recipe.balance]);
     try {
-      const answer = await S.data.ask('prepare', { ...PD.request(kind, recipe), sample: !rates.has(speedKey), withHeader: true });
+      if (kind === 'study') await PD.listSessions(recipe, () => mine !== seq);
+      if (mine !== seq) return;
+      const answer = await S.data.ask('prepare', { ...PD.request(kind, recipe, PD.runOptions(kind)), sample: !rates.has(speedKey), withHeader: true });
       if (mine !== seq) return;
       if (answer.sampleMs !== null) rates.set(speedKey, answer.sampleMs / Math.max(1, answer.plan.fits[0]));
       S.check.plan = answer.plan;
@@ -100,7 +104,7 @@
   // Rough memory of a run: the decoded matrix once per worker and once in the data worker, plus a training copy
   // per worker while it fits.
   PD.memoryNeed = function (header, workers) {
-    if (!header) return null;
+    if (!header || header.family === 'files') return null;
     const cells = header.family === 'table' ? header.trials * header.features : header.windows_count * header.trials * header.neurons_count;
     const matrix = 8 * cells;
     return { matrix, total: matrix * (1 + 2 * workers), perWorker: 2 * matrix };
@@ -135,6 +139,7 @@
       return;
     }
     const { plan, recipe } = c;
+    if (S.kind === 'study') { PD.drawStudyPlan(c); return; }
     const time = PD.isTime();
     const max = Math.max(...plan.class_counts);
     const min = Math.min(...plan.class_counts);

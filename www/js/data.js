@@ -22,22 +22,24 @@
     events: { caption: 'Spike events (one row per spike) and a trial table (one row per trial)',
       rows: [['trial', 'neuron', 'time'], ['tr001', 'u01', '-0.3166'], ['tr001', 'u07', '0.0412']],
       rows2: [['trial', 'odour', 'session'], ['tr001', 'citral', 's1'], ['tr002', 'eugenol', 's1']] },
+    study: { caption: 'A study table: one row per session, naming its file (and, optionally, its animal)',
+      rows: [['file', 'session', 'subject'], ['m1-d1.csv', 'm1-d1', 'm1'], ['m2-d1.csv', 'm2-d1', 'm2']] },
     nwb: { caption: 'An NWB 2.x file: spike times from its units table, trials from its trials table',
       rows: [['trials table', 'start_time', 'stop_time', 'odour'], ['', '12.0', '14.0', 'citral'], ['units table', 'spike_times', 'quality', ''], ['', '[0.13, 0.52, …]', 'good', '']] },
   };
 
-  PD.isTime = () => S.kind !== 'table';
+  PD.isTime = () => S.kind !== 'table' && S.kind !== 'study';
   PD.dataReady = () => (S.kind === 'events' ? !!(S.files.events && S.files.trials)
-    : !!S.files[S.kind === 'nwb' ? 'nwb' : 'table']);
+    : !!S.files[S.kind === 'nwb' ? 'nwb' : S.kind === 'study' ? 'study' : 'table']);
   // The inspected table whose columns the label and group come from.
-  PD.mainInfo = () => { const f = S.files[S.kind === 'events' ? 'trials' : S.kind === 'nwb' ? 'nwb' : 'table']; return f && f.info; };
+  PD.mainInfo = () => { const f = S.files[S.kind === 'events' ? 'trials' : S.kind === 'nwb' ? 'nwb' : S.kind === 'study' ? 'study' : 'table']; return f && f.info; };
 
   // Show the parts of the page that belong to the chosen kind of data.
   PD.showKind = function () {
     document.querySelectorAll('[data-kinds]').forEach((e) => { e.hidden = !e.dataset.kinds.split(' ').includes(S.kind); });
     $('drop-what').textContent = S.kind === 'binned'
       ? 'binned table (CSV, one row per trial and time bin)' : 'trial table (CSV, one row per trial)';
-    $('start').textContent = PD.isTime() ? 'Decode over time' : 'Decode';
+    $('start').textContent = S.kind === 'study' ? 'Run the study' : PD.isTime() ? 'Decode over time' : 'Decode';
     drawLayoutExample();
   };
 
@@ -71,6 +73,7 @@
     if (S.data) S.data.terminate();
     S.data = null;
     S.files = {};
+    S.study = null;
     S.generation++;
     S.forgotten++;
     $('data-view').hidden = true;
@@ -276,6 +279,8 @@
     PD.syncFeatures();
   }
 
+  PD.columnsFrom = columnsFrom;
+
   function eventColumns(info) {
     const h = info.headers;
     fillSelect($('neuron-col'), h, find(h, NEURON_LIKE, h[1]));
@@ -419,6 +424,7 @@
 
   // Dropped files: in spike-events mode each goes where its header says (a neuron and a time column = events).
   PD.loadDropped = async function (files) {
+    if (S.kind === 'study') { await PD.loadStudy(files); return; }
     if (S.kind === 'nwb') { await PD.loadInto('nwb', files[0]); return; }
     if (S.kind !== 'events') { await PD.loadInto('table', files[0]); return; }
     for (const f of files.slice(0, 2)) {

@@ -14,6 +14,7 @@
 
   // The files now loaded, as a record keeps them.
   PD.currentFiles = function () {
+    if (S.kind === 'study') return S.files.study ? S.files.study.files.map((f) => ({ slot: 'study', name: f.name, size: f.size })) : [];
     const order = S.kind === 'events' ? ['events', 'trials'] : [S.kind === 'nwb' ? 'nwb' : 'table'];
     return order.filter((s) => S.files[s]).map((s) => ({ slot: s, name: S.files[s].name, size: S.files[s].size }));
   };
@@ -21,6 +22,10 @@
   // The files' SHA-256 as the result states them (the report is what the CLI would write).
   function hashes(record) {
     const r = record.kind === 'compare' ? (record.result.rows.find((x) => x.report) || {}).report : record.result.report;
+    if (r && r.study) {
+      return [[r.study.file, r.study.sha256], ...r.sessions.flatMap((s) => s.files.map((f) => [f.file, f.sha256]))];
+    }
+    if (r && r.sha256 && r.file) return [[r.file, r.sha256]];
     if (!r || !r.input) return [];
     if (r.input.sha256) return [[r.input.file, r.input.sha256]];
     if (Array.isArray(r.input.files)) return r.input.files.map((f) => [f.file, f.sha256]);
@@ -31,6 +36,9 @@
     record.id = S.records.length + 1;
     record.finished = new Date();
     record.stem = `${PD.stem(record.files[record.files.length - 1].name)}-run${record.id}`;
+    // Every file with the SHA-256 the result states for it.
+    const hs = hashes(record);
+    record.files.forEach((f) => { const h = hs.find(([name]) => name === f.name || PD.baseName(name) === f.name); if (h) f.sha256 = h[1]; });
     S.records.push(record);
     S.onView = [record.id];
     drawList();
@@ -107,7 +115,8 @@
     const hs = hashes(record);
     const files = record.files.map((f) => {
       const h = hs.find(([name]) => name === f.name);
-      return `${f.name}${h ? ` (SHA-256 ${h[1]})` : ''}`;
+      const sha = f.sha256 || (h && h[1]);
+      return `${f.name}${sha ? ` (SHA-256 ${sha})` : ''}`;
     }).join(' and ');
     p.appendChild(el('strong', 'From '));
     p.appendChild(document.createTextNode(`${files}, with ${PD.describeSettings(record.recipe)}` +
@@ -124,8 +133,9 @@
       out.push(`the data (now ${now.length ? now.map((f) => f.name).join(' and ') : 'no file'})`);
     }
     if (!S.check) return out;
-    const kind = record.kind === 'compare' ? 'compare' : record.kind === 'neurons' ? 'neurons' : 'main';
+    const kind = PD.startKind(record);
     const current = PD.runRecipe(kind, S.check.recipe);
+    if (record.kind === 'study' && record.options !== PD.runOptions('study')) out.push('the study\'s options (pooling, group draws, group α, subjects or flagged sessions)');
     out.push(...PD.recipeChanges(record.recipe, current));
     if (record.kind === 'neurons' && PD.readDraws() !== record.draws) out.push(`random subsets per size (${record.draws} → ${$('draws').value})`);
     return out;
@@ -143,7 +153,7 @@
       box.appendChild(el('strong', 'Not the current settings. '));
       box.appendChild(document.createTextNode(`These results are from run ${record.id}; since then ${diff.length === 1 ? 'this has' : 'these have'} changed: ${diff.join('; ')}. `));
       const again = PD.button('Run again with the current settings', (ev) => {
-        PD.start(record.kind === 'compare' ? 'compare' : record.kind === 'neurons' ? 'neurons' : 'main', ev.detail === 0);
+        PD.start(PD.startKind(record), ev.detail === 0);
       });
       again.disabled = !!S.run || $('start').disabled;
       box.appendChild(again);

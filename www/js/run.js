@@ -55,6 +55,7 @@
     if (kind !== 'main') delete recipe.pairwise;
     if (kind === 'neurons' && !$('neuron-shuffles').checked) recipe.shuffles = 0;
     if (kind === 'compare') { recipe.shuffles = 0; recipe.repeats = Math.min(recipe.repeats, 20); recipe.tune = false; }
+    if (PD.ANALYSES[kind]) PD.ANALYSES[kind].recipe(recipe);
     return recipe;
   };
 
@@ -66,6 +67,7 @@
     const { recipe: base, problems } = PD.readRecipe();
     const draws = PD.readDraws();
     if (kind === 'neurons' && draws === null) problems.push(['draws', 'Random subsets per size must be a whole number, 1 or more.']);
+    if (PD.ANALYSES[kind]) problems.push(...PD.ANALYSES[kind].problems());
     PD.showProblems(problems);
     if (problems.length) {
       const first = $(problems[0][0]);
@@ -81,9 +83,9 @@
       let record;
       if (kind === 'compare') record = await compareRun(base, token);
       else {
-        const analysis = kind === 'neurons' ? 'neurons' : PD.mainKind();
+        const analysis = kind === 'neurons' ? 'neurons' : PD.ANALYSES[kind] ? kind : PD.mainKind();
         const recipe = PD.runRecipe(kind, base);
-        const options = kind === 'neurons' ? JSON.stringify({ draws }) : '';
+        const options = kind === 'neurons' ? JSON.stringify({ draws }) : PD.runOptions(analysis);
         const c = S.check;
         const long = c && c.seconds !== null && c.seconds > 60 && kind === 'main';
         if ((long || (c && c.memory)) && kind === 'main') {
@@ -134,8 +136,14 @@
       S.pool.push(worker);
       workers.push(worker);
     }
-    // Each worker gets the decoded matrix once, one after the other.
+    // Each worker gets the decoded matrix once, one after the other (or, for an analysis that reads files, the
+    // files themselves: PD.sendFiles).
+    const files = header && JSON.parse(header).family === 'files' ? JSON.parse(header).files : null;
     for (const worker of workers) {
+      if (files) {
+        await PD.sendFiles(worker, files, analysis, req, token);
+        continue;
+      }
       const matrix = await S.data.ask('matrix', req);
       if (token.cancelled) throw new Error('cancelled');
       await worker.ask('run-init', { module: S.module, kind: analysis, header, matrix, recipe: req.recipe, options: req.options }, [matrix.buffer]);

@@ -158,6 +158,7 @@
       if (recipe.time.generalize) recipe.time.generalization_null = $('generalization-null').value;
       recipe.time.alpha = number('alpha', 'Cluster α', (v) => v > 0 && v < 1, 'a number between 0 and 1 (for example 0.05)');
     }
+    if (S.kind === 'study') problems.push(...PD.studyProblems());
     return { recipe, problems };
   };
 
@@ -173,7 +174,7 @@
 
   // ---------- a recipe file into the form ----------
   PD.applyRecipe = function (r) {
-    const kind = r.time ? r.time.input.kind : 'table';
+    const kind = r.time ? r.time.input.kind : S.kind === 'study' ? 'study' : 'table';
     let note = '';
     if (kind !== S.kind) {
       PD.setKind(kind);
@@ -262,7 +263,8 @@
     const parts = [];
     const t = r.time && r.time.input;
     const windows = () => parts.push('--width', t.width, '--step', t.step, '--start', t.start, '--end', t.end);
-    if (!t) parts.push('popdecode decode', name('table', 'FILE'));
+    if (S.kind === 'study') parts.push('popdecode study', q(S.study && S.study.table ? S.study.table : 'STUDY.csv'));
+    else if (!t) parts.push('popdecode decode', name('table', 'FILE'));
     else if (t.kind === 'binned') parts.push('popdecode timecourse', name('table', 'FILE'), '--trial', q(t.trial), '--time', q(t.time));
     else if (t.kind === 'nwb') {
       parts.push('popdecode timecourse --nwb', name('nwb', 'FILE.nwb'));
@@ -309,6 +311,7 @@
       if (r.time.generalize) parts.push('temporal generalization');
       if (r.time.generalization_null) parts.push(PD.NULL_WORDS[r.time.generalization_null]);
     }
+    parts.push(...PD.describeMore(r));
     return parts.join('; ');
   };
 
@@ -334,6 +337,7 @@
       out.push(`Null for the generalization matrix (${nullWords(wt.generalization_null)} → ${nullWords(nt.generalization_null)})`);
     }
     if (!same(wt.alpha, nt.alpha)) out.push(`Cluster α (${show(wt.alpha)} → ${show(nt.alpha)})`);
+    out.push(...PD.moreChanges(was, now));
     return out;
   };
 }(window.PD));

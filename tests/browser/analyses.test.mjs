@@ -1,0 +1,185 @@
+// The analyses beside the main decoding, in the page: a study of many sessions, generalization across conditions,
+// continuous decoding and planning the next recording. For each, the page's JSON is the command line's `--json`
+// byte for byte on the invented samples, the view shows the report's figures, every warning and the methods, the
+// record keeps every file with its SHA-256, and no request leaves the page.
+import { test, after, before } from 'node:test';
+import assert from 'node:assert/strict';
+import { readFileSync, readdirSync, mkdtempSync } from 'node:fs';
+import { join } from 'node:path';
+import { tmpdir } from 'node:os';
+import { createHash } from 'node:crypto';
+import { serve, browser, closeAll, assertLocalOnly, shot, quickSettings, runAndWait, downloadText, download, cli, ROOT, SLOW } from './helpers.mjs';
+
+let server;
+before(async () => { server = await serve(); });
+after(async () => { await closeAll(); await server.close(); });
+
+const tmp = mkdtempSync(join(tmpdir(), 'popdecode-browser-analyses-'));
+const sample = (...p) => join(ROOT, 'samples', ...p);
+const sha256 = (path) => createHash('sha256').update(readFileSync(path)).digest('hex');
+
+async function openPage() {
+  const b = await browser();
+  await b.page.goto(`${server.origin}/index.html`);
+  await b.page.waitForFunction(() => document.body.dataset.ready === 'true');
+  return b;
+}
+
+async function set(page, id, value) {
+  await page.fill('#' + id, String(value));
+  await page.dispatchEvent('#' + id, 'change');
+}
+
+/// A trial table loaded from samples/, its label chosen, small settings.
+async function loadTable(name, label) {
+  const b = await openPage();
+  await b.page.setInputFiles('#file', sample(name));
+  await b.page.waitForSelector('#data-view:not([hidden])');
+  await b.page.selectOption('#label', label);
+  await b.page.dispatchEvent('#label', 'change');
+  await quickSettings(b.page, { repeats: 2, shuffles: 3 });
+  return b;
+}
+
+/// The JSON the command line writes with `args`.
+function cliJson(name, args) {
+  const out = join(tmp, name + '.json');
+  cli([...args, '--quiet', '--json', out]);
+  return readFileSync(out, 'utf8');
+}
+
+/// What every view of these analyses shows: figures drawn, every caution of the report, the methods paragraph, and
+/// the record's files with the SHA-256 of the bytes on disk.
+async function checkView(b, report, figures, files) {
+  const view = b.page.locator('#views .view').first();
+  for (const f of figures) assert.ok(await view.locator(`[data-figure=${f}] img`).isVisible(), `figure ${f} is shown`);
+  const text = await view.textContent();
+  assert.ok(report.warnings.length > 0, 'the samples give warnings to show');
+  const shown = await view.locator('ul.warnings li').allTextContents();
+  assert.equal(shown.filter((w) => !/^Settings chosen/.test(w)).length >= report.warnings.length, true, 'every warning is listed');
+  assert.ok(text.includes('Methods'), 'a methods paragraph');
+  assert.ok((await view.locator('.methods').textContent()).length > 100);
+  const kept = await b.page.evaluate(() => window.PD.state.records[window.PD.state.records.length - 1].files);
+  assert.deepEqual(kept.map((f) => [f.name, f.sha256]), files.map((p) => [p.split('/').pop(), sha256(p)]));
+}
+
+test('generalization across conditions: the page and the command line give the same bytes', SLOW, async () => {
+  const b = await loadTable('choices.csv', 'choice');
+  await b.page.selectOption('#across-col', 'context');
+  await b.page.dispatchEvent('#across-col', 'change');
+  await runAndWait(b.page, '#across-start');
+  await shot(b.page, 'across-results');
+  const json = await downloadText(b.page, '#export-json');
+  assert.equal(json, cliJson('across', ['decode', sample('choices.csv'), '--label', 'choice', '--across', 'context',
+    '--repeats', '2', '--shuffles', '3']), 'page JSON and CLI JSON differ');
+  const report = JSON.parse(json);
+  assert.equal(report.schema, 'popdecode-across/1');
+  assert.equal(report.assignments.length, 2, 'two levels: each way round');
+  await checkView(b, report, ['assignments', 'scores', 'null'], [sample('choices.csv')]);
+  const csv = await download(b.page, '#views .view button[aria-label^="Save the assignments"]');
+  assert.equal(csv.text.trim().split('\n').length, 3);
+  const recipe = JSON.parse(await downloadText(b.page, '#export-recipe'));
+  assert.deepEqual(recipe.across, { column: 'context', assignments: [] });
+  // Training on one level and testing on the other is one assignment; the record on view is then stale.
+  await set(b.page, 'across-train', 'citral');
+  await b.page.click('#across-start');
+  assert.match(await b.page.textContent('#across-test-error'), /the levels to test on/);
+  await set(b.page, 'across-test', 'hexanal');
+  assert.match(await b.page.textContent('#views .stale'), /the condition column or its levels/);
+  await runAndWait(b.page, '#across-start');
+  const one = JSON.parse(await downloadText(b.page, '#export-json'));
+  assert.deepEqual(one.assignments.map((a) => [a.train, a.test]), [[['citral'], ['hexanal']]]);
+  assert.deepEqual(b.errors, []);
+  assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});
+
+test('continuous decoding: the page and the command line give the same bytes', SLOW, async () => {
+  const b = await loadTable('running.csv', 'speed');
+  await runAndWait(b.page, '#continuous-start');
+  await shot(b.page, 'continuous-results');
+  const json = await downloadText(b.page, '#export-json');
+  assert.equal(json, cliJson('continuous', ['decode', sample('running.csv'), '--label', 'speed', '--classifier', 'ridge',
+    '--repeats', '2', '--shuffles', '3']), 'page JSON and CLI JSON differ');
+  const report = JSON.parse(json);
+  assert.equal(report.schema, 'popdecode-continuous/1');
+  await checkView(b, report, ['predicted', 'scores', 'null'], [sample('running.csv')]);
+  assert.match(await b.page.textContent('#views .view .headline'), /'speed' decoded with out-of-sample R²/);
+  const csv = await download(b.page, '#views .view button[aria-label^="Save the predictions"]');
+  assert.equal(csv.text, (await b.page.evaluate(() => window.PD.state.records[0].result.csv.predictions)));
+  assert.match(await b.page.textContent('#records'), /ridge regression/);
+  assert.deepEqual(b.errors, []);
+  assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});
+
+test('planning the next recording: defaults from the core, the same bytes as the command line', SLOW, async () => {
+  const b = await loadTable('odours.csv', 'odour');
+  // The fields start from the core's defaults (default_power_recipe): 50 subsamples, α 0.05, 2 repeats, 19 shuffles.
+  assert.deepEqual(await Promise.all(['power-subsamples', 'power-alpha', 'power-repeats', 'power-shuffles']
+    .map((id) => b.page.inputValue('#' + id))), ['50', '0.05', '2', '19']);
+  await set(b.page, 'power-trials', '5, 10');
+  await set(b.page, 'power-neurons', '4,16');
+  await set(b.page, 'power-noise', '0,8');
+  await set(b.page, 'power-subsamples', 2);
+  await set(b.page, 'power-repeats', 1);
+  await runAndWait(b.page, '#power-start');
+  await shot(b.page, 'power-results');
+  const json = await downloadText(b.page, '#export-json');
+  assert.equal(json, cliJson('power', ['power', sample('odours.csv'), '--label', 'odour', '--per-class', '5,10', '--neurons', '4,16',
+    '--added', '0,8', '--subsamples', '2', '--repeats', '1', '--shuffles', '19']), 'page JSON and CLI JSON differ');
+  const report = JSON.parse(json);
+  assert.equal(report.schema, 'popdecode-power/1');
+  assert.deepEqual(report.trials.map((t) => t.per_class), [5, 10]);
+  await checkView(b, report, ['trials', 'neurons', 'noise'], [sample('odours.csv')]);
+  const csv = await download(b.page, '#views .view button[aria-label^="Save the power table"]');
+  assert.ok(csv.text.split('\n').length > 6);
+  // A size that is not a whole number is pointed out beside its field, in words, and nothing runs.
+  await set(b.page, 'power-neurons', '4, x');
+  await b.page.click('#power-start');
+  assert.match(await b.page.textContent('#power-neurons-error'), /whole numbers of at least 1/);
+  assert.deepEqual(b.errors, []);
+  assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});
+
+test('a study of many sessions: listed before running, the same bytes as the command line', SLOW, async () => {
+  const b = await openPage();
+  await b.page.check('input[name=kind][value=study]');
+  const dir = sample('study');
+  const sessions = readdirSync(dir).filter((f) => /^m\d-d\d\.csv$/.test(f)).sort();
+  const files = [join(dir, 'study.csv'), ...sessions.map((f) => join(dir, f))];
+  await b.page.setInputFiles('#study-files', files);
+  await b.page.waitForSelector('#study-sessions table');
+  await b.page.selectOption('#label', 'odour');
+  await b.page.dispatchEvent('#label', 'change');
+  await quickSettings(b.page, { repeats: 2, shuffles: 3 });
+  await set(b.page, 'study-draws', 200);
+  await b.page.waitForFunction((n) => document.querySelectorAll('#study-sessions tr').length === n + 1, sessions.length);
+  const listed = await b.page.locator('#study-sessions tr th[scope=row]').allTextContents();
+  assert.deepEqual(listed, sessions.map((f) => f.replace('.csv', '')));
+  assert.equal(await b.page.inputValue('[aria-label="Subject of session m1-d1"]'), 'm1');
+  assert.equal(await b.page.textContent('#start'), 'Run the study');
+  await runAndWait(b.page);
+  await shot(b.page, 'study-results');
+  const json = await downloadText(b.page, '#export-json');
+  assert.equal(json, cliJson('study', ['study', join(dir, 'study.csv'), '--label', 'odour', '--repeats', '2', '--shuffles', '3',
+    '--group-draws', '200']), 'page JSON and CLI JSON differ');
+  const report = JSON.parse(json);
+  assert.equal(report.schema, 'popdecode-study/1');
+  assert.equal(report.sessions.length, sessions.length);
+  await checkView(b, report, ['sessions'], files);
+  const csv = await download(b.page, '#views .view button[aria-label^="Save the sessions"]');
+  assert.equal(csv.text.trim().split('\n').length, sessions.length + 1);
+  // A subject changed on the page: the study runs from the session list as edited, and the record on view is stale.
+  await b.page.fill('[aria-label="Subject of session m1-d1"]', 'm9');
+  await b.page.dispatchEvent('[aria-label="Subject of session m1-d1"]', 'change');
+  await b.page.waitForFunction(() => /study's options/.test(document.querySelector('#views .stale').textContent));
+  await runAndWait(b.page);
+  const edited = JSON.parse(await downloadText(b.page, '#export-json'));
+  assert.equal(edited.sessions.find((s) => s.session === 'm1-d1').subject, 'm9');
+  assert.equal(edited.study.subjects, 5);
+  assert.deepEqual(b.errors, []);
+  assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});

@@ -1,0 +1,58 @@
+// The results view of continuous decoding ("Decode a continuous variable"): the number decoded (ridge) or the
+// angle (circular ridge), its score over repeats against shuffled values, the penalty chosen inside each training
+// fold, the predictions' figure, and over time the curve with its clusters. Figures come from the core (FIGURES);
+// predictions and the curve as CSV come from the core too (result.csv).
+'use strict';
+(function (PD) {
+  const { el } = PD;
+
+  const FIGURES = (res) => [
+    { name: 'predicted', svg: res.plots.predicted, title: 'Predicted against true', alt: 'Each trial\'s predicted value against its true value, first repeat' },
+    { name: 'scores', svg: res.plots.scores, title: 'Scores over repeats', alt: 'Distribution of the score over repeats' },
+    { name: 'null', svg: res.plots.null, title: 'Shuffle null', alt: 'Shuffle null distribution with the observed score' },
+    { name: 'curve', svg: res.plots.curve, title: 'Score over time', alt: 'Score at each time window with its shuffle null and clusters' },
+  ];
+
+  const SCORE_WORDS = { r2: 'out-of-sample R²', correlation: 'Pearson correlation', circular_correlation: 'circular correlation', mean_abs_error: 'mean absolute angular error' };
+  const num = (v) => (v === null || v === undefined ? '—' : Number(v).toPrecision(3));
+
+  function scoreTable(view, r) {
+    if (!r.summary) return;
+    const rows = Object.entries(r.summary).filter(([, v]) => v && v.mean !== undefined)
+      .map(([name, v]) => [{ text: SCORE_WORDS[name] || name.replace(/_/g, ' '), cls: 'text', header: true }, num(v.mean), num(v.sd), num(v.p2_5), num(v.p97_5)]);
+    PD.table(view, 'Scores over repeats (mean, SD and percentiles over repeats: a spread over resampling, not a confidence interval)',
+      ['', 'mean', 'SD', '2.5th percentile', '97.5th percentile'], rows);
+    const s = r.shuffle;
+    if (s && s.p_value !== null && s.p_value !== undefined) {
+      const how = `${s.count} shuffles × ${s.repeats_each} repeats${s.within_groups ? ', within groups' : ''}`;
+      PD.table(view, 'The shuffle control (the values shuffled across trials)', ['', 'value', 'from'], [
+        [{ text: `observed ${SCORE_WORDS[s.score] || s.score}`, cls: 'text', header: true }, num(s.observed), { text: `mean over ${r.repeats.length} repeats`, cls: 'text' }],
+        [{ text: 'shuffled values, mean (SD)', cls: 'text', header: true }, `${num(s.null_mean)} (${num(s.null_sd)})`, { text: how, cls: 'text' }],
+        [{ text: 'shuffled values, 95th percentile', cls: 'text', header: true }, num(s.null_p95), { text: how, cls: 'text' }],
+        [{ text: 'p (observed against shuffles)', cls: 'text', header: true }, num(s.p_value), { text: how, cls: 'text' }],
+      ]);
+    }
+  }
+
+  PD.views.continuous = function (record, view, ex) {
+    const res = record.result;
+    const r = res.report;
+    view.appendChild(el('p', res.headline, 'headline'));
+    PD.notes(view, r);
+    PD.figures(view, FIGURES(res), ex);
+    const t = r.target;
+    view.appendChild(el('p', `‘${t.column}’: ${t.variable === 'linear' ? 'a quantity' : `an angle in ${t.unit}`}, from ${t.min} to ${t.max}` +
+      (t.mean !== null && t.mean !== undefined ? `, mean ${num(t.mean)} (SD ${num(t.sd)})` : '') +
+      (t.mean_direction !== null && t.mean_direction !== undefined ? `, mean direction ${num(t.mean_direction)} (resultant length ${num(t.resultant_length)})` : '') +
+      `; ${r.input.trials} trials, ${r.input.features.length} features.`, 'note'));
+    scoreTable(view, r);
+    const used = r.penalty.chosen.filter((c) => c.fits > 0).map((c) => `${c.alpha} in ${PD.count(c.fits, 'fit')}`);
+    view.appendChild(el('p', `Penalty chosen inside each training fold (nested cross-validation over ${r.penalty.grid.join(', ')}): ${used.join('; ')}.`, 'note'));
+    PD.methods(view, res.methods);
+    const items = [['Results (JSON)', `Save the results of run ${record.id} as JSON`, ex.json]];
+    Object.keys(res.csv || {}).forEach((name) => items.push([`${name === 'predictions' ? 'Predictions' : name === 'curve' ? 'Curve' : name} (CSV)`,
+      `Save the ${name} of run ${record.id} as CSV`, () => ex.text(`-${name}.csv`, res.csv[name], 'text/csv')]));
+    items.push(['Recipe', `Save the recipe of run ${record.id}`, ex.recipe]);
+    PD.exportRow(view, items);
+  };
+}(window.PD));
