@@ -111,14 +111,36 @@ fn claim(source: &str, path: &str, ds: &hdf5_pure::Dataset, file_len: u64) -> Re
     } else {
         file_len.saturating_mul(MAX_INFLATION)
     };
-    match values {
-        Some(v) if v.checked_mul(size).is_some_and(|b| b <= backed) => Ok(v),
-        _ => Err(Error::Input(format!(
-            "{source}: {path} claims {} values of {size} bytes, more than a file of {file_len} bytes can hold; the \
-             file is damaged",
-            values.map_or_else(|| format!("{shape:?}"), |v| v.to_string())
-        ))),
+    let v = match values {
+        Some(v) if v.checked_mul(size).is_some_and(|b| b <= backed) => v,
+        _ => {
+            return Err(Error::Input(format!(
+                "{source}: {path} claims {} values of {size} bytes, more than a file of {file_len} bytes can \
+                 hold; the file is damaged",
+                values.map_or_else(|| format!("{shape:?}"), |v| v.to_string())
+            )))
+        }
+    };
+    // Each stored chunk claims its own place and size, and hdf5-pure sets a buffer aside for a run of chunks
+    // before reading it (a damaged chunk index once asked for 4 GB, which a page's 32-bit memory cannot give):
+    // every chunk must lie inside the file. A chunk index hdf5-pure cannot list (a version-2 B-tree) is left to
+    // its own checks.
+    if ds.is_chunked() {
+        if let Ok(chunks) = ds.chunks() {
+            if let Some(c) = chunks.iter().find(|c| {
+                c.address
+                    .checked_add(c.storage_size)
+                    .is_none_or(|end| end > file_len)
+            }) {
+                return Err(Error::Input(format!(
+                    "{source}: {path} has a chunk of {} bytes at byte {}, beyond the end of a file of {file_len} \
+                     bytes; the file is damaged",
+                    c.storage_size, c.address
+                )));
+            }
+        }
     }
+    Ok(v)
 }
 
 /// A dataset's values as numbers, after [`claim`].
