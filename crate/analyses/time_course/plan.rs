@@ -74,13 +74,7 @@ impl TimePlan {
         let mut scheme = resolve_scheme(&data.trials(), recipe)?;
         // A binned table's windows are its bins, known only now; spike events' and NWB windows were checked with
         // the recipe already.
-        let w = data.windows.len() as f64;
-        limits::check_windows(w, settings.generalize)?;
-        let per_task = w * (2.0 + if settings.generalize { w } else { 0.0 });
-        limits::check_work(
-            scheme.folds() as f64 * w * recipe.shuffle_repeats().max(1) as f64,
-            (recipe.repeats + recipe.shuffles) as f64 * per_task,
-        )?;
+        check_limits(data.windows.len(), &settings, &scheme, recipe)?;
         let count_scale = count_scale(&settings, recipe);
         let counts_note = check_counts(
             recipe.classifier,
@@ -96,22 +90,14 @@ impl TimePlan {
         scheme.warnings = warnings;
         // The recipe as it runs: the generalization matrix's null is written out when the matrix is made, so that
         // a saved recipe keeps its meaning whatever the default.
-        let decoder = decoders::build(recipe.classifier, recipe.c, recipe.tune);
-        let mut recipe = scheme.repeats_to_run(recipe);
-        let mut settings = settings;
-        if settings.generalize {
-            settings.generalization_null = Some(settings.generalization_null());
-        }
-        recipe.time = Some(settings.clone());
-        Ok(TimePlan {
+        Ok(TimePlan::assemble(
             data,
             recipe,
             settings,
             scheme,
-            decoder,
             count_scale,
-            pool: None,
-        })
+            None,
+        ))
     }
 
     /// Neurons recorded in separate sessions, pooled into one pseudo-population: each repeat builds pseudo-trials
@@ -127,13 +113,7 @@ impl TimePlan {
             ..data.trials()
         };
         let mut scheme = resolve_scheme(&trials, recipe)?;
-        let w = data.windows.len() as f64;
-        limits::check_windows(w, settings.generalize)?;
-        let per_task = w * (2.0 + if settings.generalize { w } else { 0.0 });
-        limits::check_work(
-            scheme.folds() as f64 * w * recipe.shuffle_repeats().max(1) as f64,
-            (recipe.repeats + recipe.shuffles) as f64 * per_task,
-        )?;
+        check_limits(data.windows.len(), &settings, &scheme, recipe)?;
         let count_scale = count_scale(&settings, recipe);
         let mut warnings = data.warnings.clone();
         warnings.append(&mut scheme.warnings);
@@ -146,22 +126,42 @@ impl TimePlan {
             }
         }
         scheme.warnings = warnings;
+        Ok(TimePlan::assemble(
+            data,
+            recipe,
+            settings,
+            scheme,
+            count_scale,
+            Some(pool),
+        ))
+    }
+
+    /// The plan as it runs, from either constructor: the recipe with the repeats that will run and, when the
+    /// generalization matrix is made, its null written out, so that a saved recipe keeps its meaning whatever the
+    /// default.
+    fn assemble(
+        data: TimeDataset,
+        recipe: &Recipe,
+        mut settings: TimeSettings,
+        scheme: Scheme,
+        count_scale: Option<f64>,
+        pool: Option<Pool>,
+    ) -> TimePlan {
         let decoder = decoders::build(recipe.classifier, recipe.c, recipe.tune);
         let mut recipe = scheme.repeats_to_run(recipe);
-        let mut settings = settings;
         if settings.generalize {
             settings.generalization_null = Some(settings.generalization_null());
         }
         recipe.time = Some(settings.clone());
-        Ok(TimePlan {
+        TimePlan {
             data,
             recipe,
             settings,
             scheme,
             decoder,
             count_scale,
-            pool: Some(pool),
-        })
+            pool,
+        }
     }
 
     pub fn n_windows(&self) -> usize {
@@ -478,6 +478,22 @@ impl TimePlan {
             },
         }
     }
+}
+
+/// The window and work limits, once the windows are known (a binned table's are its bins, known only now).
+fn check_limits(
+    windows: usize,
+    settings: &TimeSettings,
+    scheme: &Scheme,
+    recipe: &Recipe,
+) -> Result<()> {
+    let w = windows as f64;
+    limits::check_windows(w, settings.generalize)?;
+    let per_task = w * (2.0 + if settings.generalize { w } else { 0.0 });
+    limits::check_work(
+        scheme.folds() as f64 * w * recipe.shuffle_repeats().max(1) as f64,
+        (recipe.repeats + recipe.shuffles) as f64 * per_task,
+    )
 }
 
 /// For a decoder of counts on spike events or NWB files: the window width, which turns rates back into counts.
