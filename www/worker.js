@@ -134,23 +134,12 @@ const handlers = {
     return true;
   },
   drop: (msg) => { delete slots[msg.slot]; if (loaded) { loaded.value.free(); loaded = null; } return true; },
+  // The plan of a recipe (the page times a task in a worker of its own: a slow decoder on large data must never
+  // hold up the check of the settings that follow).
   prepare: (msg) => {
     const data = ensureLoaded(msg);
     const plan = JSON.parse(data.prepare(msg.kind, msg.recipe, msg.options));
-    let sampleMs = null;
-    if (!msg.sample) data.forget();
-    if (msg.sample) {
-      // Timed twice when quick: the first run of a task also pays for the engine's warm-up.
-      let t0 = performance.now();
-      if (data.sample()) sampleMs = performance.now() - t0;
-      if (sampleMs !== null && sampleMs < 200) {
-        data.prepare(msg.kind, msg.recipe, msg.options);
-        t0 = performance.now();
-        data.sample();
-        sampleMs = performance.now() - t0;
-      }
-    }
-    return { plan, sampleMs, header: msg.withHeader ? JSON.parse(data.header()) : null };
+    return { plan, header: msg.withHeader ? JSON.parse(data.header()) : null };
   },
   header: (msg) => ensureLoaded(msg).header(),
   matrix: (msg) => {

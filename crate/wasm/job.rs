@@ -1,8 +1,7 @@
 //! The one shape every analysis takes on the page: read the data once, prepare, run tasks in workers, finish.
 //!
 //! The page's data worker holds a [`Loaded`]: the file read once for the recipe's columns (or windows). From it,
-//! `prepare` checks the design and lists the tasks, `sample` runs the first task (the page times it to estimate a
-//! run's duration), `header` and `matrix` hand the decoded data to run workers, and `finish` assembles the
+//! `prepare` checks the design and lists the tasks, `header` and `matrix` hand the decoded data to run workers, and `finish` assembles the
 //! outcomes into the result. A run worker builds a [`Runner`] from the decoded data once per run and answers task
 //! messages with outcome JSON; the page joins the outcome strings unparsed, so no number passes through a
 //! JavaScript double conversion (serde_json's `float_roundtrip` keeps the parse exact).
@@ -18,7 +17,6 @@ use wasm_bindgen::prelude::*;
 /// An analysis behind the page's bridge, with its tasks and outcomes as JSON.
 pub(super) trait Job {
     fn prepare(&self) -> Value;
-    fn first_task(&self) -> Option<String>;
     fn run(&self, task: &str) -> Result<String, JsValue>;
     fn finish(&self, outcomes: &str) -> Result<Finished, JsValue>;
 }
@@ -32,11 +30,6 @@ impl<A: Analysis> Job for A {
             out.as_object_mut().expect("an object").extend(more);
         }
         out
-    }
-
-    fn first_task(&self) -> Option<String> {
-        let first = self.tasks().into_iter().next()?;
-        Some(serde_json::to_string(&first).expect("tasks serialise"))
     }
 
     fn run(&self, task: &str) -> Result<String, JsValue> {
@@ -75,7 +68,6 @@ fn job(
 #[wasm_bindgen]
 pub struct Loaded {
     data: Decoded,
-    prepared: Option<Box<dyn Job>>,
 }
 
 #[wasm_bindgen]
@@ -93,7 +85,6 @@ impl Loaded {
         let request = Request::new(name_a, bytes_a, name_b, bytes_b, recipe_json)?;
         Ok(Loaded {
             data: data::load(kind, &request)?,
-            prepared: None,
         })
     }
 
@@ -108,7 +99,6 @@ impl Loaded {
         recipe(recipe_json)?;
         Ok(Loaded {
             data: Decoded::Files(files.clone()),
-            prepared: None,
         })
     }
 
@@ -122,15 +112,13 @@ impl Loaded {
     }
 
     /// Check the design against a recipe: the tasks with their cost in fits, and what the analysis shows before
-    /// running (classes, counts, warnings, and the groups' column and names). The plan is kept for one
-    /// [`Loaded::sample`].
+    /// running (classes, counts, warnings, and the groups' column and names).
     pub fn prepare(
-        &mut self,
+        &self,
         kind: &str,
         recipe_json: &str,
         options_json: &str,
     ) -> Result<String, JsValue> {
-        self.prepared = None;
         let job = job(
             kind,
             self.data.clone(),
@@ -142,26 +130,7 @@ impl Loaded {
         let (column, names) = self.data.groups();
         out["group_column"] = column.into();
         out["group_names"] = names.into();
-        self.prepared = Some(job);
         Ok(out.to_string())
-    }
-
-    /// Forget the last prepared plan without running it: a plan owns a copy of the decoded data, which a large
-    /// file cannot afford to keep twice through a run.
-    pub fn forget(&mut self) {
-        self.prepared = None;
-    }
-
-    /// Run the last prepared plan's first task (the page times it), then forget the plan. False when there is
-    /// none.
-    pub fn sample(&mut self) -> Result<bool, JsValue> {
-        let Some(job) = self.prepared.take() else {
-            return Ok(false);
-        };
-        let Some(task) = job.first_task() else {
-            return Ok(false);
-        };
-        job.run(&task).map(|_| true)
     }
 
     /// The decoded data but the matrix, as JSON.

@@ -60,12 +60,15 @@
     try {
       if (kind === 'study') await PD.listSessions(recipe, () => mine !== seq);
       if (mine !== seq) return;
-      const answer = await S.data.ask('prepare', { ...PD.request(kind, recipe, PD.runOptions(kind)), sample: !rates.has(speedKey), withHeader: true });
+      const req = PD.request(kind, recipe, PD.runOptions(kind));
+      const answer = await S.data.ask('prepare', { ...req, withHeader: true });
       if (mine !== seq) return;
-      if (answer.sampleMs !== null) rates.set(speedKey, answer.sampleMs / Math.max(1, answer.plan.fits[0]));
       S.check.plan = answer.plan;
       S.check.header = answer.header;
+      S.check.speedKey = speedKey;
       S.check.msPerFit = rates.get(speedKey);
+      if (S.check.msPerFit === undefined) timeOneTask(speedKey, kind, req, answer.plan, answer.header);
+      else stopTiming();
       PD.clearError('data-error');
     } catch (e) {
       if (mine !== seq) return;
@@ -76,6 +79,53 @@
     drawPlan();
     PD.updateButtons();
     PD.emit('checked');
+  }
+
+  // How long a fit takes on this computer, measured by running the plan's first task (twice when quick: the first
+  // run also pays for the engine's warm-up) in a worker of its own. A slow decoder on large data can take a
+  // minute for one task: in its own worker it never holds up the checks of the settings that follow, and a change
+  // of what sets the speed stops it (the latest change wins). No timing runs beside a run.
+  let timing = null; // { key, worker }
+  function stopTiming() {
+    if (timing) timing.worker.terminate();
+    timing = null;
+  }
+  PD.stopTiming = stopTiming;
+  PD.timingNow = () => timing !== null;
+
+  async function timeOneTask(key, kind, req, plan, header) {
+    if (timing && timing.key === key) return;
+    stopTiming();
+    if (!plan.tasks.length || S.run) return;
+    const mine = { key, worker: new PD.DataWorker(S.module), cancelled: false };
+    timing = mine;
+    try {
+      if (header.family === 'files') await PD.sendFiles(mine.worker, header.files, kind, req, mine);
+      else {
+        const matrix = await S.data.ask('matrix', req);
+        if (timing !== mine) return;
+        await mine.worker.ask('run-init', { module: S.module, kind, header: JSON.stringify(header), matrix, recipe: req.recipe, options: req.options }, [matrix.buffer]);
+      }
+      const task = { task: plan.tasks[0] };
+      let t0 = performance.now();
+      await mine.worker.ask('task', task);
+      let ms = performance.now() - t0;
+      if (ms < 200) {
+        t0 = performance.now();
+        await mine.worker.ask('task', task);
+        ms = performance.now() - t0;
+      }
+      if (timing !== mine) return;
+      rates.set(key, ms / Math.max(1, plan.fits[0]));
+    } catch (_) {
+      // Stopped by a newer check, or the task failed (the run will say why): no estimate.
+      if (timing !== mine) return;
+    }
+    stopTiming();
+    if (S.check && S.check.speedKey === key && S.check.plan) {
+      S.check.msPerFit = rates.get(key);
+      drawPlan();
+    }
   }
 
   // The effective cross-validation scheme, in words, from the same rules as the core's Scheme::resolve
@@ -188,7 +238,7 @@
     c.memory = mem && mem.total > LARGE ? mem : null;
     estimate.textContent = `${PD.count(fits, 'fit')} in ${PD.count(plan.tasks.length, 'task')} on ${PD.count(workers, 'worker')}` +
       (pool.limited ? ` (not ${pool.wanted}: each worker holds its own copy of the data, and more would not fit in memory)` : '') +
-      (seconds !== null ? `: about ${PD.seconds(seconds)} on this computer` : '') +
+      (seconds !== null ? `: about ${PD.seconds(seconds)} on this computer` : timing ? ' (timing one task on this computer…)' : '') +
       (c.memory ? `; needs about ${PD.bytes(c.memory.total)} of memory (${PD.bytes(c.memory.perWorker)} per worker)` : '') + '.';
   }
 }(window.PD));

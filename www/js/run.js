@@ -76,6 +76,7 @@
     }
     const token = { cancelled: false };
     S.run = token;
+    PD.stopTiming();
     PD.updateButtons();
     const generation = S.generation;
     const files = PD.currentFiles();

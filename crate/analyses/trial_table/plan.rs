@@ -93,12 +93,14 @@ pub struct Plan {
     /// With pairwise decoding (three or more classes): every pair of classes, in order (0, 1), (0, 2), … (1, 2), …
     pub pairs: Vec<Pair>,
     decoder: Box<dyn Decoder>,
-    /// The trials × features matrix, row-major.
-    x: Vec<f64>,
 }
 
 impl Plan {
-    pub fn new(data: Dataset, recipe: &Recipe) -> Result<Plan> {
+    pub fn new(mut data: Dataset, recipe: &Recipe) -> Result<Plan> {
+        // The fits read the matrix as one row-major slice ([`Plan::x`]); a table read from a file already is.
+        if !data.x.is_standard_layout() {
+            data.x = data.x.as_standard_layout().into_owned();
+        }
         let mut scheme = resolve_scheme(&data.trials(), recipe)?;
         let (folds, classes) = (scheme.folds() as f64, data.classes.len() as f64);
         // Kept per observed repeat: two scores, the confusion counts and, with tuning, a setting per fold.
@@ -110,10 +112,9 @@ impl Plan {
         let mut warnings = data.warnings.clone();
         warnings.append(&mut scheme.warnings);
         scheme.warnings = warnings;
-        let x: Vec<f64> = data.x.as_standard_layout().iter().copied().collect();
         scheme.warnings.extend(check_counts(
             recipe.classifier,
-            &x,
+            data.x.as_slice().expect("standard layout, made so above"),
             &data.feature_names,
             &data.source,
         )?);
@@ -137,8 +138,15 @@ impl Plan {
             scheme,
             pairs,
             decoder: decoders::build(recipe.classifier, recipe.c, recipe.tune),
-            x,
         })
+    }
+
+    /// The trials × features matrix, row-major: the dataset's own (a large table is never held twice).
+    fn x(&self) -> &[f64] {
+        self.data
+            .x
+            .as_slice()
+            .expect("standard layout, made so in Plan::new")
     }
 
     /// Every task of the analysis, repeats first, in index order; then every pair's, pair by pair.
@@ -227,7 +235,7 @@ impl Plan {
         let p = self.data.n_features();
         let (x, y, fold, folds, groups) = match self.scheme.split {
             Split::Pseudo { folds } => {
-                let (x, y, fold) = pseudo::build(&self.data, &self.x, labels, folds, rng);
+                let (x, y, fold) = pseudo::build(&self.data, self.x(), labels, folds, rng);
                 (x, y, fold, folds, None)
             }
             _ => {
@@ -268,7 +276,7 @@ impl Plan {
         let p = self.data.n_features();
         let mut out = Vec::with_capacity(used.len() * p);
         for &i in used {
-            out.extend_from_slice(&self.x[i * p..(i + 1) * p]);
+            out.extend_from_slice(&self.x()[i * p..(i + 1) * p]);
         }
         out
     }
