@@ -34,3 +34,22 @@ svc_rbf=$(median "SVC(kernel='rbf')")
 echo "1000 trials x 300 units, 4 classes, 10 repeats x 5 folds, one thread:"
 printf '  %-15s %7.3f s   scikit-learn SVC(kernel=rbf)     %7.3f s  ratio %5.1fx\n' \
   rbf-svm "$rbf" "$svc_rbf" "$(echo "$svc_rbf / $rbf" | awk -F/ '{print $1 / $2}')"
+# The grid of shapes (trials 250–4000 × neurons 50–1000): linear SVM and shrinkage LDA against scikit-learn's
+# SVC(kernel='linear') and LDA(lsqr, auto) pipelines, 10 repeats × 5 folds, one thread, one round (the largest
+# shapes take minutes per side). GRID=0 skips it; SHAPES=248x100,... picks shapes.
+[ "${GRID:-1}" = 0 ] && exit 0
+shapes="${SHAPES:-$(./target/release/popdecode-bench grid-shapes)}"
+tables=$(mktemp -d)
+trap 'rm -rf "$table" "$out" "$tables"' EXIT
+: > "$out"
+RAYON_NUM_THREADS=1 ./target/release/popdecode-bench grid --shapes "$shapes" --tables "$tables" >> "$out"
+"$VENV/bin/python" -W ignore scripts/bench_sklearn.py grid "$tables" "$shapes" >> "$out"
+seconds() { grep -F "grid $1 " "$out" | grep -E " $2 " | awk '{for (i = 1; i <= NF; i++) if ($(i + 1) == "s") {print $i; exit}}'; }
+echo "grid: 4 classes, 10 of the neurons weakly tuned, 10 repeats x 5 folds, one thread (ratio = scikit-learn / popdecode):"
+printf '  %-11s %10s %10s %7s   %10s %10s %7s\n' 'trials x n' 'linear-svm' 'SVC' 'ratio' 'shr.-LDA' 'LDA lsqr' 'ratio'
+for shape in ${shapes//,/ }; do
+  a=$(seconds linear-svm "$shape"); b=$(seconds "SVC(kernel='linear')" "$shape")
+  c=$(seconds shrinkage-lda "$shape"); d=$(seconds "LDA(lsqr, auto)" "$shape")
+  printf '  %-11s %8.3f s %8.3f s %6.1fx   %8.3f s %8.3f s %6.1fx\n' "$shape" "$a" "$b" "$(awk "BEGIN {print $b / $a}")" \
+    "$c" "$d" "$(awk "BEGIN {print $d / $c}")"
+done

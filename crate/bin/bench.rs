@@ -13,6 +13,7 @@
 //! counts, weak information in 10 of the neurons (the rest carry none), 10 repeats × 5 stratified folds, no
 //! shuffles, one thread. One line per (decoder, shape). `--tables DIR` also writes each shape's table as
 //! `DIR/TRIALSxNEURONS.csv` for `scripts/bench_sklearn.py grid DIR SHAPES`.
+//! `popdecode-bench grid-shapes`: the default grid, comma-separated (for `scripts/bench.sh`).
 //!
 //! `popdecode-bench timecourse [--trials N] [--units N] [--windows N] [--repeats N] [--shuffles N]
 //! [--shuffle-repeats N] [--classifier NAME] [--threads N] [--generalize] [--binned-csv PATH]`: the time-resolved
@@ -41,6 +42,7 @@ fn main() {
         Some("timecourse") => timecourse(&args[2..]),
         Some("rbf") => rbf(&args[2..]),
         Some("grid") => grid(&args[2..]),
+        Some("grid-shapes") => println!("{GRID}"),
         Some("kernels") => kernels(&args[2..]),
         _ => trial_table(&args),
     }

@@ -383,8 +383,8 @@ pub fn describe(classifier: Classifier, c: Option<f64>, features: usize) -> Stri
         Classifier::LinearSvm => format!(
             "a linear support vector machine (L2-regularised squared hinge loss with the intercept as a \
              constant feature, {c}, one-vs-rest for more than two classes), minimised in the primal by the \
-             finite Newton method (Keerthi & DeCoste, 2005) when a training fold had more trials than features \
-             and otherwise in the dual by coordinate descent (Hsieh et al., 2008; stopping tolerance {} on the \
+             finite Newton method (Keerthi & DeCoste, 2005) when a training fold had more than three trials per \
+             feature and otherwise in the dual by coordinate descent (Hsieh et al., 2008; stopping tolerance {} on the \
              projected gradient, at most {} passes)",
             linear_svm::TOLERANCE,
             linear_svm::MAX_PASSES
