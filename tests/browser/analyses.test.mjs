@@ -143,6 +143,41 @@ test('planning the next recording: defaults from the core, the same bytes as the
   await b.context.close();
 });
 
+test('a study of sessions over time: what each session is told from the files, windows and columns, the same bytes as the command line', SLOW, async () => {
+  const b = await openPage();
+  await b.page.check('input[name=kind][value=study]');
+  const dir = sample('study');
+  const sessions = readdirSync(dir).filter((f) => /^m\d-d\d_binned\.csv$/.test(f)).sort();
+  await b.page.setInputFiles('#study-files', [join(dir, 'study_time.csv'), ...sessions.map((f) => join(dir, f))]);
+  await b.page.waitForSelector('#study-sessions table');
+  assert.equal(await b.page.inputValue('#study-holds'), 'binned', 'binned sessions are told from their columns');
+  assert.equal(await b.page.isVisible('#trial-col'), true, 'the trial column is asked for');
+  assert.equal(await b.page.isVisible('#time-col'), true, 'the time column is asked for');
+  assert.equal(await b.page.isVisible('#generalize'), true, 'the time settings are shown');
+  assert.equal(await b.page.inputValue('#time-col'), 'time');
+  await b.page.selectOption('#label', 'odour');
+  await b.page.dispatchEvent('#label', 'change');
+  await quickSettings(b.page, { repeats: 2, shuffles: 3 });
+  await set(b.page, 'study-draws', 200);
+  await b.page.waitForFunction(() => /popdecode study study_time\.csv --binned --trial trial --time time/.test(document.getElementById('cli-line').textContent));
+  await runAndWait(b.page);
+  await shot(b.page, 'study-time-results');
+  const json = await downloadText(b.page, '#export-json');
+  assert.equal(json, cliJson('study-time', ['study', join(dir, 'study_time.csv'), '--binned', '--label', 'odour', '--repeats', '2',
+    '--shuffles', '3', '--group-draws', '200']), 'page JSON and CLI JSON differ');
+  const report = JSON.parse(json);
+  assert.equal(report.sessions.length, sessions.length);
+  const view = b.page.locator('#views .view').first();
+  assert.ok(await view.locator('[data-figure=group_curve] img').isVisible(), 'the group curve is shown');
+  // Told wrong, put right: trial tables instead hide the time fields and decode each session as one table.
+  await b.page.selectOption('#study-holds', 'table');
+  assert.equal(await b.page.isVisible('#time-col'), false);
+  await b.page.waitForFunction(() => /study's options|time settings|settings/.test((document.querySelector('#views .stale') || {}).textContent || ''));
+  assert.deepEqual(b.errors, []);
+  assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});
+
 test('a study of many sessions: listed before running, the same bytes as the command line', SLOW, async () => {
   const b = await openPage();
   await b.page.check('input[name=kind][value=study]');

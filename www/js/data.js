@@ -28,7 +28,9 @@
       rows: [['trials table', 'start_time', 'stop_time', 'odour'], ['', '12.0', '14.0', 'citral'], ['units table', 'spike_times', 'quality', ''], ['', '[0.13, 0.52, …]', 'good', '']] },
   };
 
-  PD.isTime = () => S.kind !== 'table' && S.kind !== 'study';
+  // What one recording is: the kind of data, or for a study what each session is.
+  PD.shape = () => (S.kind === 'study' ? (S.study && S.study.holds) || 'table' : S.kind);
+  PD.isTime = () => PD.shape() !== 'table';
   PD.dataReady = () => (S.kind === 'events' ? !!(S.files.events && S.files.trials)
     : !!S.files[S.kind === 'nwb' ? 'nwb' : S.kind === 'study' ? 'study' : 'table']);
   // The inspected table whose columns the label and group come from.
@@ -36,7 +38,12 @@
 
   // Show the parts of the page that belong to the chosen kind of data.
   PD.showKind = function () {
-    document.querySelectorAll('[data-kinds]').forEach((e) => { e.hidden = !e.dataset.kinds.split(' ').includes(S.kind); });
+    // A study shows, besides its own parts, the column and window fields its sessions need (marked data-study).
+    const shape = PD.shape();
+    document.querySelectorAll('[data-kinds]').forEach((e) => {
+      const kinds = e.dataset.kinds.split(' ');
+      e.hidden = !(kinds.includes(S.kind) || (S.kind === 'study' && 'study' in e.dataset && kinds.includes(shape)));
+    });
     $('drop-what').textContent = S.kind === 'binned'
       ? 'binned table (CSV, one row per trial and time bin)' : 'trial table (CSV, one row per trial)';
     $('start').textContent = S.kind === 'study' ? 'Run the study' : PD.isTime() ? 'Decode over time' : 'Decode';
@@ -258,14 +265,14 @@
   function columnsFrom(info) {
     const h = info.headers;
     const trialCol = find(h, /^trials?([ _-]?(id|number|no))?$/i, h[0]);
-    const timeCol = S.kind === 'binned' ? find(h, /^(time|t|bin|bin[ _]?time)$/i, find(h, /time/i, h[1])) : null;
-    const label = PD.suggestLabel(info, S.kind === 'binned' ? [trialCol, timeCol] : []);
+    const timeCol = PD.shape() === 'binned' ? find(h, /^(time|t|bin|bin[ _]?time)$/i, find(h, /time/i, h[1])) : null;
+    const label = PD.suggestLabel(info, PD.shape() === 'binned' ? [trialCol, timeCol] : []);
     const names = selectable(info, [label, trialCol]);
     fillSelect($('label'), names, label);
     fillSelect($('group'), names, null, '(none)');
     fillSelect($('pseudo'), names.filter((c) => !info.columns[h.indexOf(c)].numeric), null, '(no: neurons recorded together)');
     fillSelect($('trial-col'), names, trialCol);
-    if (S.kind === 'binned') fillSelect($('time-col'), h.length > 1000 ? names.concat([timeCol]) : h, timeCol);
+    if (PD.shape() === 'binned') fillSelect($('time-col'), h.length > 1000 ? names.concat([timeCol]) : h, timeCol);
     const align = $('align-col');
     fillSelect(align, names.filter((c) => info.columns[h.indexOf(c)].numeric && c !== trialCol), null, '(none: spike times are relative)');
     // Features: every numeric column but the label, group, trial and time; a trial counter is left out.
@@ -280,6 +287,8 @@
   }
 
   PD.columnsFrom = columnsFrom;
+  PD.eventColumns = eventColumns;
+  PD.nwbColumns = nwbColumns;
 
   function eventColumns(info) {
     const h = info.headers;
@@ -348,7 +357,7 @@
   // Columns used as label, group, trial or time cannot be features.
   PD.syncFeatures = function () {
     const used = new Set([$('label').value, $('group').value, $('pseudo').value]);
-    if (S.kind === 'binned') { used.add($('trial-col').value); used.add($('time-col').value); }
+    if (PD.shape() === 'binned') { used.add($('trial-col').value); used.add($('time-col').value); }
     S.features.disabled = used;
     $('group').disabled = S.kind === 'table' && $('pseudo').value !== '';
     drawFeatures();

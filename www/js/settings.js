@@ -142,11 +142,12 @@
       if (w.end <= w.start && !problems.some(([id]) => id === 't-end' || id === 't-start')) problems.push(['t-end', 'To must be later than From.']);
       return w;
     };
-    if (S.kind === 'binned') {
+    const shape = PD.shape();
+    if (shape === 'binned') {
       recipe.time = { input: { kind: 'binned', trial: $('trial-col').value, time: $('time-col').value } };
-    } else if (S.kind === 'nwb') {
+    } else if (shape === 'nwb') {
       recipe.time = { input: { kind: 'nwb', align: $('align-col').value || null, ...windows(), units: PD.unitFilters() } };
-    } else if (S.kind === 'events') {
+    } else if (shape === 'events') {
       recipe.time = {
         input: { kind: 'events', trial: $('trial-col').value, neuron: $('neuron-col').value, time: $('time-col').value,
           align: $('align-col').value || null, ...windows() },
@@ -263,8 +264,16 @@
     const parts = [];
     const t = r.time && r.time.input;
     const windows = () => parts.push('--width', t.width, '--step', t.step, '--start', t.start, '--end', t.end);
-    if (S.kind === 'study') parts.push('popdecode study', q(S.study && S.study.table ? S.study.table : 'STUDY.csv'));
-    else if (!t) parts.push('popdecode decode', name('table', 'FILE'));
+    if (S.kind === 'study') {
+      parts.push('popdecode study', q(S.study && S.study.table ? S.study.table : 'STUDY.csv'));
+      if (t && t.kind === 'binned') parts.push('--binned', '--trial', q(t.trial), '--time', q(t.time));
+      if (t && t.kind === 'events') parts.push('--trial', q(t.trial), '--neuron', q(t.neuron), '--time', q(t.time));
+      if (t && t.kind !== 'binned') {
+        if (t.align) parts.push('--align', q(t.align));
+        windows();
+        (t.units || []).forEach((f) => parts.push('--units', q(`${f.column}${f.op}${f.values.join(',')}`)));
+      }
+    } else if (!t) parts.push('popdecode decode', name('table', 'FILE'));
     else if (t.kind === 'binned') parts.push('popdecode timecourse', name('table', 'FILE'), '--trial', q(t.trial), '--time', q(t.time));
     else if (t.kind === 'nwb') {
       parts.push('popdecode timecourse --nwb', name('nwb', 'FILE.nwb'));

@@ -39,17 +39,50 @@
         PD.showError('data-error', e.message);
       }
     }
-    S.study = { table: table ? table.name : null, rows, subjects: {} };
-    const first = answers.find((a) => a !== table && a.info);
-    S.files.study = { name: table ? table.name : `${PD.count(rows.length, 'session')}`, size: 0, info: first ? first.info : null,
+    const sessions = answers.filter((a) => a !== table);
+    S.study = { table: table ? table.name : null, rows, subjects: {}, answers: sessions, holds: guessHolds(sessions, rows) };
+    $('study-holds').value = S.study.holds;
+    S.files.study = { name: table ? table.name : `${PD.count(rows.length, 'session')}`, size: 0, info: null,
       files: chosen.map((f) => ({ name: f.name, size: f.size })) };
     $('data-status').textContent = (table ? `Study table ${table.name}` : 'No study table: each file is one session') +
       ` and ${PD.count(chosen.length - (table ? 1 : 0), 'session file')}.`;
-    if (first) PD.columnsFrom(first.info);
+    sessionColumns();
+    PD.showKind();
     $('data-view').hidden = false;
     $('layout-examples').hidden = true;
     PD.emit('data');
   };
+
+  // What each session is, told from the files: NWB files; spike events when the study table names trial tables;
+  // binned tables when the first session has a trial column and a time column; else trial tables.
+  function guessHolds(sessions, rows) {
+    if (sessions.length && sessions.every((a) => a.nwb)) return 'nwb';
+    if (rows.some((r) => r.trials)) return 'events';
+    const first = sessions.find((a) => a.info);
+    const h = first ? first.info.headers : [];
+    if (h.some((c) => /^trials?([ _-]?(id|number|no))?$/i.test(c)) && h.some((c) => /^(time|t|bin|bin[ _]?time)$/i.test(c))) return 'binned';
+    return 'table';
+  }
+
+  // The column selects from the first session as the sessions are read: its trial table (for spike events, the
+  // one the study table names, and the events file's own columns), or its NWB file's trials table.
+  function sessionColumns() {
+    const st = S.study;
+    const byName = (name) => name && st.answers.find((a) => a.name === name || a.name === name.split('/').pop());
+    const first = st.rows.length ? byName(st.rows[0].file) : st.answers[0];
+    let info = null;
+    if (st.holds === 'nwb') {
+      if (first && first.nwb) { const f = { info: first.nwb }; PD.nwbColumns(f); info = f.columns; }
+    } else if (st.holds === 'events') {
+      const trials = st.rows.length ? byName(st.rows[0].trials) : null;
+      if (trials && trials.info) { info = trials.info; PD.columnsFrom(info); }
+      if (first && first.info) PD.eventColumns(first.info);
+    } else if (first && first.info) {
+      info = first.info;
+      PD.columnsFrom(info);
+    }
+    S.files.study.info = info;
+  }
 
   // The study's options, as JSON text with a fixed key order (a record compares them as text): the study table's
   // name while every subject is the table's, else the session list with the subjects as edited.
@@ -146,5 +179,13 @@
     $('study-files').addEventListener('change', take);
     $('study-folder').addEventListener('change', take);
     ['study-pool', 'study-draws', 'study-alpha'].forEach((id) => $(id).addEventListener('change', PD.refresh));
+    $('study-holds').addEventListener('change', () => {
+      if (!S.study) return;
+      S.study.holds = $('study-holds').value;
+      sessionColumns();
+      PD.showKind();
+      PD.emit('data');
+      PD.refresh();
+    });
   });
 }(window.PD));
