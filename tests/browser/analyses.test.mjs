@@ -4,7 +4,7 @@
 // record keeps every file with its SHA-256, and no request leaves the page.
 import { test, after, before } from 'node:test';
 import assert from 'node:assert/strict';
-import { readFileSync, readdirSync, mkdtempSync } from 'node:fs';
+import { readFileSync, readdirSync, mkdtempSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { tmpdir } from 'node:os';
 import { createHash } from 'node:crypto';
@@ -173,6 +173,45 @@ test('a study of sessions over time: what each session is told from the files, w
   await b.page.selectOption('#study-holds', 'table');
   assert.equal(await b.page.isVisible('#time-col'), false);
   await b.page.waitForFunction(() => /study's options|time settings|settings/.test((document.querySelector('#views .stale') || {}).textContent || ''));
+  assert.deepEqual(b.errors, []);
+  assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});
+
+test('a study of spike-time sessions: each session\'s events and trial table paired by the study table, the same bytes as the command line', SLOW, async () => {
+  // Three sessions cut from the spike-time sample by its session column (invented data).
+  const dir = mkdtempSync(join(tmp, 'events-study-'));
+  const trials = readFileSync(sample('odour_trials.csv'), 'utf8').trim().split('\n');
+  const spikes = readFileSync(sample('odour_spikes.csv'), 'utf8').trim().split('\n');
+  const rows = ['file,session,subject,trials'];
+  const files = [join(dir, 'study.csv')];
+  for (const s of ['s1', 's2', 's3']) {
+    const mine = trials.slice(1).filter((l) => l.endsWith(',' + s));
+    const ids = new Set(mine.map((l) => l.split(',')[0]));
+    writeFileSync(join(dir, `${s}_trials.csv`), [trials[0], ...mine].join('\n') + '\n');
+    writeFileSync(join(dir, `${s}_spikes.csv`), [spikes[0], ...spikes.slice(1).filter((l) => ids.has(l.split(',')[0]))].join('\n') + '\n');
+    rows.push(`${s}_spikes.csv,${s},mouse-${s === 's3' ? 'b' : 'a'},${s}_trials.csv`);
+    files.push(join(dir, `${s}_spikes.csv`), join(dir, `${s}_trials.csv`));
+  }
+  writeFileSync(files[0], rows.join('\n') + '\n');
+  const b = await openPage();
+  await b.page.check('input[name=kind][value=study]');
+  await b.page.setInputFiles('#study-files', files);
+  await b.page.waitForSelector('#study-sessions table');
+  assert.equal(await b.page.inputValue('#study-holds'), 'events', 'a trials column in the study table means spike times');
+  assert.equal(await b.page.isVisible('#neuron-col'), true);
+  assert.equal(await b.page.isVisible('#width'), true, 'the windows are asked for');
+  assert.equal(await b.page.inputValue('#neuron-col'), 'neuron');
+  await b.page.selectOption('#label', 'odour');
+  await b.page.dispatchEvent('#label', 'change');
+  await quickSettings(b.page, { repeats: 2, shuffles: 3 });
+  await set(b.page, 'study-draws', 200);
+  await b.page.waitForFunction(() => document.querySelectorAll('#study-sessions tr').length === 4);
+  await runAndWait(b.page);
+  const json = await downloadText(b.page, '#export-json');
+  assert.equal(json, cliJson('study-events', ['study', files[0], '--label', 'odour', '--start', '-0.5', '--end', '1',
+    '--repeats', '2', '--shuffles', '3', '--group-draws', '200']), 'page JSON and CLI JSON differ');
+  assert.equal(JSON.parse(json).sessions.length, 3);
   assert.deepEqual(b.errors, []);
   assertLocalOnly(assert, b.requests, server.origin);
   await b.context.close();
