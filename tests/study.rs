@@ -674,3 +674,202 @@ fn spike_event_sessions_come_with_their_trial_tables() {
     assert_eq!(files[0]["file"], "e1.csv");
     assert_eq!(files[1]["file"], "t1.csv");
 }
+
+/// A study of invented sessions of choices in two contexts (`shared`: one code for the choice in both), each
+/// session's score the generalization across contexts (trained in one, tested in the other, both ways).
+fn across_study(shared: bool, seed: u64) -> (StudyPlan, StudyReport) {
+    use popdecode::recipe::{Across, Assignment};
+    use popdecode::simulate::{context_csv, ContextScenario};
+    let texts: Vec<(String, String)> = (0..5)
+        .map(|i| {
+            let s = ContextScenario {
+                shared,
+                trials_per_cell: 20,
+                units: 20,
+                seed: seed * 10 + i,
+                ..ContextScenario::choices()
+            };
+            (format!("s{i}.csv"), context_csv(&s))
+        })
+        .collect();
+    let files: Vec<FileBytes> = texts
+        .iter()
+        .map(|(name, text)| FileBytes {
+            name,
+            bytes: text.as_bytes(),
+        })
+        .collect();
+    let rows = (0..texts.len())
+        .map(|i| StudyRow {
+            file: texts[i].0.clone(),
+            session: format!("s{i}"),
+            subject: None,
+            trials: None,
+        })
+        .collect();
+    let mut r = Recipe::new("choice");
+    r.classifier = Classifier::ShrinkageLda;
+    r.repeats = 2;
+    r.shuffles = 39;
+    r.seed = seed;
+    r.columns.ignore = vec!["session".into()];
+    let way = |a: &str, b: &str| Assignment {
+        train: vec![a.into()],
+        test: vec![b.into()],
+    };
+    r.across = Some(Across {
+        column: "context".into(),
+        assignments: vec![way("citral", "hexanal"), way("hexanal", "citral")],
+    });
+    let request = StudyRequest {
+        options: StudyOptions {
+            group_draws: 999,
+            ..StudyOptions::default()
+        },
+        sessions: Some(rows),
+        table: None,
+    };
+    let plan = from_files(&files, &r, request).expect("a valid study");
+    let outcomes: Vec<StudyOutcome> = plan.tasks().into_iter().map(|t| plan.run(t)).collect();
+    let report = StudyReport::build(&plan, &outcomes, None);
+    (plan, report)
+}
+
+/// Generalization across conditions, combined over sessions: a code shared by the contexts generalizes in every
+/// session and the group test finds it; an orthogonal code stays at chance and the group test does not; each
+/// session's numbers are those of the session analysed alone under its seed.
+#[test]
+fn generalization_across_conditions_is_combined_over_sessions() {
+    use popdecode::analyses::across::{run_all as across_alone, AcrossPlan};
+    use popdecode::simulate::{context_csv, ContextScenario};
+    let (plan, shared) = across_study(true, 3);
+    let group = shared.group.as_ref().unwrap();
+    assert!(group.mean > 0.75, "{}", group.mean);
+    assert!(group.p_value.unwrap() < 0.01, "{:?}", group.p_value);
+    let (_, orthogonal) = across_study(false, 3);
+    let group = orthogonal.group.as_ref().unwrap();
+    assert!((group.mean - 0.5).abs() < 0.08, "{}", group.mean);
+    assert!(group.p_value.unwrap() > 0.05, "{:?}", group.p_value);
+    // Session 1 alone, with its seed.
+    let s = &shared.sessions[1];
+    let mut alone = plan.recipe.clone();
+    alone.seed = s.seed;
+    let text = context_csv(&ContextScenario {
+        shared: true,
+        trials_per_cell: 20,
+        units: 20,
+        seed: 31,
+        ..ContextScenario::choices()
+    });
+    let data =
+        input::across::trial_table("s1.csv", text.as_bytes(), &alone.columns, "context").unwrap();
+    let one = across_alone(&AcrossPlan::new(data, &alone).unwrap());
+    assert_eq!(s.accuracy.as_ref().unwrap(), &one.summary.accuracy);
+    assert_eq!(s.null, one.shuffle.null);
+    assert_eq!(s.p_value, one.shuffle.p_value);
+}
+
+/// The CLI's `study --across`: the sessions of the choices sample (split by its session column) generalize across
+/// odour contexts at the group level, the page's bridge gives the same bytes; pooling or sessions over time with
+/// `--across` are refused in one line.
+#[test]
+fn the_cli_generalizes_across_conditions_over_sessions() {
+    let dir = temp_dir("across");
+    let text = std::fs::read_to_string(
+        PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("samples/choices.csv"),
+    )
+    .unwrap();
+    let mut lines = text.lines();
+    let header = lines.next().unwrap();
+    let rows: Vec<&str> = lines.collect();
+    let mut table = String::from("file,session\n");
+    for s in ["s1", "s2", "s3"] {
+        let mine: Vec<&str> = rows
+            .iter()
+            .copied()
+            .filter(|l| l.split(',').nth(3) == Some(s))
+            .collect();
+        std::fs::write(
+            dir.join(format!("{s}.csv")),
+            format!("{header}\n{}\n", mine.join("\n")),
+        )
+        .unwrap();
+        table.push_str(&format!("{s}.csv,{s}\n"));
+    }
+    std::fs::write(dir.join("study.csv"), table).unwrap();
+    let json = dir.join("out.json");
+    let run = |extra: &[&str]| {
+        bin()
+            .arg("study")
+            .arg(dir.join("study.csv"))
+            .args([
+                "--label", "choice", "--across", "context", "--ignore", "session",
+            ])
+            .args([
+                "--repeats",
+                "2",
+                "--shuffles",
+                "19",
+                "--group-draws",
+                "500",
+                "--quiet",
+            ])
+            .args(extra)
+            .output()
+            .unwrap()
+    };
+    let out = run(&["--json", json.to_str().unwrap()]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let cli = std::fs::read_to_string(&json).unwrap();
+    let v: serde_json::Value = serde_json::from_str(&cli).unwrap();
+    assert_eq!(v["recipe"]["across"]["column"], "context");
+    assert_eq!(v["sessions"].as_array().unwrap().len(), 3);
+    assert!(
+        v["group"]["mean"].as_f64().unwrap() > 0.75,
+        "{}",
+        v["group"]
+    );
+    assert!(
+        v["group"]["p_value"].as_f64().unwrap() < 0.05,
+        "{}",
+        v["group"]
+    );
+    // The page's bridge, from the same files and the recipe the CLI wrote.
+    let recipe = Recipe::from_json("recipe", &v["recipe"].to_string()).unwrap();
+    let contents: Vec<(String, Vec<u8>)> = ["study.csv", "s1.csv", "s2.csv", "s3.csv"]
+        .iter()
+        .map(|f| (f.to_string(), std::fs::read(dir.join(f)).unwrap()))
+        .collect();
+    let files: Vec<FileBytes> = contents
+        .iter()
+        .map(|(name, bytes)| FileBytes { name, bytes })
+        .collect();
+    let request = StudyRequest {
+        options: StudyOptions {
+            group_draws: 500,
+            ..StudyOptions::default()
+        },
+        sessions: None,
+        table: Some("study.csv".into()),
+    };
+    let plan = from_files(&files, &recipe, request).unwrap();
+    let mut outcomes: Vec<StudyOutcome> = plan.tasks().into_iter().map(|t| plan.run(t)).collect();
+    outcomes.reverse();
+    let page = plan.finish(&outcomes).json;
+    assert_eq!(
+        format!("{page}\n"),
+        cli,
+        "the CLI writes the JSON and a newline"
+    );
+    let out = run(&["--pool"]);
+    assert_eq!(out.status.code(), Some(2));
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        stderr.contains("pooled sessions") && stderr.lines().count() == 1,
+        "{stderr}"
+    );
+}

@@ -4,6 +4,7 @@
 use crate::args::{base_recipe, show, ColumnArgs, RunArgs};
 use crate::files::{display_name, open_source, read, sha256_file};
 use crate::run::{analyse, Inputs, Loaded};
+use crate::targets::TargetArgs;
 use crate::timecourse::{time_settings, Source, TimeFlags};
 use clap::Args;
 use popdecode::analyses::study::plan::assess;
@@ -40,6 +41,9 @@ pub struct StudyArgs {
     pub group_draws: Option<usize>,
     #[command(flatten)]
     pub time: TimeFlags,
+    /// Generalization across conditions (trial-table sessions): every session's score is its generalization score.
+    #[command(flatten)]
+    pub targets: TargetArgs,
     #[command(flatten)]
     pub columns: ColumnArgs,
     #[command(flatten)]
@@ -65,6 +69,7 @@ fn kind_of(args: &StudyArgs, table: &study::StudyTable, recipe_kind: SessionKind
 
 pub fn run(args: StudyArgs) -> Result<(), String> {
     let mut recipe = base_recipe(&args.run, &args.columns)?;
+    args.targets.apply(&mut recipe)?;
     let table = study::read(&display_name(&args.table), &read(&args.table)?).map_err(show)?;
     let kind = kind_of(&args, &table, SessionKind::of(&recipe));
     let source = match kind {

@@ -9,6 +9,7 @@
 //! fetched as its compact extract, and a spike-events file is counted into windows and dropped before the next.
 
 use super::{table::Table, time_course, trial_table, FileBytes};
+use crate::data::across::AcrossData;
 use crate::data::time::TimeDataset;
 use crate::data::Dataset;
 use crate::error::{Error, Result};
@@ -222,6 +223,8 @@ pub fn base_name(path: &str) -> &str {
 pub enum SessionData {
     Table(Dataset),
     Time(TimeDataset),
+    /// A trial table with the second column of generalization across conditions.
+    Across(AcrossData),
 }
 
 /// Read every session of a study, one at a time: `fetch` returns the bytes of a path as written in the table (for
@@ -263,7 +266,14 @@ pub fn read_session(files: &[FileBytes], recipe: &Recipe) -> Result<SessionData>
             let [file] = files else {
                 return Err(Error::Recipe("a trial-table session is one file".into()));
             };
-            trial_table::read(file.name, file.bytes, &recipe.columns).map(SessionData::Table)
+            match &recipe.across {
+                Some(a) => {
+                    super::across::trial_table(file.name, file.bytes, &recipe.columns, &a.column)
+                        .map(SessionData::Across)
+                }
+                None => trial_table::read(file.name, file.bytes, &recipe.columns)
+                    .map(SessionData::Table),
+            }
         }
         Some(t) => time_course(files, &recipe.columns, &t.input).map(SessionData::Time),
     }

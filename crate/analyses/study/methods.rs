@@ -4,7 +4,7 @@
 use super::report::StudyReport;
 use super::text::prevalence_statement;
 use crate::input::study::SessionKind;
-use crate::recipe::{Folds, TimeInput};
+use crate::recipe::{Across, Folds, Recipe, TimeInput};
 use crate::report::methods::fitting;
 use crate::report::text::{p_text, pct, seconds as s};
 
@@ -68,20 +68,32 @@ pub fn paragraph(r: &StudyReport) -> String {
         ),
         Folds::LeaveOneOut => "each trial was held out in turn (leave-one-out)".into(),
     };
-    out.push(format!(
-        "Each session was decoded on its own with the same protocol and a seed of its own (derived from the \
-         study's seed and the session's name, and given in the result): in each of {} repeats, {}{split}.",
-        rc.repeats,
-        if rc.balance {
-            "classes were balanced by randomly undersampling every class to the size of that session's smallest, \
-             and "
-        } else {
-            ""
-        }
-    ));
     // Sessions differ in their neurons; the decoder's sentence is the one of the smallest session.
     let neurons = r.sessions.iter().map(|s| s.neurons).min().unwrap_or(0);
-    out.push(fitting(rc, neurons));
+    match &rc.across {
+        Some(a) => {
+            out.push(across_protocol(rc, a));
+            out.push(
+                fitting(rc, neurons)
+                    .replace("Within each training fold,", "Within each training set,"),
+            );
+        }
+        None => {
+            out.push(format!(
+                "Each session was decoded on its own with the same protocol and a seed of its own (derived from \
+                 the study's seed and the session's name, and given in the result): in each of {} repeats, \
+                 {}{split}.",
+                rc.repeats,
+                if rc.balance {
+                    "classes were balanced by randomly undersampling every class to the size of that session's \
+                     smallest, and "
+                } else {
+                    ""
+                }
+            ));
+            out.push(fitting(rc, neurons));
+        }
+    }
     out.push(format!(
         "A session's score was its {}, mean over repeats.",
         r.score
@@ -92,10 +104,10 @@ pub fn paragraph(r: &StudyReport) -> String {
              and its p-value was (b + 1)/(m + 1), b of the m permutations scoring at least the observed score \
              (Phipson & Smyth 2010).",
             rc.shuffles,
-            if rc.columns.group.is_some() {
-                " within groups"
-            } else {
-                ""
+            match (&rc.across, &rc.columns.group) {
+                (Some(a), _) => format!(" within each level of '{}'", a.column),
+                (None, Some(_)) => " within groups".to_string(),
+                (None, None) => String::new(),
             },
             rc.shuffle_repeats()
         ));
@@ -176,6 +188,46 @@ pub fn paragraph(r: &StudyReport) -> String {
         }
     }
     out.join(" ")
+}
+
+/// Each session's protocol when its score is the generalization across the levels of a second column.
+fn across_protocol(rc: &Recipe, a: &Across) -> String {
+    let col = &a.column;
+    let assignments = if a.assignments.is_empty() {
+        format!(
+            "half of the levels of '{col}' and tested on the trials at the other half, for every balanced \
+             dichotomy of the levels (the mean over them is the cross-condition generalization performance, \
+             Bernardi et al., 2020)"
+        )
+    } else {
+        let list: Vec<String> = a
+            .assignments
+            .iter()
+            .map(|x| format!("{} → {}", x.train.join(", "), x.test.join(", ")))
+            .collect();
+        format!(
+            "some levels of '{col}' and tested on the trials at others (trained → tested: {}{})",
+            list.join("; "),
+            if list.len() > 1 {
+                "; the score is the mean over these assignments"
+            } else {
+                ""
+            }
+        )
+    };
+    format!(
+        "Each session was analysed on its own with the same protocol and a seed of its own (derived from the \
+         study's seed and the session's name, and given in the result): in each of {} repeats, the decoder was \
+         trained on the trials at {assignments}, {}; standardisation and decoder were fitted on the training set \
+         only.",
+        rc.repeats,
+        if rc.balance {
+            "the training and the testing set each balanced by the label (every combination of a level and a class \
+             randomly undersampled to the smallest such combination in its set)"
+        } else {
+            "every trial at the training and testing levels used without balancing"
+        }
+    )
 }
 
 fn significant_spans(r: &StudyReport) -> String {

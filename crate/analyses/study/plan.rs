@@ -1,6 +1,7 @@
 //! The study plan: every session checked against the recipe, the sessions that cannot enter listed with their
 //! reasons, and the tasks (session × repeat or shuffle, or the pooled population's repeats and shuffles).
 
+use crate::analyses::across::{AcrossOutcome, AcrossPlan};
 use crate::analyses::time_course::{TimeOutcome, TimePlan};
 use crate::analyses::trial_table::{Outcome, Plan, TableTask};
 use crate::data::{Dataset, SourceFile};
@@ -10,7 +11,7 @@ use crate::input::study::{SessionKind, StudyRow, StudyTable};
 use crate::input::FileBytes;
 use crate::recipe::{Folds, Recipe};
 use crate::report::text::session_notes;
-use crate::resample::{Scheme, Task};
+use crate::resample::Task;
 use crate::rng::{task_rng, Stream};
 use crate::stats::group::Units;
 use rand_core::RngCore;
@@ -77,6 +78,8 @@ impl StudyOptions {
 pub enum AnyPlan {
     Table(Plan),
     Time(TimePlan),
+    /// Generalization across conditions of a trial table: the session's score is the generalization score.
+    Across(AcrossPlan),
 }
 
 /// What a task of either kind produced.
@@ -85,6 +88,7 @@ pub enum AnyPlan {
 pub enum AnyOutcome {
     Table(Outcome),
     Time(TimeOutcome),
+    Across(AcrossOutcome),
 }
 
 impl AnyPlan {
@@ -100,6 +104,7 @@ impl AnyPlan {
                 })
                 .collect(),
             AnyPlan::Time(p) => p.tasks(),
+            AnyPlan::Across(p) => p.tasks(),
         }
     }
 
@@ -107,6 +112,7 @@ impl AnyPlan {
         match self {
             AnyPlan::Table(p) => p.fits_in(task),
             AnyPlan::Time(p) => p.fits_in(task),
+            AnyPlan::Across(p) => p.fits_in(task),
         }
     }
 
@@ -114,13 +120,7 @@ impl AnyPlan {
         match self {
             AnyPlan::Table(p) => AnyOutcome::Table(p.run(task)),
             AnyPlan::Time(p) => AnyOutcome::Time(p.run(task)),
-        }
-    }
-
-    pub fn scheme(&self) -> &Scheme {
-        match self {
-            AnyPlan::Table(p) => &p.scheme,
-            AnyPlan::Time(p) => &p.scheme,
+            AnyPlan::Across(p) => AnyOutcome::Across(p.run(task)),
         }
     }
 }
@@ -375,6 +375,13 @@ pub fn assess(
                 .into(),
         ));
     }
+    if recipe.across.is_some() && (options.pool || recipe.time.is_some()) {
+        return Err(Error::Recipe(
+            "generalization across conditions is combined across sessions for trial tables decoded session by \
+             session; sessions over time or pooled sessions are not generalized across conditions yet"
+                .into(),
+        ));
+    }
     if options.pool && recipe.folds == Folds::LeaveOneOut {
         return Err(Error::Recipe(
                 "pseudo-populations need k folds (each fold builds its own pseudo-trials), not leave-one-out".into(),
@@ -383,6 +390,7 @@ pub fn assess(
     let classes_of = |d: &SessionData| match d {
         SessionData::Table(t) => t.classes.clone(),
         SessionData::Time(t) => t.classes.clone(),
+        SessionData::Across(a) => a.classes.clone(),
     };
     let class_sets: Vec<Vec<String>> = data.iter().map(classes_of).collect();
     let classes = most_common(&class_sets).clone();
@@ -390,7 +398,7 @@ pub fn assess(
         .iter()
         .map(|d| match d {
             SessionData::Time(t) => Some(serde_json::to_string(&t.windows).expect("windows")),
-            SessionData::Table(_) => None,
+            SessionData::Table(_) | SessionData::Across(_) => None,
         })
         .collect();
     let study_windows = most_common(&windows).clone();
@@ -592,6 +600,7 @@ fn session_plan(
     let built = match d {
         SessionData::Table(t) => Plan::new(t, &rc).map(AnyPlan::Table),
         SessionData::Time(t) => TimePlan::new(t, &rc).map(AnyPlan::Time),
+        SessionData::Across(a) => AcrossPlan::new(a, &rc).map(AnyPlan::Across),
     };
     built.map_err(|e| match e {
         Error::Design(m) => m,
@@ -608,6 +617,9 @@ fn pool_check(d: &SessionData, recipe: &Recipe) -> std::result::Result<(), Strin
     let (classes, counts) = match d {
         SessionData::Table(t) => (&t.classes, t.class_counts()),
         SessionData::Time(t) => (&t.classes, t.class_counts()),
+        SessionData::Across(_) => {
+            unreachable!("generalization across conditions is refused with pooling")
+        }
     };
     match counts.iter().position(|&m| m < k) {
         Some(c) => Err(format!(
@@ -637,6 +649,16 @@ fn describe(row: &StudyRow, seed: u64, d: &SessionData) -> Session {
             t.n_neurons(),
             t.class_counts(),
         ),
+        SessionData::Across(a) => {
+            let mut counts = vec![0; a.classes.len()];
+            a.y.iter().for_each(|&c| counts[c] += 1);
+            (
+                a.features.files.clone(),
+                a.features.n_trials,
+                a.features.names.len(),
+                counts,
+            )
+        }
     };
     Session {
         name: row.session.clone(),
@@ -682,6 +704,9 @@ fn pooled_plan(
         match d {
             SessionData::Table(t) => tables.push((name, t)),
             SessionData::Time(t) => recordings.push((name, t)),
+            SessionData::Across(_) => {
+                unreachable!("generalization across conditions is refused with pooling")
+            }
         }
     }
     if recordings.is_empty() {

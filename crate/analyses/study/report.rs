@@ -31,6 +31,7 @@
 //! Built from outcomes in any order; nothing time- or machine-dependent is written.
 
 use super::plan::{AnyOutcome, AnyPlan, LeftOut, StudyOptions, StudyOutcome, StudyPlan};
+use crate::analyses::across::{AcrossOutcome, AcrossReport};
 use crate::analyses::time_course::report::{TimeCluster, TimeReport};
 use crate::analyses::time_course::TimeOutcome;
 use crate::analyses::trial_table::report::Report;
@@ -178,6 +179,7 @@ impl StudyReport {
         let fits = Fits::sum(outcomes.iter().map(|o| match &o.outcome {
             AnyOutcome::Table(t) => (t.fits, t.capped_fits, t.single_class_fits),
             AnyOutcome::Time(t) => (t.fits, t.capped_fits, t.single_class_fits),
+            AnyOutcome::Across(t) => (t.fits, t.capped_fits, t.single_class_fits),
         }));
         let mut warnings = plan.warnings.clone();
         let by_subject = plan.by_subject();
@@ -396,6 +398,13 @@ fn score_description(plan: &StudyPlan, headline: Headline) -> String {
                 crate::report::text::seconds(w[w.len() - 1].end)
             )
         }
+        Some(AnyPlan::Across(a)) => format!(
+            "{name} of the decoder trained at some levels of '{}' and tested at the others (the mean over {} \
+             assignment{} of its levels)",
+            a.data.across_column,
+            a.assignments.len(),
+            if a.assignments.len() == 1 { "" } else { "s" }
+        ),
         _ => name.to_string(),
     }
 }
@@ -420,13 +429,7 @@ fn score_session(plan: &AnyPlan, outs: &[&AnyOutcome]) -> Scored {
     };
     match plan {
         AnyPlan::Table(p) => {
-            let outs: Vec<Outcome> = outs
-                .iter()
-                .filter_map(|o| match o {
-                    AnyOutcome::Table(t) => Some(t.clone()),
-                    AnyOutcome::Time(_) => None,
-                })
-                .collect();
+            let outs: Vec<Outcome> = outs.iter().filter_map(|o| table_outcome(o)).collect();
             let r = Report::build(p, &outs);
             let mut result = empty(r.warnings.clone());
             result.accuracy = Some(r.summary.accuracy.clone());
@@ -440,14 +443,23 @@ fn score_session(plan: &AnyPlan, outs: &[&AnyOutcome]) -> Scored {
                 result,
             }
         }
+        AnyPlan::Across(p) => {
+            let outs: Vec<AcrossOutcome> = outs.iter().filter_map(|o| across_outcome(o)).collect();
+            let r = AcrossReport::build(p, &outs);
+            let mut result = empty(r.warnings.clone());
+            result.accuracy = Some(r.summary.accuracy.clone());
+            result.balanced_accuracy = Some(r.summary.balanced_accuracy.clone());
+            result.null = r.shuffle.null.clone();
+            result.p_value = r.shuffle.p_value;
+            Scored {
+                observed: r.shuffle.observed,
+                curve: Vec::new(),
+                null_curves: Vec::new(),
+                result,
+            }
+        }
         AnyPlan::Time(p) => {
-            let outs: Vec<TimeOutcome> = outs
-                .iter()
-                .filter_map(|o| match o {
-                    AnyOutcome::Time(t) => Some(t.clone()),
-                    AnyOutcome::Table(_) => None,
-                })
-                .collect();
+            let outs: Vec<TimeOutcome> = outs.iter().filter_map(|o| time_outcome(o)).collect();
             let r = TimeReport::build(p, &outs);
             let span = |v: &[f64]| stats::mean(v);
             let acc: Vec<f64> = r.repeats.iter().map(|o| span(&o.accuracy)).collect();
@@ -551,26 +563,35 @@ fn group_time(
 
 /// The pooled population's own finished analysis (its JSON, text, methods and figures).
 pub fn pooled_finished(pooled: &AnyPlan, outcomes: &[StudyOutcome]) -> Finished {
+    let outs = outcomes.iter().map(|o| &o.outcome);
     match pooled {
         AnyPlan::Table(p) => {
-            let outs: Vec<Outcome> = outcomes
-                .iter()
-                .filter_map(|o| match &o.outcome {
-                    AnyOutcome::Table(t) => Some(t.clone()),
-                    AnyOutcome::Time(_) => None,
-                })
-                .collect();
-            Analysis::finish(p, &outs)
+            Analysis::finish(p, &outs.filter_map(table_outcome).collect::<Vec<_>>())
         }
-        AnyPlan::Time(p) => {
-            let outs: Vec<TimeOutcome> = outcomes
-                .iter()
-                .filter_map(|o| match &o.outcome {
-                    AnyOutcome::Time(t) => Some(t.clone()),
-                    AnyOutcome::Table(_) => None,
-                })
-                .collect();
-            Analysis::finish(p, &outs)
+        AnyPlan::Time(p) => Analysis::finish(p, &outs.filter_map(time_outcome).collect::<Vec<_>>()),
+        AnyPlan::Across(p) => {
+            Analysis::finish(p, &outs.filter_map(across_outcome).collect::<Vec<_>>())
         }
+    }
+}
+
+fn table_outcome(o: &AnyOutcome) -> Option<Outcome> {
+    match o {
+        AnyOutcome::Table(t) => Some(t.clone()),
+        _ => None,
+    }
+}
+
+fn time_outcome(o: &AnyOutcome) -> Option<TimeOutcome> {
+    match o {
+        AnyOutcome::Time(t) => Some(t.clone()),
+        _ => None,
+    }
+}
+
+fn across_outcome(o: &AnyOutcome) -> Option<AcrossOutcome> {
+    match o {
+        AnyOutcome::Across(t) => Some(t.clone()),
+        _ => None,
     }
 }
