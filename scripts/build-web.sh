@@ -25,7 +25,8 @@ wasm-bindgen --target no-modules --no-typescript --out-dir www/pkg \
 "$TOOLS/node_modules/.bin/wasm-opt" -Oz --enable-simd --enable-bulk-memory --enable-nontrapping-float-to-int \
   --enable-sign-ext --enable-mutable-globals --enable-reference-types --enable-multivalue \
   www/pkg/popdecode_bg.wasm -o www/pkg/popdecode_bg.wasm
-mkdir -p www/samples
+mkdir -p www/samples/study
 cp samples/*.csv www/samples/
+cp samples/study/study.csv samples/study/m?-d?.csv www/samples/study/
 node scripts/bundle-offline.mjs
 echo "built www/pkg ($(wc -c < www/pkg/popdecode_bg.wasm) bytes of wasm) and dist/popdecode.html"

@@ -217,6 +217,20 @@ test('a study of spike-time sessions: each session\'s events and trial table pai
   await b.context.close();
 });
 
+test('the example study is one click away: ten sessions from four mice listed, ready to run', async () => {
+  const b = await openPage();
+  await b.page.check('input[name=kind][value=study]');
+  await b.page.click('#example-study');
+  await b.page.waitForFunction(() => document.querySelectorAll('#study-sessions tr').length === 11);
+  assert.equal(await b.page.inputValue('#label'), 'odour');
+  assert.equal(await b.page.inputValue('#study-holds'), 'table');
+  assert.equal(await b.page.inputValue('[aria-label="Subject of session m4-d3"]'), 'm4');
+  await b.page.waitForFunction(() => !document.getElementById('start').disabled);
+  assert.deepEqual(b.errors, []);
+  assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});
+
 test('a study of many sessions: listed before running, the same bytes as the command line', SLOW, async () => {
   const b = await openPage();
   await b.page.check('input[name=kind][value=study]');

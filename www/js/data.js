@@ -431,6 +431,18 @@
     PD.emit('settings');
   };
 
+  // The example study: the study table and the sessions' trial tables it lists (invented odour sessions).
+  PD.loadStudyExample = async function () {
+    const get = async (name) => (window.POPDECODE_EXAMPLES ? window.POPDECODE_EXAMPLES['study/' + name]
+      : (await fetch('samples/study/' + name)).text());
+    const table = await get('study.csv');
+    const names = table.trim().split('\n').slice(1).map((row) => row.split(',')[0]);
+    const texts = await Promise.all(names.map(get));
+    const files = [new File([table], 'study.csv', { type: 'text/csv' }),
+      ...texts.map((t, i) => new File([t], names[i], { type: 'text/csv' }))];
+    await PD.loadStudy(files);
+  };
+
   // Dropped files: in spike-events mode each goes where its header says (a neuron and a time column = events).
   PD.loadDropped = async function (files) {
     if (S.kind === 'study') { await PD.loadStudy(files); return; }

@@ -50,6 +50,7 @@
     });
     $('example').addEventListener('click', PD.loadExample);
     $('example-events').addEventListener('click', PD.loadExample);
+    $('example-study').addEventListener('click', PD.loadStudyExample);
     document.querySelectorAll('input[name=kind]').forEach((r) => r.addEventListener('change', () => PD.setKind(r.value)));
     $('unit-col').addEventListener('change', () => { PD.fillUnitFilter(); PD.refresh(); });
     ['label', 'group', 'pseudo', 'trial-col', 'time-col', 'neuron-col', 'align-col', 'unit-op', 'unit-value', ...PD.SETTING_IDS]
