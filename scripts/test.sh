@@ -75,9 +75,12 @@ if [ -x scripts/build-web.sh ] && [ -d tests/browser ]; then
     > test-output/npm.log 2>&1 || echo "npm install failed (see test-output/npm.log)"
   cargo build --release --quiet --bin popdecode
   if scripts/build-web.sh > test-output/build-web.log 2>&1; then
-    node --test --test-timeout=300000 --test-reporter=spec tests/browser/ 2>&1 | tee test-output/browser.log | grep -E '^ℹ (pass|fail)|✖' | head -40
+    # The timeout bounds a test file as a whole too (node runs each file as a test): a file whose tests take
+    # longer is cancelled, and its cancelled tests count as failed below.
+    node --test --test-timeout=900000 --test-reporter=spec tests/browser/ 2>&1 | tee test-output/browser.log | grep -E '^ℹ (pass|fail|cancelled)|✖' | head -40
     p=$(grep -Eo '^ℹ pass [0-9]+' test-output/browser.log | grep -Eo '[0-9]+'); passed=$((passed + ${p:-0}))
     f=$(grep -Eo '^ℹ fail [0-9]+' test-output/browser.log | grep -Eo '[0-9]+'); failed=$((failed + ${f:-0}))
+    c=$(grep -Eo '^ℹ cancelled [0-9]+' test-output/browser.log | grep -Eo '[0-9]+'); failed=$((failed + ${c:-0}))
     [ -n "$p" ] || { echo "browser tests did not run"; failed=$((failed + 1)); }
   else
     echo "FAILED: web build (see test-output/build-web.log)"; tail -n 30 test-output/build-web.log; failed=$((failed + 1))

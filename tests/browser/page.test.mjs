@@ -93,6 +93,8 @@ test('cancel stops the workers at once and the page runs again afterwards', SLOW
   await b.page.waitForSelector('#data-view:not([hidden])');
   await quickSettings(b.page, { repeats: 5000, shuffles: 2000 });
   await whenReady(b.page);
+  // The estimate's one timed task runs in a worker of its own, which has ended once the time is said.
+  await b.page.waitForFunction(() => /on this computer\./.test(document.getElementById('estimate').textContent));
   const beforeRun = workers.length;
   await b.page.click('#start');
   // A run this long asks first; saying no starts nothing.
@@ -119,6 +121,24 @@ test('cancel stops the workers at once and the page runs again afterwards', SLOW
   await quickSettings(b.page, { repeats: 2, shuffles: 0 });
   await runAndWait(b.page);
   assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});
+
+test('a long run asks first even when Start is pressed while its settings are still being checked and timed', async () => {
+  const b = await openPage('?workers=2');
+  await b.page.click('#example');
+  await b.page.waitForSelector('#data-view:not([hidden])');
+  await whenReady(b.page);
+  // A new classifier (a new timing) and a long protocol, then Start at once: the run waits for the check and the
+  // timing of these settings, then asks.
+  await b.page.selectOption('#classifier', 'logistic');
+  await quickSettings(b.page, { repeats: 5000, shuffles: 2000 });
+  await b.page.click('#start', { force: true });
+  await b.page.waitForSelector('#confirm:not([hidden])');
+  assert.match(await b.page.textContent('#confirm-text'), /should take about [\d.]+ (min|h)/);
+  await b.page.click('#confirm-no');
+  assert.equal(await b.page.textContent('#progress-text'), 'Not started.');
+  assert.deepEqual(b.errors, []);
   await b.context.close();
 });
 

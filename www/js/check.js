@@ -9,6 +9,7 @@
   S.check = null; // { seq, recipe, plan, header, problems, error }
   let seq = 0;
   let timer = null;
+  let inflight = null; // the latest check, while it runs
   const rates = new Map(); // what sets the speed of a fit -> milliseconds per fit, measured once
 
   // The analysis kind a recipe runs as on the main button.
@@ -24,7 +25,7 @@
 
   PD.refresh = function () {
     clearTimeout(timer);
-    timer = setTimeout(check, 150);
+    timer = setTimeout(() => { timer = null; inflight = check(); }, 150);
     PD.updateButtons();
   };
 
@@ -85,19 +86,34 @@
   // run also pays for the engine's warm-up) in a worker of its own. A slow decoder on large data can take a
   // minute for one task: in its own worker it never holds up the checks of the settings that follow, and a change
   // of what sets the speed stops it (the latest change wins). No timing runs beside a run.
-  let timing = null; // { key, worker }
+  let timing = null; // { key, worker, done }
   function stopTiming() {
     if (timing) timing.worker.terminate();
     timing = null;
   }
-  PD.stopTiming = stopTiming;
   PD.timingNow = () => timing !== null;
+  // A run asked for while its settings are being timed waits for the estimate (so a long run still asks first);
+  // any other timing stops, to leave the cores to the run (PD.settle).
+  // A run starts from the check of the settings as they are at the click: a change still waiting to be checked is
+  // checked now, a check under way is waited for, and then the timing of these settings.
+  PD.settle = async function () {
+    if (timer !== null) {
+      clearTimeout(timer);
+      timer = null;
+      inflight = check();
+    }
+    if (inflight) await inflight;
+    if (timing && S.check && timing.key === S.check.speedKey) await timing.done;
+    else stopTiming();
+  };
 
   async function timeOneTask(key, kind, req, plan, header) {
     if (timing && timing.key === key) return;
     stopTiming();
-    if (!plan.tasks.length || S.run) return;
+    if (!plan.tasks.length || (S.run && !S.run.settling)) return;
     const mine = { key, worker: new PD.DataWorker(S.module), cancelled: false };
+    let finished;
+    mine.done = new Promise((ok) => { finished = ok; });
     timing = mine;
     try {
       if (header.family === 'files') await PD.sendFiles(mine.worker, header.files, kind, req, mine);
@@ -120,6 +136,8 @@
     } catch (_) {
       // Stopped by a newer check, or the task failed (the run will say why): no estimate.
       if (timing !== mine) return;
+    } finally {
+      finished();
     }
     stopTiming();
     if (S.check && S.check.speedKey === key && S.check.plan) {

@@ -74,10 +74,15 @@
       if (first) first.focus();
       return;
     }
-    const token = { cancelled: false };
+    // `settling`: the run waits for the check and the timing of its settings (which may start one now).
+    const token = { cancelled: false, settling: true };
     S.run = token;
-    PD.stopTiming();
     PD.updateButtons();
+    if (kind === 'main' && PD.timingNow()) $('progress-text').textContent = 'Timing one task on this computer before starting…';
+    await PD.settle();
+    token.settling = false;
+    if (token.cancelled || S.run !== token) return;
+    $('progress-text').textContent = '';
     const generation = S.generation;
     const files = PD.currentFiles();
     try {

@@ -398,13 +398,25 @@ fn score_description(plan: &StudyPlan, headline: Headline) -> String {
                 crate::report::text::seconds(w[w.len() - 1].end)
             )
         }
-        Some(AnyPlan::Across(a)) => format!(
-            "{name} of the decoder trained at some levels of '{}' and tested at the others (the mean over {} \
-             assignment{} of its levels)",
-            a.data.across_column,
-            a.assignments.len(),
-            if a.assignments.len() == 1 { "" } else { "s" }
-        ),
+        Some(AnyPlan::Across(a)) => {
+            let level = |l: &[usize]| {
+                l.iter()
+                    .map(|&i| a.data.level_names[i].as_str())
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            };
+            let ways: Vec<String> = a
+                .assignments
+                .iter()
+                .map(|x| format!("{} → {}", level(&x.train), level(&x.test)))
+                .collect();
+            format!(
+                "{name} of the decoder trained at some levels of '{}' and tested at the others ({}{})",
+                a.data.across_column,
+                if ways.len() > 1 { "the mean over " } else { "" },
+                ways.join("; ")
+            )
+        }
         _ => name.to_string(),
     }
 }
