@@ -53,6 +53,16 @@ fn table_study(tunings: &[f64], seed: u64, draws: usize) -> StudyReport {
         .enumerate()
         .map(|(i, &t)| (format!("s{i}.csv"), session_csv(t, seed * 100 + i as u64)))
         .collect();
+    in_memory_study(&texts, &small_recipe(seed), draws).1
+}
+
+/// A study of in-memory files (one per session, named `s0`, `s1`, …) through the loader the page uses: its plan and
+/// its result from every task run in order.
+fn in_memory_study(
+    texts: &[(String, String)],
+    recipe: &Recipe,
+    draws: usize,
+) -> (StudyPlan, StudyReport) {
     let files: Vec<FileBytes> = texts
         .iter()
         .map(|(name, text)| FileBytes {
@@ -78,9 +88,10 @@ fn table_study(tunings: &[f64], seed: u64, draws: usize) -> StudyReport {
         sessions: Some(rows),
         table: None,
     };
-    let plan = from_files(&files, &small_recipe(seed), request).expect("a valid study");
+    let plan = from_files(&files, recipe, request).expect("a valid study");
     let outcomes: Vec<StudyOutcome> = plan.tasks().into_iter().map(|t| plan.run(t)).collect();
-    StudyReport::build(&plan, &outcomes, None)
+    let report = StudyReport::build(&plan, &outcomes, None);
+    (plan, report)
 }
 
 /// The 99 % two-sided binomial range of a count of rejections at rate `alpha` over `n` tries.
@@ -692,21 +703,6 @@ fn across_study(shared: bool, seed: u64) -> (StudyPlan, StudyReport) {
             (format!("s{i}.csv"), context_csv(&s))
         })
         .collect();
-    let files: Vec<FileBytes> = texts
-        .iter()
-        .map(|(name, text)| FileBytes {
-            name,
-            bytes: text.as_bytes(),
-        })
-        .collect();
-    let rows = (0..texts.len())
-        .map(|i| StudyRow {
-            file: texts[i].0.clone(),
-            session: format!("s{i}"),
-            subject: None,
-            trials: None,
-        })
-        .collect();
     let mut r = Recipe::new("choice");
     r.classifier = Classifier::ShrinkageLda;
     r.repeats = 2;
@@ -721,18 +717,7 @@ fn across_study(shared: bool, seed: u64) -> (StudyPlan, StudyReport) {
         column: "context".into(),
         assignments: vec![way("citral", "hexanal"), way("hexanal", "citral")],
     });
-    let request = StudyRequest {
-        options: StudyOptions {
-            group_draws: 999,
-            ..StudyOptions::default()
-        },
-        sessions: Some(rows),
-        table: None,
-    };
-    let plan = from_files(&files, &r, request).expect("a valid study");
-    let outcomes: Vec<StudyOutcome> = plan.tasks().into_iter().map(|t| plan.run(t)).collect();
-    let report = StudyReport::build(&plan, &outcomes, None);
-    (plan, report)
+    in_memory_study(&texts, &r, 999)
 }
 
 /// Generalization across conditions, combined over sessions: a code shared by the contexts generalizes in every

@@ -443,32 +443,28 @@ fn score_session(plan: &AnyPlan, outs: &[&AnyOutcome]) -> Scored {
         AnyPlan::Table(p) => {
             let outs: Vec<Outcome> = outs.iter().filter_map(|o| table_outcome(o)).collect();
             let r = Report::build(p, &outs);
-            let mut result = empty(r.warnings.clone());
-            result.accuracy = Some(r.summary.accuracy.clone());
-            result.balanced_accuracy = Some(r.summary.balanced_accuracy.clone());
-            result.null = r.shuffle.null.clone();
-            result.p_value = r.shuffle.p_value;
-            Scored {
-                observed: r.shuffle.observed,
-                curve: Vec::new(),
-                null_curves: Vec::new(),
-                result,
-            }
+            let (null, p_value) = (r.shuffle.null.clone(), r.shuffle.p_value);
+            scalar(
+                empty(r.warnings),
+                &r.summary.accuracy,
+                &r.summary.balanced_accuracy,
+                null,
+                p_value,
+                r.shuffle.observed,
+            )
         }
         AnyPlan::Across(p) => {
             let outs: Vec<AcrossOutcome> = outs.iter().filter_map(|o| across_outcome(o)).collect();
             let r = AcrossReport::build(p, &outs);
-            let mut result = empty(r.warnings.clone());
-            result.accuracy = Some(r.summary.accuracy.clone());
-            result.balanced_accuracy = Some(r.summary.balanced_accuracy.clone());
-            result.null = r.shuffle.null.clone();
-            result.p_value = r.shuffle.p_value;
-            Scored {
-                observed: r.shuffle.observed,
-                curve: Vec::new(),
-                null_curves: Vec::new(),
-                result,
-            }
+            let (null, p_value) = (r.shuffle.null.clone(), r.shuffle.p_value);
+            scalar(
+                empty(r.warnings),
+                &r.summary.accuracy,
+                &r.summary.balanced_accuracy,
+                null,
+                p_value,
+                r.shuffle.observed,
+            )
         }
         AnyPlan::Time(p) => {
             let outs: Vec<TimeOutcome> = outs.iter().filter_map(|o| time_outcome(o)).collect();
@@ -499,6 +495,28 @@ fn score_session(plan: &AnyPlan, outs: &[&AnyOutcome]) -> Scored {
                 result,
             }
         }
+    }
+}
+
+/// A session whose analysis gives one score (a trial table, or generalization across conditions): its scores,
+/// null and p-value as the group statistics read them.
+fn scalar(
+    mut result: SessionResult,
+    accuracy: &Spread,
+    balanced_accuracy: &Spread,
+    null: Vec<f64>,
+    p_value: Option<f64>,
+    observed: f64,
+) -> Scored {
+    result.accuracy = Some(accuracy.clone());
+    result.balanced_accuracy = Some(balanced_accuracy.clone());
+    result.null = null;
+    result.p_value = p_value;
+    Scored {
+        observed,
+        curve: Vec::new(),
+        null_curves: Vec::new(),
+        result,
     }
 }
 
