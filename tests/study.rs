@@ -754,14 +754,13 @@ fn generalization_across_conditions_is_combined_over_sessions() {
     assert_eq!(s.p_value, one.shuffle.p_value);
 }
 
-/// The CLI's `study --across`: the sessions of the choices sample (split by its session column) generalize across
-/// odour contexts at the group level, the page's bridge gives the same bytes; pooling or sessions over time with
-/// `--across` are refused in one line.
-#[test]
-fn the_cli_generalizes_across_conditions_over_sessions() {
-    let dir = temp_dir("across");
+/// A sample of three sessions (its `session` column, at `column`) written as one file per session, with a study
+/// table naming them.
+fn split_by_session(sample: &str, column: usize, dir: &std::path::Path) {
     let text = std::fs::read_to_string(
-        PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("samples/choices.csv"),
+        PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+            .join("samples")
+            .join(sample),
     )
     .unwrap();
     let mut lines = text.lines();
@@ -772,7 +771,7 @@ fn the_cli_generalizes_across_conditions_over_sessions() {
         let mine: Vec<&str> = rows
             .iter()
             .copied()
-            .filter(|l| l.split(',').nth(3) == Some(s))
+            .filter(|l| l.split(',').nth(column) == Some(s))
             .collect();
         std::fs::write(
             dir.join(format!("{s}.csv")),
@@ -782,49 +781,31 @@ fn the_cli_generalizes_across_conditions_over_sessions() {
         table.push_str(&format!("{s}.csv,{s}\n"));
     }
     std::fs::write(dir.join("study.csv"), table).unwrap();
-    let json = dir.join("out.json");
-    let run = |extra: &[&str]| {
-        bin()
-            .arg("study")
-            .arg(dir.join("study.csv"))
-            .args([
-                "--label", "choice", "--across", "context", "--ignore", "session",
-            ])
-            .args([
-                "--repeats",
-                "2",
-                "--shuffles",
-                "19",
-                "--group-draws",
-                "500",
-                "--quiet",
-            ])
-            .args(extra)
-            .output()
-            .unwrap()
-    };
-    let out = run(&["--json", json.to_str().unwrap()]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let cli = std::fs::read_to_string(&json).unwrap();
-    let v: serde_json::Value = serde_json::from_str(&cli).unwrap();
-    assert_eq!(v["recipe"]["across"]["column"], "context");
-    assert_eq!(v["sessions"].as_array().unwrap().len(), 3);
-    assert!(
-        v["group"]["mean"].as_f64().unwrap() > 0.75,
-        "{}",
-        v["group"]
-    );
-    assert!(
-        v["group"]["p_value"].as_f64().unwrap() < 0.05,
-        "{}",
-        v["group"]
-    );
-    // The page's bridge, from the same files and the recipe the CLI wrote.
-    let recipe = Recipe::from_json("recipe", &v["recipe"].to_string()).unwrap();
+}
+
+/// `popdecode study` on the study table in `dir` with `args`, writing its JSON to `out.json`.
+fn study_cli(dir: &std::path::Path, args: &[&str]) -> std::process::Output {
+    bin()
+        .arg("study")
+        .arg(dir.join("study.csv"))
+        .args([
+            "--repeats",
+            "2",
+            "--shuffles",
+            "19",
+            "--group-draws",
+            "500",
+            "--quiet",
+        ])
+        .args(args)
+        .output()
+        .unwrap()
+}
+
+/// The page's bridge on the study table in `dir` and its three sessions, with the recipe a CLI run wrote: the
+/// finished study's JSON, from outcomes in reverse order.
+fn study_page(dir: &std::path::Path, cli: &serde_json::Value) -> String {
+    let recipe = Recipe::from_json("recipe", &cli["recipe"].to_string()).unwrap();
     let contents: Vec<(String, Vec<u8>)> = ["study.csv", "s1.csv", "s2.csv", "s3.csv"]
         .iter()
         .map(|f| (f.to_string(), std::fs::read(dir.join(f)).unwrap()))
@@ -844,17 +825,181 @@ fn the_cli_generalizes_across_conditions_over_sessions() {
     let plan = from_files(&files, &recipe, request).unwrap();
     let mut outcomes: Vec<StudyOutcome> = plan.tasks().into_iter().map(|t| plan.run(t)).collect();
     outcomes.reverse();
-    let page = plan.finish(&outcomes).json;
+    plan.finish(&outcomes).json
+}
+
+/// The CLI's `study --across`: the sessions of the choices sample (split by its session column) generalize across
+/// odour contexts at the group level, and so do the sessions of its binned twin in the windows that carry the
+/// choice; the page's bridge gives the same bytes; pooling with `--across` is refused in one line.
+#[test]
+fn the_cli_generalizes_across_conditions_over_sessions() {
+    let dir = temp_dir("across");
+    split_by_session("choices.csv", 3, &dir);
+    let json = dir.join("out.json");
+    let across = [
+        "--label", "choice", "--across", "context", "--ignore", "session",
+    ];
+    let out = study_cli(
+        &dir,
+        &[&across[..], &["--json", json.to_str().unwrap()]].concat(),
+    );
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let cli = std::fs::read_to_string(&json).unwrap();
+    let v: serde_json::Value = serde_json::from_str(&cli).unwrap();
+    assert_eq!(v["recipe"]["across"]["column"], "context");
+    assert_eq!(v["sessions"].as_array().unwrap().len(), 3);
+    assert!(
+        v["group"]["mean"].as_f64().unwrap() > 0.75,
+        "{}",
+        v["group"]
+    );
+    assert!(
+        v["group"]["p_value"].as_f64().unwrap() < 0.05,
+        "{}",
+        v["group"]
+    );
     assert_eq!(
-        format!("{page}\n"),
+        format!("{}\n", study_page(&dir, &v)),
         cli,
         "the CLI writes the JSON and a newline"
     );
-    let out = run(&["--pool"]);
+    let out = study_cli(&dir, &[&across[..], &["--pool"]].concat());
     assert_eq!(out.status.code(), Some(2));
     let stderr = String::from_utf8_lossy(&out.stderr);
     assert!(
         stderr.contains("pooled sessions") && stderr.lines().count() == 1,
         "{stderr}"
     );
+
+    // Over time: the binned sample carries the choice from 0.2 to 0.6 s only.
+    let dir = temp_dir("across-binned");
+    split_by_session("choices_binned.csv", 4, &dir);
+    let json = dir.join("out.json");
+    let binned = ["--binned", "--trial", "trial", "--time", "time"];
+    let out = study_cli(
+        &dir,
+        &[
+            &across[..],
+            &binned[..],
+            &["--json", json.to_str().unwrap()],
+        ]
+        .concat(),
+    );
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let cli = std::fs::read_to_string(&json).unwrap();
+    let v: serde_json::Value = serde_json::from_str(&cli).unwrap();
+    assert_eq!(v["study"]["kind"], "binned");
+    let windows = v["time"]["windows"].as_array().unwrap();
+    assert_eq!(windows.len(), 14);
+    for w in windows {
+        let (t, mean) = (w["time"].as_f64().unwrap(), w["mean"].as_f64().unwrap());
+        if t > 0.2 && t < 0.6 {
+            assert!(mean > 0.7, "window at {t} s: {mean}");
+        } else if t < 0.0 {
+            assert!(
+                w["significant"] == false && mean < 0.65,
+                "window at {t} s: {w}"
+            );
+        }
+    }
+    assert!(
+        v["time"]["clusters"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|c| c["significant"] == true),
+        "{}",
+        v["time"]
+    );
+    assert_eq!(format!("{}\n", study_page(&dir, &v)), cli);
+}
+
+/// Generalization across conditions in sessions over time: four invented binned sessions carry a choice code shared
+/// by two contexts from 0.2 to 0.6 s only. The group curve of the generalization score forms a significant cluster
+/// there and none before the choice; each session's curve and null are those of the session analysed alone under
+/// its seed.
+#[test]
+fn generalization_across_conditions_over_time_is_combined_over_sessions() {
+    use popdecode::analyses::across::{run_all_time, AcrossPlan};
+    use popdecode::recipe::{Across, Assignment};
+    use popdecode::simulate::{context_binned, ContextScenario};
+    let text = |i: u64| {
+        let s = ContextScenario {
+            trials_per_cell: 16,
+            units: 16,
+            choice_gain: 8.0,
+            sessions: 1,
+            seed: 70 + i,
+            ..ContextScenario::choices()
+        };
+        context_binned(&s, -0.4, 1.0, 0.2, (0.2, 0.6))
+    };
+    let texts: Vec<(String, String)> = (0..4).map(|i| (format!("s{i}.csv"), text(i))).collect();
+    let mut r = Recipe::new("choice");
+    r.classifier = Classifier::ShrinkageLda;
+    r.repeats = 2;
+    r.shuffles = 39;
+    r.seed = 5;
+    r.columns.ignore = vec!["session".into()];
+    r.time = Some(TimeSettings::binned("trial", "time"));
+    let way = |a: &str, b: &str| Assignment {
+        train: vec![a.into()],
+        test: vec![b.into()],
+    };
+    r.across = Some(Across {
+        column: "context".into(),
+        assignments: vec![way("citral", "hexanal"), way("hexanal", "citral")],
+    });
+    let (plan, report) = in_memory_study(&texts, &r, 999);
+    let time = report.time.as_ref().expect("sessions over time");
+    assert_eq!(time.windows.len(), 7);
+    assert!(
+        report.score.contains("averaged over the 7 windows"),
+        "{}",
+        report.score
+    );
+    assert!(report.score.contains("'context'"), "{}", report.score);
+    let inside = |w: &popdecode::analyses::study::report::GroupWindow| w.time > 0.2 && w.time < 0.6;
+    for w in &time.windows {
+        if inside(w) {
+            assert!(w.significant, "window at {} s: {}", w.time, w.mean);
+            assert!(w.mean > 0.75, "window at {} s: {}", w.time, w.mean);
+        } else if w.time < 0.0 {
+            assert!(!w.significant, "window at {} s: {}", w.time, w.mean);
+            assert!(
+                (w.mean - 0.5).abs() < 0.12,
+                "window at {} s: {}",
+                w.time,
+                w.mean
+            );
+        }
+    }
+    // Session 2 alone, with its seed.
+    let s = &report.sessions[2];
+    let mut alone = plan.recipe.clone();
+    alone.seed = s.seed;
+    let settings = alone.time.as_ref().unwrap().input.clone();
+    let file = FileBytes {
+        name: "s2.csv",
+        bytes: texts[2].1.as_bytes(),
+    };
+    let data = input::across::time_course(&[file], &alone.columns, &settings, "context").unwrap();
+    let one = run_all_time(&AcrossPlan::new(data, &alone).unwrap());
+    assert_eq!(s.curve.as_ref().unwrap(), &one.curve());
+    assert_eq!(s.clusters.as_ref().unwrap(), &one.clusters);
+    let null: Vec<f64> = one
+        .shuffle
+        .null
+        .iter()
+        .map(|c| popdecode::stats::mean(c))
+        .collect();
+    assert_eq!(s.null, null);
 }

@@ -41,7 +41,8 @@ pub struct StudyArgs {
     pub group_draws: Option<usize>,
     #[command(flatten)]
     pub time: TimeFlags,
-    /// Generalization across conditions (trial-table sessions): every session's score is its generalization score.
+    /// Generalization across conditions: every session's score is its generalization score (over time, at every
+    /// window).
     #[command(flatten)]
     pub targets: TargetArgs,
     #[command(flatten)]

@@ -223,7 +223,7 @@ pub fn base_name(path: &str) -> &str {
 pub enum SessionData {
     Table(Dataset),
     Time(TimeDataset),
-    /// A trial table with the second column of generalization across conditions.
+    /// A trial table or a recording with the second column of generalization across conditions.
     Across(AcrossData),
 }
 
@@ -275,7 +275,11 @@ pub fn read_session(files: &[FileBytes], recipe: &Recipe) -> Result<SessionData>
                     .map(SessionData::Table),
             }
         }
-        Some(t) => time_course(files, &recipe.columns, &t.input).map(SessionData::Time),
+        Some(t) => match &recipe.across {
+            Some(a) => super::across::time_course(files, &recipe.columns, &t.input, &a.column)
+                .map(SessionData::Across),
+            None => time_course(files, &recipe.columns, &t.input).map(SessionData::Time),
+        },
     }
 }
 

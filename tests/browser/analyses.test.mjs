@@ -271,3 +271,56 @@ test('a study of many sessions: listed before running, the same bytes as the com
   assertLocalOnly(assert, b.requests, server.origin);
   await b.context.close();
 });
+
+test('a study scored by generalization across conditions: sessions over time, the same bytes as the command line', SLOW, async () => {
+  // The binned choices sample, one file per session, with a study table naming them.
+  const dir = mkdtempSync(join(tmp, 'across-study-'));
+  const [header, ...rows] = readFileSync(sample('choices_binned.csv'), 'utf8').trim().split('\n');
+  const col = header.split(',').indexOf('session');
+  const names = ['s1', 's2', 's3'];
+  names.forEach((s) => writeFileSync(join(dir, `${s}.csv`), [header, ...rows.filter((r) => r.split(',')[col] === s)].join('\n') + '\n'));
+  writeFileSync(join(dir, 'study.csv'), 'file,session\n' + names.map((s) => `${s}.csv,${s}`).join('\n') + '\n');
+  const b = await openPage();
+  await b.page.check('input[name=kind][value=study]');
+  await b.page.setInputFiles('#study-files', [join(dir, 'study.csv'), ...names.map((s) => join(dir, `${s}.csv`))]);
+  await b.page.waitForSelector('#study-sessions table');
+  assert.equal(await b.page.inputValue('#study-holds'), 'binned');
+  await b.page.selectOption('#label', 'choice');
+  await b.page.dispatchEvent('#label', 'change');
+  await quickSettings(b.page, { repeats: 2, shuffles: 3 });
+  await set(b.page, 'study-draws', 200);
+  assert.equal(await b.page.isVisible('#across-col'), true, 'generalization across conditions is offered in a study');
+  await b.page.selectOption('#across-col', 'context');
+  await b.page.dispatchEvent('#across-col', 'change');
+  await runAndWait(b.page, '#across-start');
+  await shot(b.page, 'study-across-results');
+  const json = await downloadText(b.page, '#export-json');
+  const recipe = JSON.parse(await downloadText(b.page, '#export-recipe'));
+  assert.deepEqual(recipe.across, { column: 'context', assignments: [] });
+  const ignore = recipe.columns.ignore && recipe.columns.ignore.length ? ['--ignore', recipe.columns.ignore.join(',')] : [];
+  assert.equal(json, cliJson('study-across', ['study', join(dir, 'study.csv'), '--binned', '--trial', 'trial', '--time', 'time',
+    '--label', 'choice', '--across', 'context', ...ignore, '--repeats', '2', '--shuffles', '3', '--group-draws', '200']),
+  'page JSON and CLI JSON differ');
+  const report = JSON.parse(json);
+  assert.equal(report.schema, 'popdecode-study/1');
+  assert.equal(report.sessions.length, 3);
+  assert.match(report.score, /trained at some levels of 'context'/);
+  const view = b.page.locator('#views .view').first();
+  assert.ok(await view.locator('[data-figure=group_curve] img').isVisible(), 'the group curve is shown');
+  assert.match(await view.textContent(), /trained at some levels of 'context'/, 'the view says what a session\'s score is');
+  assert.match(await view.textContent(), /Bernardi/, 'the methods paragraph cites the generalization measure');
+  assert.match(await b.page.textContent('#records'), /study\), each session carried over between conditions/);
+  assert.match(await view.textContent(), /trained and tested across ‘context’/, 'the record says its settings');
+  // One level trained, the other tested: the record on view is stale, and the same button runs the study again.
+  await set(b.page, 'across-train', 'citral');
+  await set(b.page, 'across-test', 'hexanal');
+  await b.page.waitForFunction(() => /the condition column or its levels/.test((document.querySelector('#views .stale') || {}).textContent || ''));
+  assert.equal(await b.page.evaluate(() => PD.startKind(PD.state.records[0])), 'across', 'the stale record runs again the same way');
+  await runAndWait(b.page, '#across-start');
+  const one = JSON.parse(await downloadText(b.page, '#export-json'));
+  assert.equal(one.schema, 'popdecode-study/1');
+  assert.deepEqual(one.recipe.across.assignments, [{ train: ['citral'], test: ['hexanal'] }]);
+  assert.deepEqual(b.errors, []);
+  assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});

@@ -104,7 +104,18 @@
   PD.runOptions = (kind) => (kind === 'study' ? PD.studyOptions() : '');
 
   // The button that starts a record's kind of run again.
-  PD.startKind = (record) => (record.kind === 'compare' || record.kind === 'neurons' || PD.ANALYSES[record.kind] ? record.kind : 'main');
+  // A study whose sessions were scored by generalization across conditions is started by the same button.
+  PD.startKind = (record) => (record.kind === 'study' && record.recipe.across ? 'across'
+    : record.kind === 'compare' || record.kind === 'neurons' || PD.ANALYSES[record.kind] ? record.kind : 'main');
+
+  // What a record's run was, in words (a study scored by generalization across conditions says so).
+  PD.kindWords = (record) => PD.KIND_WORDS[record.kind] +
+    (record.kind === 'study' && record.recipe.across ? ', each session carried over between conditions' : '');
+
+  // The analysis a button starts on the current data: in a study, generalization across conditions is the study
+  // itself with each session scored by it.
+  PD.analysisOf = (kind) => (kind === 'neurons' ? 'neurons'
+    : kind === 'across' && S.kind === 'study' ? 'study' : PD.ANALYSES[kind] ? kind : PD.mainKind());
 
   // The settings of these analyses in words, for a record's heading.
   PD.describeMore = function (r) {
@@ -189,9 +200,9 @@
   PD.updateAnalysisButtons = function (ok) {
     fillPowerDefaults();
     const formOk = PD.dataReady() && S.check && !S.check.problems.length;
-    const off = !formOk || !!S.run || S.kind === 'study';
+    const off = !formOk || !!S.run;
     $('across-start').disabled = off;
-    $('continuous-start').disabled = off;
+    $('continuous-start').disabled = off || S.kind === 'study';
     $('power-start').disabled = !ok || !!S.run || S.kind !== 'table';
   };
 

@@ -256,7 +256,7 @@
     c.memory = mem && mem.total > LARGE ? mem : null;
     estimate.textContent = `${PD.count(fits, 'fit')} in ${PD.count(plan.tasks.length, 'task')} on ${PD.count(workers, 'worker')}` +
       (pool.limited ? ` (not ${pool.wanted}: each worker holds its own copy of the data, and more would not fit in memory)` : '') +
-      (seconds !== null ? `: about ${PD.seconds(seconds)} on this computer` : timing ? ' (timing one task on this computer…)' : '') +
+      (seconds !== null ? `: ${PD.about(seconds)} on this computer` : timing ? ' (timing one task on this computer…)' : '') +
       (c.memory ? `; needs about ${PD.bytes(c.memory.total)} of memory (${PD.bytes(c.memory.perWorker)} per worker)` : '') + '.';
   }
 }(window.PD));

@@ -66,7 +66,7 @@
       if (S.onView.includes(r.id)) li.className = 'on-view';
       const what = el('span', null, 'record-text');
       what.appendChild(el('strong', `Run ${r.id}`));
-      what.appendChild(document.createTextNode(` · ${PD.KIND_WORDS[r.kind]} · ${r.files.map((f) => f.name).join(' + ')} · ` +
+      what.appendChild(document.createTextNode(` · ${PD.kindWords(r)} · ${r.files.map((f) => f.name).join(' + ')} · ` +
         `${PD.DECODER_NAMES[r.recipe.classifier]}${r.kind === 'compare' ? ' and the others' : ''} · ${PD.clock(r.finished)} — ${headline(r)}`));
       li.appendChild(what);
       const buttons = el('span', null, 'record-buttons');
@@ -92,7 +92,7 @@
       const record = byId(id);
       const view = el('article', null, 'view');
       view.dataset.record = String(id);
-      const h = el('h3', `Run ${id}: ${PD.KIND_WORDS[record.kind]}`);
+      const h = el('h3', `Run ${id}: ${PD.kindWords(record)}`);
       h.tabIndex = -1;
       h.id = `view-h-${i}`;
       view.setAttribute('aria-labelledby', h.id);

@@ -89,14 +89,14 @@
       let record;
       if (kind === 'compare') record = await compareRun(base, token);
       else {
-        const analysis = kind === 'neurons' ? 'neurons' : PD.ANALYSES[kind] ? kind : PD.mainKind();
+        const analysis = PD.analysisOf(kind);
         const recipe = PD.runRecipe(kind, base);
         const options = kind === 'neurons' ? JSON.stringify({ draws }) : PD.runOptions(analysis);
         const c = S.check;
         const long = c && c.seconds !== null && c.seconds > 60 && kind === 'main';
         if ((long || (c && c.memory)) && kind === 'main') {
           const ok = await confirmRun(`This run has ${PD.count(c.plan.fits.reduce((a, b) => a + b, 0), 'fit')}` +
-            (c.seconds !== null ? ` and should take about ${PD.seconds(c.seconds)} on this computer` : '') +
+            (c.seconds !== null ? ` and should take ${PD.about(c.seconds)} on this computer` : '') +
             (c.memory ? `; it needs about ${PD.bytes(c.memory.total)} of memory (${PD.bytes(c.memory.perWorker)} per worker; fewer workers need less: add ?workers=1 to the address)` : '') +
             '. Start it?');
           if (!ok || token.cancelled) { if (S.run === token) endRun(); $('progress-text').textContent = 'Not started.'; return; }

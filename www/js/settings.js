@@ -108,13 +108,14 @@
       recipe.columns.pseudo = $('pseudo').value;
       recipe.columns.group = null;
     }
-    if ((S.kind === 'table' || S.kind === 'binned') && info) {
+    // A study of trial or binned tables chooses its features from the first session's columns, as one file does.
+    if ((PD.shape() === 'table' || PD.shape() === 'binned') && info) {
       const chosen = PD.chosenFeatures();
       if (!chosen.length) problems.push(['feature-filter', 'Choose at least one feature column.']);
       // The columns "every other column" would take: every numeric one (trial table), every remaining one
       // (binned table). Say the choice as that minus a short list when it is one.
       const special = [...S.features.disabled];
-      const others = S.kind === 'table' ? S.features.names.filter((n) => !special.includes(n))
+      const others = PD.shape() === 'table' ? S.features.names.filter((n) => !special.includes(n))
         : info.headers.filter((n) => !special.includes(n));
       const left = others.filter((n) => !chosen.includes(n));
       if (left.length === 0) recipe.columns.features = null;

@@ -167,7 +167,7 @@
     c.seconds = seconds;
     c.memory = null;
     $('estimate').textContent = `${PD.count(fits, 'fit')} in ${PD.count(c.plan.tasks.length, 'task')} on ${PD.count(workers, 'worker')}` +
-      (seconds !== null ? `: about ${PD.seconds(seconds)} on this computer` : PD.timingNow() ? ' (timing one task on this computer…)' : '') + '.';
+      (seconds !== null ? `: ${PD.about(seconds)} on this computer` : PD.timingNow() ? ' (timing one task on this computer…)' : '') + '.';
   };
 
   window.addEventListener('DOMContentLoaded', () => {

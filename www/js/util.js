@@ -34,6 +34,8 @@ window.PD = { state: {}, views: {} };
     : Math.max(1, Math.round(n / 1e3)) + ' kB');
   PD.seconds = (s) => (s < 1 ? 'under a second' : s < 90 ? Math.round(s) + ' s' : s < 5400 ? Math.round(s / 60) + ' min'
     : (s / 3600).toFixed(1) + ' h');
+  // An estimate in words: "about 12 s", or "under a second" (never "about under a second").
+  PD.about = (s) => (s < 1 ? PD.seconds(s) : `about ${PD.seconds(s)}`);
   PD.count = (n, one, many) => `${n.toLocaleString('en')} ${n === 1 ? one : (many || one + 's')}`;
   PD.stem = (name) => String(name || 'data').replace(/\.[^.]*$/, '');
   PD.clock = (date) => date.toTimeString().slice(0, 8);

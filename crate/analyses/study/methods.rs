@@ -217,10 +217,15 @@ fn across_protocol(rc: &Recipe, a: &Across) -> String {
     };
     format!(
         "Each session was analysed on its own with the same protocol and a seed of its own (derived from the \
-         study's seed and the session's name, and given in the result): in each of {} repeats, the decoder was \
-         trained on the trials at {assignments}, {}; standardisation and decoder were fitted on the training set \
+         study's seed and the session's name, and given in the result): in each of {} repeats, {}the decoder \
+         was trained on the trials at {assignments}, {}; standardisation and decoder were fitted on the training set \
          only.",
         rc.repeats,
+        if rc.time.is_some() {
+            "at every window, "
+        } else {
+            ""
+        },
         if rc.balance {
             "the training and the testing set each balanced by the label (every combination of a level and a class \
              randomly undersampled to the smallest such combination in its set)"

@@ -9,6 +9,7 @@ use crate::error::{Error, Result};
 use crate::input::study::{base_name, from_rows, read, read_sessions, SessionData};
 use crate::input::study::{SessionKind, StudyRow, StudyTable};
 use crate::input::FileBytes;
+use crate::recipe::windows::Window;
 use crate::recipe::{Folds, Recipe};
 use crate::report::text::session_notes;
 use crate::resample::Task;
@@ -78,7 +79,8 @@ impl StudyOptions {
 pub enum AnyPlan {
     Table(Plan),
     Time(TimePlan),
-    /// Generalization across conditions of a trial table: the session's score is the generalization score.
+    /// Generalization across conditions (a trial table, or a recording at every window): the session's score is the
+    /// generalization score.
     Across(AcrossPlan),
 }
 
@@ -114,6 +116,17 @@ impl AnyPlan {
             AnyPlan::Time(p) => p.fits_in(task),
             AnyPlan::Across(p) => p.fits_in(task),
         }
+    }
+
+    /// The windows of a session decoded over time (its own, or its generalization across conditions at every
+    /// window); none for a trial table.
+    pub fn windows(&self) -> Option<&[Window]> {
+        match self {
+            AnyPlan::Table(_) => None,
+            AnyPlan::Time(p) => Some(&p.data.windows),
+            AnyPlan::Across(p) => Some(&p.data.features.windows).filter(|w| !w.is_empty()),
+        }
+        .map(Vec::as_slice)
     }
 
     pub fn run(&self, task: Task) -> AnyOutcome {
@@ -375,10 +388,10 @@ pub fn assess(
                 .into(),
         ));
     }
-    if recipe.across.is_some() && (options.pool || recipe.time.is_some()) {
+    if recipe.across.is_some() && options.pool {
         return Err(Error::Recipe(
-            "generalization across conditions is combined across sessions for trial tables decoded session by \
-             session; sessions over time or pooled sessions are not generalized across conditions yet"
+            "generalization across conditions is combined across sessions decoded each on its own; pooled \
+             sessions are not generalized across conditions"
                 .into(),
         ));
     }
@@ -398,6 +411,9 @@ pub fn assess(
         .iter()
         .map(|d| match d {
             SessionData::Time(t) => Some(serde_json::to_string(&t.windows).expect("windows")),
+            SessionData::Across(a) if a.features.is_time() => {
+                Some(serde_json::to_string(&a.features.windows).expect("windows"))
+            }
             SessionData::Table(_) | SessionData::Across(_) => None,
         })
         .collect();

@@ -31,14 +31,16 @@
 //! Built from outcomes in any order; nothing time- or machine-dependent is written.
 
 use super::plan::{AnyOutcome, AnyPlan, LeftOut, StudyOptions, StudyOutcome, StudyPlan};
-use crate::analyses::across::{AcrossOutcome, AcrossReport};
-use crate::analyses::time_course::report::{TimeCluster, TimeReport};
+use crate::analyses::across::report::AcrossRepeatCurves;
+use crate::analyses::across::{AcrossOutcome, AcrossReport, AcrossTimeReport};
+use crate::analyses::time_course::report::{TimeCluster, TimeRepeat, TimeReport};
 use crate::analyses::time_course::TimeOutcome;
 use crate::analyses::trial_table::report::Report;
 use crate::analyses::trial_table::Outcome;
 use crate::analyses::{Analysis, Finished};
 use crate::data::SourceFile;
 use crate::input::study::SessionKind;
+use crate::recipe::windows::Window;
 use crate::recipe::Recipe;
 use crate::report::text::session_notes;
 use crate::report::{Fits, Software};
@@ -347,8 +349,8 @@ impl StudyReport {
             significant: p_value.map(|p| p < alpha),
         });
         report.t_test = group::t_test_greater(&unit_scores, report.chance);
-        if let AnyPlan::Time(first) = plan.sessions[0].plan() {
-            report.time = Some(group_time(plan, first, &scored, &picks));
+        if let Some(windows) = plan.sessions[0].plan().windows() {
+            report.time = Some(group_time(plan, windows, &scored, &picks));
         }
         report.sessions = scored.into_iter().map(|s| s.result).collect();
         warnings.extend(report.fits.warnings());
@@ -388,16 +390,18 @@ impl StudyReport {
 /// What one session's score is, in words.
 fn score_description(plan: &StudyPlan, headline: Headline) -> String {
     let name = headline.name();
-    match plan.sessions.first().and_then(|s| s.plan.as_ref()) {
-        Some(AnyPlan::Time(t)) => {
-            let w = &t.data.windows;
-            format!(
-                "{name} averaged over the {} windows from {} s to {} s",
-                w.len(),
-                crate::report::text::seconds(w[0].start),
-                crate::report::text::seconds(w[w.len() - 1].end)
-            )
-        }
+    let plan = plan.sessions.first().and_then(|s| s.plan.as_ref());
+    let over = plan.and_then(AnyPlan::windows).map(|w| {
+        format!(
+            "averaged over the {} windows from {} s to {} s",
+            w.len(),
+            crate::report::text::seconds(w[0].start),
+            crate::report::text::seconds(w[w.len() - 1].end)
+        )
+    });
+    let over = over.unwrap_or_default();
+    match plan {
+        Some(AnyPlan::Time(_)) => format!("{name} {over}"),
         Some(AnyPlan::Across(a)) => {
             let level = |l: &[usize]| {
                 l.iter()
@@ -411,10 +415,15 @@ fn score_description(plan: &StudyPlan, headline: Headline) -> String {
                 .map(|x| format!("{} → {}", level(&x.train), level(&x.test)))
                 .collect();
             format!(
-                "{name} of the decoder trained at some levels of '{}' and tested at the others ({}{})",
+                "{name} of the decoder trained at some levels of '{}' and tested at the others ({}{}){}",
                 a.data.across_column,
                 if ways.len() > 1 { "the mean over " } else { "" },
-                ways.join("; ")
+                ways.join("; "),
+                if over.is_empty() {
+                    String::new()
+                } else {
+                    format!(", {over}")
+                }
             )
         }
         _ => name.to_string(),
@@ -453,6 +462,21 @@ fn score_session(plan: &AnyPlan, outs: &[&AnyOutcome]) -> Scored {
                 r.shuffle.observed,
             )
         }
+        AnyPlan::Across(p) if p.data.features.is_time() => {
+            let outs: Vec<AcrossOutcome> = outs.iter().filter_map(|o| across_outcome(o)).collect();
+            let r = AcrossTimeReport::build(p, &outs);
+            let curves = |f: fn(&AcrossRepeatCurves) -> &Vec<f64>| {
+                r.repeats.iter().map(|o| f(o).clone()).collect::<Vec<_>>()
+            };
+            over_time(
+                empty(r.warnings.clone()),
+                r.design.headline,
+                (curves(|o| &o.accuracy), curves(|o| &o.balanced_accuracy)),
+                r.curve(),
+                r.shuffle.null.clone(),
+                r.clusters.clone(),
+            )
+        }
         AnyPlan::Across(p) => {
             let outs: Vec<AcrossOutcome> = outs.iter().filter_map(|o| across_outcome(o)).collect();
             let r = AcrossReport::build(p, &outs);
@@ -469,32 +493,49 @@ fn score_session(plan: &AnyPlan, outs: &[&AnyOutcome]) -> Scored {
         AnyPlan::Time(p) => {
             let outs: Vec<TimeOutcome> = outs.iter().filter_map(|o| time_outcome(o)).collect();
             let r = TimeReport::build(p, &outs);
-            let span = |v: &[f64]| stats::mean(v);
-            let acc: Vec<f64> = r.repeats.iter().map(|o| span(&o.accuracy)).collect();
-            let bacc: Vec<f64> = r
-                .repeats
-                .iter()
-                .map(|o| span(&o.balanced_accuracy))
-                .collect();
-            let observed = stats::mean(match r.design.headline {
-                Headline::Accuracy => &acc,
-                Headline::BalancedAccuracy => &bacc,
-            });
-            let null: Vec<f64> = r.shuffle.null.iter().map(|c| span(c)).collect();
-            let mut result = empty(r.warnings.clone());
-            result.p_value = (!null.is_empty()).then(|| permutation_p(observed, &null));
-            result.accuracy = Some(Spread::of(&acc));
-            result.balanced_accuracy = Some(Spread::of(&bacc));
-            result.null = null;
-            result.curve = Some(r.curve());
-            result.clusters = Some(r.clusters.clone());
-            Scored {
-                observed,
-                curve: r.curve(),
-                null_curves: r.shuffle.null.clone(),
-                result,
-            }
+            let curves = |f: fn(&TimeRepeat) -> &Vec<f64>| {
+                r.repeats.iter().map(|o| f(o).clone()).collect::<Vec<_>>()
+            };
+            over_time(
+                empty(r.warnings.clone()),
+                r.design.headline,
+                (curves(|o| &o.accuracy), curves(|o| &o.balanced_accuracy)),
+                r.curve(),
+                r.shuffle.null.clone(),
+                r.clusters.clone(),
+            )
         }
+    }
+}
+
+/// A session decoded at every window: its score is the mean over windows of each repeat's curve (accuracy and
+/// balanced accuracy), its null the same mean of each shuffle's curve; the curves feed the group's cluster test.
+fn over_time(
+    mut result: SessionResult,
+    headline: Headline,
+    (accuracy, balanced): (Vec<Vec<f64>>, Vec<Vec<f64>>),
+    curve: Vec<f64>,
+    null_curves: Vec<Vec<f64>>,
+    clusters: Vec<TimeCluster>,
+) -> Scored {
+    let span = |curves: &[Vec<f64>]| curves.iter().map(|c| stats::mean(c)).collect::<Vec<_>>();
+    let (acc, bacc) = (span(&accuracy), span(&balanced));
+    let observed = stats::mean(match headline {
+        Headline::Accuracy => &acc,
+        Headline::BalancedAccuracy => &bacc,
+    });
+    let null = span(&null_curves);
+    result.p_value = (!null.is_empty()).then(|| permutation_p(observed, &null));
+    result.accuracy = Some(Spread::of(&acc));
+    result.balanced_accuracy = Some(Spread::of(&bacc));
+    result.null = null;
+    result.curve = Some(curve.clone());
+    result.clusters = Some(clusters);
+    Scored {
+        observed,
+        curve,
+        null_curves,
+        result,
     }
 }
 
@@ -524,11 +565,10 @@ fn scalar(
 /// scalar test draws them.
 fn group_time(
     plan: &StudyPlan,
-    first: &crate::analyses::time_course::TimePlan,
+    win: &[Window],
     scored: &[Scored],
     picks: &[Vec<usize>],
 ) -> GroupTime {
-    let win = &first.data.windows;
     let nw = win.len();
     let unit_curves: Vec<Vec<f64>> = (0..nw)
         .map(|w| {

@@ -37,8 +37,10 @@
   }
 
   function sessionsTable(view, r) {
-    const score = (s) => s[r.score === 'accuracy' ? 'accuracy' : 'balanced_accuracy'];
-    PD.table(view, `Every session (${r.score.replace('_', ' ')}: mean ± SD over repeats, a spread over resampling, not a confidence interval)`,
+    // The score every statistic is of: the headline (accuracy, or balanced accuracy without balancing); `r.score`
+    // says it in words (over time, averaged over the windows; across conditions, of the decoder carried over).
+    const score = (s) => s[r.headline];
+    PD.table(view, `Every session (score: ${r.score}; mean ± SD over repeats, a spread over resampling, not a confidence interval)`,
       ['session', 'subject', 'trials', 'neurons', 'score', 'p'],
       r.sessions.map((s) => [{ text: s.session, cls: 'text', header: true }, { text: s.subject || '—', cls: 'text' }, s.trials, s.neurons,
         score(s) ? `${pct(score(s).mean)} ± ${pct(score(s).sd)}` : '—', p3(s.p_value)]));
