@@ -148,15 +148,24 @@
       const box = view.querySelector('.stale');
       const diff = PD.differences(record);
       view.classList.toggle('is-stale', diff.length > 0);
+      // Redrawn only when what differs changed: a field left by clicking this box's button fires its change on
+      // the way, and a button replaced between press and release would swallow the click.
+      const said = diff.join('; ');
+      const again = box.querySelector('button');
+      if (box.dataset.said === said && (again || !diff.length)) {
+        if (again) again.disabled = !!S.run || $('start').disabled;
+        return;
+      }
+      box.dataset.said = said;
       box.replaceChildren();
       if (!diff.length) return;
       box.appendChild(el('strong', 'Not the current settings. '));
       box.appendChild(document.createTextNode(`These results are from run ${record.id}; since then ${diff.length === 1 ? 'this has' : 'these have'} changed: ${diff.join('; ')}. `));
-      const again = PD.button('Run again with the current settings', (ev) => {
+      const button = PD.button('Run again with the current settings', (ev) => {
         PD.start(PD.startKind(record), ev.detail === 0);
       });
-      again.disabled = !!S.run || $('start').disabled;
-      box.appendChild(again);
+      button.disabled = !!S.run || $('start').disabled;
+      box.appendChild(button);
     });
   };
   PD.on('checked', () => PD.markStale());
