@@ -10,7 +10,8 @@
 //! 6. [`stats`]: summaries, permutation p-values, the binomial threshold, cluster tests, group tests across sessions
 //! 7. [`report`]: what every report shares (text and SVG primitives, methods sentences)
 //! 8. [`analyses`]: one folder per analysis
-//! 9. faces: the CLI (`crate/cli/`, a binary of its own) and the page's bindings (`wasm`)
+//! 9. faces: the CLI (`crate/cli/`, a binary of its own) and the page's bindings (`wasm`); [`memory`] is the
+//!    native faces' one allocator setting
 //!
 //! The core touches no filesystem and starts no threads: faces read files and decide where tasks run.
 //!
@@ -32,6 +33,8 @@ pub mod data;
 pub mod decoders;
 pub mod error;
 pub mod input;
+#[cfg(not(target_arch = "wasm32"))]
+pub mod memory;
 pub mod recipe;
 pub mod report;
 pub mod resample;

@@ -4,7 +4,8 @@ Usage: python scripts/bench_sklearn.py TABLE.csv [rbf]. Same data, 100 repeats x
 the large table, SVC with a Gaussian kernel, 10 repeats), standardisation fitted on the training fold (Pipeline), one
 thread. The classes are already balanced, so no undersampling.
    python scripts/bench_sklearn.py grid DIR SHAPES: for each shape (TRIALSxNEURONS, comma-separated) the table
-DIR/SHAPE.csv written by `popdecode-bench grid --tables DIR`, SVC(kernel='linear') and LDA(lsqr, auto), 10 repeats x
+DIR/SHAPE.csv written by `popdecode-bench grid --tables DIR`, SVC(kernel='linear') and LDA(lsqr, auto) (or only the models
+whose name contains MODEL, a fourth argument), 10 repeats x
 5 folds; one line per (model, shape).
 Reference library: scikit-learn (version printed).
 """
@@ -45,11 +46,15 @@ if sys.argv[1] == "grid":
         "SVC(kernel='linear')": lambda: SVC(kernel="linear", C=1.0),
         "LDA(lsqr, auto)": lambda: LinearDiscriminantAnalysis(solver="lsqr", shrinkage="auto"),
     }
+    # An optional fourth argument keeps only the models whose name contains it (e.g. LDA).
+    only = sys.argv[4] if len(sys.argv) > 4 else ""
     print(f"scikit-learn {sklearn.__version__}")
     with threadpool_limits(1):
         for shape in sys.argv[3].split(","):
             X, y = load(f"{sys.argv[2]}/{shape}.csv")
             for name, make in grid_models.items():
+                if only not in name:
+                    continue
                 seconds, accuracy = cross_validate(make, X, y, 10)
                 print(f"grid {name:<22} {shape:>9} {seconds:9.3f} s (accuracy {accuracy:.3f})", flush=True)
     sys.exit()

@@ -16,7 +16,7 @@ const LAYERS: &[&[&str]] = &[
     &["stats"],
     &["report"],
     &["analyses"],
-    &["wasm"],
+    &["wasm", "memory"],
 ];
 
 fn layer_of(module: &str) -> Option<usize> {

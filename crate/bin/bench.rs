@@ -37,6 +37,7 @@ use rayon::prelude::*;
 use std::time::Instant;
 
 fn main() {
+    popdecode::memory::keep_freed_memory();
     let args: Vec<String> = std::env::args().collect();
     match args.get(1).map(String::as_str) {
         Some("timecourse") => timecourse(&args[2..]),

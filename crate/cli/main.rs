@@ -57,6 +57,7 @@ enum Command {
 }
 
 fn main() -> ExitCode {
+    popdecode::memory::keep_freed_memory();
     let cli = Cli::parse();
     let result = match cli.command {
         Command::Decode(args) => decode::run(args),

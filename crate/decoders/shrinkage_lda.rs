@@ -21,8 +21,14 @@
 //! engine works on the raw values, after removing one offset per feature (the mean of the split's rows) so that the
 //! scatter sums do not lose digits to a large mean. The offset cancels exactly in the algebra; it only conditions the
 //! arithmetic.
+//!
+//! **Fewer trials than features.** The pooled covariance is a diagonal plus one low-rank term per class,
+//! `Σ = D + Σₖ aₖ ZₖᵀZₖ` (Zₖ the class's centred training rows), so when the training trials are few beside the
+//! features it is solved through the Woodbury identity on an n × n system instead of factoring p × p
+//! ([`low_rank_fit`]); the shrinkage weights come from each class's n × n Gram matrix, since ‖ZᵀZ‖_F = ‖ZZᵀ‖_F. The
+//! route is chosen per split by the cost of each ([`low_rank_is_cheaper`]); both give the same model up to rounding.
 
-use super::linalg::{cholesky_solve, cholesky_with_ridge, dot, gram};
+use super::linalg::{cholesky, cholesky_solve, cholesky_with_ridge, dot, gram};
 use super::{argmax, present_classes, Decoder, FoldSet, Model};
 
 pub struct ShrinkageLda;
@@ -48,11 +54,32 @@ impl Decoder for ShrinkageLda {
             folds: 1,
             n_classes,
         };
+        if low_rank_is_cheaper(n, p, 1) {
+            let (offset, shifted) = shift(&set);
+            if let Some(model) = low_rank_fit(&set, &offset, &shifted, None) {
+                return Box::new(model);
+            }
+        }
         let sums = FoldSums::of(&set);
         Box::new(sums.fit(&set, None))
     }
 
     fn fit_folds_raw(&self, set: &FoldSet, wanted: &[bool]) -> Option<Vec<Option<Box<dyn Model>>>> {
+        let n = set.y.len();
+        if low_rank_is_cheaper(n - n / set.folds.max(1), set.p, set.folds) {
+            let (offset, shifted) = shift(set);
+            let mut models = Vec::with_capacity(set.folds);
+            for (f, &want) in wanted.iter().enumerate() {
+                if !want {
+                    models.push(None);
+                    continue;
+                }
+                // A diagonal with a zero (no class shrunk) has no Woodbury form: the whole split goes the other way.
+                let model = low_rank_fit(set, &offset, &shifted, Some(f))?;
+                models.push(Some(Box::new(model) as Box<dyn Model>));
+            }
+            return Some(models);
+        }
         // One p × p scatter per (fold, class): with many folds (leave-one-out) and many features that is more memory
         // than a browser tab should spend, and per-fold fits cost little more there anyway.
         if set.folds * set.n_classes * set.p * set.p > MAX_SHARE_VALUES {
@@ -124,20 +151,7 @@ struct FoldSums {
 impl FoldSums {
     fn of(set: &FoldSet) -> FoldSums {
         let (p, n) = (set.p, set.y.len());
-        let mut offset = vec![0.0; p];
-        for row in set.x.chunks_exact(p) {
-            for (o, v) in offset.iter_mut().zip(row) {
-                *o += v;
-            }
-        }
-        for o in &mut offset {
-            *o /= n as f64;
-        }
-        let shifted: Vec<f64> = set
-            .x
-            .chunks_exact(p)
-            .flat_map(|row| row.iter().zip(&offset).map(|(v, o)| v - o))
-            .collect();
+        let (offset, shifted) = shift(set);
         let sums_of = |rows: &[usize]| {
             if rows.is_empty() {
                 return Sums {
@@ -305,6 +319,171 @@ impl FoldSums {
             intercept,
         }
     }
+}
+
+/// One offset per feature (the mean of the split's rows) and the rows shifted by it, row-major.
+fn shift(set: &FoldSet) -> (Vec<f64>, Vec<f64>) {
+    let (p, n) = (set.p, set.y.len());
+    let mut offset = vec![0.0; p];
+    for row in set.x.chunks_exact(p) {
+        for (o, v) in offset.iter_mut().zip(row) {
+            *o += v;
+        }
+    }
+    for o in &mut offset {
+        *o /= n as f64;
+    }
+    let shifted = set
+        .x
+        .chunks_exact(p)
+        .flat_map(|row| row.iter().zip(&offset).map(|(v, o)| v - o))
+        .collect();
+    (offset, shifted)
+}
+
+/// Whether the Woodbury route costs less than the p × p one for `n` training trials, `p` features and a split of
+/// `folds` folds, in multiply–adds: per fit, the n × n Gram matrices (the pooled one and the classes', at most
+/// n²p together) and an n × n Cholesky factor, against a p × p factor plus the split's scatters shared by its
+/// folds (np² per split, once the per-fold shares are summed).
+fn low_rank_is_cheaper(n: usize, p: usize, folds: usize) -> bool {
+    let (n, p) = (n as f64, p as f64);
+    n * n * p + n * n * n / 3.0 < p * p * p / 3.0 + n * p * p / folds as f64
+}
+
+/// The model trained on every trial outside fold `left_out` by the Woodbury identity: `Σ = D + VᵀV` scaled
+/// (`V` = the classes' centred rows, each class's weighted by `√aₖ`, over `√D`), so `Σ⁻¹b = D^-½ (I − VᵀM⁻¹V) D^-½ b`
+/// with `M = I + VVᵀ`, n × n and never worse conditioned than I. `None` when a diagonal element of D is not
+/// positive (no class was shrunk): the caller then forms Σ itself.
+fn low_rank_fit(
+    set: &FoldSet,
+    offset: &[f64],
+    shifted: &[f64],
+    left_out: Option<usize>,
+) -> Option<LdaModel> {
+    let p = set.p;
+    let train: Vec<usize> = (0..set.y.len())
+        .filter(|&i| left_out.is_none_or(|f| set.fold[i] != f))
+        .collect();
+    let classes = present_classes(
+        &train.iter().map(|&i| set.y[i]).collect::<Vec<_>>(),
+        set.n_classes,
+    );
+    let n = train.len();
+    let mut d = vec![0.0; p];
+    // Vᵀ before scaling by D^-½, row-major p × n: column r is training row r (class by class) centred on its
+    // class mean, constant features zeroed, times √aₖ.
+    let mut vt = vec![0.0; p * n];
+    let mut column = 0;
+    let mut means = Vec::with_capacity(classes.len());
+    let mut priors = Vec::with_capacity(classes.len());
+    for &k in &classes {
+        let rows: Vec<usize> = train.iter().copied().filter(|&i| set.y[i] == k).collect();
+        let nk = rows.len();
+        let nf = nk as f64;
+        let mut mean = vec![0.0; p];
+        for &r in &rows {
+            for (m, v) in mean.iter_mut().zip(&shifted[r * p..(r + 1) * p]) {
+                *m += v;
+            }
+        }
+        for m in &mut mean {
+            *m /= nf;
+        }
+        // Centred rows (nk × p), their per-feature variance and second moment about the split's offset.
+        let mut z = Vec::with_capacity(nk * p);
+        let (mut var, mut raw) = (vec![0.0; p], vec![0.0; p]);
+        for &r in &rows {
+            let row = &shifted[r * p..(r + 1) * p];
+            for i in 0..p {
+                let c = row[i] - mean[i];
+                z.push(c);
+                var[i] += c * c;
+                raw[i] += row[i] * row[i];
+            }
+        }
+        for v in &mut var {
+            *v /= nf;
+        }
+        // The rule of `class_shrinkage` for a constant feature.
+        let constant: Vec<bool> = (0..p)
+            .map(|i| var[i] <= 1e-9 * raw[i] / nf || var[i].sqrt() < 10.0 * f64::EPSILON)
+            .collect();
+        let inv: Vec<f64> = (0..p)
+            .map(|i| {
+                if constant[i] {
+                    0.0
+                } else {
+                    1.0 / var[i].sqrt()
+                }
+            })
+            .collect();
+        // The Ledoit–Wolf statistics from the n × n Gram matrix G of the unit-SD rows: tr S = tr G / n,
+        // Σᵢⱼ Sᵢⱼ² = ‖G‖²_F / n², Σₙ (|zₙ|²)² = Σ Gₙₙ².
+        let mut unit_t = vec![0.0; p * nk];
+        for (a, row) in z.chunks_exact(p).enumerate() {
+            for i in 0..p {
+                unit_t[i * nk + a] = row[i] * inv[i];
+            }
+        }
+        let g = gram(&unit_t, p, nk);
+        let trace = (0..nk).map(|a| g[a * nk + a]).sum::<f64>() / nf;
+        let delta_sum = g.iter().map(|v| v * v).sum::<f64>() / (nf * nf);
+        let beta_sum = (0..nk).map(|a| g[a * nk + a] * g[a * nk + a]).sum::<f64>();
+        let s = shrinkage(nk, p, trace, delta_sum, beta_sum);
+        let mu = trace / p as f64;
+        let prior = nf / n as f64;
+        let scale = (prior * (1.0 - s) / nf).sqrt();
+        for i in 0..p {
+            d[i] += prior * if constant[i] { s * mu } else { s * mu * var[i] };
+        }
+        for (a, row) in z.chunks_exact(p).enumerate() {
+            for i in 0..p {
+                if !constant[i] {
+                    vt[i * n + column + a] = scale * row[i];
+                }
+            }
+        }
+        column += nk;
+        means.push(mean);
+        priors.push(prior);
+    }
+    // D must be safely positive for the identity; relative to its largest element, as Σ's scale is the data's.
+    let largest = d.iter().fold(0.0_f64, |m, &v| m.max(v));
+    let safe = largest > 0.0 && d.iter().all(|&v| v > 1e-12 * largest);
+    if !safe {
+        return None;
+    }
+    let root: Vec<f64> = d.iter().map(|v| 1.0 / v.sqrt()).collect();
+    for (i, r) in root.iter().enumerate() {
+        for v in &mut vt[i * n..(i + 1) * n] {
+            *v *= r;
+        }
+    }
+    let mut m = gram(&vt, p, n);
+    for a in 0..n {
+        m[a * n + a] += 1.0;
+    }
+    let l = cholesky(&m, n)?;
+    let mut coef = Vec::with_capacity(classes.len());
+    let mut intercept = Vec::with_capacity(classes.len());
+    for (mean, prior) in means.iter().zip(&priors) {
+        let y: Vec<f64> = mean.iter().zip(&root).map(|(b, r)| b * r).collect();
+        let mut t = vec![0.0; n];
+        for (i, yi) in y.iter().enumerate() {
+            super::linalg::axpy(*yi, &vt[i * n..(i + 1) * n], &mut t);
+        }
+        cholesky_solve(&l, n, &mut t);
+        let w: Vec<f64> = (0..p)
+            .map(|i| root[i] * (y[i] - dot(&vt[i * n..(i + 1) * n], &t)))
+            .collect();
+        intercept.push(-0.5 * dot(mean, &w) + libm::log(*prior) - dot(offset, &w));
+        coef.push(w);
+    }
+    Some(LdaModel {
+        classes,
+        coef,
+        intercept,
+    })
 }
 
 fn add(total: &mut [f64], part: &[f64]) {
@@ -497,6 +676,60 @@ mod tests {
                     );
                 }
             }
+        }
+    }
+
+    /// The Woodbury route gives the model of the p × p route (coefficients and scores to rounding) with fewer trials
+    /// than features, a feature constant in one class and one constant everywhere included.
+    #[test]
+    fn the_low_rank_route_equals_the_full_one() {
+        let (n, p) = (24, 60);
+        let mut x = Vec::new();
+        let mut y = Vec::new();
+        for i in 0..n {
+            let c = i % 3;
+            y.push(c);
+            for j in 0..p {
+                let t = (i * p + j) as f64;
+                x.push(match j {
+                    0 => 7.0,
+                    1 if c == 1 => 2.0,
+                    _ => {
+                        50.0 + (t * 0.731).sin() * (1.0 + j as f64 / 10.0)
+                            + (c * (j % 5)) as f64 * 0.3
+                    }
+                });
+            }
+        }
+        let fold: Vec<usize> = (0..n).map(|i| (i * 5) % 4).collect();
+        let set = FoldSet {
+            x: &x,
+            p,
+            y: &y,
+            fold: &fold,
+            folds: 4,
+            n_classes: 3,
+        };
+        assert!(low_rank_is_cheaper(18, p, 4));
+        let (offset, shifted) = shift(&set);
+        let sums = FoldSums::of(&set);
+        for f in 0..4 {
+            let low = low_rank_fit(&set, &offset, &shifted, Some(f)).expect("shrunk classes");
+            let full = sums.fit(&set, Some(f));
+            assert_eq!(low.classes, full.classes);
+            for (a, b) in low.coef.iter().flatten().zip(full.coef.iter().flatten()) {
+                assert!(
+                    (a - b).abs() <= 1e-8 * b.abs().max(1e-6),
+                    "fold {f}: {a} vs {b}"
+                );
+            }
+            for (a, b) in low.intercept.iter().zip(&full.intercept) {
+                assert!(
+                    (a - b).abs() <= 1e-8 * b.abs().max(1.0),
+                    "fold {f}: {a} vs {b}"
+                );
+            }
+            assert_eq!(low.predict(&x), full.predict(&x), "fold {f}");
         }
     }
 }
