@@ -404,19 +404,7 @@ fn low_rank_fit(
         for v in &mut var {
             *v /= nf;
         }
-        // The rule of `class_shrinkage` for a constant feature.
-        let constant: Vec<bool> = (0..p)
-            .map(|i| var[i] <= 1e-9 * raw[i] / nf || var[i].sqrt() < 10.0 * f64::EPSILON)
-            .collect();
-        let inv: Vec<f64> = (0..p)
-            .map(|i| {
-                if constant[i] {
-                    0.0
-                } else {
-                    1.0 / var[i].sqrt()
-                }
-            })
-            .collect();
+        let (constant, inv) = unit_scale(&var, &raw, nf);
         // The Ledoit–Wolf statistics from the n × n Gram matrix G of the unit-SD rows: tr S = tr G / n,
         // Σᵢⱼ Sᵢⱼ² = ‖G‖²_F / n², Σₙ (|zₙ|²)² = Σ Gₙₙ².
         let mut unit_t = vec![0.0; p * nk];
@@ -506,22 +494,8 @@ fn class_shrinkage(
 ) -> (f64, f64, Vec<f64>, Vec<bool>) {
     let n = rows.len() as f64;
     let var: Vec<f64> = (0..p).map(|i| c[i * p + i] / n).collect();
-    // The zero-variance rule of scikit-learn's StandardScaler (scale below 10 machine epsilons → 1). Computed from
-    // sums, a constant feature's variance is round-off rather than 0, so it counts as constant when it is below
-    // 1e-9 of the feature's second moment about the split's offset; such a feature is 0 after centring, as it would
-    // be if it were centred directly.
-    let constant: Vec<bool> = (0..p)
-        .map(|i| var[i] <= 1e-9 * raw_scatter[i * p + i] / n || var[i].sqrt() < 10.0 * f64::EPSILON)
-        .collect();
-    let inv: Vec<f64> = (0..p)
-        .map(|i| {
-            if constant[i] {
-                0.0
-            } else {
-                1.0 / var[i].sqrt()
-            }
-        })
-        .collect();
+    let raw: Vec<f64> = (0..p).map(|i| raw_scatter[i * p + i]).collect();
+    let (constant, inv) = unit_scale(&var, &raw, n);
     // S = ZᵀZ/n of the unit-SD data: tr S and Σᵢⱼ Sᵢⱼ² (off-diagonal terms twice).
     let (mut trace, mut delta_sum) = (0.0, 0.0);
     for i in 0..p {
@@ -553,6 +527,27 @@ fn class_shrinkage(
         .sum();
     let s = shrinkage(rows.len(), p, trace, delta_sum, beta_sum);
     (s, trace / p as f64, var, constant)
+}
+
+/// Which features are constant in a class of `n` trials, and `1/SD` of the others (0 for constant ones), from each
+/// feature's variance and its second moment `raw` about the split's offset (summed over the class's trials).
+///
+/// The zero-variance rule of scikit-learn's StandardScaler (scale below 10 machine epsilons → 1). Computed from sums,
+/// a constant feature's variance is round-off rather than 0, so it counts as constant when it is below 1e-9 of the
+/// feature's second moment about the split's offset; such a feature is 0 after centring, as it would be if it were
+/// centred directly.
+fn unit_scale(var: &[f64], raw: &[f64], n: f64) -> (Vec<bool>, Vec<f64>) {
+    let constant: Vec<bool> = var
+        .iter()
+        .zip(raw)
+        .map(|(&v, &r)| v <= 1e-9 * r / n || v.sqrt() < 10.0 * f64::EPSILON)
+        .collect();
+    let inv = var
+        .iter()
+        .zip(&constant)
+        .map(|(&v, &c)| if c { 0.0 } else { 1.0 / v.sqrt() })
+        .collect();
+    (constant, inv)
 }
 
 /// The Ledoit–Wolf shrinkage weight in [0, 1] (Ledoit & Wolf, 2004, lemma 3.2 and section 3.3, in the form of
