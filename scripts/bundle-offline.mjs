@@ -22,10 +22,11 @@ const app = sources.map((p) => guard(p, read(`www/${p}`))).join('\n');
 const worker = guard('worker.js', read('www/worker.js'));
 const css = read('www/style.css');
 const wasm = readFileSync(new URL('../www/pkg/popdecode_bg.wasm', import.meta.url)).toString('base64');
-// The example study: its table and the trial tables it lists (www/js/data.js, PD.loadStudyExample).
+// The examples: each kind's, the analyses' (choices, running) and the example study's table with the trial tables it
+// lists (www/js/data.js, PD.loadExample and PD.loadStudyExample).
 const study = read('samples/study/study.csv').trim().split('\n').slice(1).map((row) => `study/${row.split(',')[0]}`);
 const examples = Object.fromEntries(['odours.csv', 'odours_binned.csv', 'odour_spikes.csv', 'odour_trials.csv',
-  'study/study.csv', ...study].map((name) => [name, read(`samples/${name}`)]));
+  'choices.csv', 'running.csv', 'study/study.csv', ...study].map((name) => [name, read(`samples/${name}`)]));
 
 const boot = `window.POPDECODE_OFFLINE = true;\nwindow.POPDECODE_WASM_BASE64 = "${wasm}";\n` +
   `window.POPDECODE_EXAMPLES = ${JSON.stringify(examples).replace(/</g, '\\u003c')};\n`;

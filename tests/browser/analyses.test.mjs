@@ -324,3 +324,28 @@ test('a study scored by generalization across conditions: sessions over time, th
   assertLocalOnly(assert, b.requests, server.origin);
   await b.context.close();
 });
+
+test('the analyses\' examples are one click away: choices across odour contexts, running speed', SLOW, async () => {
+  const b = await openPage();
+  await b.page.click('#example-across');
+  await b.page.waitForFunction(() => document.getElementById('across-col').value === 'context');
+  assert.equal(await b.page.inputValue('#label'), 'choice');
+  await quickSettings(b.page, { repeats: 2, shuffles: 3 });
+  await runAndWait(b.page, '#across-start');
+  const across = JSON.parse(await downloadText(b.page, '#export-json'));
+  assert.equal(across.schema, 'popdecode-across/1');
+  assert.equal(across.input.files[0].file, 'choices.csv');
+  assert.deepEqual(across.levels, ['citral', 'hexanal']);
+  assert.ok(across.summary.accuracy.mean > 0.7, 'the shared code carries over');
+  await b.page.click('#example-continuous');
+  await b.page.waitForFunction(() => document.getElementById('label').value === 'speed');
+  await quickSettings(b.page, { repeats: 2, shuffles: 3 });
+  await runAndWait(b.page, '#continuous-start');
+  const continuous = JSON.parse(await downloadText(b.page, '#export-json'));
+  assert.equal(continuous.schema, 'popdecode-continuous/1');
+  assert.equal(continuous.input.files[0].file, 'running.csv');
+  assert.ok(continuous.summary.r2.mean > 0.3, `speed is decoded (R² ${continuous.summary.r2.mean})`);
+  assert.deepEqual(b.errors, []);
+  assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});

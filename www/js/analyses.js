@@ -206,6 +206,18 @@
     $('power-start').disabled = !ok || !!S.run || S.kind !== 'table';
   };
 
+  // An analysis's example (invented data, samples/): loaded as a trial table, its label chosen and the analysis's
+  // own fields set by `then`, so one more click runs it.
+  async function loadExample(name, label, then) {
+    await PD.loadExample([name]);
+    if (!PD.mainInfo()) return;
+    $('label').value = label;
+    $('label').dispatchEvent(new Event('change'));
+    then();
+    $('data-status').textContent = `Loaded the example ${name} with ‘${label}’ as the label; the button above runs it.`;
+    PD.markStale();
+  }
+
   window.addEventListener('DOMContentLoaded', () => {
     PD.on('data', fillAcross);
     $('across-col').addEventListener('change', () => { fillLevels(); PD.markStale(); });
@@ -219,5 +231,13 @@
     ['across', 'continuous', 'power'].forEach((kind) => {
       $(kind + '-start').addEventListener('click', (e) => PD.start(kind, e.detail === 0));
     });
+    $('example-across').addEventListener('click', () => loadExample('choices.csv', 'choice', () => {
+      $('across-col').value = 'context';
+      fillLevels();
+    }));
+    $('example-continuous').addEventListener('click', () => loadExample('running.csv', 'speed', () => {
+      $('value-decoder').value = 'ridge';
+      angle();
+    }));
   });
 }(window.PD));

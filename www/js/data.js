@@ -411,8 +411,7 @@
   PD.setFeatures = function (names) { S.features.chosen = new Set(names); drawFeatures(); };
 
   // ---------- files in ----------
-  PD.loadExample = async function () {
-    const names = EXAMPLES[S.kind];
+  PD.loadExample = async function (names = EXAMPLES[S.kind]) {
     const texts = await Promise.all(names.map(async (name) => (window.POPDECODE_EXAMPLES
       ? window.POPDECODE_EXAMPLES[name] : (await fetch('samples/' + name)).text())));
     const files = texts.map((t, i) => new File([t], names[i], { type: 'text/csv' }));
@@ -423,6 +422,7 @@
     } else {
       await PD.loadInto('table', files[0]);
     }
+    if (names.length === 1 && names[0] !== EXAMPLES[S.kind][0]) return; // an analysis's own example (analyses.js)
     if (PD.mainInfo() && PD.mainInfo().headers.includes('session')) {
       $('group').value = 'session';
       PD.syncFeatures();
