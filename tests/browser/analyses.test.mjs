@@ -330,6 +330,7 @@ test('the analyses\' examples are one click away: choices across odour contexts,
   await b.page.click('#example-across');
   await b.page.waitForFunction(() => document.getElementById('across-col').value === 'context');
   assert.equal(await b.page.inputValue('#label'), 'choice');
+  assert.match(await b.page.textContent('#data-status'), /“Train on one condition, test on another” \(under More analyses of these data\) runs it/);
   await quickSettings(b.page, { repeats: 2, shuffles: 3 });
   await runAndWait(b.page, '#across-start');
   const across = JSON.parse(await downloadText(b.page, '#export-json'));

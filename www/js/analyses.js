@@ -207,14 +207,15 @@
   };
 
   // An analysis's example (invented data, samples/): loaded as a trial table, its label chosen and the analysis's
-  // own fields set by `then`, so one more click runs it.
-  async function loadExample(name, label, then) {
+  // own fields set by `then`, so one more click (on `button`) runs it.
+  async function loadExample(name, label, button, then) {
     await PD.loadExample([name]);
     if (!PD.mainInfo()) return;
     $('label').value = label;
     $('label').dispatchEvent(new Event('change'));
     then();
-    $('data-status').textContent = `Loaded the example ${name} with ‘${label}’ as the label; the button above runs it.`;
+    $('data-status').textContent = `Loaded the example ${name} with ‘${label}’ as the label; ` +
+      `“${$(button).textContent.trim()}” (under More analyses of these data) runs it.`;
     PD.markStale();
   }
 
@@ -231,11 +232,11 @@
     ['across', 'continuous', 'power'].forEach((kind) => {
       $(kind + '-start').addEventListener('click', (e) => PD.start(kind, e.detail === 0));
     });
-    $('example-across').addEventListener('click', () => loadExample('choices.csv', 'choice', () => {
+    $('example-across').addEventListener('click', () => loadExample('choices.csv', 'choice', 'across-start', () => {
       $('across-col').value = 'context';
       fillLevels();
     }));
-    $('example-continuous').addEventListener('click', () => loadExample('running.csv', 'speed', () => {
+    $('example-continuous').addEventListener('click', () => loadExample('running.csv', 'speed', 'continuous-start', () => {
       $('value-decoder').value = 'ridge';
       angle();
     }));
