@@ -28,7 +28,7 @@
 //! ([`low_rank_fit`]); the shrinkage weights come from each class's n × n Gram matrix, since ‖ZᵀZ‖_F = ‖ZZᵀ‖_F. The
 //! route is chosen per split by the cost of each ([`low_rank_is_cheaper`]); both give the same model up to rounding.
 
-use super::linalg::{cholesky, cholesky_solve, cholesky_with_ridge, dot, gram};
+use super::linalg::{axpy, cholesky, cholesky_solve, cholesky_with_ridge, dot, gram};
 use super::{argmax, present_classes, Decoder, FoldSet, Model};
 
 pub struct ShrinkageLda;
@@ -458,7 +458,7 @@ fn low_rank_fit(
         let y: Vec<f64> = mean.iter().zip(&root).map(|(b, r)| b * r).collect();
         let mut t = vec![0.0; n];
         for (i, yi) in y.iter().enumerate() {
-            super::linalg::axpy(*yi, &vt[i * n..(i + 1) * n], &mut t);
+            axpy(*yi, &vt[i * n..(i + 1) * n], &mut t);
         }
         cholesky_solve(&l, n, &mut t);
         let w: Vec<f64> = (0..p)

@@ -209,7 +209,7 @@
   // An analysis's example (invented data, samples/): loaded as a trial table, its label chosen and the analysis's
   // own fields set by `then`, so one more click (on `button`) runs it.
   async function loadExample(name, label, button, then) {
-    await PD.loadExample([name]);
+    await PD.loadInto('table', await PD.sampleFile(name));
     if (!PD.mainInfo()) return;
     $('label').value = label;
     $('label').dispatchEvent(new Event('change'));

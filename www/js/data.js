@@ -411,10 +411,13 @@
   PD.setFeatures = function (names) { S.features.chosen = new Set(names); drawFeatures(); };
 
   // ---------- files in ----------
-  PD.loadExample = async function (names = EXAMPLES[S.kind]) {
-    const texts = await Promise.all(names.map(async (name) => (window.POPDECODE_EXAMPLES
-      ? window.POPDECODE_EXAMPLES[name] : (await fetch('samples/' + name)).text())));
-    const files = texts.map((t, i) => new File([t], names[i], { type: 'text/csv' }));
+  // A sample file (the offline file carries them inside) as a File to load.
+  PD.sampleFile = async (name) => new File([window.POPDECODE_EXAMPLES ? window.POPDECODE_EXAMPLES[name]
+    : await (await fetch('samples/' + name)).text()], name.split('/').pop(), { type: 'text/csv' });
+
+  // The kind's example: its files loaded, and the session column (when there is one) as the group.
+  PD.loadExample = async function () {
+    const files = await Promise.all(EXAMPLES[S.kind].map(PD.sampleFile));
     if (S.kind === 'events') {
       await PD.loadInto('events', files[0]);
       await PD.loadInto('trials', files[1]);
@@ -422,7 +425,6 @@
     } else {
       await PD.loadInto('table', files[0]);
     }
-    if (names.length === 1 && names[0] !== EXAMPLES[S.kind][0]) return; // an analysis's own example (analyses.js)
     if (PD.mainInfo() && PD.mainInfo().headers.includes('session')) {
       $('group').value = 'session';
       PD.syncFeatures();
@@ -433,14 +435,9 @@
 
   // The example study: the study table and the sessions' trial tables it lists (invented odour sessions).
   PD.loadStudyExample = async function () {
-    const get = async (name) => (window.POPDECODE_EXAMPLES ? window.POPDECODE_EXAMPLES['study/' + name]
-      : (await fetch('samples/study/' + name)).text());
-    const table = await get('study.csv');
-    const names = table.trim().split('\n').slice(1).map((row) => row.split(',')[0]);
-    const texts = await Promise.all(names.map(get));
-    const files = [new File([table], 'study.csv', { type: 'text/csv' }),
-      ...texts.map((t, i) => new File([t], names[i], { type: 'text/csv' }))];
-    await PD.loadStudy(files);
+    const table = await PD.sampleFile('study/study.csv');
+    const names = (await table.text()).trim().split('\n').slice(1).map((row) => row.split(',')[0]);
+    await PD.loadStudy([table, ...await Promise.all(names.map((n) => PD.sampleFile('study/' + n)))]);
   };
 
   // Dropped files: in spike-events mode each goes where its header says (a neuron and a time column = events).

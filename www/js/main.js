@@ -48,8 +48,8 @@
       e.preventDefault(); drop.classList.remove('over');
       await PD.loadDropped([...e.dataTransfer.files]);
     });
-    $('example').addEventListener('click', () => PD.loadExample());
-    $('example-events').addEventListener('click', () => PD.loadExample());
+    $('example').addEventListener('click', PD.loadExample);
+    $('example-events').addEventListener('click', PD.loadExample);
     $('example-study').addEventListener('click', PD.loadStudyExample);
     document.querySelectorAll('input[name=kind]').forEach((r) => r.addEventListener('change', () => PD.setKind(r.value)));
     $('unit-col').addEventListener('change', () => { PD.fillUnitFilter(); PD.refresh(); });
