@@ -258,7 +258,7 @@ fn pooled_pseudo_trials_use_disjoint_real_trials_at_every_window() {
         TimeDataset {
             source: format!("s{s}"),
             files: Vec::new(),
-            x,
+            x: x.into_shared(),
             windows: windows.clone(),
             trial_ids: (0..n_trials).map(|t| t.to_string()).collect(),
             y,

@@ -2,8 +2,9 @@
 // * the data worker holds the loaded files, reads and inspects them, keeps them decoded (wasm `Loaded`) for the
 //   current columns, prepares plans, hands the decoded matrix to run workers and finishes runs; an NWB file is
 //   read lazily here into its extract;
-// * a run worker gets the decoded data once (`init`: header and matrix, the matrix's buffer transferred) and
-//   answers task messages with outcome JSON.
+// * a run worker gets the decoded data once (`run-part`: the matrix in parts of a few megabytes, each transferred,
+//   so no side holds a second whole copy on the way; `run-init`: its header) and answers task messages with
+//   outcome JSON.
 // Served page: the wasm-bindgen glue is loaded with importScripts. Offline file: the glue is concatenated in front
 // of this script inside a Blob, so `wasm_bindgen` already exists.
 /* global wasm_bindgen, importScripts */
@@ -142,9 +143,12 @@ const handlers = {
     return { plan, header: msg.withHeader ? JSON.parse(data.header()) : null };
   },
   header: (msg) => ensureLoaded(msg).header(),
-  matrix: (msg) => {
-    const m = ensureLoaded(msg).matrix();
-    return { value: m, transfer: [m.buffer] };
+  // Values from..from+len of the decoded matrix and the matrix's size, for a run worker (the part transferred).
+  'matrix-part': (msg) => {
+    const part = ensureLoaded(msg).matrix_part(msg.from, msg.len);
+    const total = part.total;
+    const values = part.values();
+    return { value: { total, values }, transfer: [values.buffer] };
   },
   // A study's files: each one's first rows (to tell the study table from the sessions, and to offer the columns
   // of the first session); an NWB file is read into its extract here, as for one NWB file.
@@ -180,10 +184,20 @@ const handlers = {
 
 // ---------- a run worker ----------
 let runner = null;
+let incoming = null; // the matrix being filled part by part (wasm MatrixIn)
 const runHandlers = {
+  // A part of the decoded matrix (the first reserves room for all of it).
+  'run-part': async (msg) => {
+    await startWasm(msg.module);
+    if (!incoming) incoming = new wasm_bindgen.MatrixIn(msg.total);
+    incoming.put(msg.values);
+    return true;
+  },
   'run-init': async (msg) => {
     await startWasm(msg.module);
-    runner = new wasm_bindgen.Runner(msg.kind, msg.header, msg.matrix, msg.recipe, msg.options);
+    const matrix = incoming;
+    incoming = null;
+    runner = new wasm_bindgen.Runner(msg.kind, msg.header, matrix, msg.recipe, msg.options);
     return true;
   },
   // An analysis that reads files (a study, generalization across conditions, continuous decoding): the files

@@ -276,7 +276,7 @@ fn recording(trials: usize, units: usize, windows: usize) -> TimeDataset {
     TimeDataset {
         source: "bench".into(),
         files: Vec::new(),
-        x,
+        x: x.into_shared(),
         windows: times
             .iter()
             .map(|&t| Window {

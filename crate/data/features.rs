@@ -60,13 +60,15 @@ impl Features {
         }
     }
 
-    /// A recording's rates at every window (the array is moved, not copied).
+    /// A recording's rates at every window (the array is moved, not copied, unless another copy of the data set
+    /// shares it).
     pub fn from_time(d: TimeDataset) -> Features {
         let n_trials = d.n_trials();
-        let x = if d.x.is_standard_layout() {
-            d.x.into_raw_vec_and_offset().0
+        let owned = d.x.into_owned();
+        let x = if owned.is_standard_layout() {
+            owned.into_raw_vec_and_offset().0
         } else {
-            d.x.as_standard_layout().iter().copied().collect()
+            owned.as_standard_layout().iter().copied().collect()
         };
         Features {
             source: d.source,

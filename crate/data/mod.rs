@@ -11,7 +11,7 @@ pub mod target;
 pub mod time;
 pub mod trials;
 
-use ndarray::Array2;
+use ndarray::ArcArray2;
 use serde::{Deserialize, Serialize};
 use trials::Trials;
 
@@ -23,8 +23,9 @@ pub struct Dataset {
     pub sha256: String,
     pub delimiter: String,
     pub decimal_comma: bool,
-    /// Trials × features.
-    pub x: Array2<f64>,
+    /// Trials × features, shared: copies of a dataset (a plan made again for new settings, the page's prepare and
+    /// finish) share one matrix instead of copying it, which a page with a large file cannot afford.
+    pub x: ArcArray2<f64>,
     /// Class index of each trial into `classes`.
     pub y: Vec<usize>,
     pub classes: Vec<String>,
@@ -69,7 +70,7 @@ impl Dataset {
     /// The same trials with only the feature columns `cols` (in that order).
     pub fn with_features(&self, cols: &[usize]) -> Dataset {
         Dataset {
-            x: self.x.select(ndarray::Axis(1), cols),
+            x: self.x.select(ndarray::Axis(1), cols).into_shared(),
             feature_names: cols
                 .iter()
                 .map(|&c| self.feature_names[c].clone())
@@ -86,7 +87,7 @@ impl Dataset {
     /// Only the trials `rows` (indices, in that order), with their labels and groups; the classes stay as they are.
     pub fn with_trials(&self, rows: &[usize]) -> Dataset {
         Dataset {
-            x: self.x.select(ndarray::Axis(0), rows),
+            x: self.x.select(ndarray::Axis(0), rows).into_shared(),
             y: rows.iter().map(|&i| self.y[i]).collect(),
             groups: self
                 .groups
@@ -132,7 +133,7 @@ impl Dataset {
             None => (None, self.group_names.clone(), self.pseudo.clone()),
         };
         Dataset {
-            x: self.x.select(ndarray::Axis(0), &rows),
+            x: self.x.select(ndarray::Axis(0), &rows).into_shared(),
             y: rows.iter().map(|&i| new_class(self.y[i])).collect(),
             classes: keep.iter().map(|&c| self.classes[c].clone()).collect(),
             groups,

@@ -3,7 +3,8 @@
 use super::trials::Trials;
 use super::SourceFile;
 use crate::recipe::windows::Window;
-use ndarray::Array3;
+use ndarray::ArcArray;
+use ndarray::Ix3;
 
 /// Trials × windows × neurons with the trials' labels and groups.
 #[derive(Debug, Clone)]
@@ -12,7 +13,8 @@ pub struct TimeDataset {
     pub source: String,
     pub files: Vec<SourceFile>,
     /// Windows × trials × neurons, rates as given (binned) or in Hz (events).
-    pub x: Array3<f64>,
+    /// Shared, as [`crate::data::Dataset::x`]: a copy of the data set shares the matrix.
+    pub x: ArcArray<f64, Ix3>,
     pub windows: Vec<Window>,
     /// Trial ids in the order of `y`.
     pub trial_ids: Vec<String>,

@@ -85,7 +85,7 @@ pub(super) fn assemble(
     Ok(TimeDataset {
         source: source.to_string(),
         files: Vec::new(),
-        x,
+        x: x.into_shared(),
         windows,
         trial_ids,
         y,

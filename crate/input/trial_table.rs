@@ -310,7 +310,9 @@ impl<'a> Rows<'a> {
             sha256: String::new(),
             delimiter: table.delimiter_name().to_string(),
             decimal_comma: table.decimal_comma,
-            x: Array2::from_shape_vec((n, p), x).expect("n × p values were collected"),
+            x: Array2::from_shape_vec((n, p), x)
+                .expect("n × p values were collected")
+                .into_shared(),
             y,
             classes,
             groups,

@@ -1,7 +1,8 @@
 //! Decoded data on the page: a file is read once, in the page's data worker, into the trials × features (or
-//! windows × trials × neurons) matrix the analyses use; each run worker then gets that matrix once, as a
-//! `Float64Array` the page transfers, with its labels, groups and names as a small JSON header. No run worker
-//! parses the file or holds its text, so memory grows with the decoded numbers, not with the file's bytes.
+//! windows × trials × neurons) matrix the analyses use; each run worker then gets that matrix once, in parts of a
+//! few megabytes the page transfers ([`MatrixIn`](super::job::MatrixIn)), with its labels, groups and names as a
+//! small JSON header. No run worker parses the file or holds its text, and no side holds a second whole copy of
+//! the matrix on the way, so memory grows with the decoded numbers, not with the file's bytes.
 //!
 //! The header carries every field of [`Dataset`] / [`TimeDataset`] but the matrix, and the matrix's bits are
 //! copied exactly, so a plan built from decoded data is the plan built from the file (the page's JSON stays the
@@ -14,6 +15,7 @@ use crate::input;
 use crate::recipe::windows::Window;
 use ndarray::{Array2, Array3};
 use serde::{Deserialize, Serialize};
+use std::borrow::Cow;
 use wasm_bindgen::JsValue;
 
 /// What a file decodes into, by the analysis family that reads it.
@@ -176,12 +178,19 @@ impl Decoded {
         header.to_string()
     }
 
-    /// The matrix's values in memory order (a copy, which the page transfers to a run worker).
-    pub(super) fn matrix(&self) -> Vec<f64> {
+    /// The matrix's values in memory order, without a copy when the matrix is laid out row-major (the readers
+    /// make it so).
+    pub(super) fn values(&self) -> Cow<'_, [f64]> {
+        fn of<D: ndarray::Dimension>(x: &ndarray::ArcArray<f64, D>) -> Cow<'_, [f64]> {
+            match x.as_slice() {
+                Some(v) => Cow::Borrowed(v),
+                None => Cow::Owned(x.iter().copied().collect()),
+            }
+        }
         match self {
-            Decoded::Table(d) => d.x.iter().copied().collect(),
-            Decoded::Time(d) => d.x.iter().copied().collect(),
-            Decoded::Files(_) => Vec::new(),
+            Decoded::Table(d) => of(&d.x),
+            Decoded::Time(d) => of(&d.x),
+            Decoded::Files(_) => Cow::Borrowed(&[]),
         }
     }
 
@@ -202,7 +211,7 @@ impl Decoded {
                 sha256: h.sha256,
                 delimiter: h.delimiter,
                 decimal_comma: h.decimal_comma,
-                x,
+                x: x.into_shared(),
                 y: h.y,
                 classes: h.classes,
                 groups: h.groups,
@@ -222,7 +231,7 @@ impl Decoded {
             Ok(Decoded::Time(TimeDataset {
                 source: h.source,
                 files: h.files,
-                x,
+                x: x.into_shared(),
                 windows: h.windows,
                 trial_ids: h.trial_ids,
                 y: h.y,

@@ -1,10 +1,11 @@
 //! The one shape every analysis takes on the page: read the data once, prepare, run tasks in workers, finish.
 //!
 //! The page's data worker holds a [`Loaded`]: the file read once for the recipe's columns (or windows). From it,
-//! `prepare` checks the design and lists the tasks, `header` and `matrix` hand the decoded data to run workers, and `finish` assembles the
-//! outcomes into the result. A run worker builds a [`Runner`] from the decoded data once per run and answers task
-//! messages with outcome JSON; the page joins the outcome strings unparsed, so no number passes through a
-//! JavaScript double conversion (serde_json's `float_roundtrip` keeps the parse exact).
+//! `prepare` checks the design and lists the tasks, `header` and `matrix_part` hand the decoded data to run workers
+//! (in parts, into a [`MatrixIn`]), and `finish` assembles the outcomes into the result. A run worker builds a
+//! [`Runner`] from the decoded data once per run and answers task messages with outcome JSON; the page joins the
+//! outcome strings unparsed, so no number passes through a JavaScript double conversion (serde_json's
+//! `float_roundtrip` keeps the parse exact).
 
 use super::data::{self, Decoded};
 use super::request::{err, options, recipe, Files, Request};
@@ -138,9 +139,17 @@ impl Loaded {
         self.data.header()
     }
 
-    /// The decoded matrix (a `Float64Array`, which the page transfers to one run worker).
-    pub fn matrix(&self) -> Vec<f64> {
-        self.data.matrix()
+    /// Values `from..from + len` of the decoded matrix in memory order (cut at its end), and how many values it
+    /// has: a part the page transfers to a run worker's [`MatrixIn`]. Parts of a few megabytes keep both sides from
+    /// holding a second whole copy of a large matrix on the way.
+    pub fn matrix_part(&self, from: usize, len: usize) -> MatrixPart {
+        let values = self.data.values();
+        let from = from.min(values.len());
+        let to = from.saturating_add(len).min(values.len());
+        MatrixPart {
+            total: values.len(),
+            values: values[from..to].to_vec(),
+        }
     }
 
     /// Assemble the outcomes (a JSON array) into the result: `report` (parsed), `report_json` (the bytes the CLI
@@ -182,6 +191,63 @@ impl Loaded {
     }
 }
 
+/// A part of a decoded matrix on its way to a run worker, with the matrix's size.
+#[wasm_bindgen]
+pub struct MatrixPart {
+    total: usize,
+    values: Vec<f64>,
+}
+
+#[wasm_bindgen]
+impl MatrixPart {
+    /// How many values the whole matrix has.
+    #[wasm_bindgen(getter)]
+    pub fn total(&self) -> usize {
+        self.total
+    }
+
+    /// This part's values (a `Float64Array`, which the page transfers).
+    pub fn values(self) -> Vec<f64> {
+        self.values
+    }
+}
+
+/// A run worker's decoded matrix, filled part by part ([`Loaded::matrix_part`]) before [`Runner::new`] takes it.
+#[wasm_bindgen]
+pub struct MatrixIn {
+    values: Vec<f64>,
+    total: usize,
+}
+
+#[wasm_bindgen]
+impl MatrixIn {
+    /// Room for `total` values, reserved at once (a matrix this worker cannot hold is said here, not found by
+    /// running out of memory half way).
+    #[wasm_bindgen(constructor)]
+    pub fn new(total: usize) -> Result<MatrixIn, JsValue> {
+        let mut values = Vec::new();
+        values.try_reserve_exact(total).map_err(|_| {
+            err(format!(
+                "a run worker cannot hold the decoded data ({} MB): use fewer workers or fewer trials, neurons or \
+                 windows",
+                total.saturating_mul(8) / 1_000_000
+            ))
+        })?;
+        Ok(MatrixIn { values, total })
+    }
+
+    /// The next part, in memory order.
+    pub fn put(&mut self, part: &[f64]) -> Result<(), JsValue> {
+        if self.values.len() + part.len() > self.total {
+            return Err(err(
+                "malformed decoded data: more values than the matrix has",
+            ));
+        }
+        self.values.extend_from_slice(part);
+        Ok(())
+    }
+}
+
 /// Runs one analysis's tasks in a run worker, on the decoded data the page handed it once.
 #[wasm_bindgen]
 pub struct Runner {
@@ -190,17 +256,20 @@ pub struct Runner {
 
 #[wasm_bindgen]
 impl Runner {
-    /// `header` and `matrix` as [`Loaded::header`] and [`Loaded::matrix`] gave them (the matrix is moved in,
-    /// not copied again).
+    /// `header` as [`Loaded::header`] gave it and the matrix filled from [`Loaded::matrix_part`] (moved in, not
+    /// copied again).
     #[wasm_bindgen(constructor)]
     pub fn new(
         kind: &str,
         header: &str,
-        matrix: Vec<f64>,
+        matrix: MatrixIn,
         recipe_json: &str,
         options_json: &str,
     ) -> Result<Runner, JsValue> {
-        let data = Decoded::from_parts(header, matrix)?;
+        if matrix.values.len() != matrix.total {
+            return Err(err("malformed decoded data: the matrix arrived incomplete"));
+        }
+        let data = Decoded::from_parts(header, matrix.values)?;
         Ok(Runner {
             job: job(kind, data, &recipe(recipe_json)?, &options(options_json)?)?,
         })

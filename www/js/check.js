@@ -88,7 +88,7 @@
   // of what sets the speed stops it (the latest change wins). No timing runs beside a run.
   let timing = null; // { key, worker, done }
   function stopTiming() {
-    if (timing) timing.worker.terminate();
+    if (timing) { timing.cancelled = true; timing.worker.terminate(); }
     timing = null;
   }
   PD.timingNow = () => timing !== null;
@@ -117,11 +117,7 @@
     timing = mine;
     try {
       if (header.family === 'files') await PD.sendFiles(mine.worker, header.files, kind, req, mine);
-      else {
-        const matrix = await S.data.ask('matrix', req);
-        if (timing !== mine) return;
-        await mine.worker.ask('run-init', { module: S.module, kind, header: JSON.stringify(header), matrix, recipe: req.recipe, options: req.options }, [matrix.buffer]);
-      }
+      else await PD.sendMatrix(mine.worker, JSON.stringify(header), kind, req, mine);
       const task = { task: plan.tasks[0] };
       let t0 = performance.now();
       await mine.worker.ask('task', task);

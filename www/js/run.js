@@ -1,6 +1,6 @@
 // Runs and the worker pool. A run: settings checked, plan prepared by the data worker, confirmation when it is
-// long or large, a fresh pool of run workers each given the decoded matrix once (transferred, one worker at a time,
-// so copies do not pile up), tasks handed to whichever worker is free, the outcome strings joined unparsed and
+// long or large, a fresh pool of run workers each given the decoded matrix once (in transferred parts, one worker
+// at a time, so copies do not pile up), tasks handed to whichever worker is free, the outcome strings joined unparsed and
 // finished by the data worker. Only a finished run becomes a record; a cancelled or failed one changes nothing
 // on view. Cancel terminates the workers at once (running wasm cannot be interrupted).
 'use strict';
@@ -120,6 +120,22 @@
     }
   };
 
+  // A run worker's decoded data: the matrix in parts of 4 MB, each asked of the data worker and transferred on
+  // (neither side ever holds a second whole copy of a large matrix), then the header. `token.cancelled` stops it.
+  const PART = 1 << 19; // values
+  PD.sendMatrix = async function (worker, header, analysis, req, token) {
+    for (let from = 0, total = 1; from < total; from += PART) {
+      const part = await S.data.ask('matrix-part', { ...req, from, len: PART });
+      if (token.cancelled) throw new Error('cancelled');
+      total = part.total;
+      if (!total) break;
+      await worker.ask('run-part', { module: S.module, total, values: part.values }, [part.values.buffer]);
+      if (token.cancelled) throw new Error('cancelled');
+    }
+    await worker.ask('run-init', { module: S.module, kind: analysis, header, recipe: req.recipe, options: req.options });
+    if (token.cancelled) throw new Error('cancelled');
+  };
+
   // One analysis on a fresh pool: resolves to the finished result (with seconds and workers).
   async function runOnce(analysis, recipe, options, token, label) {
     const req = PD.request(analysis, recipe, options);
@@ -146,14 +162,8 @@
     // files themselves: PD.sendFiles).
     const files = header && JSON.parse(header).family === 'files' ? JSON.parse(header).files : null;
     for (const worker of workers) {
-      if (files) {
-        await PD.sendFiles(worker, files, analysis, req, token);
-        continue;
-      }
-      const matrix = await S.data.ask('matrix', req);
-      if (token.cancelled) throw new Error('cancelled');
-      await worker.ask('run-init', { module: S.module, kind: analysis, header, matrix, recipe: req.recipe, options: req.options }, [matrix.buffer]);
-      if (token.cancelled) throw new Error('cancelled');
+      if (files) await PD.sendFiles(worker, files, analysis, req, token);
+      else await PD.sendMatrix(worker, header, analysis, req, token);
     }
     const progress = () => {
       const frac = fitsDone / fitsTotal;

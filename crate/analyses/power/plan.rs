@@ -306,7 +306,7 @@ impl PowerPlan {
             ));
         }
         Dataset {
-            x,
+            x: x.into_shared(),
             feature_names: names,
             warnings: Vec::new(),
             ..data.clone()

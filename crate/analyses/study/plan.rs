@@ -747,7 +747,7 @@ fn stack_tables(sessions: Vec<(String, Dataset)>, table: &StudyTable) -> Dataset
         sha256: table.sha256.clone(),
         delimiter: first.delimiter.clone(),
         decimal_comma: first.decimal_comma,
-        x: ndarray::Array2::zeros((0, 0)),
+        x: ndarray::ArcArray2::zeros((0, 0)),
         y: Vec::new(),
         classes: first.classes.clone(),
         groups: Some(Vec::new()),
@@ -783,7 +783,7 @@ fn stack_tables(sessions: Vec<(String, Dataset)>, table: &StudyTable) -> Dataset
         .map(|(name, t)| (name.as_str(), t.warnings.as_slice()))
         .collect();
     out.warnings = session_notes(&notes);
-    out.x = x;
+    out.x = x.into_shared();
     out
 }
 

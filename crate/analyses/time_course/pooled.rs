@@ -57,7 +57,7 @@ impl Pool {
         let mut data = TimeDataset {
             source: "the pooled sessions".into(),
             files: Vec::new(),
-            x: Array3::zeros((first.windows.len(), 0, 0)),
+            x: Array3::zeros((first.windows.len(), 0, 0)).into_shared(),
             windows: first.windows.clone(),
             trial_ids: Vec::new(),
             y: Vec::new(),

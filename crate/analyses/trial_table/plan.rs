@@ -13,6 +13,7 @@ use crate::rng::{task_rng, Stream};
 use crate::stats::roc;
 use rand_core::RngCore;
 use serde::{Deserialize, Serialize};
+use std::borrow::Cow;
 
 /// One task of a trial-table analysis: a repeat or shuffle of the analysis of every class, or of one pair of
 /// classes decoded on its own (with pairwise decoding). Serialised untagged, so that a task of the whole analysis
@@ -99,7 +100,7 @@ impl Plan {
     pub fn new(mut data: Dataset, recipe: &Recipe) -> Result<Plan> {
         // The fits read the matrix as one row-major slice ([`Plan::x`]); a table read from a file already is.
         if !data.x.is_standard_layout() {
-            data.x = data.x.as_standard_layout().into_owned();
+            data.x = data.x.as_standard_layout().into_owned().into_shared();
         }
         let mut scheme = resolve_scheme(&data.trials(), recipe)?;
         let (folds, classes) = (scheme.folds() as f64, data.classes.len() as f64);
@@ -236,7 +237,7 @@ impl Plan {
         let (x, y, fold, folds, groups) = match self.scheme.split {
             Split::Pseudo { folds } => {
                 let (x, y, fold) = pseudo::build(&self.data, self.x(), labels, folds, rng);
-                (x, y, fold, folds, None)
+                (Cow::Owned(x), y, fold, folds, None)
             }
             _ => {
                 let draw = self.scheme.draw(labels, self.data.groups.as_deref(), rng);
@@ -271,14 +272,19 @@ impl Plan {
         out
     }
 
-    /// Row-major rows of the trials `used`, in that order.
-    fn rows(&self, used: &[usize]) -> Vec<f64> {
+    /// Row-major rows of the trials `used`, in that order: the matrix itself when that is every trial in order
+    /// (balanced classes, or no balancing), so a run on a large table holds one copy of it, not two.
+    fn rows(&self, used: &[usize]) -> Cow<'_, [f64]> {
+        let x = self.x();
+        if used.len() == self.data.n_trials() && used.iter().enumerate().all(|(k, &i)| k == i) {
+            return Cow::Borrowed(x);
+        }
         let p = self.data.n_features();
         let mut out = Vec::with_capacity(used.len() * p);
         for &i in used {
-            out.extend_from_slice(&self.x()[i * p..(i + 1) * p]);
+            out.extend_from_slice(&x[i * p..(i + 1) * p]);
         }
-        out
+        Cow::Owned(out)
     }
 }
 
