@@ -30,9 +30,10 @@ function failure(e) {
   return message;
 }
 
-// ---------- NWB: read lazily from the dropped File (FileReaderSync works in workers only) ----------
-// The core asks for the pieces it needs through popdecodeReadAt. The HDF5 reader asks for many small pieces of
-// metadata, so small reads are served from a cache of 64 KiB blocks; large reads go straight to the file.
+// ---------- files read in pieces (FileReaderSync works in workers only) ----------
+// The core asks for the pieces it needs of an NWB file (`dropped`) through popdecodeReadAt, and of a trial table
+// through popdecodeReadInto. The HDF5 reader asks for many small pieces of metadata, so small reads are served
+// from a cache of 64 KiB blocks; large reads go straight to the file.
 let dropped = null;
 let bytesRead = 0;
 const BLOCK = 65536;
@@ -42,6 +43,14 @@ function readSlice(from, to) {
   bytesRead += bytes.length;
   return bytes;
 }
+// `buf.length` bytes from `offset` into `buf` (a view of the core's memory), from the table being read
+// (`droppedBytes`: the file read once, so pieces copied out of it leave nothing for the garbage collector).
+let droppedBytes = null;
+self.popdecodeReadInto = (offset, buf) => {
+  const piece = droppedBytes.subarray(offset, offset + buf.length);
+  buf.set(piece);
+  return piece.length;
+};
 self.popdecodeReadAt = (offset, length) => {
   if (length >= BLOCK) return readSlice(offset, offset + length);
   const out = new Uint8Array(length);
@@ -88,11 +97,22 @@ function fileArgs(dataKind) {
   return one(dataKind === 'nwb' ? slots.nwb : slots.table);
 }
 
+// `fn` with `blob` as the table popdecodeReadInto reads: read once here, and copied into the core a piece at a
+// time, so the core never holds the file's bytes beside the matrix it decodes from them.
+function whereItLies(blob, fn) {
+  droppedBytes = read(blob);
+  try { return fn(); } finally { droppedBytes = null; }
+}
+
 function ensureLoaded(msg) {
   if (loaded && loaded.key === msg.key) return loaded.value;
   if (loaded) { loaded.value.free(); loaded = null; }
   let value;
-  if (msg.dataKind === 'study') {
+  if (msg.dataKind === 'table' && ['table', 'neurons', 'power'].includes(msg.kind)) {
+    // A trial table is decoded straight from the file: its bytes are never held beside the matrix.
+    const { name, blob } = slots.table;
+    value = whereItLies(blob, () => wasm_bindgen.Loaded.from_dropped(msg.kind, name, blob.size, msg.recipe));
+  } else if (msg.dataKind === 'study') {
     const files = studyFileSet();
     try { value = wasm_bindgen.Loaded.with_files(msg.kind, files, msg.recipe); } finally { files.free(); }
   } else {
@@ -122,8 +142,10 @@ const handlers = {
       dropped = null; blocks.clear();
       return { info, read: bytesRead - msg.file.size };
     }
-    const bytes = msg.slot === 'events' ? head(msg.file) : read(msg.file);
-    const info = JSON.parse(wasm_bindgen.inspect(msg.file.name, bytes));
+    // A table is read in pieces (rows counted and columns described without the core holding the file); a spike
+    // events file only by its first part.
+    const info = JSON.parse(msg.slot === 'events' ? wasm_bindgen.inspect(msg.file.name, head(msg.file))
+      : whereItLies(msg.file, () => wasm_bindgen.inspect_dropped(msg.file.name, msg.file.size)));
     slots[msg.slot] = { name: msg.file.name, blob: msg.file };
     return { info };
   },

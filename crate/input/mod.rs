@@ -44,7 +44,11 @@ pub struct FileBytes<'a> {
 }
 
 /// Read a trial table (one row per trial).
-pub fn trial_table(name: &str, bytes: &[u8], columns: &Columns) -> Result<Dataset> {
+pub fn trial_table(
+    name: &str,
+    bytes: &(impl table::ByteSource + ?Sized),
+    columns: &Columns,
+) -> Result<Dataset> {
     trial_table::read(name, bytes, columns)
 }
 
@@ -130,8 +134,19 @@ fn source_file(f: &FileBytes) -> SourceFile {
 
 /// Lower-case hex SHA-256 of a byte string.
 pub fn sha256_hex(bytes: &[u8]) -> String {
-    Sha256::digest(bytes)
-        .iter()
-        .map(|b| format!("{b:02x}"))
-        .collect()
+    hex(&Sha256::digest(bytes))
+}
+
+/// Lower-case hex SHA-256 of a file read piece by piece (the page's dropped file, never held whole).
+pub fn sha256_of(source: &str, bytes: &(impl table::ByteSource + ?Sized)) -> Result<String> {
+    let mut hasher = Sha256::new();
+    table::pieces(source, bytes, 0, |_, piece| {
+        hasher.update(piece);
+        Ok(true)
+    })?;
+    Ok(hex(&hasher.finalize()))
+}
+
+fn hex(digest: &[u8]) -> String {
+    digest.iter().map(|b| format!("{b:02x}")).collect()
 }

@@ -12,6 +12,8 @@
 
 use crate::error::{Error, Result};
 use crate::recipe::limits::MAX_MAGNITUDE;
+use std::cell::RefCell;
+use std::collections::VecDeque;
 
 /// The text of a table with its header, each record remembered with the file line it started on.
 #[derive(Debug, Clone)]
@@ -43,45 +45,239 @@ pub struct Header {
     pub delimiter: u8,
 }
 
+/// Where a file's bytes come from: all in memory (the CLI and the tests read the file first), or read piece by
+/// piece (the page's data worker reads a dropped file through `FileReaderSync`, so a large table is never held as
+/// bytes beside the matrix decoded from it). [`stream`] reads either the same way, so both give the same rows and
+/// the same messages.
+pub trait ByteSource {
+    /// The file's size in bytes.
+    fn size(&self) -> u64;
+    /// Read into `buf` from `offset`: how many bytes were read (possibly fewer than asked; 0 only at the end).
+    fn read_at(&self, offset: u64, buf: &mut [u8]) -> std::io::Result<usize>;
+}
+
+impl ByteSource for [u8] {
+    fn size(&self) -> u64 {
+        self.len() as u64
+    }
+
+    fn read_at(&self, offset: u64, buf: &mut [u8]) -> std::io::Result<usize> {
+        let from = usize::try_from(offset)
+            .unwrap_or(usize::MAX)
+            .min(self.len());
+        let n = buf.len().min(self.len() - from);
+        buf[..n].copy_from_slice(&self[from..from + n]);
+        Ok(n)
+    }
+}
+
+impl ByteSource for Vec<u8> {
+    fn size(&self) -> u64 {
+        self.as_slice().size()
+    }
+
+    fn read_at(&self, offset: u64, buf: &mut [u8]) -> std::io::Result<usize> {
+        self.as_slice().read_at(offset, buf)
+    }
+}
+
+impl<const N: usize> ByteSource for [u8; N] {
+    fn size(&self) -> u64 {
+        self.as_slice().size()
+    }
+
+    fn read_at(&self, offset: u64, buf: &mut [u8]) -> std::io::Result<usize> {
+        self.as_slice().read_at(offset, buf)
+    }
+}
+
+/// How much of a file is read at a time.
+const PIECE: usize = 1 << 20;
+
+/// The pieces of `bytes` from `offset` on, in order, with their offsets, until `each` says it has seen enough
+/// (returns false) or the file ends.
+pub fn pieces(
+    source: &str,
+    bytes: &(impl ByteSource + ?Sized),
+    offset: u64,
+    mut each: impl FnMut(u64, &[u8]) -> Result<bool>,
+) -> Result<()> {
+    let mut buf = vec![0u8; PIECE];
+    let mut at = offset;
+    loop {
+        let n = bytes
+            .read_at(at, &mut buf)
+            .map_err(|e| Error::Input(format!("{source}: the file could not be read ({e})")))?;
+        if n == 0 {
+            return Ok(());
+        }
+        if !each(at, &buf[..n])? {
+            return Ok(());
+        }
+        at += n as u64;
+    }
+}
+
+/// Check that the file is UTF-8 text with something in it, in one pass over its pieces: where its text starts
+/// (after a byte-order mark).
+fn check_text(source: &str, bytes: &(impl ByteSource + ?Sized)) -> Result<u64> {
+    let mut bom = [0u8; 3];
+    let start = if bytes.read_at(0, &mut bom).ok() == Some(3) && bom == [0xEF, 0xBB, 0xBF] {
+        3
+    } else {
+        0
+    };
+    let not_utf8 = |offset: u64| {
+        Error::Input(format!(
+            "{source}: the file is not UTF-8 text (first bad byte at offset {offset}); save it as UTF-8 CSV"
+        ))
+    };
+    // A character cut by a piece's end waits in `carry` for the rest of its bytes.
+    let mut carry: Vec<u8> = Vec::new();
+    let mut any_text = false;
+    pieces(source, bytes, start, |at, piece| {
+        let from = at - carry.len() as u64;
+        carry.extend_from_slice(piece);
+        let valid = match std::str::from_utf8(&carry) {
+            Ok(text) => text,
+            Err(e) if e.error_len().is_none() => {
+                std::str::from_utf8(&carry[..e.valid_up_to()]).expect("valid up to here")
+            }
+            Err(e) => return Err(not_utf8(from + e.valid_up_to() as u64)),
+        };
+        any_text = any_text || valid.chars().any(|c| !c.is_whitespace());
+        let used = valid.len();
+        carry.drain(..used);
+        Ok(true)
+    })?;
+    if !carry.is_empty() {
+        return Err(not_utf8(bytes.size() - carry.len() as u64));
+    }
+    if !any_text {
+        return Err(Error::Input(format!("{source}: the file is empty")));
+    }
+    Ok(start)
+}
+
+/// The text from `start` up to the end of its 20th non-blank line (or all of it): what the delimiter is
+/// chosen from.
+fn first_lines(source: &str, bytes: &(impl ByteSource + ?Sized), start: u64) -> Result<String> {
+    let mut text: Vec<u8> = Vec::new();
+    let mut found = 0usize;
+    let mut line_start = 0usize;
+    pieces(source, bytes, start, |_, piece| {
+        let scanned = text.len();
+        text.extend_from_slice(piece);
+        for i in scanned..text.len() {
+            if text[i] != b'\n' {
+                continue;
+            }
+            let line = &text[line_start..i];
+            let line = line.strip_suffix(b"\r").unwrap_or(line);
+            if !std::str::from_utf8(line).map_or(true, |l| l.trim().is_empty()) {
+                found += 1;
+            }
+            line_start = i + 1;
+            if found == DELIMITER_LINES {
+                text.truncate(i + 1);
+                return Ok(false);
+            }
+        }
+        Ok(true)
+    })?;
+    Ok(String::from_utf8(text).expect("checked as UTF-8 by check_text"))
+}
+
+/// How many non-blank lines the delimiter is chosen from.
+const DELIMITER_LINES: usize = 20;
+
+/// The bytes the `csv` reader has taken but whose records' lines are not yet known: enough to number every record
+/// as the file's own line, without keeping the file. Record positions only move forward.
+struct Window {
+    /// Text offset of `bytes[0]`.
+    start: u64,
+    /// Line ends before `start`.
+    newlines: u64,
+    bytes: VecDeque<u8>,
+}
+
+impl Window {
+    /// The file line (header = 1) of the record at text offset `byte`: a record's position is where the previous
+    /// one ended, before any blank lines, so those are stepped over first. Forgets everything before it.
+    fn line_of(&mut self, byte: u64) -> u64 {
+        let from = (byte.saturating_sub(self.start) as usize).min(self.bytes.len());
+        let skip = self
+            .bytes
+            .range(from..)
+            .take_while(|&&b| b == b'\n' || b == b'\r')
+            .count();
+        let first = from + skip;
+        self.newlines += self.bytes.range(..first).filter(|&&b| b == b'\n').count() as u64;
+        self.bytes.drain(..first);
+        self.start += first as u64;
+        self.newlines + 1
+    }
+}
+
+/// The file's bytes from an offset on, in order.
+struct Sequential<'a, S: ByteSource + ?Sized> {
+    bytes: &'a S,
+    at: u64,
+}
+
+impl<S: ByteSource + ?Sized> std::io::Read for Sequential<'_, S> {
+    fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
+        let n = self.bytes.read_at(self.at, buf)?;
+        self.at += n as u64;
+        Ok(n)
+    }
+}
+
+/// The text as the `csv` reader reads it (read from the file a piece at a time), every byte it takes also passing
+/// through the [`Window`].
+struct Feed<'a, S: ByteSource + ?Sized> {
+    text: std::io::BufReader<Sequential<'a, S>>,
+    window: &'a RefCell<Window>,
+}
+
+impl<S: ByteSource + ?Sized> std::io::Read for Feed<'_, S> {
+    fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
+        let n = self.text.read(buf)?;
+        self.window.borrow_mut().bytes.extend(&buf[..n]);
+        Ok(n)
+    }
+}
+
 /// Read a delimited file row by row without keeping it: `on_header` sees the checked header first, then `on_row`
-/// gets each non-blank record with the file line it starts on. For files too large to hold as text cells (spike
-/// events); [`Table::parse`] is this plus collecting the rows.
+/// gets each non-blank record with the file line it starts on. The bytes are read in pieces (three passes: the
+/// text is checked as UTF-8 first, so a bad byte is said before any row is), so a large file is never held whole;
+/// [`Table::parse`] is this plus collecting the rows.
 pub fn stream(
     source: &str,
-    bytes: &[u8],
+    bytes: &(impl ByteSource + ?Sized),
     mut on_header: impl FnMut(&Header) -> Result<()>,
     mut on_row: impl FnMut(u64, &csv::StringRecord) -> Result<()>,
 ) -> Result<Header> {
-    let text = std::str::from_utf8(bytes).map_err(|e| {
-        Error::Input(format!(
-            "{source}: the file is not UTF-8 text (first bad byte at offset {}); save it as UTF-8 CSV",
-            e.valid_up_to()
-        ))
-    })?;
-    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
-    if text.trim().is_empty() {
-        return Err(Error::Input(format!("{source}: the file is empty")));
-    }
-    let delimiter = detect_delimiter(text);
+    let start = check_text(source, bytes)?;
+    let delimiter = detect_delimiter(&first_lines(source, bytes, start)?);
+    let window = RefCell::new(Window {
+        start: 0,
+        newlines: 0,
+        bytes: VecDeque::new(),
+    });
     // The csv crate's own line counter skips blank lines; count from byte offsets instead.
-    let line_starts: Vec<usize> = std::iter::once(0)
-        .chain(text.match_indices('\n').map(|(i, _)| i + 1))
-        .collect();
-    // A record's position is where the previous one ended, before any blank lines: step over those first.
-    let line_of = |byte: u64| {
-        let skip = text.as_bytes().get(byte as usize..).map_or(0, |rest| {
-            rest.iter()
-                .take_while(|&&b| b == b'\n' || b == b'\r')
-                .count()
-        });
-        line_starts.partition_point(|&s| s <= byte as usize + skip) as u64
+    let line_of = |byte: u64| window.borrow_mut().line_of(byte);
+    let feed = Feed {
+        text: std::io::BufReader::with_capacity(PIECE, Sequential { bytes, at: start }),
+        window: &window,
     };
     let mut reader = csv::ReaderBuilder::new()
         .delimiter(delimiter)
         .has_headers(true)
         .flexible(false)
         .trim(csv::Trim::All)
-        .from_reader(text.as_bytes());
+        .buffer_capacity(64 * 1024)
+        .from_reader(feed);
     let headers: Vec<String> = reader
         .headers()
         .map_err(|e| csv_error(source, e, &line_of))?
@@ -335,5 +531,90 @@ mod tests {
     fn line_numbers_are_file_lines() {
         let t = Table::parse("a.csv", b"x,y\n1,2\n\n3,4\n").unwrap();
         assert_eq!(t.lines, vec![2, 4]);
+    }
+
+    /// A source that gives at most 5 bytes a read: pieces cut lines, records and multi-byte characters anywhere.
+    struct Dribble<'a>(&'a [u8]);
+
+    impl ByteSource for Dribble<'_> {
+        fn size(&self) -> u64 {
+            self.0.len() as u64
+        }
+        fn read_at(&self, offset: u64, buf: &mut [u8]) -> std::io::Result<usize> {
+            let n = buf.len().min(5);
+            self.0.read_at(offset, &mut buf[..n])
+        }
+    }
+
+    /// The header, delimiter and every record with its line.
+    type Streamed = (Vec<String>, u8, Vec<(u64, Vec<String>)>);
+
+    /// The header, delimiter and every record with its line, or the message.
+    fn streamed(bytes: &(impl ByteSource + ?Sized)) -> std::result::Result<Streamed, String> {
+        let mut rows = Vec::new();
+        stream(
+            "a.csv",
+            bytes,
+            |_| Ok(()),
+            |line, r| {
+                rows.push((line, r.iter().map(str::to_string).collect()));
+                Ok(())
+            },
+        )
+        .map(|h| (h.headers, h.delimiter, rows))
+        .map_err(|e| e.to_string())
+    }
+
+    #[test]
+    fn a_file_read_in_small_pieces_reads_as_one_held_in_memory() {
+        let many: String = "a;b\n".to_string() + &"1;2\n".repeat(30);
+        let cases: Vec<&[u8]> = vec![
+            b"\xEF\xBB\xBFx,y\r\n1,2\r\n\r\n\r\n3,4\r\n",
+            b"x,y\n1,2\n\n3,4\n",
+            b"x,y\n\"a\nb\",2\n\n3,4\n",
+            "name,\u{e9}t\u{e9}\n\u{fc}ber,2\n\u{1F600},3".as_bytes(),
+            many.as_bytes(),
+            b"x,y\n1,\xff\n",
+            b"x,y\n1,\xc3",
+            b"\xEF\xBB\xBF \n\t\n",
+            b"\xEF\xBB",
+            b"x,y\n\n",
+            b"x,y\n1,2\n\n3\n",
+        ];
+        for bytes in cases {
+            assert_eq!(
+                streamed(&Dribble(bytes)),
+                streamed(bytes),
+                "{:?}",
+                String::from_utf8_lossy(bytes)
+            );
+        }
+        // What those are, from the file's own lines and offsets (header = line 1, offsets from 0).
+        let lines = |b: &[u8]| {
+            streamed(b)
+                .unwrap()
+                .2
+                .iter()
+                .map(|r| r.0)
+                .collect::<Vec<u64>>()
+        };
+        assert_eq!(
+            lines(b"\xEF\xBB\xBFx,y\r\n1,2\r\n\r\n\r\n3,4\r\n"),
+            vec![2, 5]
+        );
+        assert_eq!(lines(b"x,y\n\"a\nb\",2\n\n3,4\n"), vec![2, 5]);
+        assert_eq!(streamed(many.as_bytes()).unwrap().1, b';');
+        assert!(streamed(&Dribble(b"x,y\n1,\xff\n"))
+            .unwrap_err()
+            .contains("first bad byte at offset 6"));
+        assert!(streamed(&Dribble(b"x,y\n1,\xc3"))
+            .unwrap_err()
+            .contains("first bad byte at offset 6"));
+        assert!(streamed(&Dribble(b"\xEF\xBB\xBF \n\t\n"))
+            .unwrap_err()
+            .contains("the file is empty"));
+        assert!(streamed(&Dribble(b"x,y\n1,2\n\n3\n"))
+            .unwrap_err()
+            .contains("line 4"));
     }
 }

@@ -3,8 +3,8 @@
 //! The core never touches the filesystem: faces read the file and pass its bytes and name, so the page (which gets
 //! bytes from a dropped `File`) and the CLI share every line of parsing and validation.
 
-use super::sha256_hex;
-use super::table::{self, quoted_list, Cell, Table};
+use super::sha256_of;
+use super::table::{self, quoted_list, ByteSource, Cell, Table};
 use crate::data::{labels, Dataset};
 use crate::error::{Error, Result};
 use crate::recipe::limits::beyond_magnitude;
@@ -13,12 +13,17 @@ use ndarray::Array2;
 
 /// Parse and validate a trial table (one row per trial).
 ///
-/// Read in two passes over the bytes without keeping the cells as text (a `String` per cell costs several times the
-/// file, which a page with a large file cannot afford): the first counts numbers and text in every column (to
-/// choose the features) and checks the whole file's structure, the second parses the chosen cells into the matrix.
+/// Read in passes over the bytes (held in memory, or read piece by piece from a dropped file) without keeping the
+/// cells as text (a `String` per cell costs several times the file, which a page with a large file cannot afford):
+/// the first counts numbers and text in every column (to choose the features) and checks the whole file's
+/// structure, the second parses the chosen cells into the matrix.
 /// It gives what [`from_table`] gives on the parsed [`Table`], messages included (tests below and
 /// tests/bad_input.rs), because both run the same row and column code.
-pub fn read(source: &str, bytes: &[u8], columns: &Columns) -> Result<Dataset> {
+pub fn read(
+    source: &str,
+    bytes: &(impl ByteSource + ?Sized),
+    columns: &Columns,
+) -> Result<Dataset> {
     let mut counts: Vec<(usize, usize)> = Vec::new();
     let mut lines = Vec::new();
     let decimal_comma = std::cell::Cell::new(false);
@@ -84,7 +89,7 @@ pub fn read(source: &str, bytes: &[u8], columns: &Columns) -> Result<Dataset> {
         text
     };
     let mut ds = rows.finish(&cell_text)?;
-    ds.sha256 = sha256_hex(bytes);
+    ds.sha256 = sha256_of(source, bytes)?;
     Ok(ds)
 }
 
@@ -588,7 +593,7 @@ mod tests {
     fn sha256_of_known_string() {
         // FIPS 180-2, appendix B.1: SHA-256("abc").
         assert_eq!(
-            sha256_hex(b"abc"),
+            crate::input::sha256_hex(b"abc"),
             "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
         );
     }

@@ -2,9 +2,10 @@
 //! or tens of thousands of columns costs little memory): header, a bounded preview, and per column whether it is
 //! numeric, its distinct values when there are few, and whether it counts 1, 2, 3, … (a trial number).
 
+use super::dropped::DroppedFile;
 use super::request::err;
-use crate::input::sha256_hex;
-use crate::input::table::{self, parse_number, Cell};
+use crate::input::sha256_of;
+use crate::input::table::{self, parse_number, ByteSource, Cell};
 use serde_json::{json, Value};
 use std::collections::BTreeMap;
 use wasm_bindgen::prelude::*;
@@ -56,6 +57,16 @@ impl Column {
 /// (`[[value, rows], …]` when 32 or fewer distinct values, else null) and `counter`.
 #[wasm_bindgen]
 pub fn inspect(name: &str, bytes: &[u8]) -> Result<String, JsValue> {
+    look(name, bytes)
+}
+
+/// [`inspect`] of the dropped file of `size` bytes, read where it lies, piece by piece.
+#[wasm_bindgen]
+pub fn inspect_dropped(name: &str, size: f64) -> Result<String, JsValue> {
+    look(name, &DroppedFile::new(size))
+}
+
+fn look(name: &str, bytes: &(impl ByteSource + ?Sized)) -> Result<String, JsValue> {
     let mut columns: Vec<Column> = Vec::new();
     let mut preview: Vec<Vec<String>> = Vec::new();
     let mut rows = 0usize;
@@ -111,7 +122,7 @@ pub fn inspect(name: &str, bytes: &[u8]) -> Result<String, JsValue> {
         .collect();
     Ok(json!({
         "file": name,
-        "sha256": sha256_hex(bytes),
+        "sha256": sha256_of(name, bytes).map_err(err)?,
         "delimiter": table::delimiter_name(header.delimiter),
         "decimal_comma": decimal_comma,
         "headers": header.headers,

@@ -8,6 +8,7 @@
 //! `float_roundtrip` keeps the parse exact).
 
 use super::data::{self, Decoded};
+use super::dropped::DroppedFile;
 use super::request::{err, options, recipe, Files, Request};
 use super::{across, continuous, neurons, power, study, time_course, trial_table};
 use crate::analyses::{Analysis, Finished};
@@ -86,6 +87,26 @@ impl Loaded {
         let request = Request::new(name_a, bytes_a, name_b, bytes_b, recipe_json)?;
         Ok(Loaded {
             data: data::load(kind, &request)?,
+        })
+    }
+
+    /// The dropped trial table of `size` bytes for analysis `kind` (of the trial-table family), read where it
+    /// lies, piece by piece: the data worker never holds the file's bytes beside the matrix decoded from them.
+    pub fn from_dropped(
+        kind: &str,
+        name: &str,
+        size: f64,
+        recipe_json: &str,
+    ) -> Result<Loaded, JsValue> {
+        if data::family(kind)? != "table" {
+            return Err(err(format!(
+                "the '{kind}' analysis does not read a trial table where it lies"
+            )));
+        }
+        let recipe = recipe(recipe_json)?;
+        let table = crate::input::trial_table(name, &DroppedFile::new(size), &recipe.columns);
+        Ok(Loaded {
+            data: Decoded::Table(table.map_err(err)?),
         })
     }
 

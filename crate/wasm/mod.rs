@@ -15,6 +15,7 @@
 mod across;
 mod continuous;
 mod data;
+mod dropped;
 mod inspect;
 mod job;
 mod neurons;
