@@ -3,7 +3,8 @@
 //   current columns, prepares plans, hands the decoded matrix to run workers and finishes runs; an NWB file is
 //   read lazily here into its extract;
 // * a run worker gets the decoded data once (`run-part`: the matrix in parts of a few megabytes, each transferred,
-//   so no side holds a second whole copy on the way; `run-init`: its header) and answers task messages with
+//   so no side holds a second whole copy on the way; `run-hold`: its header), then for each run on it (the page
+//   keeps a worker with small data warm between runs) the analysis (`run-init`), and answers task messages with
 //   outcome JSON.
 // Served page: the wasm-bindgen glue is loaded with importScripts. Offline file: the glue is concatenated in front
 // of this script inside a Blob, so `wasm_bindgen` already exists.
@@ -207,6 +208,7 @@ const handlers = {
 // ---------- a run worker ----------
 let runner = null;
 let incoming = null; // the matrix being filled part by part (wasm MatrixIn)
+let held = null; // the decoded data, kept for every run on it while the page keeps this worker (wasm Held)
 const runHandlers = {
   // A part of the decoded matrix (the first reserves room for all of it).
   'run-part': async (msg) => {
@@ -215,11 +217,20 @@ const runHandlers = {
     incoming.put(msg.values);
     return true;
   },
-  'run-init': async (msg) => {
-    await startWasm(msg.module);
+  // The matrix complete: with its header, the data this worker holds.
+  'run-hold': (msg) => {
     const matrix = incoming;
     incoming = null;
-    runner = new wasm_bindgen.Runner(msg.kind, msg.header, matrix, msg.recipe, msg.options);
+    if (runner) { runner.free(); runner = null; }
+    if (held) held.free();
+    held = new wasm_bindgen.Held(msg.header, matrix);
+    return true;
+  },
+  // A run on the data held: its analysis, recipe and options.
+  'run-init': (msg) => {
+    if (runner) runner.free();
+    runner = null;
+    runner = new wasm_bindgen.Runner(msg.kind, held, msg.recipe, msg.options);
     return true;
   },
   // An analysis that reads files (a study, generalization across conditions, continuous decoding): the files
@@ -231,7 +242,8 @@ const runHandlers = {
     try { runner = wasm_bindgen.Runner.with_files(msg.kind, files, msg.recipe, msg.options); } finally { files.free(); }
     return true;
   },
-  task: (msg) => runner.run(JSON.stringify(msg.task)),
+  // Tasks one after the other (as `prepare` listed them), their outcome JSON strings in the same order.
+  tasks: (msg) => msg.tasks.map((task) => runner.run(JSON.stringify(task))),
 };
 
 self.onmessage = async (event) => {

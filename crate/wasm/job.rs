@@ -233,7 +233,7 @@ impl MatrixPart {
     }
 }
 
-/// A run worker's decoded matrix, filled part by part ([`Loaded::matrix_part`]) before [`Runner::new`] takes it.
+/// A run worker's decoded matrix, filled part by part ([`Loaded::matrix_part`]) before [`Held::new`] takes it.
 #[wasm_bindgen]
 pub struct MatrixIn {
     values: Vec<f64>,
@@ -269,6 +269,28 @@ impl MatrixIn {
     }
 }
 
+/// The decoded data a run worker holds, built once from its parts: the page keeps a worker with small data warm
+/// between runs on the same data, and each run's [`Runner`] shares it (no copy).
+#[wasm_bindgen]
+pub struct Held {
+    data: Decoded,
+}
+
+#[wasm_bindgen]
+impl Held {
+    /// `header` as [`Loaded::header`] gave it and the matrix filled from [`Loaded::matrix_part`] (moved in, not
+    /// copied again).
+    #[wasm_bindgen(constructor)]
+    pub fn new(header: &str, matrix: MatrixIn) -> Result<Held, JsValue> {
+        if matrix.values.len() != matrix.total {
+            return Err(err("malformed decoded data: the matrix arrived incomplete"));
+        }
+        Ok(Held {
+            data: Decoded::from_parts(header, matrix.values)?,
+        })
+    }
+}
+
 /// Runs one analysis's tasks in a run worker, on the decoded data the page handed it once.
 #[wasm_bindgen]
 pub struct Runner {
@@ -277,20 +299,15 @@ pub struct Runner {
 
 #[wasm_bindgen]
 impl Runner {
-    /// `header` as [`Loaded::header`] gave it and the matrix filled from [`Loaded::matrix_part`] (moved in, not
-    /// copied again).
+    /// A runner for analysis `kind` on the data the worker holds (shared, not copied).
     #[wasm_bindgen(constructor)]
     pub fn new(
         kind: &str,
-        header: &str,
-        matrix: MatrixIn,
+        held: &Held,
         recipe_json: &str,
         options_json: &str,
     ) -> Result<Runner, JsValue> {
-        if matrix.values.len() != matrix.total {
-            return Err(err("malformed decoded data: the matrix arrived incomplete"));
-        }
-        let data = Decoded::from_parts(header, matrix.values)?;
+        let data = held.data.clone();
         Ok(Runner {
             job: job(kind, data, &recipe(recipe_json)?, &options(options_json)?)?,
         })

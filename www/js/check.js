@@ -117,25 +117,31 @@
     timing = mine;
     try {
       if (header.family === 'files') await PD.sendFiles(mine.worker, header.files, kind, req, mine);
-      else await PD.sendMatrix(mine.worker, JSON.stringify(header), kind, req, mine);
-      const task = { task: plan.tasks[0] };
+      else {
+        mine.bytes = await PD.sendMatrix(mine.worker, JSON.stringify(header), req, mine);
+        await mine.worker.ask('run-init', { kind, recipe: req.recipe, options: req.options });
+      }
+      const task = { tasks: [plan.tasks[0]] };
       let t0 = performance.now();
-      await mine.worker.ask('task', task);
+      await mine.worker.ask('tasks', task);
       let ms = performance.now() - t0;
       if (ms < 200) {
         t0 = performance.now();
-        await mine.worker.ask('task', task);
+        await mine.worker.ask('tasks', task);
         ms = performance.now() - t0;
       }
       if (timing !== mine) return;
       rates.set(key, ms / Math.max(1, plan.fits[0]));
+      mine.timed = true;
     } catch (_) {
       // Stopped by a newer check, or the task failed (the run will say why): no estimate.
       if (timing !== mine) return;
     } finally {
       finished();
     }
-    stopTiming();
+    // A worker that holds the data stays warm for the run that follows (PD.keepWarm decides).
+    if (mine.timed && mine.bytes !== undefined) { timing = null; PD.keepWarm(mine.worker, req.key, mine.bytes); }
+    else stopTiming();
     if (S.check && S.check.speedKey === key && S.check.plan) {
       S.check.msPerFit = rates.get(key);
       drawPlan();

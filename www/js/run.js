@@ -9,10 +9,29 @@
   const S = PD.state;
   S.run = null;
   S.pool = [];
+  // Run workers kept between runs, each { worker, key } holding the decoded data of `key` (PD.loadKey): a worker
+  // costs about 40 ms to start and fill, as much as a whole run of a fast decoder on small data. Only small data
+  // is kept (WARM_BYTES), so idle workers never hold much memory.
+  S.warm = [];
+  const WARM_BYTES = 8e6;
 
   function stopPool() {
     S.pool.forEach((w) => w.terminate());
     S.pool = [];
+  }
+
+  // Keep a worker that holds the data of `key` (`bytes` of matrix) for the next run, or stop it.
+  PD.keepWarm = function (worker, key, bytes) {
+    if (bytes <= WARM_BYTES && S.warm.length < PD.poolSize()) S.warm.push({ worker, key, bytes });
+    else worker.terminate();
+  };
+
+  // The warm workers holding `key` (at most `n`, each { worker, key, bytes }); the others are stopped.
+  function takeWarm(key, n) {
+    const mine = [];
+    S.warm.forEach((w) => { if (w.key === key && mine.length < n) mine.push(w); else w.worker.terminate(); });
+    S.warm = [];
+    return mine;
   }
 
   function endRun() {
@@ -122,9 +141,11 @@
 
   // A run worker's decoded data: the matrix in parts of 4 MB, each asked of the data worker and transferred on
   // (neither side ever holds a second whole copy of a large matrix), then the header. `token.cancelled` stops it.
+  // Resolves to the matrix's size in bytes.
   const PART = 1 << 19; // values
-  PD.sendMatrix = async function (worker, header, analysis, req, token) {
-    for (let from = 0, total = 1; from < total; from += PART) {
+  PD.sendMatrix = async function (worker, header, req, token) {
+    let total = 1;
+    for (let from = 0; from < total; from += PART) {
       const part = await S.data.ask('matrix-part', { ...req, from, len: PART });
       if (token.cancelled) throw new Error('cancelled');
       total = part.total;
@@ -132,8 +153,9 @@
       await worker.ask('run-part', { module: S.module, total, values: part.values }, [part.values.buffer]);
       if (token.cancelled) throw new Error('cancelled');
     }
-    await worker.ask('run-init', { module: S.module, kind: analysis, header, recipe: req.recipe, options: req.options });
+    await worker.ask('run-hold', { header });
     if (token.cancelled) throw new Error('cancelled');
+    return 8 * total;
   };
 
   // One analysis on a fresh pool: resolves to the finished result (with seconds and workers).
@@ -152,18 +174,23 @@
     let next = 0;
     let fitsDone = 0;
     $('progress-text').textContent = `${label}Starting ${PD.count(n, 'worker')}…`;
-    const workers = [];
-    for (let w = 0; w < n; w++) {
-      const worker = new PD.DataWorker(S.module);
-      S.pool.push(worker);
-      workers.push(worker);
-    }
-    // Each worker gets the decoded matrix once, one after the other (or, for an analysis that reads files, the
-    // files themselves: PD.sendFiles).
+    // Each new worker gets the decoded matrix once, one after the other, and every worker the run (or, for an
+    // analysis that reads files, the files themselves: PD.sendFiles); warm workers already hold the data.
     const files = header && JSON.parse(header).family === 'files' ? JSON.parse(header).files : null;
-    for (const worker of workers) {
+    const warm = takeWarm(files ? null : req.key, files ? 0 : n);
+    const workers = warm.map((w) => w.worker);
+    while (workers.length < n) workers.push(new PD.DataWorker(S.module));
+    S.pool.push(...workers);
+    let bytes = warm.length ? warm[0].bytes : Infinity;
+    for (const worker of workers.slice(warm.length)) {
       if (files) await PD.sendFiles(worker, files, analysis, req, token);
-      else await PD.sendMatrix(worker, header, analysis, req, token);
+      else bytes = await PD.sendMatrix(worker, header, req, token);
+    }
+    if (!files) {
+      for (const worker of workers) {
+        await worker.ask('run-init', { kind: analysis, recipe: req.recipe, options: req.options });
+        if (token.cancelled) throw new Error('cancelled');
+      }
     }
     const progress = () => {
       const frac = fitsDone / fitsTotal;
@@ -173,17 +200,26 @@
       $('progress-text').textContent = `${label}${fitsDone} of ${fitsTotal} fits (${Math.round(100 * frac)} %), ` +
         `${elapsed.toFixed(1)} s elapsed` + (Number.isFinite(left) ? `, about ${Math.ceil(left)} s left` : '');
     };
+    // Tasks go out in batches: a message to a worker and back costs about a millisecond, as much as a whole task
+    // of a fast decoder on small data. A batch is at most a twentieth of a worker's share (so progress moves
+    // smoothly and the workers finish together) and, when the speed is known, about a tenth of a second of work.
+    const msPerTask = S.check && S.check.msPerFit !== undefined ? S.check.msPerFit * fitsTotal / queue.length : 0;
+    const batch = Math.max(1, Math.min(Math.floor(queue.length / (20 * n)), msPerTask > 0 ? Math.floor(100 / msPerTask) : Infinity));
     await Promise.all(workers.map(async (worker) => {
       while (next < queue.length) {
-        const id = next++;
-        const outcome = await worker.ask('task', { task: queue[id].task });
+        const ids = [];
+        while (ids.length < batch && next < queue.length) ids.push(next++);
+        const done = await worker.ask('tasks', { tasks: ids.map((id) => queue[id].task) });
         if (token.cancelled) throw new Error('cancelled');
-        outcomes.push(outcome);
-        fitsDone += queue[id].fits;
+        outcomes.push(...done);
+        ids.forEach((id) => { fitsDone += queue[id].fits; });
         progress();
       }
     }));
-    stopPool();
+    // The workers stay warm for the next run on the same data when it is small (an analysis that reads files
+    // never: its workers hold the files, not the data).
+    S.pool.forEach((worker) => PD.keepWarm(worker, req.key, files ? Infinity : bytes));
+    S.pool = [];
     $('progress-text').textContent = `${label}Assembling the results…`;
     const result = await S.data.ask('finish', { ...req, outcomes: '[' + outcomes.join(',') + ']' });
     result.seconds = (performance.now() - started) / 1000;
