@@ -100,7 +100,7 @@ function fileArgs(dataKind) {
 
 // `fn` with `blob` as the table popdecodeReadInto reads: read once here, and copied into the core a piece at a
 // time, so the core never holds the file's bytes beside the matrix it decodes from them.
-function whereItLies(blob, fn) {
+function readInPieces(blob, fn) {
   droppedBytes = read(blob);
   try { return fn(); } finally { droppedBytes = null; }
 }
@@ -112,7 +112,7 @@ function ensureLoaded(msg) {
   if (msg.dataKind === 'table' && ['table', 'neurons', 'power'].includes(msg.kind)) {
     // A trial table is decoded straight from the file: its bytes are never held beside the matrix.
     const { name, blob } = slots.table;
-    value = whereItLies(blob, () => wasm_bindgen.Loaded.from_dropped(msg.kind, name, blob.size, msg.recipe));
+    value = readInPieces(blob, () => wasm_bindgen.Loaded.from_dropped(msg.kind, name, blob.size, msg.recipe));
   } else if (msg.dataKind === 'study') {
     const files = studyFileSet();
     try { value = wasm_bindgen.Loaded.with_files(msg.kind, files, msg.recipe); } finally { files.free(); }
@@ -146,7 +146,7 @@ const handlers = {
     // A table is read in pieces (rows counted and columns described without the core holding the file); a spike
     // events file only by its first part.
     const info = JSON.parse(msg.slot === 'events' ? wasm_bindgen.inspect(msg.file.name, head(msg.file))
-      : whereItLies(msg.file, () => wasm_bindgen.inspect_dropped(msg.file.name, msg.file.size)));
+      : readInPieces(msg.file, () => wasm_bindgen.inspect_dropped(msg.file.name, msg.file.size)));
     slots[msg.slot] = { name: msg.file.name, blob: msg.file };
     return { info };
   },
@@ -217,9 +217,10 @@ const runHandlers = {
     incoming.put(msg.values);
     return true;
   },
-  // The matrix complete: with its header, the data this worker holds.
-  'run-hold': (msg) => {
-    const matrix = incoming;
+  // The matrix complete (none came if it is empty): with its header, the data this worker holds.
+  'run-hold': async (msg) => {
+    await startWasm(msg.module);
+    const matrix = incoming || new wasm_bindgen.MatrixIn(0);
     incoming = null;
     if (runner) { runner.free(); runner = null; }
     if (held) held.free();

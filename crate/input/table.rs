@@ -46,21 +46,15 @@ pub struct Header {
 }
 
 /// Where a file's bytes come from: all in memory (the CLI and the tests read the file first), or read piece by
-/// piece (the page's data worker reads a dropped file through `FileReaderSync`, so a large table is never held as
-/// bytes beside the matrix decoded from it). [`stream`] reads either the same way, so both give the same rows and
+/// piece (the page's core copies pieces out of its data worker's one read of a dropped file, so it never holds a
+/// large table's bytes beside the matrix decoded from them). [`stream`] reads either the same way, so both give the same rows and
 /// the same messages.
 pub trait ByteSource {
-    /// The file's size in bytes.
-    fn size(&self) -> u64;
     /// Read into `buf` from `offset`: how many bytes were read (possibly fewer than asked; 0 only at the end).
     fn read_at(&self, offset: u64, buf: &mut [u8]) -> std::io::Result<usize>;
 }
 
 impl ByteSource for [u8] {
-    fn size(&self) -> u64 {
-        self.len() as u64
-    }
-
     fn read_at(&self, offset: u64, buf: &mut [u8]) -> std::io::Result<usize> {
         let from = usize::try_from(offset)
             .unwrap_or(usize::MAX)
@@ -72,20 +66,12 @@ impl ByteSource for [u8] {
 }
 
 impl ByteSource for Vec<u8> {
-    fn size(&self) -> u64 {
-        self.as_slice().size()
-    }
-
     fn read_at(&self, offset: u64, buf: &mut [u8]) -> std::io::Result<usize> {
         self.as_slice().read_at(offset, buf)
     }
 }
 
 impl<const N: usize> ByteSource for [u8; N] {
-    fn size(&self) -> u64 {
-        self.as_slice().size()
-    }
-
     fn read_at(&self, offset: u64, buf: &mut [u8]) -> std::io::Result<usize> {
         self.as_slice().read_at(offset, buf)
     }
@@ -562,9 +548,6 @@ mod tests {
     struct Dribble<'a>(&'a [u8]);
 
     impl ByteSource for Dribble<'_> {
-        fn size(&self) -> u64 {
-            self.0.len() as u64
-        }
         fn read_at(&self, offset: u64, buf: &mut [u8]) -> std::io::Result<usize> {
             let n = buf.len().min(1 + (offset % 7) as usize);
             self.0.read_at(offset, &mut buf[..n])

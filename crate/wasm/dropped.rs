@@ -59,10 +59,6 @@ impl hdf5_pure::Source for DroppedFile {
 }
 
 impl ByteSource for DroppedFile {
-    fn size(&self) -> u64 {
-        self.len
-    }
-
     fn read_at(&self, offset: u64, buf: &mut [u8]) -> std::io::Result<usize> {
         let want = buf.len().min(self.len.saturating_sub(offset) as usize);
         let n = read_dropped_into(offset as f64, &mut buf[..want]).map_err(|e| {

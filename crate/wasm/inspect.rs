@@ -60,7 +60,7 @@ pub fn inspect(name: &str, bytes: &[u8]) -> Result<String, JsValue> {
     look(name, bytes)
 }
 
-/// [`inspect`] of the dropped file of `size` bytes, read where it lies, piece by piece.
+/// [`inspect`] of the dropped file of `size` bytes, read in pieces from the worker's copy (`wasm/dropped.rs`).
 #[wasm_bindgen]
 pub fn inspect_dropped(name: &str, size: f64) -> Result<String, JsValue> {
     look(name, &DroppedFile::new(size))

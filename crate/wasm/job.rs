@@ -2,8 +2,9 @@
 //!
 //! The page's data worker holds a [`Loaded`]: the file read once for the recipe's columns (or windows). From it,
 //! `prepare` checks the design and lists the tasks, `header` and `matrix_part` hand the decoded data to run workers
-//! (in parts, into a [`MatrixIn`]), and `finish` assembles the outcomes into the result. A run worker builds a
-//! [`Runner`] from the decoded data once per run and answers task messages with outcome JSON; the page joins the
+//! (in parts, into a [`MatrixIn`]), and `finish` assembles the outcomes into the result. A run worker keeps the
+//! decoded data as a [`Held`], builds a [`Runner`] on it for each run and answers task messages with outcome JSON;
+//! the page joins the
 //! outcome strings unparsed, so no number passes through a JavaScript double conversion (serde_json's
 //! `float_roundtrip` keeps the parse exact).
 
@@ -90,8 +91,9 @@ impl Loaded {
         })
     }
 
-    /// The dropped trial table of `size` bytes for analysis `kind` (of the trial-table family), read where it
-    /// lies, piece by piece: the data worker never holds the file's bytes beside the matrix decoded from them.
+    /// The dropped trial table of `size` bytes for analysis `kind` (of the trial-table family), read in pieces from
+    /// the worker's copy (`wasm/dropped.rs`): the core never holds the file's bytes beside the matrix decoded from
+    /// them.
     pub fn from_dropped(
         kind: &str,
         name: &str,
@@ -100,7 +102,7 @@ impl Loaded {
     ) -> Result<Loaded, JsValue> {
         if data::family(kind)? != "table" {
             return Err(err(format!(
-                "the '{kind}' analysis does not read a trial table where it lies"
+                "the '{kind}' analysis does not read a trial table"
             )));
         }
         let recipe = recipe(recipe_json)?;

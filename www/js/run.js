@@ -1,7 +1,7 @@
 // Runs and the worker pool. A run: settings checked, plan prepared by the data worker, confirmation when it is
-// long or large, a fresh pool of run workers each given the decoded matrix once (in transferred parts, one worker
-// at a time, so copies do not pile up), tasks handed to whichever worker is free, the outcome strings joined unparsed and
-// finished by the data worker. Only a finished run becomes a record; a cancelled or failed one changes nothing
+// long or large, a pool of run workers each given the decoded matrix once (in transferred parts, one worker at a
+// time, so copies do not pile up; workers holding small data are kept warm for the next run on it), tasks handed in
+// batches to whichever worker is free, the outcome strings joined unparsed and finished by the data worker. Only a finished run becomes a record; a cancelled or failed one changes nothing
 // on view. Cancel terminates the workers at once (running wasm cannot be interrupted).
 'use strict';
 (function (PD) {
@@ -153,7 +153,7 @@
       await worker.ask('run-part', { module: S.module, total, values: part.values }, [part.values.buffer]);
       if (token.cancelled) throw new Error('cancelled');
     }
-    await worker.ask('run-hold', { header });
+    await worker.ask('run-hold', { module: S.module, header });
     if (token.cancelled) throw new Error('cancelled');
     return 8 * total;
   };
