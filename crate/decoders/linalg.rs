@@ -63,7 +63,7 @@ pub fn axpy(a: f64, x: &[f64], y: &mut [f64]) {
 ///
 /// Every element is a running sum over the rows in one fixed order: four rows at a time, each group's four products
 /// added as `(a + b) + (c + d)` before joining the sum, then the rows left over one at a time. That order fixes
-/// every rounding; the loops around it are free. They compute the result in tiles of 4 × 8 elements held in
+/// every rounding; the loops around it are free. They compute the result in tiles of 4 × 4 elements held in
 /// registers while the rows go by, a block of [`GRAM_ROWS`] rows at a time (so the rows stay in cache): each element
 /// is loaded and stored once per block instead of once per four rows, which is what bounded the speed of the
 /// row-by-row form. The tile loops are compiled for the processor's widest instructions ([`super::simd`]).
@@ -86,17 +86,33 @@ const TILE_W: usize = 4;
 
 multiversion! {
     /// Add the upper triangle of `ZᵀZ` to `g` (elements below the diagonal of `g` are left in any state).
+    ///
+    /// Each block of rows is first copied into a panel, column tile by column tile (`panel[t][row][0..4]`), so a
+    /// tile's loop reads its rows' values from consecutive addresses instead of one cache line (and, for wide
+    /// matrices, one page) per row: that stride, not the arithmetic, is what held wide Gram matrices back. The
+    /// copy moves values, it adds nothing, so the order of every sum is the one documented on [`gram`].
     fn gram_upper(z: &[f64], n: usize, p: usize, g: &mut [f64]) {
         let quads_end = n / 4 * 4;
+        // Columns covered by full tiles; the columns past them go through `gram_edge`, reading `z` itself.
+        let tiles = p / TILE_W;
+        let mut panel = vec![0.0; GRAM_ROWS.min(quads_end) * tiles * TILE_W];
         let mut r0 = 0;
         while r0 < quads_end {
             let r1 = (r0 + GRAM_ROWS).min(quads_end);
+            let rows = r1 - r0;
+            let stride = rows * TILE_W;
+            for (r, row) in z[r0 * p..r1 * p].chunks_exact(p).enumerate() {
+                for (t, part) in row[..tiles * TILE_W].chunks_exact(TILE_W).enumerate() {
+                    panel[t * stride + r * TILE_W..][..TILE_W].copy_from_slice(part);
+                }
+            }
             let mut i0 = 0;
             while i0 < p {
                 let mut j0 = i0;
                 while j0 < p {
                     if i0 + TILE_R <= p && j0 + TILE_W <= p {
-                        gram_tile(z, p, r0, r1, i0, j0, g);
+                        let column = |c: usize| &panel[c / TILE_W * stride..][..stride];
+                        gram_tile(column(i0), column(j0), p, i0, j0, g);
                     } else {
                         gram_edge(z, p, r0, r1, i0..(i0 + TILE_R).min(p), j0..(j0 + TILE_W).min(p), g);
                     }
@@ -115,20 +131,18 @@ multiversion! {
     }
 }
 
-/// One full tile of [`gram_upper`]: rows `i0..i0 + 4` × columns `j0..j0 + 4` of `g`, over data rows `r0..r1`.
+/// One full tile of [`gram_upper`]: rows `i0..i0 + 4` × columns `j0..j0 + 4` of `g`, over the rows of one block,
+/// given the block's values in columns `i0..i0 + 4` (`pi`) and `j0..j0 + 4` (`pj`), four per row.
 #[inline(always)]
-fn gram_tile(z: &[f64], p: usize, r0: usize, r1: usize, i0: usize, j0: usize, g: &mut [f64]) {
+fn gram_tile(pi: &[f64], pj: &[f64], p: usize, i0: usize, j0: usize, g: &mut [f64]) {
     let mut acc = [Lanes::load(&g[i0 * p + j0..]); TILE_R];
     for (r, acc_r) in acc.iter_mut().enumerate().skip(1) {
         *acc_r = Lanes::load(&g[(i0 + r) * p + j0..]);
     }
-    assert!(i0 + TILE_R <= p && j0 + TILE_W <= p);
-    for quad in z[r0 * p..r1 * p].chunks_exact(4 * p) {
-        let (ab, cd) = quad.split_at(2 * p);
-        let ((a, b), (c, d)) = (ab.split_at(p), cd.split_at(p));
-        let at = |row: &[f64], from: usize| Lanes::load(&row[from..from + 4]);
-        let (aj, bj, cj, dj) = (at(a, j0), at(b, j0), at(c, j0), at(d, j0));
-        let (ai, bi, ci, di) = (at(a, i0), at(b, i0), at(c, i0), at(d, i0));
+    for (qi, qj) in pi.chunks_exact(4 * TILE_W).zip(pj.chunks_exact(4 * TILE_W)) {
+        let at = |q: &[f64], row: usize| Lanes::load(&q[row * TILE_W..]);
+        let (aj, bj, cj, dj) = (at(qj, 0), at(qj, 1), at(qj, 2), at(qj, 3));
+        let (ai, bi, ci, di) = (at(qi, 0), at(qi, 1), at(qi, 2), at(qi, 3));
         for (r, acc_r) in acc.iter_mut().enumerate() {
             let (x, y, u, v) = (ai.splat(r), bi.splat(r), ci.splat(r), di.splat(r));
             *acc_r = acc_r.add(x.mul(aj).add(y.mul(bj)).add(u.mul(cj).add(v.mul(dj))));
@@ -219,7 +233,7 @@ fn gram_edge(
 /// both of their multiples, `x −= f0·a + f1·b`. That is the fixed order of operations of every element (so every
 /// target rounds identically). The loops are blocked without changing it: the pivot rows of a block of
 /// [`CHOLESKY_BLOCK`] are finished and applied to the rows of the block one pair at a time; the rows below the block
-/// then take all the block's pairs in order, in 4 × 8 tiles held in registers, so each element is loaded and stored
+/// then take all the block's pairs in order, in 4 × 4 tiles held in registers, so each element is loaded and stored
 /// once per block instead of once per pair.
 pub fn cholesky(a: &[f64], p: usize) -> Option<Vec<f64>> {
     cholesky_owned(a.to_vec(), p)
@@ -351,26 +365,28 @@ pub fn cholesky_solve(u: &[f64], p: usize, b: &mut [f64]) {
     }
 }
 
-/// Turn the Cholesky factor of `A` into that of `A + s·xxᵀ` (`s` = +1 update, −1 downdate) in O(p²), by the
-/// rotations of LINPACK's `dchud`/`dchdd` (Dongarra et al., LINPACK Users' Guide, 1979). `x` is overwritten.
-/// Returns false if a downdate would leave the matrix not positive definite (the factor is then unusable).
-pub fn cholesky_rank_one(u: &mut [f64], p: usize, x: &mut [f64], s: f64) -> bool {
-    for k in 0..p {
-        let d = u[k * p + k];
-        let r2 = d * d + s * x[k] * x[k];
-        if r2 <= 0.0 || !r2.is_finite() {
-            return false;
+multiversion! {
+    /// Turn the Cholesky factor of `A` into that of `A + s·xxᵀ` (`s` = +1 update, −1 downdate) in O(p²), by the
+    /// rotations of LINPACK's `dchud`/`dchdd` (Dongarra et al., LINPACK Users' Guide, 1979). `x` is overwritten.
+    /// Returns false if a downdate would leave the matrix not positive definite (the factor is then unusable).
+    pub fn cholesky_rank_one(u: &mut [f64], p: usize, x: &mut [f64], s: f64) -> bool {
+        for k in 0..p {
+            let d = u[k * p + k];
+            let r2 = d * d + s * x[k] * x[k];
+            if r2 <= 0.0 || !r2.is_finite() {
+                return false;
+            }
+            let r = r2.sqrt();
+            let (c, sn) = (r / d, x[k] / d);
+            u[k * p + k] = r;
+            for j in k + 1..p {
+                let ukj = (u[k * p + j] + s * sn * x[j]) / c;
+                x[j] = c * x[j] - sn * ukj;
+                u[k * p + j] = ukj;
+            }
         }
-        let r = r2.sqrt();
-        let (c, sn) = (r / d, x[k] / d);
-        u[k * p + k] = r;
-        for j in k + 1..p {
-            let ukj = (u[k * p + j] + s * sn * x[j]) / c;
-            x[j] = c * x[j] - sn * ukj;
-            u[k * p + j] = ukj;
-        }
+        true
     }
-    true
 }
 
 /// Factor a symmetric positive semi-definite matrix, adding the smallest ridge (relative to its mean diagonal) that
