@@ -60,7 +60,7 @@ impl Decoder for ShrinkageLda {
                 return Box::new(model);
             }
         }
-        let sums = FoldSums::of(&set);
+        let sums = FoldSums::of(&set, true);
         Box::new(sums.fit(&set, None))
     }
 
@@ -80,12 +80,15 @@ impl Decoder for ShrinkageLda {
             }
             return Some(models);
         }
-        // One p × p scatter per (fold, class): with many folds (leave-one-out) and many features that is more memory
-        // than a browser tab should spend, and per-fold fits cost little more there anyway.
-        if set.folds * set.n_classes * set.p * set.p > MAX_SHARE_VALUES {
+        // Keeping one p × p scatter per (fold, class) can take more memory than a browser tab should spend (five
+        // folds of four classes at 1000 neurons: 160 MB). Past that, each fold's share is formed again when the fold
+        // is fitted, which costs a second pass over the split's rows: still less than fitting each fold on its own
+        // (folds − 1 passes) from four folds on; with two or three folds those plain fits are as cheap.
+        let keep = set.folds * set.n_classes * set.p * set.p <= MAX_SHARE_VALUES;
+        if !keep && set.folds < 4 {
             return None;
         }
-        let sums = FoldSums::of(set);
+        let sums = FoldSums::of(set, keep);
         Some(
             (0..set.folds)
                 .map(|f| wanted[f].then(|| Box::new(sums.fit(set, Some(f))) as Box<dyn Model>))
@@ -144,43 +147,47 @@ struct FoldSums {
     /// Row-major shifted copy of the split's rows.
     shifted: Vec<f64>,
     total: Vec<Sums>,
-    /// `[fold][class]`; empty when the split has a single fold (a plain fit).
+    /// `[fold][class]`; empty when the split has a single fold (a plain fit) or the shares are not kept.
     share: Vec<Vec<Sums>>,
 }
 
+/// Count, sum and scatter of the rows at `rows` of `shifted` (p values per row).
+fn sums_of(shifted: &[f64], rows: &[usize], p: usize) -> Sums {
+    if rows.is_empty() {
+        return Sums {
+            n: 0,
+            sum: Vec::new(),
+            scatter: Vec::new(),
+        };
+    }
+    let mut z = Vec::with_capacity(rows.len() * p);
+    let mut sum = vec![0.0; p];
+    for &i in rows {
+        let r = &shifted[i * p..(i + 1) * p];
+        z.extend_from_slice(r);
+        for (s, v) in sum.iter_mut().zip(r) {
+            *s += v;
+        }
+    }
+    Sums {
+        n: rows.len(),
+        sum,
+        scatter: gram(&z, rows.len(), p),
+    }
+}
+
 impl FoldSums {
-    fn of(set: &FoldSet) -> FoldSums {
+    /// The class totals of a split, and each (fold, class) share if `keep` (else [`FoldSums::fit`] forms the share
+    /// of the fold it fits again, identically).
+    fn of(set: &FoldSet, keep: bool) -> FoldSums {
         let (p, n) = (set.p, set.y.len());
         let (offset, shifted) = shift(set);
-        let sums_of = |rows: &[usize]| {
-            if rows.is_empty() {
-                return Sums {
-                    n: 0,
-                    sum: Vec::new(),
-                    scatter: Vec::new(),
-                };
-            }
-            let mut z = Vec::with_capacity(rows.len() * p);
-            let mut sum = vec![0.0; p];
-            for &i in rows {
-                let r = &shifted[i * p..(i + 1) * p];
-                z.extend_from_slice(r);
-                for (s, v) in sum.iter_mut().zip(r) {
-                    *s += v;
-                }
-            }
-            Sums {
-                n: rows.len(),
-                sum,
-                scatter: gram(&z, rows.len(), p),
-            }
-        };
         let members = |keep: &dyn Fn(usize) -> bool, k: usize| -> Vec<usize> {
             (0..n).filter(|&i| set.y[i] == k && keep(i)).collect()
         };
         if set.folds == 1 {
             let total = (0..set.n_classes)
-                .map(|k| sums_of(&members(&|_| true, k)))
+                .map(|k| sums_of(&shifted, &members(&|_| true, k), p))
                 .collect();
             return FoldSums {
                 offset,
@@ -189,29 +196,32 @@ impl FoldSums {
                 share: Vec::new(),
             };
         }
-        let share: Vec<Vec<Sums>> = (0..set.folds)
-            .map(|f| {
-                (0..set.n_classes)
-                    .map(|k| sums_of(&members(&|i| set.fold[i] == f, k)))
-                    .collect()
+        // Totals as the sum of the shares, in fold order (so whether shares are kept changes no number).
+        let mut total: Vec<Sums> = (0..set.n_classes)
+            .map(|_| Sums {
+                n: 0,
+                sum: vec![0.0; p],
+                scatter: vec![0.0; p * p],
             })
             .collect();
-        // Totals as the sum of the shares, in fold order: no second pass over the rows.
-        let total = (0..set.n_classes)
-            .map(|k| {
-                let mut t = Sums {
-                    n: 0,
-                    sum: vec![0.0; p],
-                    scatter: vec![0.0; p * p],
-                };
-                for s in share.iter().map(|fold| &fold[k]).filter(|s| s.n > 0) {
+        let mut share = Vec::new();
+        for f in 0..set.folds {
+            let mut fold = Vec::new();
+            for (k, t) in total.iter_mut().enumerate() {
+                let s = sums_of(&shifted, &members(&|i| set.fold[i] == f, k), p);
+                if s.n > 0 {
                     t.n += s.n;
                     add(&mut t.sum, &s.sum);
                     add(&mut t.scatter, &s.scatter);
                 }
-                t
-            })
-            .collect();
+                if keep {
+                    fold.push(s);
+                }
+            }
+            if keep {
+                share.push(fold);
+            }
+        }
         FoldSums {
             offset,
             shifted,
@@ -239,7 +249,19 @@ impl FoldSums {
         let mut priors = Vec::with_capacity(classes.len());
         for &k in &classes {
             let t = &self.total[k];
-            let share = left_out.map(|f| &self.share[f][k]).filter(|s| s.n > 0);
+            let formed;
+            let share = match left_out {
+                None => None,
+                Some(f) if !self.share.is_empty() => Some(&self.share[f][k]),
+                Some(f) => {
+                    let rows: Vec<usize> = (0..set.y.len())
+                        .filter(|&i| set.y[i] == k && set.fold[i] == f)
+                        .collect();
+                    formed = sums_of(&self.shifted, &rows, p);
+                    Some(&formed)
+                }
+            }
+            .filter(|s| s.n > 0);
             let n = t.n - share.map_or(0, |s| s.n);
             let nf = n as f64;
             let mean: Vec<f64> = match share {
@@ -635,7 +657,7 @@ mod tests {
             folds: 4,
             n_classes: 3,
         };
-        let sums = FoldSums::of(&set);
+        let sums = FoldSums::of(&set, true);
         for f in 0..4 {
             let by_sub = sums.fit(&set, Some(f));
             let train: Vec<usize> = (0..n).filter(|&i| fold[i] != f).collect();
@@ -652,7 +674,7 @@ mod tests {
                 folds: 1,
                 n_classes: 3,
             };
-            let direct = FoldSums::of(&direct_set).fit(&direct_set, None);
+            let direct = FoldSums::of(&direct_set, true).fit(&direct_set, None);
             assert_eq!(by_sub.predict(&x), direct.predict(&x), "fold {f}");
             // A coefficient vector depends on the origin (the offsets differ), but its difference from another
             // class's does not: that difference, and the score differences, are what the argmax reads.
@@ -671,6 +693,43 @@ mod tests {
                     );
                 }
             }
+        }
+    }
+
+    /// Forming a fold's shares again when it is fitted (the large-matrix case) gives the very models of keeping
+    /// them: the totals are summed in the same order and the shares are the same sums.
+    #[test]
+    fn shares_formed_again_give_the_kept_models_bit_for_bit() {
+        let (n, p) = (40, 6);
+        let y: Vec<usize> = (0..n).map(|i| i % 3).collect();
+        let x: Vec<f64> = (0..n * p)
+            .map(|v| {
+                20.0 + (v as f64 * 0.613).sin() * (1.0 + (v % p) as f64)
+                    + (y[v / p] * (v % 2)) as f64
+            })
+            .collect();
+        let fold: Vec<usize> = (0..n).map(|i| (i * 3) % 5).collect();
+        let set = FoldSet {
+            x: &x,
+            p,
+            y: &y,
+            fold: &fold,
+            folds: 5,
+            n_classes: 3,
+        };
+        let (kept, again) = (FoldSums::of(&set, true), FoldSums::of(&set, false));
+        assert!(again.share.is_empty() && kept.share.len() == 5);
+        for f in 0..5 {
+            let (a, b) = (kept.fit(&set, Some(f)), again.fit(&set, Some(f)));
+            let bits = |m: &LdaModel| -> Vec<u64> {
+                m.coef
+                    .iter()
+                    .flatten()
+                    .chain(&m.intercept)
+                    .map(|v| v.to_bits())
+                    .collect()
+            };
+            assert_eq!(bits(&a), bits(&b), "fold {f}");
         }
     }
 
@@ -707,7 +766,7 @@ mod tests {
         };
         assert!(low_rank_is_cheaper(18, p, 4));
         let (offset, shifted) = shift(&set);
-        let sums = FoldSums::of(&set);
+        let sums = FoldSums::of(&set, true);
         for f in 0..4 {
             let low = low_rank_fit(&set, &offset, &shifted, Some(f)).expect("shrunk classes");
             let full = sums.fit(&set, Some(f));
