@@ -20,6 +20,7 @@
 use super::linalg::{
     axpy, cholesky_owned, cholesky_rank_one, cholesky_solve, cholesky_with_ridge, dot,
 };
+use super::simd::multiversion;
 use super::{present_classes, Decoder, LinearModel, Model};
 
 /// Stop when the projected gradient's spread (max − min) falls below this. The usual default of this solver is 0.1
@@ -91,72 +92,74 @@ fn primal_is_cheaper(n: usize, p: usize) -> bool {
     n > 3 * (p + 1)
 }
 
-/// Solve one binary problem with labels ±1; returns `p` weights then the intercept, and whether the cap was hit.
-fn dual_cd(
-    x: &[f64],
-    n: usize,
-    p: usize,
-    signs: &[f64],
-    sq_norms: &[f64],
-    c: f64,
-) -> (Vec<f64>, bool) {
-    let diag = 0.5 / c;
-    let qd: Vec<f64> = sq_norms.iter().map(|q| q + diag).collect();
-    let mut w = vec![0.0; p + 1];
-    let mut alpha = vec![0.0; n];
-    let mut index: Vec<usize> = (0..n).collect();
-    let mut active = n;
-    // With no upper bound on α (squared hinge), only the lower bound can be shrunk, so only the old maximum is kept.
-    let mut pg_max_old = f64::INFINITY;
-    let mut order = SplitMix64(0x005e_ed0f_d0a1);
-    for _pass in 0..MAX_PASSES {
-        let (mut pg_max, mut pg_min) = (f64::NEG_INFINITY, f64::INFINITY);
-        for s in 0..active {
-            let j = s + (order.next() % (active - s) as u64) as usize;
-            index.swap(s, j);
-        }
-        let mut s = 0;
-        while s < active {
-            let i = index[s];
-            let xi = &x[i * p..(i + 1) * p];
-            let yi = signs[i];
-            let g = yi * (dot(&w[..p], xi) + w[p]) - 1.0 + alpha[i] * diag;
-            let mut pg = 0.0;
-            if alpha[i] == 0.0 {
-                if g > pg_max_old {
-                    // Shrinking: this coordinate is at its bound and likely to stay there.
-                    active -= 1;
-                    index.swap(s, active);
-                    continue;
-                } else if g < 0.0 {
+multiversion! {
+    /// Solve one binary problem with labels ±1; returns `p` weights then the intercept, and whether the cap was hit.
+    fn dual_cd(
+        x: &[f64],
+        n: usize,
+        p: usize,
+        signs: &[f64],
+        sq_norms: &[f64],
+        c: f64,
+    ) -> (Vec<f64>, bool) {
+        let diag = 0.5 / c;
+        let qd: Vec<f64> = sq_norms.iter().map(|q| q + diag).collect();
+        let mut w = vec![0.0; p + 1];
+        let mut alpha = vec![0.0; n];
+        let mut index: Vec<usize> = (0..n).collect();
+        let mut active = n;
+        // With no upper bound on α (squared hinge), only the lower bound can be shrunk, so only the old maximum is kept.
+        let mut pg_max_old = f64::INFINITY;
+        let mut order = SplitMix64(0x005e_ed0f_d0a1);
+        for _pass in 0..MAX_PASSES {
+            let (mut pg_max, mut pg_min) = (f64::NEG_INFINITY, f64::INFINITY);
+            for s in 0..active {
+                let j = s + (order.next() % (active - s) as u64) as usize;
+                index.swap(s, j);
+            }
+            let mut s = 0;
+            while s < active {
+                let i = index[s];
+                let xi = &x[i * p..(i + 1) * p];
+                let yi = signs[i];
+                let g = yi * (dot(&w[..p], xi) + w[p]) - 1.0 + alpha[i] * diag;
+                let mut pg = 0.0;
+                if alpha[i] == 0.0 {
+                    if g > pg_max_old {
+                        // Shrinking: this coordinate is at its bound and likely to stay there.
+                        active -= 1;
+                        index.swap(s, active);
+                        continue;
+                    } else if g < 0.0 {
+                        pg = g;
+                    }
+                } else {
                     pg = g;
                 }
-            } else {
-                pg = g;
+                pg_max = pg_max.max(pg);
+                pg_min = pg_min.min(pg);
+                if pg.abs() > 1e-12 {
+                    let old = alpha[i];
+                    alpha[i] = (old - g / qd[i]).max(0.0);
+                    let step = (alpha[i] - old) * yi;
+                    axpy(step, xi, &mut w[..p]);
+                    w[p] += step;
+                }
+                s += 1;
             }
-            pg_max = pg_max.max(pg);
-            pg_min = pg_min.min(pg);
-            if pg.abs() > 1e-12 {
-                let old = alpha[i];
-                alpha[i] = (old - g / qd[i]).max(0.0);
-                let step = (alpha[i] - old) * yi;
-                axpy(step, xi, &mut w[..p]);
-                w[p] += step;
+            if pg_max - pg_min <= TOLERANCE {
+                if active == n {
+                    return (w, false);
+                }
+                // Converged on the shrunk set: check once more on every coordinate.
+                active = n;
+                pg_max_old = f64::INFINITY;
+                continue;
             }
-            s += 1;
+            pg_max_old = if pg_max <= 0.0 { f64::INFINITY } else { pg_max };
         }
-        if pg_max - pg_min <= TOLERANCE {
-            if active == n {
-                return (w, false);
-            }
-            // Converged on the shrunk set: check once more on every coordinate.
-            active = n;
-            pg_max_old = f64::INFINITY;
-            continue;
-        }
-        pg_max_old = if pg_max <= 0.0 { f64::INFINITY } else { pg_max };
+        (w, true)
     }
-    (w, true)
 }
 
 /// `X̃ᵀX̃` for x̃ = [x, 1] (q × q, q = p + 1): the Hessian term when every trial is inside the margin, as all are at
@@ -182,6 +185,7 @@ fn augmented_gram(x: &[f64], n: usize, p: usize) -> Vec<f64> {
 }
 
 /// How each margin changes per unit step along `d`: `yᵢ d·x̃ᵢ`.
+#[inline]
 fn step_margins(x: &[f64], n: usize, p: usize, signs: &[f64], d: &[f64]) -> Vec<f64> {
     (0..n)
         .map(|i| signs[i] * (dot(&d[..p], &x[i * p..(i + 1) * p]) + d[p]))
@@ -189,6 +193,7 @@ fn step_margins(x: &[f64], n: usize, p: usize, signs: &[f64], d: &[f64]) -> Vec<
 }
 
 /// Add `sign · 2C · x̃ x̃ᵀ` to the upper triangle of `hess`.
+#[inline]
 fn rank_one(hess: &mut [f64], xi: &[f64], scale: f64) {
     let p = xi.len();
     let q = p + 1;
@@ -200,116 +205,119 @@ fn rank_one(hess: &mut [f64], xi: &[f64], scale: f64) {
     hess[p * q + p] += scale;
 }
 
-/// Minimise `½‖w̃‖² + C Σ max(0, 1 − yᵢ w̃·x̃ᵢ)²` in the primal (x̃ = [x, 1]); returns `p` weights then the
-/// intercept, and whether the step cap was hit.
-///
-/// The generalised Hessian `I + 2C Σ_{inside} x̃ᵢx̃ᵢᵀ` starts from the shared full Gram matrix and is then updated
-/// only for the trials that enter or leave the margin, which after the first steps are few. The margins
-/// `mᵢ = yᵢ w̃·x̃ᵢ` are carried along the steps, so the line search costs O(n) per trial point.
-fn primal_newton(
-    x: &[f64],
-    n: usize,
-    p: usize,
-    signs: &[f64],
-    c: f64,
-    gram_all: &[f64],
-    factor0: &[f64],
-) -> (Vec<f64>, bool) {
-    let q = p + 1;
-    let mut w = vec![0.0; q];
-    let mut margin = vec![0.0; n];
-    let mut inside = vec![true; n];
-    let mut hess_upper: Vec<f64> = gram_all.iter().map(|g| 2.0 * c * g).collect();
-    // The factor of the current Hessian, once this problem has one of its own (step 0 uses the shared `factor0`).
-    let mut factor: Option<Vec<f64>> = None;
-    let mut first_norm = None;
-    let root = (2.0 * c).sqrt();
-    for _step in 0..MAX_NEWTON_STEPS {
-        let mut grad = w.clone();
-        let mut changed = Vec::new();
-        for i in 0..n {
-            let slack = 1.0 - margin[i];
-            let now_inside = slack > 0.0;
-            if now_inside != inside[i] {
-                inside[i] = now_inside;
-                changed.push(i);
+multiversion! {
+    /// Minimise `½‖w̃‖² + C Σ max(0, 1 − yᵢ w̃·x̃ᵢ)²` in the primal (x̃ = [x, 1]); returns `p` weights then the
+    /// intercept, and whether the step cap was hit.
+    ///
+    /// The generalised Hessian `I + 2C Σ_{inside} x̃ᵢx̃ᵢᵀ` starts from the shared full Gram matrix and is then updated
+    /// only for the trials that enter or leave the margin, which after the first steps are few. The margins
+    /// `mᵢ = yᵢ w̃·x̃ᵢ` are carried along the steps, so the line search costs O(n) per trial point.
+    fn primal_newton(
+        x: &[f64],
+        n: usize,
+        p: usize,
+        signs: &[f64],
+        c: f64,
+        gram_all: &[f64],
+        factor0: &[f64],
+    ) -> (Vec<f64>, bool) {
+        let q = p + 1;
+        let mut w = vec![0.0; q];
+        let mut margin = vec![0.0; n];
+        let mut inside = vec![true; n];
+        let mut hess_upper: Vec<f64> = gram_all.iter().map(|g| 2.0 * c * g).collect();
+        // The factor of the current Hessian, once this problem has one of its own (step 0 uses the shared `factor0`).
+        let mut factor: Option<Vec<f64>> = None;
+        let mut first_norm = None;
+        let root = (2.0 * c).sqrt();
+        for _step in 0..MAX_NEWTON_STEPS {
+            let mut grad = w.clone();
+            let mut changed = Vec::new();
+            for i in 0..n {
+                let slack = 1.0 - margin[i];
+                let now_inside = slack > 0.0;
+                if now_inside != inside[i] {
+                    inside[i] = now_inside;
+                    changed.push(i);
+                }
+                if now_inside {
+                    axpy(
+                        -2.0 * c * slack * signs[i],
+                        &x[i * p..(i + 1) * p],
+                        &mut grad[..p],
+                    );
+                    grad[p] -= 2.0 * c * slack * signs[i];
+                }
             }
-            if now_inside {
-                axpy(
-                    -2.0 * c * slack * signs[i],
-                    &x[i * p..(i + 1) * p],
-                    &mut grad[..p],
-                );
-                grad[p] -= 2.0 * c * slack * signs[i];
+            // Keep the Hessian by the cheaper route: add and remove the trials that crossed the margin, or rebuild it
+            // from the trials inside when those are fewer (typically after the first step, when most leave at once).
+            let n_inside = inside.iter().filter(|&&b| b).count();
+            if changed.len() <= n_inside {
+                for &i in &changed {
+                    rank_one(
+                        &mut hess_upper,
+                        &x[i * p..(i + 1) * p],
+                        if inside[i] { 2.0 * c } else { -2.0 * c },
+                    );
+                }
+            } else {
+                hess_upper.iter_mut().for_each(|v| *v = 0.0);
+                for i in (0..n).filter(|&i| inside[i]) {
+                    rank_one(&mut hess_upper, &x[i * p..(i + 1) * p], 2.0 * c);
+                }
             }
-        }
-        // Keep the Hessian by the cheaper route: add and remove the trials that crossed the margin, or rebuild it
-        // from the trials inside when those are fewer (typically after the first step, when most leave at once).
-        let n_inside = inside.iter().filter(|&&b| b).count();
-        if changed.len() <= n_inside {
-            for &i in &changed {
-                rank_one(
-                    &mut hess_upper,
-                    &x[i * p..(i + 1) * p],
-                    if inside[i] { 2.0 * c } else { -2.0 * c },
-                );
+            let norm = dot(&grad, &grad).sqrt();
+            let first = *first_norm.get_or_insert(norm);
+            if norm <= NEWTON_TOLERANCE * first.max(1.0) {
+                return (w, false);
             }
-        } else {
-            hess_upper.iter_mut().for_each(|v| *v = 0.0);
-            for i in (0..n).filter(|&i| inside[i]) {
-                rank_one(&mut hess_upper, &x[i * p..(i + 1) * p], 2.0 * c);
+            let mut d: Vec<f64> = grad.iter().map(|g| -g).collect();
+            if _step == 0 {
+                cholesky_solve(factor0, q, &mut d);
+                let dm = step_margins(x, n, p, signs, &d);
+                let t = exact_step(&w, &d, &margin, &dm, c);
+                axpy(t, &d, &mut w);
+                axpy(t, &dm, &mut margin);
+                continue;
             }
-        }
-        let norm = dot(&grad, &grad).sqrt();
-        let first = *first_norm.get_or_insert(norm);
-        if norm <= NEWTON_TOLERANCE * first.max(1.0) {
-            return (w, false);
-        }
-        let mut d: Vec<f64> = grad.iter().map(|g| -g).collect();
-        if _step == 0 {
-            cholesky_solve(factor0, q, &mut d);
+            // Few trials crossed the margin: update the factor in O(q²) each instead of refactoring in O(q³).
+            let mut u = factor.take().filter(|_| changed.len() * 8 <= q);
+            if let Some(f) = u.as_mut() {
+                for &i in &changed {
+                    let mut v: Vec<f64> = x[i * p..(i + 1) * p].iter().map(|xv| root * xv).collect();
+                    v.push(root);
+                    if !cholesky_rank_one(f, q, &mut v, if inside[i] { 1.0 } else { -1.0 }) {
+                        u = None;
+                        break;
+                    }
+                }
+            }
+            let l = u.unwrap_or_else(|| {
+                let with_identity = || {
+                    let mut hess = hess_upper.clone();
+                    for a in 0..q {
+                        hess[a * q + a] += 1.0;
+                    }
+                    hess
+                };
+                // I + (positive semi-definite) is positive definite; the ridge fallback is for round-off only.
+                cholesky_owned(with_identity(), q)
+                    .unwrap_or_else(|| cholesky_with_ridge(&with_identity(), q).0)
+            });
+            cholesky_solve(&l, q, &mut d);
+            factor = Some(l);
             let dm = step_margins(x, n, p, signs, &d);
             let t = exact_step(&w, &d, &margin, &dm, c);
             axpy(t, &d, &mut w);
             axpy(t, &dm, &mut margin);
-            continue;
         }
-        // Few trials crossed the margin: update the factor in O(q²) each instead of refactoring in O(q³).
-        let mut u = factor.take().filter(|_| changed.len() * 8 <= q);
-        if let Some(f) = u.as_mut() {
-            for &i in &changed {
-                let mut v: Vec<f64> = x[i * p..(i + 1) * p].iter().map(|xv| root * xv).collect();
-                v.push(root);
-                if !cholesky_rank_one(f, q, &mut v, if inside[i] { 1.0 } else { -1.0 }) {
-                    u = None;
-                    break;
-                }
-            }
-        }
-        let l = u.unwrap_or_else(|| {
-            let with_identity = || {
-                let mut hess = hess_upper.clone();
-                for a in 0..q {
-                    hess[a * q + a] += 1.0;
-                }
-                hess
-            };
-            // I + (positive semi-definite) is positive definite; the ridge fallback is for round-off only.
-            cholesky_owned(with_identity(), q)
-                .unwrap_or_else(|| cholesky_with_ridge(&with_identity(), q).0)
-        });
-        cholesky_solve(&l, q, &mut d);
-        factor = Some(l);
-        let dm = step_margins(x, n, p, signs, &d);
-        let t = exact_step(&w, &d, &margin, &dm, c);
-        axpy(t, &d, &mut w);
-        axpy(t, &dm, &mut margin);
+        (w, true)
     }
-    (w, true)
 }
 
 /// Minimiser over t of the piecewise-quadratic `f(w + t·d)`, by Newton's method on its piecewise-linear derivative
 /// (exact once the set of trials inside the margin stops changing), starting from the full Newton step t = 1.
+#[inline]
 fn exact_step(w: &[f64], d: &[f64], margin: &[f64], dm: &[f64], c: f64) -> f64 {
     let (wd, dd) = (dot(w, d), dot(d, d));
     let mut t = 1.0;
