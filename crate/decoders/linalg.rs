@@ -377,10 +377,12 @@ multiversion! {
                 return false;
             }
             let r = r2.sqrt();
-            let (c, sn) = (r / d, x[k] / d);
+            // Multiplying by 1/c rather than dividing by c: a division costs several multiplications' time.
+            let (c, inv_c, sn) = (r / d, d / r, x[k] / d);
+            let s_sn = s * sn;
             u[k * p + k] = r;
             for j in k + 1..p {
-                let ukj = (u[k * p + j] + s * sn * x[j]) / c;
+                let ukj = (u[k * p + j] + s_sn * x[j]) * inv_c;
                 x[j] = c * x[j] - sn * ukj;
                 u[k * p + j] = ukj;
             }

@@ -18,7 +18,7 @@
 //! scikit-learn's LinearSVC makes with `dual="auto"` at one trial per feature, scikit-learn 1.9 documentation).
 
 use super::linalg::{
-    axpy, cholesky_owned, cholesky_rank_one, cholesky_solve, cholesky_with_ridge, dot,
+    axpy, cholesky_owned, cholesky_rank_one, cholesky_solve, cholesky_with_ridge, dot, gram,
 };
 use super::simd::multiversion;
 use super::{present_classes, Decoder, LinearModel, Model};
@@ -185,32 +185,69 @@ fn augmented_gram(x: &[f64], n: usize, p: usize) -> Vec<f64> {
 }
 
 /// How each margin changes per unit step along `d`: `yᵢ d·x̃ᵢ`.
-#[inline]
+#[inline(always)]
 fn step_margins(x: &[f64], n: usize, p: usize, signs: &[f64], d: &[f64]) -> Vec<f64> {
-    (0..n)
-        .map(|i| signs[i] * (dot(&d[..p], &x[i * p..(i + 1) * p]) + d[p]))
-        .collect()
+    let mut out = vec![0.0; n];
+    for (i, (o, row)) in out.iter_mut().zip(x.chunks_exact(p)).enumerate() {
+        *o = signs[i] * (dot(&d[..p], row) + d[p]);
+    }
+    out
 }
 
-/// Add `sign · 2C · x̃ x̃ᵀ` to the upper triangle of `hess`.
-#[inline]
-fn rank_one(hess: &mut [f64], xi: &[f64], scale: f64) {
-    let p = xi.len();
+/// Bring `hess` (`2C·Σ x̃ᵢx̃ᵢᵀ` over the trials that were inside the margin when it was last brought up to date,
+/// `synced`; upper triangle) to the trials `inside` now. The trials that entered and left since are added and
+/// removed as two Gram matrices, by the blocked Gram kernel (several times faster per row than rank-one terms);
+/// when they outnumber the trials inside, the matrix is formed again from those instead.
+#[inline(always)]
+fn bring_up_to_date(
+    hess: &mut [f64],
+    synced: &mut [bool],
+    x: &[f64],
+    p: usize,
+    inside: &[bool],
+    c: f64,
+) {
     let q = p + 1;
-    for a in 0..p {
-        let v = scale * xi[a];
-        axpy(v, &xi[a..], &mut hess[a * q + a..a * q + p]);
-        hess[a * q + p] += v;
+    let rows_of = |keep: &dyn Fn(usize) -> bool| {
+        let mut z = Vec::new();
+        for (i, row) in x.chunks_exact(p).enumerate() {
+            if keep(i) {
+                z.extend_from_slice(row);
+                z.push(1.0);
+            }
+        }
+        z
+    };
+    let entered = rows_of(&|i| inside[i] && !synced[i]);
+    let left = rows_of(&|i| !inside[i] && synced[i]);
+    let n_inside = inside.iter().filter(|&&b| b).count();
+    if (entered.len() + left.len()) / q > n_inside {
+        let g = gram(&rows_of(&|i| inside[i]), n_inside, q);
+        for (h, v) in hess.iter_mut().zip(&g) {
+            *h = 2.0 * c * v;
+        }
+    } else {
+        let (ge, gl) = (
+            gram(&entered, entered.len() / q, q),
+            gram(&left, left.len() / q, q),
+        );
+        for a in 0..q {
+            for b in a..q {
+                hess[a * q + b] += 2.0 * c * ge[a * q + b] - 2.0 * c * gl[a * q + b];
+            }
+        }
     }
-    hess[p * q + p] += scale;
+    synced.copy_from_slice(inside);
 }
 
 multiversion! {
     /// Minimise `½‖w̃‖² + C Σ max(0, 1 − yᵢ w̃·x̃ᵢ)²` in the primal (x̃ = [x, 1]); returns `p` weights then the
     /// intercept, and whether the step cap was hit.
     ///
-    /// The generalised Hessian `I + 2C Σ_{inside} x̃ᵢx̃ᵢᵀ` starts from the shared full Gram matrix and is then updated
-    /// only for the trials that enter or leave the margin, which after the first steps are few. The margins
+    /// The generalised Hessian `I + 2C Σ_{inside} x̃ᵢx̃ᵢᵀ` starts from the shared full Gram matrix. When few trials
+    /// cross the margin in a step, its Cholesky factor takes one rank-one update or downdate per crossing (O(q²)
+    /// each) and the matrix itself is left behind; it is brought up to date, by Gram products of the trials that
+    /// entered and left ([`bring_up_to_date`]), only when the factor must be made again. The margins
     /// `mᵢ = yᵢ w̃·x̃ᵢ` are carried along the steps, so the line search costs O(n) per trial point.
     fn primal_newton(
         x: &[f64],
@@ -225,7 +262,9 @@ multiversion! {
         let mut w = vec![0.0; q];
         let mut margin = vec![0.0; n];
         let mut inside = vec![true; n];
+        // `2C·Σ x̃ᵢx̃ᵢᵀ` over the trials that were inside the margin at the last refactoring (`synced`).
         let mut hess_upper: Vec<f64> = gram_all.iter().map(|g| 2.0 * c * g).collect();
+        let mut synced = vec![true; n];
         // The factor of the current Hessian, once this problem has one of its own (step 0 uses the shared `factor0`).
         let mut factor: Option<Vec<f64>> = None;
         let mut first_norm = None;
@@ -249,23 +288,7 @@ multiversion! {
                     grad[p] -= 2.0 * c * slack * signs[i];
                 }
             }
-            // Keep the Hessian by the cheaper route: add and remove the trials that crossed the margin, or rebuild it
-            // from the trials inside when those are fewer (typically after the first step, when most leave at once).
-            let n_inside = inside.iter().filter(|&&b| b).count();
-            if changed.len() <= n_inside {
-                for &i in &changed {
-                    rank_one(
-                        &mut hess_upper,
-                        &x[i * p..(i + 1) * p],
-                        if inside[i] { 2.0 * c } else { -2.0 * c },
-                    );
-                }
-            } else {
-                hess_upper.iter_mut().for_each(|v| *v = 0.0);
-                for i in (0..n).filter(|&i| inside[i]) {
-                    rank_one(&mut hess_upper, &x[i * p..(i + 1) * p], 2.0 * c);
-                }
-            }
+                // The Hessian matrix is only read when the factor is made again: it is brought up to date then.
             let norm = dot(&grad, &grad).sqrt();
             let first = *first_norm.get_or_insert(norm);
             if norm <= NEWTON_TOLERANCE * first.max(1.0) {
@@ -292,18 +315,22 @@ multiversion! {
                     }
                 }
             }
-            let l = u.unwrap_or_else(|| {
-                let with_identity = || {
+            // (Plain control flow, not closures: a closure would be compiled without the AVX2 of this copy.)
+            let l = match u {
+                Some(l) => l,
+                None => {
+                    bring_up_to_date(&mut hess_upper, &mut synced, x, p, &inside, c);
                     let mut hess = hess_upper.clone();
                     for a in 0..q {
                         hess[a * q + a] += 1.0;
                     }
-                    hess
-                };
-                // I + (positive semi-definite) is positive definite; the ridge fallback is for round-off only.
-                cholesky_owned(with_identity(), q)
-                    .unwrap_or_else(|| cholesky_with_ridge(&with_identity(), q).0)
-            });
+                    // I + (positive semi-definite) is positive definite; the ridge fallback is for round-off only.
+                    match cholesky_owned(hess.clone(), q) {
+                        Some(l) => l,
+                        None => cholesky_with_ridge(&hess, q).0,
+                    }
+                }
+            };
             cholesky_solve(&l, q, &mut d);
             factor = Some(l);
             let dm = step_margins(x, n, p, signs, &d);
@@ -317,7 +344,7 @@ multiversion! {
 
 /// Minimiser over t of the piecewise-quadratic `f(w + t·d)`, by Newton's method on its piecewise-linear derivative
 /// (exact once the set of trials inside the margin stops changing), starting from the full Newton step t = 1.
-#[inline]
+#[inline(always)]
 fn exact_step(w: &[f64], d: &[f64], margin: &[f64], dm: &[f64], c: f64) -> f64 {
     let (wd, dd) = (dot(w, d), dot(d, d));
     let mut t = 1.0;
