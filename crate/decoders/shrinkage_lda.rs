@@ -16,6 +16,8 @@
 //! count, the sum of the rows, the scatter `Σ xxᵀ`, and (for the shrinkage weight) `Σ (|zᵢ|²)²`, one pass. So the
 //! count, sum and scatter of each (fold, class) are computed once per split, and the training statistics of fold f
 //! are the class totals minus fold f's share: one Gram matrix over all trials per split instead of one per fold.
+//! (When the shares would take too much memory, only the totals are kept and each fold's share is formed again as the
+//! fold is fitted: two passes over the rows instead of one, the same numbers.)
 //! Step 1 makes the decoder exactly invariant to shifting and scaling each feature (the class SDs scale with the
 //! feature), so the standardisation the pipeline would apply changes nothing but rounding and is left out: the fold
 //! engine works on the raw values, after removing one offset per feature (the mean of the split's rows) so that the
