@@ -218,15 +218,20 @@ fn bring_up_to_date(
         }
         z
     };
-    let entered = rows_of(&|i| inside[i] && !synced[i]);
-    let left = rows_of(&|i| !inside[i] && synced[i]);
     let n_inside = inside.iter().filter(|&&b| b).count();
-    if (entered.len() + left.len()) / q > n_inside {
+    let crossed = inside
+        .iter()
+        .zip(synced.iter())
+        .filter(|(a, b)| a != b)
+        .count();
+    if crossed > n_inside {
         let g = gram(&rows_of(&|i| inside[i]), n_inside, q);
         for (h, v) in hess.iter_mut().zip(&g) {
             *h = 2.0 * c * v;
         }
     } else {
+        let entered = rows_of(&|i| inside[i] && !synced[i]);
+        let left = rows_of(&|i| !inside[i] && synced[i]);
         let (ge, gl) = (
             gram(&entered, entered.len() / q, q),
             gram(&left, left.len() / q, q),
