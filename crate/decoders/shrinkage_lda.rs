@@ -184,8 +184,8 @@ impl FoldSums {
     fn of(set: &FoldSet, keep: bool) -> FoldSums {
         let (p, n) = (set.p, set.y.len());
         let (offset, shifted) = shift(set);
-        let members = |keep: &dyn Fn(usize) -> bool, k: usize| -> Vec<usize> {
-            (0..n).filter(|&i| set.y[i] == k && keep(i)).collect()
+        let members = |wanted: &dyn Fn(usize) -> bool, k: usize| -> Vec<usize> {
+            (0..n).filter(|&i| set.y[i] == k && wanted(i)).collect()
         };
         if set.folds == 1 {
             let total = (0..set.n_classes)
