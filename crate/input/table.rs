@@ -47,8 +47,8 @@ pub struct Header {
 
 /// Where a file's bytes come from: all in memory (the CLI and the tests read the file first), or read piece by
 /// piece (the page's core copies pieces out of its data worker's one read of a dropped file, so it never holds a
-/// large table's bytes beside the matrix decoded from them). [`stream`] reads either the same way, so both give the same rows and
-/// the same messages.
+/// large table's bytes beside the matrix decoded from them). [`stream`] reads either the same way, so both give the
+/// same rows and the same messages.
 pub trait ByteSource {
     /// Read into `buf` from `offset`: how many bytes were read (possibly fewer than asked; 0 only at the end).
     fn read_at(&self, offset: u64, buf: &mut [u8]) -> std::io::Result<usize>;

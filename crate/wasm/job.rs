@@ -4,9 +4,8 @@
 //! `prepare` checks the design and lists the tasks, `header` and `matrix_part` hand the decoded data to run workers
 //! (in parts, into a [`MatrixIn`]), and `finish` assembles the outcomes into the result. A run worker keeps the
 //! decoded data as a [`Held`], builds a [`Runner`] on it for each run and answers task messages with outcome JSON;
-//! the page joins the
-//! outcome strings unparsed, so no number passes through a JavaScript double conversion (serde_json's
-//! `float_roundtrip` keeps the parse exact).
+//! the page joins the outcome strings unparsed, so no number passes through a JavaScript double conversion
+//! (serde_json's `float_roundtrip` keeps the parse exact).
 
 use super::data::{self, Decoded};
 use super::dropped::DroppedFile;

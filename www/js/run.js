@@ -1,8 +1,9 @@
 // Runs and the worker pool. A run: settings checked, plan prepared by the data worker, confirmation when it is
 // long or large, a pool of run workers each given the decoded matrix once (in transferred parts, one worker at a
 // time, so copies do not pile up; workers holding small data are kept warm for the next run on it), tasks handed in
-// batches to whichever worker is free, the outcome strings joined unparsed and finished by the data worker. Only a finished run becomes a record; a cancelled or failed one changes nothing
-// on view. Cancel terminates the workers at once (running wasm cannot be interrupted).
+// batches to whichever worker is free, the outcome strings joined unparsed and finished by the data worker. Only a
+// finished run becomes a record; a cancelled or failed one changes nothing on view. Cancel terminates the workers at
+// once (running wasm cannot be interrupted).
 'use strict';
 (function (PD) {
   const { $ } = PD;
