@@ -31,6 +31,40 @@ pub fn dot(a: &[f64], b: &[f64]) -> f64 {
     total
 }
 
+/// Dot product with sixteen partial sums: element `i` joins sum `i mod 16`, the sums are folded in halves
+/// (`sₗ + sₗ₊₈`, then `sₗ + sₗ₊₄`, …, a fixed tree that matches adding whole registers), then the tail is added one
+/// element at a time.
+///
+/// [`dot`]'s four sums fill one 256-bit register, so each step waits for the previous addition (several cycles for
+/// four multiply–adds); sixteen sums keep several registers in flight. It rounds differently from [`dot`], so only
+/// the linear SVM uses it (changing [`dot`] would move every decoder's numbers); the order is written out here, so
+/// every target still rounds the same way.
+#[inline(always)]
+pub fn dot_wide(a: &[f64], b: &[f64]) -> f64 {
+    const LANES: usize = 16;
+    let n = a.len().min(b.len());
+    let (a, b) = (&a[..n], &b[..n]);
+    let mut s = [0.0f64; LANES];
+    let (mut ca, mut cb) = (a.chunks_exact(LANES), b.chunks_exact(LANES));
+    for (x, y) in (&mut ca).zip(&mut cb) {
+        for l in 0..LANES {
+            s[l] += x[l] * y[l];
+        }
+    }
+    let mut width = LANES;
+    while width > 1 {
+        width /= 2;
+        for l in 0..width {
+            s[l] += s[l + width];
+        }
+    }
+    let mut total = s[0];
+    for (x, y) in ca.remainder().iter().zip(cb.remainder()) {
+        total += x * y;
+    }
+    total
+}
+
 /// `(x − centre)·w`, in [`dot`]'s order of partial sums, without a centred copy of `x`.
 #[inline]
 pub fn dot_centred(x: &[f64], centre: &[f64], w: &[f64]) -> f64 {

@@ -18,7 +18,7 @@
 //! scikit-learn's LinearSVC makes with `dual="auto"` at one trial per feature, scikit-learn 1.9 documentation).
 
 use super::linalg::{
-    axpy, cholesky_owned, cholesky_rank_one, cholesky_solve, cholesky_with_ridge, dot, gram,
+    axpy, cholesky_owned, cholesky_rank_one, cholesky_solve, cholesky_with_ridge, dot_wide, gram,
 };
 use super::simd::multiversion;
 use super::{present_classes, Decoder, LinearModel, Model};
@@ -43,7 +43,7 @@ impl Decoder for LinearSvm {
     fn fit(&self, x: &[f64], n: usize, p: usize, y: &[usize], n_classes: usize) -> Box<dyn Model> {
         let classes = present_classes(y, n_classes);
         let sq_norms: Vec<f64> = (0..n)
-            .map(|i| dot(&x[i * p..(i + 1) * p], &x[i * p..(i + 1) * p]) + 1.0)
+            .map(|i| dot_wide(&x[i * p..(i + 1) * p], &x[i * p..(i + 1) * p]) + 1.0)
             .collect();
         // Primal route: at w = 0 every trial is inside the margin for every class, so the first Hessian and its
         // factor are the same for all one-vs-rest problems: compute them once.
@@ -122,7 +122,7 @@ multiversion! {
                 let i = index[s];
                 let xi = &x[i * p..(i + 1) * p];
                 let yi = signs[i];
-                let g = yi * (dot(&w[..p], xi) + w[p]) - 1.0 + alpha[i] * diag;
+                let g = yi * (dot_wide(&w[..p], xi) + w[p]) - 1.0 + alpha[i] * diag;
                 let mut pg = 0.0;
                 if alpha[i] == 0.0 {
                     if g > pg_max_old {
@@ -189,7 +189,7 @@ fn augmented_gram(x: &[f64], n: usize, p: usize) -> Vec<f64> {
 fn step_margins(x: &[f64], n: usize, p: usize, signs: &[f64], d: &[f64]) -> Vec<f64> {
     let mut out = vec![0.0; n];
     for (i, (o, row)) in out.iter_mut().zip(x.chunks_exact(p)).enumerate() {
-        *o = signs[i] * (dot(&d[..p], row) + d[p]);
+        *o = signs[i] * (dot_wide(&d[..p], row) + d[p]);
     }
     out
 }
@@ -294,7 +294,7 @@ multiversion! {
                 }
             }
                 // The Hessian matrix is only read when the factor is made again: it is brought up to date then.
-            let norm = dot(&grad, &grad).sqrt();
+            let norm = dot_wide(&grad, &grad).sqrt();
             let first = *first_norm.get_or_insert(norm);
             if norm <= NEWTON_TOLERANCE * first.max(1.0) {
                 return (w, false);
@@ -351,7 +351,7 @@ multiversion! {
 /// (exact once the set of trials inside the margin stops changing), starting from the full Newton step t = 1.
 #[inline(always)]
 fn exact_step(w: &[f64], d: &[f64], margin: &[f64], dm: &[f64], c: f64) -> f64 {
-    let (wd, dd) = (dot(w, d), dot(d, d));
+    let (wd, dd) = (dot_wide(w, d), dot_wide(d, d));
     let mut t = 1.0;
     for _ in 0..50 {
         let (mut slope, mut curvature) = (t * dd + wd, dd);
