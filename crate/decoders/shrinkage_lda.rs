@@ -16,8 +16,8 @@
 //! count, the sum of the rows, the scatter `Σ xxᵀ`, and (for the shrinkage weight) `Σ (|zᵢ|²)²`, one pass. So the
 //! count, sum and scatter of each (fold, class) are computed once per split, and the training statistics of fold f
 //! are the class totals minus fold f's share: one Gram matrix over all trials per split instead of one per fold.
-//! (When the shares would take too much memory, only the totals are kept and each fold's share is formed again as the
-//! fold is fitted: two passes over the rows instead of one, the same numbers.)
+//! (When the shares would take too much memory, the totals and only as many folds' shares as fit are kept; each other
+//! fold's share is formed again as the fold is fitted: part of a second pass over the rows, the same numbers.)
 //! Step 1 makes the decoder exactly invariant to shifting and scaling each feature (the class SDs scale with the
 //! feature), so the standardisation the pipeline would apply changes nothing but rounding and is left out: the fold
 //! engine works on the raw values, after removing one offset per feature (the mean of the split's rows) so that the
@@ -62,18 +62,22 @@ impl Decoder for ShrinkageLda {
                 return Box::new(model);
             }
         }
-        let sums = FoldSums::of(&set, true);
+        let sums = FoldSums::of(&set, &[]);
         Box::new(sums.fit(&set, None))
     }
 
     fn fit_folds_raw(&self, set: &FoldSet, wanted: &[bool]) -> Option<Vec<Option<Box<dyn Model>>>> {
         let n = set.y.len();
         // Keeping one p × p scatter per (fold, class) can take more memory than a browser tab should spend (five
-        // folds of four classes at 1000 neurons: 160 MB). Past that, each fold's share is formed again when the fold
-        // is fitted, which costs a second pass over the split's rows: still less than fitting each fold on its own
-        // (folds − 1 passes) from four folds on; with two or three folds those plain fits are as cheap.
-        let keep = set.folds * set.n_classes * set.p * set.p <= MAX_SHARE_VALUES;
-        if low_rank_is_cheaper(n - n / set.folds.max(1), set.p, set.folds, keep) {
+        // folds of four classes at 1000 neurons: 160 MB). Past that, the shares of the first wanted folds that fit
+        // are kept and each other fold's share is formed again when the fold is fitted, part of a second pass over
+        // the split's rows: still less than fitting each fold on its own (folds − 1 passes) from four folds on; with
+        // two or three folds those plain fits are as cheap.
+        let per_fold = (set.n_classes * set.p * set.p).max(1);
+        let wanted_folds = wanted.iter().filter(|&&w| w).count();
+        let kept_folds = (MAX_SHARE_VALUES / per_fold).min(wanted_folds);
+        let all_kept = kept_folds == wanted_folds;
+        if low_rank_is_cheaper(n - n / set.folds.max(1), set.p, set.folds, all_kept) {
             let (offset, shifted) = shift(set);
             let mut models = Vec::with_capacity(set.folds);
             for (f, &want) in wanted.iter().enumerate() {
@@ -87,10 +91,19 @@ impl Decoder for ShrinkageLda {
             }
             return Some(models);
         }
-        if !keep && set.folds < 4 {
+        if !all_kept && set.folds < 4 {
             return None;
         }
-        let sums = FoldSums::of(set, keep);
+        let mut budget = kept_folds;
+        let keep: Vec<bool> = wanted
+            .iter()
+            .map(|&w| {
+                let k = w && budget > 0;
+                budget -= usize::from(k);
+                k
+            })
+            .collect();
+        let sums = FoldSums::of(set, &keep);
         Some(
             (0..set.folds)
                 .map(|f| wanted[f].then(|| Box::new(sums.fit(set, Some(f))) as Box<dyn Model>))
@@ -149,8 +162,8 @@ struct FoldSums {
     /// Row-major shifted copy of the split's rows.
     shifted: Vec<f64>,
     total: Vec<Sums>,
-    /// `[fold][class]`; empty when the split has a single fold (a plain fit) or the shares are not kept.
-    share: Vec<Vec<Sums>>,
+    /// `[fold][class]` for the folds whose shares are kept, `None` for the others (and empty for a plain fit).
+    share: Vec<Option<Vec<Sums>>>,
 }
 
 /// Count, sum and scatter of the rows at `rows` of `shifted` (p values per row).
@@ -179,9 +192,9 @@ fn sums_of(shifted: &[f64], rows: &[usize], p: usize) -> Sums {
 }
 
 impl FoldSums {
-    /// The class totals of a split, and each (fold, class) share if `keep` (else [`FoldSums::fit`] forms the share
-    /// of the fold it fits again, identically).
-    fn of(set: &FoldSet, keep: bool) -> FoldSums {
+    /// The class totals of a split, and the (fold, class) shares of the folds `f` with `keep[f]` ([`FoldSums::fit`]
+    /// forms the share of any other fold it fits again, identically).
+    fn of(set: &FoldSet, keep: &[bool]) -> FoldSums {
         let (p, n) = (set.p, set.y.len());
         let (offset, shifted) = shift(set);
         let members = |wanted: &dyn Fn(usize) -> bool, k: usize| -> Vec<usize> {
@@ -208,6 +221,7 @@ impl FoldSums {
             .collect();
         let mut share = Vec::new();
         for f in 0..set.folds {
+            let kept = keep.get(f) == Some(&true);
             let mut fold = Vec::new();
             for (k, t) in total.iter_mut().enumerate() {
                 let s = sums_of(&shifted, &members(&|i| set.fold[i] == f, k), p);
@@ -216,13 +230,11 @@ impl FoldSums {
                     add(&mut t.sum, &s.sum);
                     add(&mut t.scatter, &s.scatter);
                 }
-                if keep {
+                if kept {
                     fold.push(s);
                 }
             }
-            if keep {
-                share.push(fold);
-            }
+            share.push(kept.then_some(fold));
         }
         FoldSums {
             offset,
@@ -254,7 +266,9 @@ impl FoldSums {
             let formed;
             let share = match left_out {
                 None => None,
-                Some(f) if !self.share.is_empty() => Some(&self.share[f][k]),
+                Some(f) if self.share.get(f).is_some_and(Option::is_some) => {
+                    self.share[f].as_ref().map(|fold| &fold[k])
+                }
                 Some(f) => {
                     let rows: Vec<usize> = (0..set.y.len())
                         .filter(|&i| set.y[i] == k && set.fold[i] == f)
@@ -370,11 +384,12 @@ fn shift(set: &FoldSet) -> (Vec<f64>, Vec<f64>) {
 /// n²p together) and an n × n Cholesky factor, against a p × p factor plus the split's scatters shared by its
 /// folds (np² per split, once the per-fold shares are summed).
 ///
-/// When the shares are not `kept` (see [`FoldSums::of`]) the scatters take two passes, and the p × p route's count
-/// is raised by half again: measured at 1000 trials × 1000 neurons (5 folds, 4 classes), the count favoured the
-/// p × p route (6.5 × 10⁸ against 8.1 × 10⁸) but it took 3.6–4.0 s against the Woodbury route's 3.2–3.3 s (its
-/// per-class passes over p × p matrices are not counted). At 4000 × 1000 the counts are ten times apart and the
-/// factor changes nothing.
+/// When not every wanted fold's shares are `kept` (see [`FoldSums::of`]), the scatters take (part of) a second
+/// pass, and the p × p route's count is that of two whole passes, raised by half again: measured at 1000 trials ×
+/// 1000 neurons (5 folds, 4 classes, no share kept), the count favoured the p × p route (6.5 × 10⁸ against
+/// 8.1 × 10⁸) but it took 3.6–4.0 s against the Woodbury route's 3.2–3.3 s (its per-class passes over p × p
+/// matrices are not counted); with two folds' shares kept, 1.55–1.87 s against 1.27–1.52 s (2026-12-03, 5 repeats),
+/// so the count of no share kept still chooses there. At 4000 × 1000 the counts are ten times apart.
 fn low_rank_is_cheaper(n: usize, p: usize, folds: usize, kept: bool) -> bool {
     let (n, p) = (n as f64, p as f64);
     let low_rank = n * n * p + n * n * n / 3.0;
@@ -671,7 +686,7 @@ mod tests {
             folds: 4,
             n_classes: 3,
         };
-        let sums = FoldSums::of(&set, true);
+        let sums = FoldSums::of(&set, &[true; 4]);
         for f in 0..4 {
             let by_sub = sums.fit(&set, Some(f));
             let train: Vec<usize> = (0..n).filter(|&i| fold[i] != f).collect();
@@ -688,7 +703,7 @@ mod tests {
                 folds: 1,
                 n_classes: 3,
             };
-            let direct = FoldSums::of(&direct_set, true).fit(&direct_set, None);
+            let direct = FoldSums::of(&direct_set, &[]).fit(&direct_set, None);
             assert_eq!(by_sub.predict(&x), direct.predict(&x), "fold {f}");
             // A coefficient vector depends on the origin (the offsets differ), but its difference from another
             // class's does not: that difference, and the score differences, are what the argmax reads.
@@ -731,8 +746,10 @@ mod tests {
             folds: 5,
             n_classes: 3,
         };
-        let (kept, again) = (FoldSums::of(&set, true), FoldSums::of(&set, false));
-        assert!(again.share.is_empty() && kept.share.len() == 5);
+        let keep = |k: [bool; 5]| FoldSums::of(&set, &k);
+        let (kept, again) = (keep([true; 5]), keep([false, true, false, true, false]));
+        assert!(kept.share.iter().all(Option::is_some));
+        assert_eq!(again.share.iter().filter(|s| s.is_some()).count(), 2);
         for f in 0..5 {
             let (a, b) = (kept.fit(&set, Some(f)), again.fit(&set, Some(f)));
             let bits = |m: &LdaModel| -> Vec<u64> {
@@ -780,7 +797,7 @@ mod tests {
         };
         assert!(low_rank_is_cheaper(18, p, 4, true));
         let (offset, shifted) = shift(&set);
-        let sums = FoldSums::of(&set, true);
+        let sums = FoldSums::of(&set, &[true; 4]);
         for f in 0..4 {
             let low = low_rank_fit(&set, &offset, &shifted, Some(f)).expect("shrunk classes");
             let full = sums.fit(&set, Some(f));
