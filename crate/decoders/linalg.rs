@@ -112,6 +112,15 @@ pub fn gram(z: &[f64], n: usize, p: usize) -> Vec<f64> {
     g
 }
 
+/// The upper triangle of `ZᵀZ` alone, in [`gram`]'s order of sums; the elements below the diagonal are unspecified.
+/// For callers that read no more (a Cholesky factor, sums of scatters): mirroring a wide matrix reads one column per
+/// element, which costs more than the triangle's additions.
+pub fn gram_upper_only(z: &[f64], n: usize, p: usize) -> Vec<f64> {
+    let mut g = vec![0.0; p * p];
+    gram_upper(z, n, p, &mut g);
+    g
+}
+
 /// Rows per pass of [`gram`]'s tiles: a multiple of 4, so the groups of four rows are the same in every pass.
 const GRAM_ROWS: usize = 64;
 /// Rows and columns of one tile of [`gram`] and [`cholesky`].

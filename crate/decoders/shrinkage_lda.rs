@@ -30,7 +30,9 @@
 //! ([`low_rank_fit`]); the shrinkage weights come from each class's n × n Gram matrix, since ‖ZᵀZ‖_F = ‖ZZᵀ‖_F. The
 //! route is chosen per split by the cost of each ([`low_rank_is_cheaper`]); both give the same model up to rounding.
 
-use super::linalg::{axpy, cholesky, cholesky_solve, cholesky_with_ridge, dot, gram};
+use super::linalg::{
+    axpy, cholesky, cholesky_solve, cholesky_with_ridge, dot, gram, gram_upper_only,
+};
 use super::{argmax, present_classes, Decoder, FoldSet, Model};
 
 pub struct ShrinkageLda;
@@ -149,7 +151,7 @@ impl Model for LdaModel {
     }
 }
 
-/// Count, sum of rows and scatter `Σ xxᵀ` (rows shifted by `offset`) of one group of trials.
+/// Count, sum of rows and scatter `Σ xxᵀ` (rows shifted by `offset`; upper triangle only) of one group of trials.
 struct Sums {
     n: usize,
     sum: Vec<f64>,
@@ -187,7 +189,7 @@ fn sums_of(shifted: &[f64], rows: &[usize], p: usize) -> Sums {
     Sums {
         n: rows.len(),
         sum,
-        scatter: gram(&z, rows.len(), p),
+        scatter: gram_upper_only(&z, rows.len(), p),
     }
 }
 
@@ -228,7 +230,7 @@ impl FoldSums {
                 if s.n > 0 {
                     t.n += s.n;
                     add(&mut t.sum, &s.sum);
-                    add(&mut t.scatter, &s.scatter);
+                    add_upper(&mut t.scatter, &s.scatter, p);
                 }
                 if kept {
                     fold.push(s);
@@ -528,6 +530,14 @@ fn low_rank_fit(
 fn add(total: &mut [f64], part: &[f64]) {
     for (t, v) in total.iter_mut().zip(part) {
         *t += v;
+    }
+}
+
+/// [`add`] over the upper triangles of two p × p matrices (all the scatters hold).
+fn add_upper(total: &mut [f64], part: &[f64], p: usize) {
+    for i in 0..p {
+        let row = i * p + i..(i + 1) * p;
+        add(&mut total[row.clone()], &part[row]);
     }
 }
 
