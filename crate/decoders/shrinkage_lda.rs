@@ -70,12 +70,12 @@ impl Decoder for ShrinkageLda {
 
     fn fit_folds_raw(&self, set: &FoldSet, wanted: &[bool]) -> Option<Vec<Option<Box<dyn Model>>>> {
         let n = set.y.len();
-        // Keeping one p × p scatter per (fold, class) can take more memory than a browser tab should spend (five
-        // folds of four classes at 1000 neurons: 160 MB). Past that, the shares of the first wanted folds that fit
+        // Keeping one scatter per (fold, class) can take more memory than a browser tab should spend (five folds of
+        // four classes at 1000 neurons: 80 MB as packed upper triangles). Past that, the shares of the first wanted folds that fit
         // are kept and each other fold's share is formed again when the fold is fitted, part of a second pass over
         // the split's rows: still less than fitting each fold on its own (folds − 1 passes) from four folds on; with
         // two or three folds those plain fits are as cheap.
-        let per_fold = (set.n_classes * set.p * set.p).max(1);
+        let per_fold = (set.n_classes * set.p * (set.p + 1) / 2).max(1);
         let wanted_folds = wanted.iter().filter(|&&w| w).count();
         let kept_folds = (MAX_SHARE_VALUES / per_fold).min(wanted_folds);
         let all_kept = kept_folds == wanted_folds;
@@ -155,7 +155,35 @@ impl Model for LdaModel {
 struct Sums {
     n: usize,
     sum: Vec<f64>,
+    /// Row-major p × p, or (`packed`) the upper triangle's rows one after another, p(p + 1)/2 values.
     scatter: Vec<f64>,
+    packed: bool,
+}
+
+impl Sums {
+    /// Row `i` of the scatter's upper triangle: columns `i..p`.
+    fn upper_row(&self, i: usize, p: usize) -> &[f64] {
+        if self.packed {
+            // Rows 0..i hold p + (p − 1) + … + (p − i + 1) values.
+            let start = i * p - i * i.saturating_sub(1) / 2;
+            &self.scatter[start..start + p - i]
+        } else {
+            &self.scatter[i * p + i..(i + 1) * p]
+        }
+    }
+
+    /// Keep the upper triangle only, packed (half the memory of a kept share).
+    fn pack(mut self, p: usize) -> Sums {
+        if !self.packed && !self.scatter.is_empty() {
+            let mut packed = Vec::with_capacity(p * (p + 1) / 2);
+            for i in 0..p {
+                packed.extend_from_slice(&self.scatter[i * p + i..(i + 1) * p]);
+            }
+            self.scatter = packed;
+            self.packed = true;
+        }
+        self
+    }
 }
 
 /// Per-class totals over the split and per-(fold, class) shares.
@@ -175,6 +203,7 @@ fn sums_of(shifted: &[f64], rows: &[usize], p: usize) -> Sums {
             n: 0,
             sum: Vec::new(),
             scatter: Vec::new(),
+            packed: false,
         };
     }
     let mut z = Vec::with_capacity(rows.len() * p);
@@ -190,6 +219,7 @@ fn sums_of(shifted: &[f64], rows: &[usize], p: usize) -> Sums {
         n: rows.len(),
         sum,
         scatter: gram_upper_only(&z, rows.len(), p),
+        packed: false,
     }
 }
 
@@ -219,6 +249,7 @@ impl FoldSums {
                 n: 0,
                 sum: vec![0.0; p],
                 scatter: vec![0.0; p * p],
+                packed: false,
             })
             .collect();
         let mut share = Vec::new();
@@ -233,7 +264,7 @@ impl FoldSums {
                     add_upper(&mut t.scatter, &s.scatter, p);
                 }
                 if kept {
-                    fold.push(s);
+                    fold.push(s.pack(p));
                 }
             }
             share.push(kept.then_some(fold));
@@ -303,7 +334,7 @@ impl FoldSums {
                         }
                     }
                     Some(s) => {
-                        let part = &s.scatter[range];
+                        let part = s.upper_row(i, p);
                         for (((o, a), b), mj) in out.iter_mut().zip(total).zip(part).zip(&mean[i..])
                         {
                             *o = (a - b) - m * mj;
