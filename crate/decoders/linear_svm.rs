@@ -10,10 +10,11 @@
 //! deterministic (it uses none of the recipe's random streams) yet free of the slow convergence of a cyclic order.
 //!
 //! The dual has one variable per training trial. When a fold has more than three trials per feature (+1 for the
-//! intercept; the crossover measured in `primal_is_cheaper`), the same objective is smaller in the primal, and dual coordinate descent can crawl there (measured on invented
-//! 232 × 52 data: hundreds of passes per fit, as scikit-learn's dual LinearSVC also reports). Those fits use the
-//! finite Newton method for the primal squared-hinge objective (Keerthi & DeCoste, JMLR 2005): each step solves
-//! `(I + 2C·X̃ᵢᵀX̃ᵢ) d = −∇f` over the trials inside the margin, with a backtracking line search. Both routes minimise
+//! intercept; the crossover measured in `primal_is_cheaper`), the same objective is smaller in the primal, and dual
+//! coordinate descent can crawl there (measured on invented 232 × 52 data: hundreds of passes per fit, as
+//! scikit-learn's dual LinearSVC also reports). Those fits use the finite Newton method for the primal
+//! squared-hinge objective (Keerthi & DeCoste, JMLR 2005): each step solves `(I + 2C·X̃ᵢᵀX̃ᵢ) d = −∇f` over the
+//! trials inside the margin, then goes to the exact minimum along d ([`exact_step`]). Both routes minimise
 //! the same strictly convex function, so they reach the same decoder; the choice only saves time (the same choice
 //! scikit-learn's LinearSVC makes with `dual="auto"` at one trial per feature, scikit-learn 1.9 documentation).
 
@@ -293,7 +294,7 @@ multiversion! {
                     grad[p] -= 2.0 * c * slack * signs[i];
                 }
             }
-                // The Hessian matrix is only read when the factor is made again: it is brought up to date then.
+            // The Hessian matrix is only read when the factor is made again: it is brought up to date then.
             let norm = dot_wide(&grad, &grad).sqrt();
             let first = *first_norm.get_or_insert(norm);
             if norm <= NEWTON_TOLERANCE * first.max(1.0) {

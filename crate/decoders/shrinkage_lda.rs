@@ -37,7 +37,7 @@ use super::{argmax, present_classes, Decoder, FoldSet, Model};
 
 pub struct ShrinkageLda;
 
-/// Most values the per-(fold, class) scatters of the fold shortcut may hold (8 M doubles, 64 MB).
+/// Most values the kept per-(fold, class) scatters of the fold shortcut may hold (8 Mi doubles, 64 MiB).
 const MAX_SHARE_VALUES: usize = 8 << 20;
 
 struct LdaModel {
@@ -71,10 +71,10 @@ impl Decoder for ShrinkageLda {
     fn fit_folds_raw(&self, set: &FoldSet, wanted: &[bool]) -> Option<Vec<Option<Box<dyn Model>>>> {
         let n = set.y.len();
         // Keeping one scatter per (fold, class) can take more memory than a browser tab should spend (five folds of
-        // four classes at 1000 neurons: 80 MB as packed upper triangles). Past that, the shares of the first wanted folds that fit
-        // are kept and each other fold's share is formed again when the fold is fitted, part of a second pass over
-        // the split's rows: still less than fitting each fold on its own (folds − 1 passes) from four folds on; with
-        // two or three folds those plain fits are as cheap.
+        // four classes at 1000 neurons: 80 MB as packed upper triangles). Past that, the shares of the first wanted
+        // folds that fit are kept and each other fold's share is formed again when the fold is fitted, part of a
+        // second pass over the split's rows: still less than fitting each fold on its own (folds − 1 passes) from
+        // four folds on; with two or three folds those plain fits are as cheap.
         let per_fold = (set.n_classes * set.p * (set.p + 1) / 2).max(1);
         let wanted_folds = wanted.iter().filter(|&&w| w).count();
         let kept_folds = (MAX_SHARE_VALUES / per_fold).min(wanted_folds);
