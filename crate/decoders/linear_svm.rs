@@ -14,7 +14,7 @@
 //! coordinate descent can crawl there (measured on invented 232 × 52 data: hundreds of passes per fit, as
 //! scikit-learn's dual LinearSVC also reports). Those fits use the finite Newton method for the primal
 //! squared-hinge objective (Keerthi & DeCoste, JMLR 2005): each step solves `(I + 2C·X̃ᵢᵀX̃ᵢ) d = −∇f` over the
-//! trials inside the margin, then goes to the exact minimum along d ([`exact_step`]). Both routes minimise
+//! trials inside the margin, then goes to the exact minimum along d (`exact_step`). Both routes minimise
 //! the same strictly convex function, so they reach the same decoder; the choice only saves time (the same choice
 //! scikit-learn's LinearSVC makes with `dual="auto"` at one trial per feature, scikit-learn 1.9 documentation).
 
