@@ -578,6 +578,32 @@ mod tests {
         assert!((b[0] - 0.5).abs() < 1e-12 && b[1].abs() < 1e-12, "{b:?}");
     }
 
+    /// `dot_wide` adds in the order its documentation states (sums by index mod 16, folded in halves, then the
+    /// tail), bit for bit, at lengths with and without a tail; and on small integers it is exact.
+    #[test]
+    fn wide_dot_product_adds_in_its_documented_order() {
+        for n in [0, 1, 15, 16, 17, 37, 100] {
+            let a: Vec<f64> = (0..n).map(|i| (i as f64 * 0.731).sin() * 1e3).collect();
+            let b: Vec<f64> = (0..n).map(|i| (i as f64 * 1.37).cos() / 7.0).collect();
+            let full = n / 16 * 16;
+            let mut s = [0.0f64; 16];
+            for i in 0..full {
+                s[i % 16] += a[i] * b[i];
+            }
+            let s8: Vec<f64> = (0..8).map(|l| s[l] + s[l + 8]).collect();
+            let s4: Vec<f64> = (0..4).map(|l| s8[l] + s8[l + 4]).collect();
+            let s2 = [s4[0] + s4[2], s4[1] + s4[3]];
+            let mut expected = s2[0] + s2[1];
+            for i in full..n {
+                expected += a[i] * b[i];
+            }
+            assert_eq!(dot_wide(&a, &b).to_bits(), expected.to_bits(), "length {n}");
+        }
+        let ints: Vec<f64> = (1..=50).map(f64::from).collect();
+        // Σ i² for i = 1..50 = 50·51·101/6.
+        assert_eq!(dot_wide(&ints, &ints), 42925.0);
+    }
+
     #[test]
     fn rank_one_update_and_downdate_match_refactoring() {
         // A = [[4, 2], [2, 3]], x = (1, 2): A + xxᵀ = [[5, 4], [4, 7]].
