@@ -78,6 +78,8 @@ if [ -x scripts/build-web.sh ] && [ -d tests/browser ]; then
     # The timeout bounds a test file as a whole too (node runs each file as a test): a file whose tests take
     # longer is cancelled, and its cancelled tests count as failed below.
     node --test --test-timeout=900000 --test-reporter=spec tests/browser/ 2>&1 | tee test-output/browser.log | grep -E '^ℹ (pass|fail|cancelled)|✖' | head -40
+    # A failure's assertion and where it was raised, so a CI log says why without the log file.
+    sed -n '/^✖ failing tests:/,$p' test-output/browser.log | grep -vE '^ *at .*node:internal' | head -80
     p=$(grep -Eo '^ℹ pass [0-9]+' test-output/browser.log | grep -Eo '[0-9]+'); passed=$((passed + ${p:-0}))
     f=$(grep -Eo '^ℹ fail [0-9]+' test-output/browser.log | grep -Eo '[0-9]+'); failed=$((failed + ${f:-0}))
     c=$(grep -Eo '^ℹ cancelled [0-9]+' test-output/browser.log | grep -Eo '[0-9]+'); failed=$((failed + ${c:-0}))
