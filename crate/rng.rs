@@ -28,7 +28,7 @@ pub enum Stream {
     /// The balanced draw of trials a neuron analysis fits its weights on.
     Weights = 7,
     /// A repeat inside one shuffle of the temporal generalization matrix whose null permutes only the training
-    /// labels: the split of the observed labels, then each training fold's permutation.
+    /// labels: the split of the observed labels (and, with pseudo-trials, each training fold's permutation).
     TrainingShuffle = 8,
     /// The seed of each session of a study, from the study's seed and the session's name.
     Session = 9,
@@ -40,6 +40,9 @@ pub enum Stream {
     NoiseNeurons = 12,
     /// The seed of one power-analysis subsample's own protocol (its repeats and shuffles).
     PowerProtocol = 13,
+    /// The training labels of one shuffle of the temporal generalization matrix's training-label null: one
+    /// permutation of the observed labels, shared by the shuffle's repeats.
+    TrainingLabels = 14,
 }
 
 /// A generator for task `(a, b)` of kind `kind` under `seed`.

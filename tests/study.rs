@@ -244,6 +244,52 @@ fn a_pooled_time_course_finds_the_windows_that_hold_information() {
         .any(|w| w.contains("noise correlations")));
 }
 
+/// The temporal generalization matrix of a pooled time course: its training-label null runs one repeat per shuffle
+/// (pseudo-trials are dealt anew in every repeat, so no fixed training labels can recur across repeats), which
+/// the methods paragraph says; the cells trained and tested while the odour is there are found, and no cell
+/// trained before odour onset is significant.
+#[test]
+fn a_pooled_generalization_matrix_uses_one_repeat_per_shuffle_for_its_null() {
+    let sessions = vec![
+        ("A".to_string(), timed_session((0.0, 0.3), 21)),
+        ("B".to_string(), timed_session((0.0, 0.3), 22)),
+    ];
+    let mut recipe = Recipe::new("odour");
+    recipe.classifier = Classifier::ShrinkageLda;
+    recipe.repeats = 4;
+    recipe.shuffles = 60;
+    recipe.shuffle_repeats = Some(3);
+    let mut settings = TimeSettings::binned("trial", "time");
+    settings.generalize = true;
+    recipe.time = Some(settings);
+    let plan = popdecode::analyses::time_course::TimePlan::pooled(sessions, &recipe).unwrap();
+    // Progress counts the curve's 3 repeats and the matrix null's one.
+    let per_repeat = 5 * plan.n_windows();
+    let shuffle = popdecode::resample::Task::Shuffle(0);
+    assert_eq!(plan.fits_in(shuffle), per_repeat * 4);
+    let report = popdecode::analyses::time_course::run_all(&plan);
+    let g = report.generalization.as_ref().expect("the matrix");
+    let at = |t: f64| {
+        report
+            .windows
+            .iter()
+            .position(|w| (w.time - t).abs() < 1e-9)
+            .unwrap()
+    };
+    assert!(g.significant[at(0.15)][at(0.15)], "{:?}", g.significant);
+    let before = at(-0.05);
+    assert!(
+        g.significant[..=before].iter().flatten().all(|&s| !s),
+        "{:?}",
+        g.significant
+    );
+    let methods = popdecode::analyses::time_course::methods::paragraph(&report);
+    assert!(
+        methods.contains("one repeat per permutation, a conservative null"),
+        "{methods}"
+    );
+}
+
 /// Training and test pseudo-trials never share a real trial, and a pseudo-trial takes the same real trials at every
 /// window: every value is unique to its (session, trial, neuron, window), so it betrays where it came from.
 #[test]

@@ -23,8 +23,8 @@ pub struct TimeSettings {
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum GeneralizationNull {
-    /// Permute only the training trials' labels, within each training fold, and keep the test trials' labels: a
-    /// cell is significant only when what was learnt at its training window generalizes (the default).
+    /// Permute only the training trials' labels (once per shuffle, for all its repeats) and keep the test trials'
+    /// labels: a cell is significant only when what was learnt at its training window generalizes (the default).
     TrainingLabels,
     /// Permute every trial's label, as for the decoding curve (information is removed at every window at once).
     AllLabels,

@@ -6,6 +6,7 @@ use crate::recipe::GeneralizationNull;
 use crate::recipe::TimeInput;
 use crate::report::methods::{class_counts, fitting, resampling};
 use crate::report::text::{at_floor, floor_note, p_text, pct, seconds as s};
+use crate::resample::Split;
 
 fn score_name(r: &TimeReport) -> &'static str {
     r.design.headline.name()
@@ -136,13 +137,24 @@ pub fn paragraph(r: &TimeReport) -> String {
         ));
         if let Some(g) = &r.generalization {
             out.push(match g.null_method {
+                GeneralizationNull::TrainingLabels if matches!(r.design.split, Split::Pseudo { .. }) => format!(
+                    "For the generalization matrix, each of the {} permutations instead permuted only the training \
+                     pseudo-trials' labels, within each training fold of one repeat (balancing and folds drawn from \
+                     the observed labels, one permutation shared by every window), and tested on the held-out \
+                     pseudo-trials with their observed labels, so that a cell's null is a decoder trained without \
+                     information at its training window meeting the observed data at its testing window; one \
+                     repeat per permutation, a conservative null for a mean over repeats.",
+                    r.shuffle.count
+                ),
                 GeneralizationNull::TrainingLabels => format!(
                     "For the generalization matrix, each of the {} permutations instead permuted only the training \
-                     trials' labels, within each training fold (balancing and folds drawn from the observed labels, \
-                     one permutation per fold shared by every window), and tested on the held-out trials with \
+                     trials' labels: one permutation of the labels{} per permutation, shared by its repeats, folds \
+                     and windows as the observed labels are, with balancing and folds drawn from the observed \
+                     labels; the decoders were trained on the permuted labels and tested on the held-out trials with \
                      their observed labels, so that a cell's null is a decoder trained without information at its \
                      training window meeting the observed data at its testing window.",
-                    r.shuffle.count
+                    r.shuffle.count,
+                    if r.input.group_column.is_some() { " within each group" } else { "" }
                 ),
                 GeneralizationNull::AllLabels => "The generalization matrix used the same permutations of every \
                      label as the curve."

@@ -17,7 +17,7 @@
 //!   `window_start`, `window_end` (edges, s), `first_window`, `last_window`, `mass`, `p_value`, `significant`}
 //! * `onset`: {`time`, `window`, `window_start`} of the first window of the earliest significant cluster, or null
 //! * `generalization` (null unless asked): {`null_method` ("training-labels": each shuffle permuted only the
-//!   training trials' labels, within each training fold, and kept the test labels; "all-labels": each shuffle
+//!   training trials' labels, once for all its repeats, and kept the test labels; "all-labels": each shuffle
 //!   permuted every label, the curve's own null), `scores` (rows = training window, columns = testing window,
 //!   headline mean over repeats), `null_p95` (same shape, null when no shuffles), `null_max_mass`, `clusters`
 //!   [{`train_start`, `train_end`, `test_start`, `test_end` (window centres, s), `cells`, `mass`, `p_value`,
@@ -41,8 +41,8 @@ pub const TIME_SCHEMA: &str = "popdecode-timecourse/1";
 pub fn generalization_caveat(null: GeneralizationNull) -> &'static str {
     match null {
         GeneralizationNull::TrainingLabels => {
-            "temporal generalization: the matrix's null permuted only the training trials' labels (within each \
-             training fold) and kept the test trials' labels, so a cell is significant only when what the decoder \
+            "temporal generalization: the matrix's null permuted only the training trials' labels (one \
+             permutation per shuffle, shared by its repeats) and kept the test trials' labels, so a cell is significant only when what the decoder \
              learnt at its training window generalizes to its testing window; still, a cluster shows that \
              information generalizes somewhere inside it, not at each of its cells (Sassenhagen & Draschkow, \
              2019), so read the edges of off-diagonal clusters as approximate"
