@@ -77,6 +77,10 @@ test('file chooser and drag-and-drop both load a file', async () => {
   await b.page.waitForFunction(() => document.getElementById('file-summaries').textContent.startsWith('dropped.csv'));
   assert.match(await b.page.textContent('#file-summaries'), /semicolon-separated/);
   await quickSettings(b.page, { repeats: 3, shuffles: 0 });
+  // The command-line footer wraps between options, never inside one ("-" at a line's end, "-shuffles" below).
+  await b.page.waitForFunction(() => / --shuffles 0/.test(document.getElementById('cli-line').textContent));
+  assert.deepEqual(await b.page.locator('#cli-line .unbroken').evaluateAll((spans) => spans
+    .filter((s) => s.textContent.startsWith('--shuffles')).map((s) => [s.textContent, getComputedStyle(s).whiteSpace])), [['--shuffles 0', 'nowrap']]);
   const headline = await runAndWait(b.page);
   assert.match(headline, /'stimulus' decoded at .* no shuffle control run\./);
   assertLocalOnly(assert, b.requests, server.origin);
@@ -175,6 +179,8 @@ test('a malformed file gets a clear message and the page keeps working', async (
   await b.page.waitForSelector('#data-error:not([hidden])');
   assert.equal((await b.page.textContent('#data-error')).trim(), "broken.csv, line 4, column 'n2': 'oops' is not a number");
   assert.equal(await b.page.isDisabled('#start'), true);
+  // The run section says why nothing can run, and what to do.
+  assert.match(await b.page.textContent('#estimate'), /Nothing can run on the data as it is set up: the message in the Data section says why/);
   await shot(b.page, 'malformed');
   const ragged = join(tmp, 'ragged.csv');
   writeFileSync(ragged, 'odour,n1,n2\na,1,2\nb,3\n');

@@ -50,7 +50,9 @@
     const { recipe, problems } = PD.readRecipe();
     PD.showProblems(problems);
     S.check = { seq: mine, recipe, plan: null, header: null, problems, error: null };
-    $('cli-line').textContent = PD.cliLine(recipe);
+    // Each option with its value in a span that does not wrap, so a line never breaks inside "--shuffles".
+    $('cli-line').replaceChildren(...PD.cliLine(recipe).split(/ (?=--)/)
+      .flatMap((part, i) => [...(i ? [' '] : []), PD.el('span', part, 'unbroken')]));
     PD.emit('checked');
     if (!PD.dataReady()) { drawPlan(); PD.updateButtons(); return; }
     if (problems.length) { drawPlan(); PD.updateButtons(); return; }
@@ -206,6 +208,10 @@
     if (!c || !c.plan) {
       if (!PD.dataReady()) estimate.textContent = 'Load data to run.';
       else if (c && c.problems.length) estimate.textContent = 'Some settings need attention (marked beside them).';
+      else if (c && c.error) {
+        estimate.textContent = 'Nothing can run on the data as it is set up: the message in the Data section says why. ' +
+          'Correct the file and load it again, or leave out the column it names.';
+      }
       return;
     }
     const { plan, recipe } = c;

@@ -186,7 +186,8 @@
         p.textContent = `${f.name}: spike events, ${PD.bytes(f.size)}, ${i.delimiter}-separated; columns ${i.headers.join(', ')}`;
       } else {
         p.textContent = `${f.name}${slot === 'trials' ? ' (trial table)' : ''}: ${i.rows.toLocaleString('en')} rows × ` +
-          `${i.headers.length.toLocaleString('en')} columns, ${i.delimiter}-separated${i.decimal_comma ? ' with decimal commas' : ''}; SHA-256 ${i.sha256}`;
+          `${i.headers.length.toLocaleString('en')} columns, ${i.delimiter}-separated` +
+          `${i.decimal_comma ? ' (a comma inside a number is read as its decimal point)' : ''}; SHA-256 ${i.sha256}`;
       }
       box.appendChild(p);
       previews.appendChild(slot === 'nwb' ? nwbTable(i) : previewTable(f));
