@@ -42,6 +42,8 @@ test('example run matches the command line byte for byte', async () => {
   assert.match(headline, /'odour' decoded at \d+\.\d % accuracy \(95 % CI \d+\.\d–\d+\.\d %; mean over \d+ cross-validation repeats; chance 25\.0 %\), p [=≤] .* over 6 shuffles/);
   const methods = await b.page.textContent('#views .methods');
   assert.match(methods, /SHA-256 [0-9a-f]{64}/);
+  // The example holds sessions out in turn: the settings it came from say so, not "folds 5".
+  assert.match(await b.page.textContent('#views .provenance'), /leave one ‘session’ out \(the Folds setting, 5, not used\); 4 repeats/);
   assert.deepEqual(b.errors, []);
   assertLocalOnly(assert, b.requests, server.origin);
   await b.context.close();

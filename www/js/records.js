@@ -119,7 +119,8 @@
       return `${f.name}${sha ? ` (SHA-256 ${sha})` : ''}`;
     }).join(' and ');
     p.appendChild(el('strong', 'From '));
-    p.appendChild(document.createTextNode(`${files}, with ${PD.describeSettings(record.recipe)}` +
+    const report = record.kind === 'compare' ? null : record.result.report;
+    p.appendChild(document.createTextNode(`${files}, with ${PD.describeSettings(record.recipe, report && report.design)}` +
       (record.draws ? `; ${record.draws} random subsets per size` : '') +
       `. Finished at ${PD.clock(record.finished)} in ${record.seconds.toFixed(1)} s.`));
     return p;

@@ -307,10 +307,14 @@
     return parts.join(' ');
   };
 
-  // The recipe's settings in words, for a record's heading and for saying what changed since.
-  PD.describeSettings = function (r) {
+  // The recipe's settings in words, for a record's heading and for saying what changed since. `design`, when
+  // given, is the design the run used (its report's `design`): a split that ignores the Folds setting says so.
+  PD.describeSettings = function (r, design) {
     const parts = [PD.DECODER_NAMES[r.classifier] + (r.tune ? ', C chosen inside each training fold' : PD.WITH_C.includes(r.classifier) ? `, C = ${r.c}` : '')];
-    parts.push(`folds ${r.folds}`, PD.count(r.repeats, 'repeat'), PD.count(r.shuffles, 'shuffle'), `seed ${r.seed}`);
+    const split = design && design.split;
+    const folds = split === 'leave_one_group_out' ? `leave one ‘${r.columns.group}’ out (the Folds setting, ${r.folds}, not used)`
+      : split === 'leave_one_out' ? 'leave-one-out' : `folds ${r.folds}`;
+    parts.push(folds, PD.count(r.repeats, 'repeat'), PD.count(r.shuffles, 'shuffle'), `seed ${r.seed}`);
     if (!r.balance) parts.push('classes not balanced');
     if (r.pairwise) parts.push('every pair of conditions also decoded on its own');
     parts.push(`label ‘${r.columns.label}’` + (r.columns.group ? `, groups ‘${r.columns.group}’` : '') +
