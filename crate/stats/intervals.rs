@@ -30,7 +30,7 @@ pub const LEVEL: f64 = 0.95;
 
 /// What the JSON names the method by.
 pub const METHOD: &str =
-    "wider at each end of the Wilson interval on the pooled test trials (Wilson 1927) and the \
+    "at each end, the wider of two intervals: Wilson's on the pooled test trials (Wilson 1927) and the \
      corrected resampled t over the fold scores of every repeat (Nadeau & Bengio 2003)";
 
 /// The reported interval at [`LEVEL`] for a score averaged over repeats (`centre`): the wider at each end of the

@@ -9,6 +9,10 @@ import { join } from 'node:path';
 import { tmpdir } from 'node:os';
 import { serve, browser, closeAll, assertLocalOnly, shot, quickSettings, runAndWait, downloadText, cli, ROOT, SLOW } from './helpers.mjs';
 
+// A p- or q-value as the command line's text writes it (three decimals; two significant digits in exponent form
+// below 0.001), which the page's tables follow so that they agree with the headline.
+const coreP = (v) => (v < 0.001 ? v.toExponential(1) : v.toFixed(3));
+
 let server;
 before(async () => { server = await serve(); });
 after(async () => { await closeAll(); await server.close(); });
@@ -82,7 +86,7 @@ test('pairwise decoding: the page\'s JSON is the command line\'s, and every inte
     assert.deepEqual([scores[i][4], scores[i][5]], [pct(s[key].p2_5), pct(s[key].p97_5)]);
   }
   assert.equal(scores.length, 3, 'four classes: no AUC row');
-  assert.equal(await page.textContent('#views .view .ci-method'), `95 % confidence interval of the mean, computed as the ${s.accuracy.ci_method}.`);
+  assert.equal(await page.textContent('#views .view .ci-method'), `95 % confidence interval of the mean: ${s.accuracy.ci_method}.`);
   // Effect size: κ and its interval.
   const effect = await page.$$eval('#views .view table', (ts) => {
     const t = ts.find((x) => /Effect size/.test(x.caption.textContent));
@@ -97,7 +101,7 @@ test('pairwise decoding: the page\'s JSON is the command line\'s, and every inte
   r.classes.forEach((c, i) => {
     const p = r.shuffle.recall_p_values[i];
     assert.deepEqual(recall[i + 1], [c, String(r.class_counts[i]), pct(s.recall[i]),
-      (Math.abs(p - 1 / (r.shuffle.count + 1)) < 1e-12 ? '≤ ' : '') + p.toPrecision(3)]);
+      (Math.abs(p - 1 / (r.shuffle.count + 1)) < 1e-12 ? '≤ ' : '') + coreP(p)]);
   });
   // Every pair, in the JSON's order, with its interval, p and q.
   const pairs = await cells(page, 'table.pairwise');
@@ -113,7 +117,7 @@ test('pairwise decoding: the page\'s JSON is the command line\'s, and every inte
     assert.equal(row[1], pct(sp.mean));
     assert.equal(row[2], `${pct(sp.ci[0])} to ${pct(sp.ci[1])}`);
     assert.equal(row[3], pct(p.auc.mean));
-    assert.equal(row[5], p.q_value.toPrecision(3));
+    assert.equal(row[5], coreP(p.q_value));
     assert.equal(row[6], p.discovery ? 'yes' : 'no');
   });
   assert.ok(await page.isVisible('#views [data-figure=pairwise] img'), 'the pairwise heatmap is shown');
@@ -224,8 +228,8 @@ test('single neurons: p- and q-values shown are the JSON\'s, with the winner\'s 
     const row = rows[i + 1];
     assert.equal(row[0], n.neuron);
     assert.equal(row[1], pct(n[r.headline].mean));
-    assert.equal(row[3], (Math.abs(n.p_value - 1 / 5) < 1e-12 ? '≤ ' : '') + n.p_value.toPrecision(3));
-    assert.equal(row[4], n.q_value.toPrecision(3));
+    assert.equal(row[3], (Math.abs(n.p_value - 1 / 5) < 1e-12 ? '≤ ' : '') + coreP(n.p_value));
+    assert.equal(row[4], coreP(n.q_value));
     assert.equal(row[5], n.discovery ? 'yes' : 'no');
   });
   const shown = await page.$$eval('#views .view ul.warnings li', (lis) => lis.map((li) => li.textContent));

@@ -14,7 +14,7 @@
 //!   - `accuracy`, `balanced_accuracy`, each {`mean` over cross-validation repeats; `sd`, `p2_5`, `p97_5`: the
 //!     variability over those repeats (SD and 2.5th/97.5th percentiles), which reflects how the trials were
 //!     split and is not a confidence interval; `ci`: [low, high], the 95 % confidence interval of the mean;
-//!     `ci_method`: how it was computed (the wider at each end of a Wilson interval on the test trials of a
+//!     `ci_method`: how it was computed (at each end, the wider of a Wilson interval on the test trials of a
 //!     repeat and the corrected resampled t over the fold scores of every repeat, [`crate::stats::intervals`])}
 //!   - `confusion` (rows = true class, each row normalised to sum 1, averaged over repeats), `recall` (per class)
 //!   - `effect_size` {`score` ("accuracy" or "balanced_accuracy", the headline), `above_chance` (mean − chance),

@@ -168,8 +168,16 @@ pub fn render(r: &Report) -> String {
         write!(out, " {:>9}", "p").unwrap();
     }
     out.push_str(" |");
+    // Confusion columns as wide as the longest class name, from 7 up to 12 characters (longer names are cut).
+    let col = r
+        .classes
+        .iter()
+        .map(|c| c.chars().count())
+        .max()
+        .unwrap_or(0)
+        .clamp(7, 12);
     for c in &r.classes {
-        write!(out, " {:>7}", clip(c, 7)).unwrap();
+        write!(out, " {:>col$}", clip(c, col)).unwrap();
     }
     out.push('\n');
     for (i, c) in r.classes.iter().enumerate() {
@@ -191,7 +199,7 @@ pub fn render(r: &Report) -> String {
         }
         out.push_str(" |");
         for v in &r.summary.confusion[i] {
-            write!(out, " {:>7}", format!("{:.1}", 100.0 * v)).unwrap();
+            write!(out, " {:>col$}", format!("{:.1}", 100.0 * v)).unwrap();
         }
         out.push('\n');
     }

@@ -15,7 +15,7 @@
     { name: 'curve', svg: res.plots.curve, title: 'Pooled curve over time', alt: 'Pooled population\'s score at each time window' },
   ];
 
-  const p3 = (v) => (v === null || v === undefined ? '—' : v.toPrecision(3));
+  const p3 = PD.pText;
 
   function groupTable(view, r) {
     const g = r.group;

@@ -16,7 +16,7 @@
   const head = (text) => ({ text, cls: 'text', header: true });
   const words = (text) => ({ text, cls: 'text' });
   const range = (ci) => (ci ? `${pct(ci[0])} to ${pct(ci[1])}` : '—');
-  const p3 = (v) => (v === null || v === undefined ? '—' : v.toPrecision(3));
+  const p3 = PD.pText;
   // A p-value as the core means it: the smallest value m shuffles can give says "at most".
   const pShown = (v, m) => (v === null || v === undefined ? '—' : (Math.abs(v - 1 / (m + 1)) < 1e-12 ? '≤ ' : '') + p3(v));
   const SCORE_WORDS = { accuracy: 'accuracy', balanced_accuracy: 'balanced accuracy' };
@@ -39,7 +39,7 @@
       t.classList.add('scores');
       const methods = ciMethods([s.accuracy, s.balanced_accuracy]);
       const notes = el('ul', null, 'notes');
-      methods.forEach((m) => notes.appendChild(el('li', `95 % confidence interval of the mean, computed as the ${m}.`, 'ci-method')));
+      methods.forEach((m) => notes.appendChild(el('li', `95 % confidence interval of the mean: ${m}.`, 'ci-method')));
       if (s.auc) {
         notes.appendChild(el('li', `Area under the ROC curve: ${s.auc_pooling}${s.auc.ci ? '' : '; no confidence interval is computed for it'}.`));
       }
