@@ -64,7 +64,8 @@ pub fn render(r: &TimeReport) -> String {
     if let Some(o) = &r.onset {
         writeln!(
             out,
-            "onset: {} s (first window of the earliest significant cluster, starting at {} s); {ONSET_CAVEAT}.\n",
+            "onset: {} s (the centre of the first window of the earliest significant cluster; that window \
+             starts at {} s); {ONSET_CAVEAT}.\n",
             s(o.time),
             s(o.window_start)
         )

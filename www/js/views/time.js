@@ -36,7 +36,7 @@
     view.appendChild(el('p', res.headline, 'headline'));
     PD.notes(view, r);
     view.appendChild(el('p', r.onset
-      ? `Onset: ${r.onset.time} s, the first window of the earliest significant cluster (approximate: a cluster test does not date an onset precisely).`
+      ? `Onset: ${r.onset.time} s, the centre of the first window of the earliest significant cluster (which starts at ${r.onset.window_start} s; approximate: a cluster test does not date an onset precisely).`
       : (r.shuffle.count ? 'No significant cluster, so no onset.' : 'No shuffles were run, so nothing is tested.')));
     PD.figures(view, FIGURES(res), ex);
     TABLES.forEach((t) => t(view, r));
