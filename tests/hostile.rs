@@ -272,6 +272,7 @@ fn fits_per_task_are_checked_before_the_plan_runs() {
     let mut r = recipe("odour", 1);
     r.folds = Folds::LeaveOneOut;
     r.shuffles = 1;
+    r.repeats = 100_000;
     r.shuffle_repeats = Some(100_000);
     let mut t = TimeSettings::events(0.0, 1.0);
     if let TimeInput::Events { width, step, .. } = &mut t.input {

@@ -133,6 +133,13 @@
     recipe.balance = $('balance').checked;
     recipe.shuffles = whole('shuffles', 'Shuffles', 0);
     recipe.shuffle_repeats = $('shuffle-repeats').value.trim() === '' ? null : whole('shuffle-repeats', 'Repeats per shuffle (or empty)', 1);
+    // As the core requires (crate/recipe/mod.rs, `validate`): a null averaging more repeats than the observed
+    // score would be too narrow.
+    if (recipe.shuffles > 0 && Number.isInteger(recipe.shuffle_repeats) && Number.isInteger(recipe.repeats) &&
+      recipe.shuffle_repeats > recipe.repeats) {
+      problems.push(['shuffle-repeats', `Repeats per shuffle must be at most the Repeats (${recipe.repeats}): a shuffle ` +
+        'averaging more repeats than the observed score would vary less than it, and its p-value would be too small.']);
+    }
     recipe.seed = whole('seed', 'Seed', 0);
     // Written only when on, as the core writes a recipe (a recipe without it is not pairwise).
     if (S.kind === 'table' && $('pairwise').checked) recipe.pairwise = true;
