@@ -54,6 +54,14 @@ impl Headline {
             Headline::BalancedAccuracy => "balanced accuracy",
         }
     }
+
+    /// This score, of a pair (accuracy, balanced accuracy).
+    pub fn of(self, accuracy: f64, balanced_accuracy: f64) -> f64 {
+        match self {
+            Headline::Accuracy => accuracy,
+            Headline::BalancedAccuracy => balanced_accuracy,
+        }
+    }
 }
 
 /// How folds are made, as resolved against the data.
@@ -374,10 +382,7 @@ impl Scheme {
 
     /// The score a run is judged by, from accuracy and balanced accuracy.
     pub fn headline_of(&self, accuracy: f64, balanced_accuracy: f64) -> f64 {
-        match self.headline {
-            Headline::Accuracy => accuracy,
-            Headline::BalancedAccuracy => balanced_accuracy,
-        }
+        self.headline.of(accuracy, balanced_accuracy)
     }
 }
 
