@@ -245,6 +245,14 @@ fn over_time_generalization_is_found_where_the_shared_code_is() {
     for (i, c) in curve.iter().enumerate() {
         assert_eq!(g.scores[i][i], *c, "diagonal at window {i}");
     }
+    // The matrix's null permutes every label: its caveat is in the warnings (JSON, text, page) and the methods.
+    let caveat = popdecode::analyses::across::report::MATRIX_NULL_CAVEAT;
+    assert!(report.warnings.iter().any(|w| w == caveat));
+    let methods = popdecode::analyses::across::methods::time_paragraph(&report);
+    assert!(
+        methods.contains(&format!("Caution: {caveat}.")),
+        "{methods}"
+    );
 }
 
 /// Outcomes through JSON in reverse order give the bytes outcomes in order give (the page's workers against the

@@ -1,7 +1,9 @@
 //! The methods paragraph of generalization across conditions.
 
 use super::plan::WithinSplit;
-use super::report::{AcrossDesign, AcrossInput, AcrossReport, AcrossTimeReport, SetBalance};
+use super::report::{
+    AcrossDesign, AcrossInput, AcrossReport, AcrossTimeReport, SetBalance, MATRIX_NULL_CAVEAT,
+};
 use super::text::arrow;
 use crate::analyses::over_time::{cluster_sentence, windows_sentence};
 use crate::analyses::time_course::report::ONSET_CAVEAT;
@@ -256,6 +258,9 @@ pub fn time_paragraph(r: &AcrossTimeReport) -> String {
              set was tested on the testing set at every window."
                 .into(),
         );
+        if r.shuffle.count > 0 {
+            out.push(format!("Caution: {MATRIX_NULL_CAVEAT}."));
+        }
     }
     out.push(format!(
         "The {} was averaged over assignments and repeats at each window; chance was {}.",

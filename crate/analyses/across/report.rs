@@ -52,6 +52,16 @@ use serde::{Deserialize, Serialize};
 pub const ACROSS_SCHEMA: &str = "popdecode-across/1";
 pub const ACROSS_TIME_SCHEMA: &str = "popdecode-across-timecourse/1";
 
+/// What a temporal generalization matrix across conditions says about its cells: its null permutes every label,
+/// so it has the weakness the time course's all-labels null has (`time_course::report::generalization_caveat`);
+/// the time course's training-label null is not built for generalization across conditions yet.
+pub const MATRIX_NULL_CAVEAT: &str = "temporal generalization across conditions: the matrix's permutations \
+     shuffled every label, training and testing trials alike, so where the testing window carries information a \
+     decoder trained at a window without any can score away from chance by a chance alignment with it, and cells \
+     trained before any information can come out significant (the time course's null that permutes only the \
+     training labels, which does not have this problem, is not available across conditions yet); read \
+     off-diagonal cells with care";
+
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct AcrossReport {
     pub schema: String,
@@ -558,6 +568,10 @@ impl AcrossTimeReport {
         let generalization = plan
             .generalize
             .then(|| matrix(plan, &repeats, &shuffles, alpha));
+        let mut warnings = c.warnings;
+        if generalization.is_some() && !shuffles.is_empty() {
+            warnings.push(MATRIX_NULL_CAVEAT.to_string());
+        }
         AcrossTimeReport {
             schema: ACROSS_TIME_SCHEMA.into(),
             software: Software::current(),
@@ -600,7 +614,7 @@ impl AcrossTimeReport {
             input: c.input,
             design: c.design,
             fits: c.fits,
-            warnings: c.warnings,
+            warnings,
             tuning: c.tuning,
         }
     }
