@@ -465,18 +465,13 @@ fn score_session(plan: &AnyPlan, outs: &[&AnyOutcome]) -> Scored {
             let outs: Vec<Outcome> = outs.iter().filter_map(|o| table_outcome(o)).collect();
             let r = Report::build(p, &outs);
             let (null, p_value) = (r.shuffle.null.clone(), r.shuffle.p_value);
-            let mut repeats: Vec<(usize, f64)> = r
-                .repeats
-                .iter()
-                .map(|o| {
-                    (
-                        o.index,
-                        r.design.headline.of(o.accuracy, o.balanced_accuracy),
-                    )
-                })
-                .collect();
-            repeats.sort_by_key(|&(i, _)| i);
-            let as_shuffled = first_repeats(&repeats, r.shuffle.repeats_each);
+            let as_shuffled = first_repeats(
+                r.design.headline,
+                r.repeats
+                    .iter()
+                    .map(|o| (o.index, o.accuracy, o.balanced_accuracy)),
+                r.shuffle.repeats_each,
+            );
             scalar(
                 empty(r.warnings),
                 &r.summary.accuracy,
@@ -505,18 +500,13 @@ fn score_session(plan: &AnyPlan, outs: &[&AnyOutcome]) -> Scored {
             let outs: Vec<AcrossOutcome> = outs.iter().filter_map(|o| across_outcome(o)).collect();
             let r = AcrossReport::build(p, &outs);
             let (null, p_value) = (r.shuffle.null.clone(), r.shuffle.p_value);
-            let mut repeats: Vec<(usize, f64)> = r
-                .repeats
-                .iter()
-                .map(|o| {
-                    (
-                        o.index,
-                        r.design.headline.of(o.accuracy, o.balanced_accuracy),
-                    )
-                })
-                .collect();
-            repeats.sort_by_key(|&(i, _)| i);
-            let as_shuffled = first_repeats(&repeats, r.shuffle.repeats_each);
+            let as_shuffled = first_repeats(
+                r.design.headline,
+                r.repeats
+                    .iter()
+                    .map(|o| (o.index, o.accuracy, o.balanced_accuracy)),
+                r.shuffle.repeats_each,
+            );
             scalar(
                 empty(r.warnings),
                 &r.summary.accuracy,
@@ -561,8 +551,12 @@ fn over_time(
         Headline::BalancedAccuracy => &bacc,
     };
     let observed = stats::mean(per_repeat);
-    let in_order: Vec<(usize, f64)> = per_repeat.iter().copied().enumerate().collect();
-    let observed_as_shuffled = first_repeats(&in_order, repeats_each);
+    let in_order = acc
+        .iter()
+        .zip(&bacc)
+        .enumerate()
+        .map(|(i, (&a, &b))| (i, a, b));
+    let observed_as_shuffled = first_repeats(headline, in_order, repeats_each);
     let null = span(&null_curves);
     result.p_value = (!null.is_empty()).then(|| permutation_p(observed, &null));
     result.accuracy = Some(Spread::of(&acc));
@@ -707,15 +701,20 @@ fn across_outcome(o: &AnyOutcome) -> Option<AcrossOutcome> {
     }
 }
 
-/// The mean of the first `n` observed repeats' scores (`(repeat index, score)` in index order): the observed score
-/// as a shuffle is scored, since each shuffle averages `n` repeats (its `repeats_each`). All of them when there
-/// are fewer, or no shuffles (`n` = 0).
-fn first_repeats(repeats: &[(usize, f64)], n: usize) -> f64 {
+/// The `headline` score's mean over the first `n` observed repeats (given as (repeat index, accuracy, balanced
+/// accuracy), in any order): the observed score as a shuffle is scored, since each shuffle averages `n` repeats
+/// (its `repeats_each`). All of them when there are fewer, or no shuffles (`n` = 0).
+fn first_repeats(
+    headline: Headline,
+    repeats: impl Iterator<Item = (usize, f64, f64)>,
+    n: usize,
+) -> f64 {
+    let mut scores: Vec<(usize, f64)> = repeats.map(|(i, a, b)| (i, headline.of(a, b))).collect();
+    scores.sort_by_key(|&(i, _)| i);
     let n = if n == 0 {
-        repeats.len()
+        scores.len()
     } else {
-        n.min(repeats.len())
+        n.min(scores.len())
     };
-    let scores: Vec<f64> = repeats[..n].iter().map(|&(_, v)| v).collect();
-    stats::mean(&scores)
+    stats::mean(&scores[..n].iter().map(|&(_, v)| v).collect::<Vec<_>>())
 }
