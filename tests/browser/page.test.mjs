@@ -78,6 +78,16 @@ test('file chooser and drag-and-drop both load a file', async () => {
   }, csv.replace(/,/g, ';'));
   await b.page.waitForFunction(() => document.getElementById('file-summaries').textContent.startsWith('dropped.csv'));
   assert.match(await b.page.textContent('#file-summaries'), /semicolon-separated/);
+  // More repeats per shuffle than repeats is refused beside the field (the core refuses it too): such a null would
+  // be too narrow.
+  await quickSettings(b.page, { repeats: 3, shuffles: 5 });
+  await b.page.fill('#shuffle-repeats', '4');
+  await b.page.dispatchEvent('#shuffle-repeats', 'change');
+  await b.page.waitForSelector('#shuffle-repeats-error');
+  assert.match(await b.page.textContent('#shuffle-repeats-error'), /Repeats per shuffle must be at most the Repeats \(3\)/);
+  assert.equal(await b.page.isDisabled('#start'), true);
+  await b.page.fill('#shuffle-repeats', '');
+  await b.page.dispatchEvent('#shuffle-repeats', 'change');
   await quickSettings(b.page, { repeats: 3, shuffles: 0 });
   // The command-line footer wraps between options, never inside one ("-" at a line's end, "-shuffles" below).
   await b.page.waitForFunction(() => / --shuffles 0/.test(document.getElementById('cli-line').textContent));
