@@ -60,6 +60,9 @@ test('one worker and three workers give identical results', SLOW, async () => {
 
 test('file chooser and drag-and-drop both load a file', async () => {
   const b = await openPage();
+  // Before any data, the command line names placeholders, not a column called "label".
+  await b.page.waitForFunction(() => / --classifier /.test(document.getElementById('cli-line').textContent));
+  assert.match(await b.page.textContent('#cli-line'), /^popdecode decode FILE --label COLUMN --classifier/);
   const csv = 'stimulus,u1,u2\n' + Array.from({ length: 40 }, (_, i) => `${i % 2 ? 'grating' : 'blank'},${(i % 2) * 3 + Math.sin(i)},${Math.cos(i)}`).join('\n') + '\n';
   const file = join(tmp, 'upload.csv');
   writeFileSync(file, csv);

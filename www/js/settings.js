@@ -294,7 +294,8 @@
       if (t.align) parts.push('--align', q(t.align));
       windows();
     }
-    parts.push('--label', q(r.columns.label));
+    // Before data is loaded the label is a placeholder, not the form's default that reads like a column's name.
+    parts.push('--label', PD.dataReady() && r.columns.label ? q(r.columns.label) : 'COLUMN');
     if (r.columns.group) parts.push('--group', q(r.columns.group));
     if (r.columns.pseudo) parts.push('--pseudo', q(r.columns.pseudo));
     if (r.columns.features) parts.push('--features', q(r.columns.features.join(',')));
