@@ -172,6 +172,9 @@ struct Scored {
     /// Over time: the headline mean at each window, and each shuffle's headline curve.
     curve: Vec<f64>,
     null_curves: Vec<Vec<f64>>,
+    /// Over time: the headline curve as each shuffle's is scored (mean over the first `repeats_each` repeats at each
+    /// window); it joins the shuffles' curves in the session's pool for the group's cluster test.
+    curve_as_shuffled: Vec<f64>,
 }
 
 impl StudyReport {
@@ -557,6 +560,16 @@ fn over_time(
         .enumerate()
         .map(|(i, (&a, &b))| (i, a, b));
     let observed_as_shuffled = first_repeats(headline, in_order, repeats_each);
+    let curve_as_shuffled: Vec<f64> = (0..curve.len())
+        .map(|w| {
+            let at = accuracy
+                .iter()
+                .zip(&balanced)
+                .enumerate()
+                .map(|(i, (a, b))| (i, a[w], b[w]));
+            first_repeats(headline, at, repeats_each)
+        })
+        .collect();
     let null = span(&null_curves);
     result.p_value = (!null.is_empty()).then(|| permutation_p(observed, &null));
     result.accuracy = Some(Spread::of(&acc));
@@ -569,6 +582,7 @@ fn over_time(
         observed_as_shuffled,
         curve,
         null_curves,
+        curve_as_shuffled,
         result,
     }
 }
@@ -592,12 +606,14 @@ fn scalar(
         observed_as_shuffled,
         curve: Vec::new(),
         null_curves: Vec::new(),
+        curve_as_shuffled: Vec::new(),
         result,
     }
 }
 
 /// The group curve, its spread across units, and its cluster test with the sessions' null curves drawn as the
-/// scalar test draws them.
+/// scalar test draws them (each session's observed curve in its pool scored as a shuffle's is; the group curve
+/// tested is the mean over every repeat, as the scalar group mean is).
 fn group_time(
     plan: &StudyPlan,
     win: &[Window],
@@ -616,7 +632,7 @@ fn group_time(
         let null_curves: Vec<Vec<Vec<f64>>> = scored
             .iter()
             .map(|s| {
-                std::iter::once(s.curve.clone())
+                std::iter::once(s.curve_as_shuffled.clone())
                     .chain(s.null_curves.iter().cloned())
                     .collect()
             })
