@@ -549,11 +549,12 @@ fn over_time(
 ) -> Scored {
     let span = |curves: &[Vec<f64>]| curves.iter().map(|c| stats::mean(c)).collect::<Vec<_>>();
     let (acc, bacc) = (span(&accuracy), span(&balanced));
-    let per_repeat = match headline {
-        Headline::Accuracy => &acc,
-        Headline::BalancedAccuracy => &bacc,
-    };
-    let observed = stats::mean(per_repeat);
+    let per_repeat: Vec<f64> = acc
+        .iter()
+        .zip(&bacc)
+        .map(|(&a, &b)| headline.of(a, b))
+        .collect();
+    let observed = stats::mean(&per_repeat);
     let in_order = acc
         .iter()
         .zip(&bacc)

@@ -42,8 +42,9 @@ pub fn generalization_caveat(null: GeneralizationNull) -> &'static str {
     match null {
         GeneralizationNull::TrainingLabels => {
             "temporal generalization: the matrix's null permuted only the training trials' labels (one \
-             permutation per shuffle, shared by its repeats) and kept the test trials' labels, so a cell is significant only when what the decoder \
-             learnt at its training window generalizes to its testing window; still, a cluster shows that \
+             permutation per shuffle, shared by its repeats) and kept the test trials' labels, so a cell is \
+             significant only when what the decoder learnt at its training window generalizes to its testing \
+             window; still, a cluster shows that \
              information generalizes somewhere inside it, not at each of its cells (Sassenhagen & Draschkow, \
              2019), so read the edges of off-diagonal clusters as approximate"
         }
