@@ -17,6 +17,7 @@ pub mod simd;
 pub mod standardise;
 pub mod tuning;
 
+use std::borrow::Cow;
 use crate::recipe::{Classifier, Setting};
 use crate::rng::{task_rng, Stream};
 use standardise::Standardiser;
@@ -187,9 +188,9 @@ pub fn fit_folds_with(
             }
             let (train, _) = &splits[f];
             let y_train: Vec<usize> = train.iter().map(|&i| set.y[i]).collect();
-            Some(FittedPipeline::fit_with(
+            Some(FittedPipeline::fit_rows(
                 decoder,
-                &set.rows(train),
+                Cow::Owned(set.rows(train)),
                 set.p,
                 &y_train,
                 set.n_classes,
@@ -242,15 +243,16 @@ pub fn cross_validate(
     {
         let Some(model) = model else { continue };
         let (_, test) = set.partition(f);
-        let rows = set.rows(&test);
-        if decisions {
-            for (&pos, d) in test.iter().zip(model.decision(rows.clone())) {
-                out.decision[pos] = d;
+        for positions in test.chunks(test_block(set.p)) {
+            let rows = set.rows(positions);
+            if decisions {
+                for (&pos, d) in positions.iter().zip(model.decision(rows.clone())) {
+                    out.decision[pos] = d;
+                }
             }
-        }
-        let predicted = model.predict(rows);
-        for (&pos, c) in test.iter().zip(predicted) {
-            out.labels[pos] = c;
+            for (&pos, c) in positions.iter().zip(model.predict(rows)) {
+                out.labels[pos] = c;
+            }
         }
         out.fits += 1;
         out.capped += u32::from(model.hit_iteration_cap());
@@ -258,6 +260,15 @@ pub fn cross_validate(
         out.chosen.extend(model.chosen());
     }
     out
+}
+
+/// How many test rows are copied (to be standardised) and predicted at a time: about a megabyte of them, and at
+/// least 64. A worker so never holds a copy of a whole test fold beside the data (on the page, whose workers share
+/// one copy of a large matrix, that copy would be most of a worker's memory). Every decoder predicts a row from
+/// that row alone, with sums in a fixed order, so blocks give the numbers the whole fold gives (checked by
+/// `predicting_in_blocks_changes_nothing`).
+fn test_block(p: usize) -> usize {
+    ((1 << 20) / (8 * p.max(1))).max(64)
 }
 
 /// Whether a decoder is linear with weights per neuron (weights and activation patterns in the neuron analyses).
@@ -490,6 +501,19 @@ impl FittedPipeline {
         n_classes: usize,
         context: &FitContext,
     ) -> Self {
+        FittedPipeline::fit_rows(decoder, Cow::Borrowed(x_train), p, y_train, n_classes, context)
+    }
+
+    /// [`FittedPipeline::fit_with`] on rows that may be the caller's own copy, which is then standardised in place:
+    /// a training fold is copied once, not twice.
+    fn fit_rows(
+        decoder: &dyn Decoder,
+        x_train: Cow<'_, [f64]>,
+        p: usize,
+        y_train: &[usize],
+        n_classes: usize,
+        context: &FitContext,
+    ) -> Self {
         let n = y_train.len();
         let first = y_train[0];
         if y_train.iter().all(|&c| c == first) {
@@ -499,11 +523,11 @@ impl FittedPipeline {
             return FittedPipeline {
                 scaler: None,
                 p,
-                fitted: Fitted::Model(decoder.fit_with(x_train, n, p, y_train, n_classes, context)),
+                fitted: Fitted::Model(decoder.fit_with(&x_train, n, p, y_train, n_classes, context)),
             };
         }
-        let scaler = Standardiser::fit(x_train, n, p);
-        let mut z = x_train.to_vec();
+        let scaler = Standardiser::fit(&x_train, n, p);
+        let mut z = x_train.into_owned();
         scaler.apply(&mut z);
         let fitted = Fitted::Model(decoder.fit_with(&z, n, p, y_train, n_classes, context));
         FittedPipeline {
