@@ -2,7 +2,8 @@
 //!
 //! One core, several faces. The layers, each importing only from those listed before it:
 //!
-//! 1. foundation: [`error`], [`rng`], the [`recipe`] (plain data every layer may read), [`simulate`] (invented data)
+//! 1. foundation: [`error`], [`rng`], the [`recipe`] (plain data every layer may read), [`simulate`] (invented data),
+//!    [`stop`] (a request to stop work whose result will not be read)
 //! 2. [`data`]: the in-memory data every analysis works on
 //! 3. [`input`]: readers of every input format, producing `data`
 //! 4. [`resample`]: balancing, folds, permutations, pseudo-trials, scoring
@@ -41,6 +42,7 @@ pub mod resample;
 pub mod rng;
 pub mod simulate;
 pub mod stats;
+pub mod stop;
 
 pub use error::{Error, Result};
 

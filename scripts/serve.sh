@@ -5,4 +5,5 @@ cd "$(dirname "$0")/.."
 scripts/build-web.sh
 PORT="${PORT:-8765}"
 echo "popdecode is at http://127.0.0.1:$PORT/  (offline single file: dist/popdecode.html)"
-exec python3 -m http.server "$PORT" --bind 127.0.0.1 --directory www
+# With the headers that let the page's workers share one copy of the data (scripts/serve.py says which).
+exec python3 scripts/serve.py "$PORT" www

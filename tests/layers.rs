@@ -8,7 +8,7 @@ use std::path::{Path, PathBuf};
 
 /// The core's top-level modules, bottom layer first; modules in the same row are one layer.
 const LAYERS: &[&[&str]] = &[
-    &["error", "rng", "recipe", "simulate"],
+    &["error", "rng", "recipe", "simulate", "stop"],
     &["data"],
     &["input"],
     &["resample"],

@@ -11,7 +11,9 @@ use popdecode::recipe::Classifier;
 fn invented(n: usize, p: usize, k: usize) -> (Vec<f64>, Vec<usize>) {
     let mut s: u64 = 12345;
     let mut next = || {
-        s = s.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+        s = s
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
         (s >> 11) as f64 / (1u64 << 53) as f64
     };
     let y: Vec<usize> = (0..n).map(|i| i % k).collect();
@@ -46,14 +48,24 @@ fn predicting_in_blocks_changes_nothing() {
                             decision.extend(model.decision(rows.to_vec()));
                         }
                     }
-                    assert_eq!(labels, whole, "{classifier:?} (tuned: {tune}), {k} classes, blocks of {block}");
+                    assert_eq!(
+                        labels, whole,
+                        "{classifier:?} (tuned: {tune}), {k} classes, blocks of {block}"
+                    );
                     if let Some(d) = &whole_decision {
                         let bits = |v: &[f64]| v.iter().map(|d| d.to_bits()).collect::<Vec<u64>>();
-                        assert_eq!(bits(&decision), bits(d), "{classifier:?} (tuned: {tune}), decisions, blocks of {block}");
+                        assert_eq!(
+                            bits(&decision),
+                            bits(d),
+                            "{classifier:?} (tuned: {tune}), decisions, blocks of {block}"
+                        );
                     }
                 }
                 // The test is only worth something if the decoders predict more than one class here.
-                assert!(whole.iter().any(|&c| c != whole[0]), "{classifier:?} predicted one class for every row");
+                assert!(
+                    whole.iter().any(|&c| c != whole[0]),
+                    "{classifier:?} predicted one class for every row"
+                );
             }
         }
     }

@@ -113,6 +113,9 @@ multiversion! {
         let mut pg_max_old = f64::INFINITY;
         let mut order = SplitMix64(0x005e_ed0f_d0a1);
         for _pass in 0..MAX_PASSES {
+            if crate::stop::requested() {
+                break;
+            }
             let (mut pg_max, mut pg_min) = (f64::NEG_INFINITY, f64::INFINITY);
             for s in 0..active {
                 let j = s + (order.next() % (active - s) as u64) as usize;
@@ -276,6 +279,9 @@ multiversion! {
         let mut first_norm = None;
         let root = (2.0 * c).sqrt();
         for _step in 0..MAX_NEWTON_STEPS {
+            if crate::stop::requested() {
+                break;
+            }
             let mut grad = w.clone();
             let mut changed = Vec::new();
             for i in 0..n {

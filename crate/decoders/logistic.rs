@@ -92,6 +92,9 @@ fn lbfgs(problem: &Problem, size: usize) -> (Vec<f64>, bool) {
         (vec![], vec![], vec![]);
     let mut next_grad = vec![0.0; size];
     for iteration in 0..MAX_ITERATIONS {
+        if crate::stop::requested() {
+            break;
+        }
         // Two-loop recursion for the search direction d = −H∇f.
         let mut d: Vec<f64> = grad.iter().map(|g| -g).collect();
         let mut alpha = vec![0.0; s_hist.len()];

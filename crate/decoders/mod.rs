@@ -17,10 +17,10 @@ pub mod simd;
 pub mod standardise;
 pub mod tuning;
 
-use std::borrow::Cow;
 use crate::recipe::{Classifier, Setting};
 use crate::rng::{task_rng, Stream};
 use standardise::Standardiser;
+use std::borrow::Cow;
 
 /// Something that learns from a training fold.
 ///
@@ -172,7 +172,8 @@ pub fn fit_folds_with(
     let mut shortcut = decoder.fit_folds_raw(set, &wanted);
     (0..set.folds)
         .map(|f| {
-            if !usable(f) {
+            // A worker let go (crate::stop) fits no more folds: its outcome is thrown away.
+            if !usable(f) || crate::stop::requested() {
                 return None;
             }
             if let Some(c) = single[f] {
@@ -501,7 +502,14 @@ impl FittedPipeline {
         n_classes: usize,
         context: &FitContext,
     ) -> Self {
-        FittedPipeline::fit_rows(decoder, Cow::Borrowed(x_train), p, y_train, n_classes, context)
+        FittedPipeline::fit_rows(
+            decoder,
+            Cow::Borrowed(x_train),
+            p,
+            y_train,
+            n_classes,
+            context,
+        )
     }
 
     /// [`FittedPipeline::fit_with`] on rows that may be the caller's own copy, which is then standardised in place:
@@ -523,7 +531,9 @@ impl FittedPipeline {
             return FittedPipeline {
                 scaler: None,
                 p,
-                fitted: Fitted::Model(decoder.fit_with(&x_train, n, p, y_train, n_classes, context)),
+                fitted: Fitted::Model(
+                    decoder.fit_with(&x_train, n, p, y_train, n_classes, context),
+                ),
             };
         }
         let scaler = Standardiser::fit(&x_train, n, p);

@@ -129,7 +129,11 @@ fn smo(k: &[f64], n: usize, rows: &[usize], y: &[f64], c: f64) -> (Vec<f64>, f64
     let up = |t: usize, al: &[f64]| (y[t] > 0.0 && al[t] < c) || (y[t] < 0.0 && al[t] > 0.0);
     let low = |t: usize, al: &[f64]| (y[t] > 0.0 && al[t] > 0.0) || (y[t] < 0.0 && al[t] < c);
     let mut hit = true;
-    for _ in 0..MAX_ITERATIONS {
+    for iteration in 0..MAX_ITERATIONS {
+        // Looked at every 1024 iterations: one is a pass over the pair's trials, too cheap to look each time.
+        if iteration % 1024 == 0 && crate::stop::requested() {
+            break;
+        }
         // i: the maximal violator in I_up.
         let (mut i, mut g_max) = (usize::MAX, f64::NEG_INFINITY);
         for t in 0..m {

@@ -2,7 +2,7 @@
 //!
 //! The page's data worker holds a [`Loaded`]: the file read once for the recipe's columns (or windows). From it,
 //! `prepare` checks the design and lists the tasks, `header` and `matrix_part` hand the decoded data to run workers
-//! (in parts, into a [`MatrixIn`]), and `finish` assembles the outcomes into the result. A run worker keeps the
+//! (in parts, into a [`MatrixIn`]; or, when the page's workers share one memory, by a ticket: `share`), and `finish` assembles the outcomes into the result. A run worker keeps the
 //! decoded data as a [`Held`], builds a [`Runner`] on it for each run and answers task messages with outcome JSON;
 //! the page joins the outcome strings unparsed, so no number passes through a JavaScript double conversion
 //! (serde_json's `float_roundtrip` keeps the parse exact).
@@ -111,6 +111,14 @@ impl Loaded {
         })
     }
 
+    /// The decoded data of a ticket from [`Loaded::share`] (shared memory: a worker that read and decoded a large
+    /// file for this one and then ended, taking the file's bytes with it; www/worker.js).
+    pub fn from_ticket(ticket: u32) -> Result<Loaded, JsValue> {
+        Ok(Loaded {
+            data: super::shared::take(ticket)?,
+        })
+    }
+
     /// Any number of named files (a study's table and sessions) for an analysis that reads files as they are
     /// (`study`; also `across` and `continuous`, which [`Loaded::new`] takes as one or two files).
     pub fn with_files(kind: &str, files: &Files, recipe_json: &str) -> Result<Loaded, JsValue> {
@@ -172,6 +180,12 @@ impl Loaded {
             total: values.len(),
             values: values[from..to].to_vec(),
         }
+    }
+
+    /// A ticket by which a run worker sharing this worker's memory takes the decoded data without a copy
+    /// ([`Held::from_ticket`]; `wasm/shared.rs` says when the page shares memory).
+    pub fn share(&self) -> Result<u32, JsValue> {
+        super::shared::share(&self.data)
     }
 
     /// Assemble the outcomes (a JSON array) into the result: `report` (parsed), `report_json` (the bytes the CLI
@@ -288,6 +302,14 @@ impl Held {
         }
         Ok(Held {
             data: Decoded::from_parts(header, matrix.values)?,
+        })
+    }
+
+    /// The decoded data of a ticket from [`Loaded::share`], in the memory this worker shares with the data worker
+    /// (the matrix shared, not copied).
+    pub fn from_ticket(ticket: u32) -> Result<Held, JsValue> {
+        Ok(Held {
+            data: super::shared::take(ticket)?,
         })
     }
 }

@@ -22,6 +22,7 @@ mod neurons;
 mod nwb;
 mod power;
 mod request;
+mod shared;
 mod study;
 mod time_course;
 mod trial_table;
@@ -47,6 +48,13 @@ pub fn start() {
 #[wasm_bindgen]
 pub fn last_panic() -> String {
     PANIC.lock().map(|m| m.clone()).unwrap_or_default()
+}
+
+/// The address of this worker's stop flag in the memory it shares with the page's other workers
+/// ([`crate::stop`]): the page sets it to let the worker go without terminating it.
+#[wasm_bindgen]
+pub fn stop_address() -> usize {
+    crate::stop::address()
 }
 
 #[wasm_bindgen]

@@ -1,4 +1,4 @@
-// Shared set-up for the browser tests: a static server for www/ on 127.0.0.1, Debian's chromium driven by
+// Shared set-up for the browser tests: a static server for www/ on 127.0.0.1 (cross-origin isolated), Debian's chromium driven by
 // playwright-core, a record of every request (page and workers), and screenshots under test-output/browser/.
 import { createServer } from 'node:http';
 import { mkdirSync, readFileSync, existsSync, mkdtempSync } from 'node:fs';
@@ -13,7 +13,9 @@ mkdirSync(OUT, { recursive: true });
 
 const TYPES = { '.html': 'text/html', '.js': 'text/javascript', '.css': 'text/css', '.wasm': 'application/wasm', '.csv': 'text/csv', '.json': 'application/json' };
 
-export async function serve() {
+/// `isolated: false` serves without the two headers, as a plain static host would: the page then gives each
+/// worker its own copy of the data.
+export async function serve({ isolated = true } = {}) {
   const www = join(ROOT, 'www');
   const hits = [];
   const server = createServer((req, res) => {
@@ -21,7 +23,11 @@ export async function serve() {
     const path = normalize(decodeURIComponent(new URL(req.url, 'http://x').pathname)).replace(/^(\.\.[/\\])+/, '');
     const file = join(www, path.endsWith('/') ? path + 'index.html' : path);
     if (!file.startsWith(www) || !existsSync(file)) { res.writeHead(404); res.end(); return; }
-    res.writeHead(200, { 'content-type': TYPES[extname(file)] || 'application/octet-stream' });
+    // Cross-origin isolated, as scripts/serve.py serves it: the page's workers share one memory.
+    res.writeHead(200, {
+      'content-type': TYPES[extname(file)] || 'application/octet-stream',
+      ...(isolated ? { 'cross-origin-opener-policy': 'same-origin', 'cross-origin-embedder-policy': 'require-corp' } : {}),
+    });
     res.end(readFileSync(file));
   });
   await new Promise((ok) => server.listen(0, '127.0.0.1', ok));

@@ -58,6 +58,30 @@ test('one worker and three workers give identical results', SLOW, async () => {
   await three.b.context.close();
 });
 
+test('workers sharing memory and workers each with a copy give identical results', SLOW, async () => {
+  // This server isolates the page (the shared-memory build, one copy of the data); a plain static host does not
+  // (the plain build, a copy per worker): the two builds must give the same bytes.
+  const shared = await exampleRun('?workers=2');
+  assert.equal(await shared.b.page.evaluate(() => document.body.dataset.memory), 'shared');
+  assert.match(await shared.b.page.textContent('#workers-info'), /sharing one copy of the data/);
+  const plain = await serve({ isolated: false });
+  const b = await browser();
+  await b.page.goto(`${plain.origin}/index.html?workers=2`);
+  await b.page.waitForFunction(() => document.body.dataset.ready === 'true');
+  assert.equal(await b.page.evaluate(() => document.body.dataset.memory), 'copies');
+  assert.match(await b.page.textContent('#workers-info'), /each with its own copy of the data/);
+  await b.page.click('#example');
+  await b.page.waitForSelector('#data-view:not([hidden])');
+  await quickSettings(b.page);
+  await runAndWait(b.page);
+  assert.equal(await downloadText(b.page, '#export-json'), shared.json);
+  assert.deepEqual(b.errors, []);
+  assertLocalOnly(assert, b.requests, plain.origin);
+  await shared.b.context.close();
+  await b.context.close();
+  await plain.close();
+});
+
 test('file chooser and drag-and-drop both load a file', async () => {
   const b = await openPage();
   // Before any data, the command line names placeholders, not a column called "label".
@@ -104,8 +128,8 @@ test('file chooser and drag-and-drop both load a file', async () => {
 
 test('cancel stops the workers at once and the page runs again afterwards', SLOW, async () => {
   const b = await openPage('?workers=2');
-  // Every worker the page starts, and whether it has ended (a cancelled run terminates its workers, it does not
-  // wait for their tasks).
+  // Every worker the page starts, and whether it has ended (a cancelled run does not wait for its workers' tasks:
+  // workers sharing memory, as here, end after the task each is in, which the core's stop flag cuts short).
   const workers = [];
   b.page.on('worker', (w) => { const entry = { closed: false }; workers.push(entry); w.on('close', () => { entry.closed = true; }); });
   await b.page.click('#example');

@@ -113,7 +113,7 @@
     if (timing && timing.key === key) return;
     stopTiming();
     if (!plan.tasks.length || (S.run && !S.run.settling)) return;
-    const mine = { key, worker: new PD.DataWorker(S.module), cancelled: false };
+    const mine = { key, worker: new PD.DataWorker(S.module, S.data), cancelled: false };
     let finished;
     mine.done = new Promise((ok) => { finished = ok; });
     timing = mine;
@@ -173,22 +173,22 @@
   PD.repeatsIdentical = (recipe, plan, split) => ['logo', 'loo'].includes(split) && !recipe.tune &&
     (!recipe.balance || new Set(plan.class_counts).size === 1);
 
-  // Rough memory of a run: the decoded matrix once per worker and once in the data worker, plus a training copy
-  // per worker while it fits.
+  // Rough memory of a run: the decoded matrix once in the data worker and, unless workers share memory, once per
+  // worker, plus a training copy per worker while it fits.
   PD.memoryNeed = function (header, workers) {
     if (!header || header.family === 'files') return null;
     const cells = header.family === 'table' ? header.trials * header.features : header.windows_count * header.trials * header.neurons_count;
     const matrix = 8 * cells;
-    return { matrix, total: matrix * (1 + 2 * workers), perWorker: 2 * matrix };
+    const perWorker = (PD.shared ? 1 : 2) * matrix;
+    return { matrix, total: matrix + perWorker * workers, perWorker };
   };
   const LARGE = 200e6;
 
   // The memory a run may use: half of what the browser says the device has (Chromium reports at most 8 GB;
-  // Firefox says nothing, read as 8 GB), so at most 4 GB, and never more than a 32-bit wasm instance (4 GiB) per
-  // worker. With large data the pool is smaller than the cores, so the run fits: each run worker holds its own
-  // copy of the matrix (browsers share memory between workers only on cross-origin-isolated pages, which the
-  // offline file cannot be).
-  PD.memoryBudget = () => (navigator.deviceMemory || 8) * 1e9 / 2;
+  // Firefox says nothing, read as 8 GB), so at most 4 GB, and never more than a 32-bit wasm memory (4 GiB): per
+  // worker when each holds its own copy of the matrix, for all of them together when they share one memory
+  // (workers.js). With large data the pool is smaller than the cores, so the run fits.
+  PD.memoryBudget = () => Math.min((navigator.deviceMemory || 8) * 1e9 / 2, PD.shared ? 2 ** 32 : Infinity);
   PD.workersFor = function (header, tasks) {
     const wanted = Math.max(1, Math.min(PD.poolSize(), tasks));
     const mem = PD.memoryNeed(header, 1);
@@ -263,7 +263,7 @@
     c.seconds = seconds;
     c.memory = mem && mem.total > LARGE ? mem : null;
     estimate.textContent = `${PD.count(fits, 'fit')} in ${PD.count(plan.tasks.length, 'task')} on ${PD.count(workers, 'worker')}` +
-      (pool.limited ? ` (not ${pool.wanted}: each worker holds its own copy of the data, and more would not fit in memory)` : '') +
+      (pool.limited ? ` (not ${pool.wanted}: ${PD.shared ? 'each worker needs room for its own training rows' : 'each worker holds its own copy of the data'}, and more would not fit in memory)` : '') +
       (seconds !== null ? `: ${PD.about(seconds)} on this computer` : timing ? ' (timing one task on this computer…)' : '') +
       (c.memory ? `; needs about ${PD.bytes(c.memory.total)} of memory (${PD.bytes(c.memory.perWorker)} per worker)` : '') + '.';
   }

@@ -79,6 +79,7 @@
   function forgetFiles() {
     if (S.data) S.data.terminate();
     S.data = null;
+    PD.stopWarm();
     S.files = {};
     S.study = null;
     S.generation++;

@@ -10,6 +10,8 @@
   async function init() {
     try {
       S.module = await PD.compileWasm();
+      if (PD.shared) S.sharedModule = await PD.compileSharedWasm();
+      document.body.dataset.memory = PD.shared ? 'shared' : 'copies';
       await wasm_bindgen({ module_or_path: S.module });
       wasm_bindgen.start();
       $('version').textContent = wasm_bindgen.version();
@@ -21,7 +23,8 @@
     PD.setUpHelp();
     wire();
     PD.showKind();
-    $('workers-info').textContent = PD.count(PD.poolSize(), 'worker') + ' on this computer';
+    $('workers-info').textContent = PD.count(PD.poolSize(), 'worker') + ' on this computer' +
+      (PD.shared ? ', sharing one copy of the data' : ', each with its own copy of the data');
     PD.refresh();
     document.body.dataset.ready = 'true';
   }

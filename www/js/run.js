@@ -3,7 +3,8 @@
 // time, so copies do not pile up; workers holding small data are kept warm for the next run on it), tasks handed in
 // batches to whichever worker is free, the outcome strings joined unparsed and finished by the data worker. Only a
 // finished run becomes a record; a cancelled or failed one changes nothing on view. Cancel terminates the workers at
-// once (running wasm cannot be interrupted).
+// once (running wasm cannot be interrupted), or, when they share memory, lets each finish the task it is on and
+// close (workers.js says why); the page is free at once either way.
 'use strict';
 (function (PD) {
   const { $ } = PD;
@@ -12,7 +13,7 @@
   S.pool = [];
   // Run workers kept between runs, each { worker, key } holding the decoded data of `key` (PD.loadKey): a worker
   // costs about 40 ms to start and fill, as much as a whole run of a fast decoder on small data. Only small data
-  // is kept (WARM_BYTES), so idle workers never hold much memory.
+  // is kept (WARM_BYTES) when each worker holds a copy, so idle workers never hold much memory.
   S.warm = [];
   const WARM_BYTES = 8e6;
 
@@ -21,11 +22,16 @@
     S.pool = [];
   }
 
-  // Keep a worker that holds the data of `key` (`bytes` of matrix) for the next run, or stop it.
+  // Keep a worker that holds the data of `key` (`bytes` of matrix) for the next run, or stop it. A worker sharing
+  // memory holds no copy of the data, so it is kept whatever the size.
   PD.keepWarm = function (worker, key, bytes) {
-    if (bytes <= WARM_BYTES && S.warm.length < PD.poolSize()) S.warm.push({ worker, key, bytes });
+    if ((worker.memory || bytes <= WARM_BYTES) && S.warm.length < PD.poolSize()) S.warm.push({ worker, key, bytes });
     else worker.terminate();
   };
+
+  // Stop every warm worker (the data they hold is forgotten; with shared memory, they share the forgotten data
+  // set's memory, which goes when its last worker does).
+  PD.stopWarm = () => takeWarm(null, 0);
 
   // The warm workers holding `key` (at most `n`, each { worker, key, bytes }); the others are stopped.
   function takeWarm(key, n) {
@@ -144,7 +150,15 @@
   // (neither side ever holds a second whole copy of a large matrix), then the header. `token.cancelled` stops it.
   // Resolves to the matrix's size in bytes.
   const PART = 1 << 19; // values
+  // When memory is shared, the worker takes the data by a ticket instead (nothing is copied).
   PD.sendMatrix = async function (worker, header, req, token) {
+    if (worker.memory) {
+      const { ticket, values } = await S.data.ask('share', req);
+      if (token.cancelled) throw new Error('cancelled');
+      await worker.ask('run-take', { ticket });
+      if (token.cancelled) throw new Error('cancelled');
+      return 8 * values;
+    }
     let total = 1;
     for (let from = 0; from < total; from += PART) {
       const part = await S.data.ask('matrix-part', { ...req, from, len: PART });
@@ -180,7 +194,7 @@
     const files = header && JSON.parse(header).family === 'files' ? JSON.parse(header).files : null;
     const warm = takeWarm(files ? null : req.key, files ? 0 : n);
     const workers = warm.map((w) => w.worker);
-    while (workers.length < n) workers.push(new PD.DataWorker(S.module));
+    while (workers.length < n) workers.push(new PD.DataWorker(S.module, S.data));
     S.pool.push(...workers);
     let bytes = warm.length ? warm[0].bytes : Infinity;
     for (const worker of workers.slice(warm.length)) {

@@ -1,5 +1,12 @@
 // The wasm core and the page's workers: compiling the module once, making workers (from worker.js when served,
 // from Blob URLs in the offline file), the pool size, and the data worker that holds the loaded files.
+//
+// Shared memory: when the page is cross-origin isolated (served with the two headers scripts/serve.sh sends) the
+// browser lets workers share one WebAssembly memory. Each loaded data set then gets one memory, made here, and the
+// data worker and every run worker for it are threads of the core built with atomics (www/pkg-shared/): run workers
+// take the decoded data by a ticket (crate/wasm/shared.rs) instead of a copy, so memory does not grow with the
+// number of workers. Elsewhere (the offline file, which a browser never isolates; a host without the headers) each
+// run worker gets its own copy of the matrix, in transferred parts.
 /* global wasm_bindgen */
 'use strict';
 (function (PD) {
@@ -11,6 +18,15 @@
       return WebAssembly.compile(bytes);
     }
     const response = await fetch('pkg/popdecode_bg.wasm');
+    return WebAssembly.compile(await response.arrayBuffer());
+  };
+
+  // Whether workers share memory on this page, and the shared build's module for them (the main thread keeps the
+  // plain build for its few small calls: a thread sharing memory may have to wait on a lock, which a page's main
+  // thread is not allowed to do).
+  PD.shared = !window.POPDECODE_OFFLINE && window.crossOriginIsolated === true && typeof SharedArrayBuffer === 'function';
+  PD.compileSharedWasm = async function () {
+    const response = await fetch('pkg-shared/popdecode_bg.wasm');
     return WebAssembly.compile(await response.arrayBuffer());
   };
 
@@ -34,10 +50,19 @@
 
   // The data worker: one per loaded data set. It reads the files (never the main thread), inspects them, keeps
   // them decoded for the current columns, prepares plans, hands the decoded matrix to run workers and finishes
-  // runs. Requests are answered in order of arrival; each returns a promise.
+  // runs. Requests are answered in order of arrival; each returns a promise. Run workers are made the same way,
+  // with the data worker they work for as `partner` (whose memory they share, when memory is shared).
   PD.DataWorker = class {
-    constructor(module) {
+    constructor(module, partner) {
       this.worker = PD.makeWorker();
+      this.memory = null;
+      this.first = !partner;
+      if (PD.shared) {
+        // 4 GiB at most: one 32-bit memory holds the data and every worker's working copies together.
+        this.memory = partner ? partner.memory : new WebAssembly.Memory({ initial: 32, maximum: 65536, shared: true });
+        this.stop = new Int32Array(new SharedArrayBuffer(4));
+        module = PD.state.sharedModule;
+      }
       this.pending = new Map();
       this.next = 1;
       this.dead = null;
@@ -53,7 +78,9 @@
         this.pending.forEach((p) => p.reject(new Error(this.dead)));
         this.pending.clear();
       };
-      this.ask('init', { module });
+      this.stopAt = null;
+      this.ask('init', this.memory ? { module, memory: this.memory, stop: this.stop } : { module })
+        .then((at) => { if (this.memory) this.stopAt = at; }, () => {});
     }
 
     ask(type, args, transfer) {
@@ -65,8 +92,20 @@
       });
     }
 
+    // Stop the worker: at once when it has a memory of its own; when memory is shared, it finishes the task it is
+    // on, runs no other and closes itself (worker.js, `quit`), since stopping it at once could leave a lock of the
+    // shared memory held for ever. Either way nothing more comes from it.
     terminate() {
-      this.worker.terminate();
+      // Once only: a worker that shares memory gives its stop flag's memory back when it closes, so a second write
+      // there could land in someone else's data.
+      if (this.dead === 'stopped') return;
+      if (this.memory) {
+        // Between tasks (worker.js) and inside one (the core's loops look at the flag in the shared memory).
+        Atomics.store(this.stop, 0, 1);
+        if (typeof this.stopAt === 'number') Atomics.store(new Int32Array(this.memory.buffer), this.stopAt >>> 2, 1);
+        this.worker.onmessage = null;
+        this.worker.postMessage({ id: 0, type: 'quit', destroy: !this.first });
+      } else this.worker.terminate();
       this.pending.forEach((p) => p.reject(new Error('stopped')));
       this.pending.clear();
       this.dead = 'stopped';
