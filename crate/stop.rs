@@ -6,7 +6,7 @@
 //! makes its timing task useless), it sets this thread's flag, at the address the worker gave it ([`address`]),
 //! and the long loops look at it ([`requested`]): a solver's iterations, a split's folds, a time course's windows.
 //! They then end early, leaving unfinished numbers that are never read: the worker throws its whole batch away
-//! (www/worker.js). Nothing else sets the flag, so the command line and every other run never see it, and numbers
+//! (www/worker.js; tests/stop.rs). Nothing else sets the flag, so the command line and every other run never see it, and numbers
 //! cannot depend on it.
 
 use std::sync::atomic::{AtomicU32, Ordering};
@@ -25,25 +25,3 @@ pub fn address() -> usize {
     STOP.with(|s| s as *const AtomicU32 as usize)
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn a_thread_is_stopped_only_through_its_own_flag() {
-        assert!(!requested());
-        let here = address();
-        std::thread::spawn(move || {
-            assert_ne!(address(), here, "each thread has a flag of its own");
-            // Set through the address, as the page does from outside the thread.
-            unsafe { (*(address() as *const AtomicU32)).store(1, Ordering::Relaxed) };
-            assert!(requested());
-        })
-        .join()
-        .unwrap();
-        assert!(
-            !requested(),
-            "another thread's request does not stop this one"
-        );
-    }
-}
