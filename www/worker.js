@@ -124,9 +124,9 @@ function readInPieces(blob, fn, slot) {
 
 // ---------- a reader (shared memory only) ----------
 // A file's bytes, once read by FileReaderSync, stay in the reading worker's memory until its garbage collector
-// runs, and detaching them (`transfer(0)`) does not give them back (measured 2026-12-04 in Chromium: an 80 MB file
-// read twice held 160 MB in Chromium 156). When workers share memory, a large table is therefore read and decoded by a worker of
-// its own that ends as soon as it is done: the decoded data stay in the shared memory (by a ticket,
+// runs, and detaching them (`transfer(0)`) does not give them back (measured 2026-12-04 in Chromium 156: an 80 MB
+// file read twice held 160 MB). When workers share memory, a large table is therefore read and decoded by a worker
+// of its own that ends as soon as it is done: the decoded data stay in the shared memory (by a ticket,
 // crate/wasm/shared.rs), and the file's bytes go with the worker.
 const READER_BYTES = 8e6;
 let shared = null; // { module, memory } when this worker shares memory
@@ -145,7 +145,7 @@ function inReader(request) {
 }
 // A reader ends once its answer is posted (its thread's stack given back to the shared memory first).
 function leave() {
-  setTimeout(() => { core.__wbindgen_thread_destroy(); self.close(); });
+  setTimeout(() => { try { core.__wbindgen_thread_destroy(); } finally { self.close(); } });
 }
 const readerHandlers = {
   // A table's first look (JSON).
