@@ -18,9 +18,9 @@
 import { test, after, before } from 'node:test';
 import assert from 'node:assert/strict';
 import { readdirSync, readFileSync, writeFileSync, mkdtempSync, statSync } from 'node:fs';
-import { join } from 'node:path';
+import { join, dirname } from 'node:path';
 import { tmpdir } from 'node:os';
-import { serve, browser, closeAll, quickSettings, SLOW } from './helpers.mjs';
+import { serve, browser, closeAll, quickSettings, runAndWait, SLOW } from './helpers.mjs';
 
 let server;
 before(async () => { server = await serve(); });
@@ -132,6 +132,29 @@ async function session(workers, traced) {
   await b.context.close();
   return { grew, cpu };
 }
+
+test('a large malformed file, read by a worker of its own, gets the same clear message and the page keeps working', SLOW, async () => {
+  // Over 8 MB, so read and decoded by a reader worker (www/worker.js): its message must reach the page unchanged.
+  const rows = 3000;
+  const lines = ['odour,' + Array.from({ length: 500 }, (_, j) => `n${j}`).join(',')];
+  for (let i = 0; i < rows; i++) lines.push(`o${i % 4},` + Array.from({ length: 500 }, (_, j) => (i === 2500 && j === 7 ? 'oops' : ((i * 7 + j) % 13 + 0.125).toFixed(3))).join(','));
+  const bad = join(dirname(file), 'bad-big.csv');
+  writeFileSync(bad, lines.join('\n') + '\n');
+  assert.ok(statSync(bad).size > 8e6);
+  const b = await browser();
+  await b.page.goto(`${server.origin}/index.html`);
+  await b.page.waitForFunction(() => document.body.dataset.ready === 'true');
+  await b.page.setInputFiles('#file', bad);
+  await b.page.waitForSelector('#data-error:not([hidden])', { timeout: 600_000 });
+  assert.equal((await b.page.textContent('#data-error')).trim(), "bad-big.csv, line 2502, column 'n7': 'oops' is not a number");
+  assert.equal(await b.page.isDisabled('#start'), true);
+  await b.page.click('#example');
+  await b.page.waitForSelector('#data-error', { state: 'hidden' });
+  await quickSettings(b.page, { repeats: 2, shuffles: 0 });
+  await runAndWait(b.page);
+  assert.deepEqual(b.errors, []);
+  await b.context.close();
+});
 
 test(`a ${Math.round(SIZE / 1e6)} MB CSV: the main thread never blocks for a second`, SLOW, async () => {
   const { cpu } = await session(2, true);
