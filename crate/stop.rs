@@ -24,4 +24,3 @@ pub fn requested() -> bool {
 pub fn address() -> usize {
     STOP.with(|s| s as *const AtomicU32 as usize)
 }
-
