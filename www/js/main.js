@@ -10,7 +10,8 @@
   async function init() {
     try {
       S.module = await PD.compileWasm();
-      if (PD.shared) S.sharedModule = await PD.compileSharedWasm();
+      // Without the shared build (a copy of www/ that lacks it), workers keep a copy each, as on other hosts.
+      if (PD.shared) S.sharedModule = await PD.compileSharedWasm().catch(() => { PD.shared = false; return null; });
       document.body.dataset.memory = PD.shared ? 'shared' : 'copies';
       await wasm_bindgen({ module_or_path: S.module });
       wasm_bindgen.start();
