@@ -283,18 +283,19 @@ impl<'a> Rows<'a> {
         let mut warnings = counter_columns(&x, p, &feature_cols, table);
         if !skipped.is_empty() {
             warnings.push(format!(
-                "{} not used as features because {} mostly text: {}",
+                "{} {} not used as {} because {} mostly text",
+                quoted_list(&skipped),
+                if skipped.len() == 1 { "is" } else { "are" },
                 if skipped.len() == 1 {
-                    "this column is"
+                    "a feature"
                 } else {
-                    "these columns are"
+                    "features"
                 },
                 if skipped.len() == 1 {
                     "it holds"
                 } else {
                     "they hold"
                 },
-                quoted_list(&skipped)
             ));
         }
         let pseudo = match (&columns.pseudo, &groups) {
