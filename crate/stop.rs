@@ -6,8 +6,8 @@
 //! makes its timing task useless), it sets this thread's flag, at the address the worker gave it ([`address`]),
 //! and the long loops look at it ([`requested`]): a solver's iterations, a split's folds, a time course's windows.
 //! They then end early, leaving unfinished numbers that are never read: the worker throws its whole batch away
-//! (www/worker.js; tests/stop.rs). Nothing else sets the flag, so the command line and every other run never see it, and numbers
-//! cannot depend on it.
+//! (www/worker.js; tests/stop.rs). Nothing else sets the flag, so the command line and every other run never see
+//! it, and numbers cannot depend on it.
 
 use std::sync::atomic::{AtomicU32, Ordering};
 

@@ -2,10 +2,11 @@
 //!
 //! The page's data worker holds a [`Loaded`]: the file read once for the recipe's columns (or windows). From it,
 //! `prepare` checks the design and lists the tasks, `header` and `matrix_part` hand the decoded data to run workers
-//! (in parts, into a [`MatrixIn`]; or, when the page's workers share one memory, by a ticket: `share`), and `finish` assembles the outcomes into the result. A run worker keeps the
-//! decoded data as a [`Held`], builds a [`Runner`] on it for each run and answers task messages with outcome JSON;
-//! the page joins the outcome strings unparsed, so no number passes through a JavaScript double conversion
-//! (serde_json's `float_roundtrip` keeps the parse exact).
+//! (in parts, into a [`MatrixIn`]; or, when the page's workers share one memory, by a ticket: `share`), and
+//! `finish` assembles the outcomes into the result. A run worker keeps the decoded data as a [`Held`], builds a
+//! [`Runner`] on it for each run and answers task messages with outcome JSON; the page joins the outcome strings
+//! unparsed, so no number passes through a JavaScript double conversion (serde_json's `float_roundtrip` keeps the
+//! parse exact).
 
 use super::data::{self, Decoded};
 use super::dropped::DroppedFile;
