@@ -39,6 +39,17 @@ pub fn floor_note(m: usize) -> String {
     )
 }
 
+/// The x-axis label of a shuffle null's histogram: each value is one permutation's score averaged over its
+/// repeats, so the histogram holds one value per permutation, not one per repeat ("accuracy (mean of 10 repeats
+/// per permutation)").
+pub fn per_permutation(score: &str, repeats: usize) -> String {
+    if repeats == 1 {
+        format!("{score} (one repeat per permutation)")
+    } else {
+        format!("{score} (mean of {repeats} repeats per permutation)")
+    }
+}
+
 /// A confidence interval in percent: "55.1–69.0 %".
 pub fn pct_range([lo, hi]: [f64; 2]) -> String {
     format!("{:.1}–{:.1} %", 100.0 * lo, 100.0 * hi)

@@ -5,7 +5,7 @@ use super::report::{AcrossReport, AcrossTimeReport};
 use super::text::arrow;
 use crate::report::figures::{curve, matrix, Axis, Curve, Series};
 use crate::report::svg::{esc, histogram, open, Marker, BAR, INK, LEFT, NULL_BAR, W};
-use crate::report::text::{clip, p_text, pct, seconds};
+use crate::report::text::{clip, p_text, pct, per_permutation, seconds};
 use crate::resample::Headline;
 use std::fmt::Write;
 
@@ -207,10 +207,10 @@ pub fn null_distribution(r: &AcrossReport) -> Option<String> {
     ];
     Some(histogram(
         &format!(
-            "Labels permuted within levels: {} permutations × {} repeats",
-            r.shuffle.count, r.shuffle.repeats_each
+            "Labels permuted within levels: {} permutations",
+            r.shuffle.count
         ),
-        r.design.headline.name(),
+        &per_permutation(r.design.headline.name(), r.shuffle.repeats_each),
         &r.shuffle.null,
         &markers,
         NULL_BAR,

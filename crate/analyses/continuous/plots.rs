@@ -6,7 +6,7 @@ use super::text::{headline_name, headline_value};
 use crate::recipe::AngleUnit;
 use crate::report::figures::{curve, decimals, histogram, plain, scatter, Axis, Curve, Series};
 use crate::report::svg::{Marker, BAR, INK, NULL_BAR};
-use crate::report::text::{p_text, seconds};
+use crate::report::text::{p_text, per_permutation, seconds};
 
 fn value_format(t: &TargetInfo) -> fn(f64) -> String {
     match t.unit {
@@ -125,11 +125,8 @@ pub fn null_distribution(r: &ContinuousReport) -> Option<String> {
             .chain([r.shuffle.observed, cut]),
     );
     Some(histogram(
-        &format!(
-            "Shuffled values: {} permutations × {} repeats",
-            r.shuffle.count, r.shuffle.repeats_each
-        ),
-        headline_name(t),
+        &format!("Shuffled values: {} permutations", r.shuffle.count),
+        &per_permutation(headline_name(t), r.shuffle.repeats_each),
         &r.shuffle.null,
         &markers,
         NULL_BAR,

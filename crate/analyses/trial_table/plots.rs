@@ -2,7 +2,7 @@
 
 use super::report::Report;
 use crate::report::svg::{esc, histogram, open, Marker, BAR, INK, NULL_BAR, TOP};
-use crate::report::text::{p_phrase, pct, pct_range};
+use crate::report::text::{p_phrase, pct, pct_range, per_permutation};
 use crate::resample::Headline;
 use std::fmt::Write;
 
@@ -88,13 +88,10 @@ pub fn null_distribution(r: &Report) -> Option<String> {
             colour: INK,
         },
     ];
-    let title = format!(
-        "Shuffled labels: {} permutations × {} repeats",
-        r.shuffle.count, r.shuffle.repeats_each
-    );
+    let title = format!("Shuffled labels: {} permutations", r.shuffle.count);
     Some(histogram(
         &title,
-        r.design.headline.name(),
+        &per_permutation(r.design.headline.name(), r.shuffle.repeats_each),
         &r.shuffle.null,
         &markers,
         NULL_BAR,
