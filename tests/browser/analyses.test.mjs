@@ -310,7 +310,7 @@ test('a study scored by generalization across conditions: sessions over time, th
   assert.match(await view.textContent(), /trained at some levels of 'context'/, 'the view says what a session\'s score is');
   assert.match(await view.textContent(), /Bernardi/, 'the methods paragraph cites the generalization measure');
   assert.match(await b.page.textContent('#records'), /study\), each session carried over between conditions/);
-  assert.match(await view.textContent(), /trained and tested across ‘context’/, 'the record says its settings');
+  assert.match(await view.textContent(), /trained and tested across 'context'/, 'the record says its settings');
   // One level trained, the other tested: the record on view is stale, and its button runs the study again that
   // way (clicked straight from the field just typed in, whose change fires as it loses focus).
   await set(b.page, 'across-train', 'citral');

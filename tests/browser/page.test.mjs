@@ -43,7 +43,7 @@ test('example run matches the command line byte for byte', async () => {
   const methods = await b.page.textContent('#views .methods');
   assert.match(methods, /SHA-256 [0-9a-f]{64}/);
   // The example holds sessions out in turn: the settings it came from say so, not "folds 5".
-  assert.match(await b.page.textContent('#views .provenance'), /leave one ‘session’ out \(the Folds setting, 5, not used\); 4 repeats/);
+  assert.match(await b.page.textContent('#views .provenance'), /leave one 'session' out \(the Folds setting, 5, not used\); 4 repeats/);
   assert.deepEqual(b.errors, []);
   assertLocalOnly(assert, b.requests, server.origin);
   await b.context.close();
@@ -152,7 +152,7 @@ test('cancel stops the workers at once and the page runs again afterwards', SLOW
   await b.page.click('#start');
   await b.page.waitForSelector('#confirm:not([hidden])');
   await b.page.click('#confirm-yes');
-  await b.page.waitForFunction(() => /fits \(\d+ %\)/.test(document.getElementById('progress-text').textContent));
+  await b.page.waitForFunction(() => /fits \(\d+\s%\)/.test(document.getElementById('progress-text').textContent));
   // The run's workers: every live one but the data worker (the warm one that timed the task, and one new).
   const running = workers.filter((w) => w !== dataWorker && !w.closed);
   assert.equal(running.length, 2, 'two run workers');
@@ -313,7 +313,7 @@ test('decoders side by side, labelled exploratory', async () => {
   const rows = await b.page.locator('#views table tr').count();
   assert.equal(rows, 8, 'a header and seven decoders');
   assert.match(await b.page.textContent('#views'), /Exploratory only/);
-  assert.match(await b.page.textContent('#views table'), /shrinkage LDA\s*\d+\.\d %/);
+  assert.match(await b.page.textContent('#views table'), /shrinkage LDA\s*\d+\.\d\s%/);
   assertLocalOnly(assert, b.requests, server.origin);
   assert.deepEqual(b.errors, []);
   await b.context.close();

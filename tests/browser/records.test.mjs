@@ -115,9 +115,9 @@ test('a result is a record: stale after a file or setting change, exports from t
   await page.click('#start');
   // A run this long asks first (unless this computer would finish it within the minute).
   await page.waitForFunction(() => !document.getElementById('confirm').hidden ||
-    /fits \(\d+ %\)/.test(document.getElementById('progress-text').textContent), null, { timeout: 300_000 });
+    /fits \(\d+\s%\)/.test(document.getElementById('progress-text').textContent), null, { timeout: 300_000 });
   if (await page.isVisible('#confirm')) await page.click('#confirm-yes');
-  await page.waitForFunction(() => /fits \(\d+ %\)/.test(document.getElementById('progress-text').textContent), null, { timeout: 300_000 });
+  await page.waitForFunction(() => /fits \(\d+\s%\)/.test(document.getElementById('progress-text').textContent), null, { timeout: 300_000 });
   await axe(page, 'running');
   await shot(page, 'running-1366');
   await page.click('#cancel');
@@ -169,7 +169,7 @@ test('a numeric condition column is chosen as label; a trial counter is left out
   await page.waitForSelector('#data-view:not([hidden])');
   assert.equal(await page.inputValue('#label'), 'condition');
   assert.equal(await page.textContent('#feature-count'), '(4 of 5 chosen)');
-  assert.match(await page.textContent('#features-note'), /‘trial’ counts 1, 2, 3, … down the file like a trial number, so it is left out of the features/);
+  assert.match(await page.textContent('#features-note'), /'trial' counts 1, 2, 3, … down the file like a trial number, so it is left out of the features/);
   await quickSettings(page, { repeats: 2, shuffles: 0 });
   const headline = await runAndWait(page);
   assert.match(headline, /'condition' decoded at/);
@@ -222,8 +222,8 @@ test('what will happen is said before it happens: scheme in words, identical rep
   assert.match(await page.textContent('#layout-examples'), /trial.*odour.*unit_01/s);
   await axe(page, 'empty');
   await example(page);
-  assert.match(await page.textContent('#data-status'), /The example sets the Group column to ‘session’/);
-  assert.match(await page.textContent('#scheme'), /leave one ‘session’ out \(4 groups held out in turn\); the Folds setting \(5\) is not used/);
+  assert.match(await page.textContent('#data-status'), /The example sets the Group column to 'session'/);
+  assert.match(await page.textContent('#scheme'), /leave one 'session' out \(4 groups held out in turn\); the Folds setting \(5\) is not used/);
   await page.selectOption('#group', '');
   await page.waitForFunction(() => /5 folds, stratified/.test(document.getElementById('scheme').textContent));
   // The time comes from one task timed in a worker of its own, after the plan.

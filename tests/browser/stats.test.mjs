@@ -19,7 +19,7 @@ after(async () => { await closeAll(); await server.close(); });
 
 const tmp = mkdtempSync(join(tmpdir(), 'popdecode-browser-stats-'));
 // The page's own rounding of a fraction (util.js), so that the comparison is of numbers, not of formatting.
-const pct = (v) => (100 * v).toFixed(1) + ' %';
+const pct = (v) => (100 * v).toFixed(1) + '\u00a0%';
 
 async function openPage() {
   const b = await browser();

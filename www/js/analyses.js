@@ -121,7 +121,7 @@
   PD.describeMore = function (r) {
     const parts = [];
     if (r.across) {
-      parts.push(`trained and tested across ‘${r.across.column}’ (` + (r.across.assignments.length
+      parts.push(`trained and tested across '${r.across.column}' (` + (r.across.assignments.length
         ? r.across.assignments.map((a) => `train ${a.train.join(', ')}, test ${a.test.join(', ')}`).join('; ')
         : 'every even split of its levels') + ')');
     }
@@ -214,7 +214,7 @@
     $('label').value = label;
     $('label').dispatchEvent(new Event('change'));
     then();
-    $('data-status').textContent = `Loaded the example ${name} with ‘${label}’ as the label; ` +
+    $('data-status').textContent = `Loaded the example ${name} with '${label}' as the label; ` +
       `“${$(button).textContent.trim()}” (under More analyses of these data) runs it.`;
     PD.markStale();
   }

@@ -400,7 +400,7 @@
     $('feature-count').textContent = `(${n} of ${of} chosen)`;
     const counters = (S.features.counters || []).filter((c) => !S.features.chosen.has(c));
     $('features-note').textContent = counters.length
-      ? `${counters.map((c) => `‘${c}’`).join(', ')} counts 1, 2, 3, … down the file like a trial number, so it is left out of the features; tick it if it really is a measurement.`
+      ? `${counters.map((c) => `'${c}'`).join(', ')} counts 1, 2, 3, … down the file like a trial number, so it is left out of the features; tick it if it really is a measurement.`
       : '';
   }
 
@@ -430,7 +430,7 @@
     if (PD.mainInfo() && PD.mainInfo().headers.includes('session')) {
       $('group').value = 'session';
       PD.syncFeatures();
-      $('data-status').textContent = 'The example sets the Group column to ‘session’: folds never split a session.';
+      $('data-status').textContent = "The example sets the Group column to 'session': folds never split a session.";
     }
     PD.emit('settings');
   };

@@ -67,7 +67,7 @@
       const what = el('span', null, 'record-text');
       what.appendChild(el('strong', `Run ${r.id}`));
       what.appendChild(document.createTextNode(` · ${PD.kindWords(r)} · ${r.files.map((f) => f.name).join(' + ')} · ` +
-        `${PD.DECODER_NAMES[r.recipe.classifier]}${r.kind === 'compare' ? ' and the others' : ''} · ${PD.clock(r.finished)} — ${headline(r)}`));
+        `${PD.DECODER_NAMES[r.recipe.classifier]}${r.kind === 'compare' ? ' and the others' : ''} · ${PD.clock(r.finished)} — ${PD.unbroken(headline(r))}`));
       li.appendChild(what);
       const buttons = el('span', null, 'record-buttons');
       const shown = S.onView.includes(r.id);

@@ -212,7 +212,7 @@
       $('progress').value = frac;
       const elapsed = (performance.now() - started) / 1000;
       const left = frac > 0 ? elapsed * (1 - frac) / frac : NaN;
-      $('progress-text').textContent = `${label}${fitsDone.toLocaleString('en')} of ${fitsTotal.toLocaleString('en')} fits (${Math.round(100 * frac)} %), ` +
+      $('progress-text').textContent = `${label}${fitsDone.toLocaleString('en')} of ${fitsTotal.toLocaleString('en')} fits (${Math.round(100 * frac)}\u00a0%), ` +
         `${elapsed.toFixed(1)} s elapsed` + (Number.isFinite(left) ? `, about ${Math.ceil(left)} s left` : '');
     };
     // Tasks go out in batches: a message to a worker and back costs about a millisecond, as much as a whole task

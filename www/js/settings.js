@@ -244,7 +244,7 @@
     $('unit-col').value = known ? f.column : '';
     PD.fillUnitFilter(known ? f.op : undefined, known ? f.values.join(',') : undefined);
     if (filters.length > 1) return ' It keeps units by several filters; the page applies one: run it from the command line.';
-    if (f && !known) return ` It keeps units by ‘${f.column}’, which this file's units table does not have.`;
+    if (f && !known) return ` It keeps units by '${f.column}', which this file's units table does not have.`;
     return '';
   }
 
@@ -320,13 +320,13 @@
   PD.describeSettings = function (r, design) {
     const parts = [PD.DECODER_NAMES[r.classifier] + (r.tune ? ', C chosen inside each training fold' : PD.WITH_C.includes(r.classifier) ? `, C = ${r.c}` : '')];
     const split = design && design.split;
-    const folds = split === 'leave_one_group_out' ? `leave one ‘${r.columns.group}’ out (the Folds setting, ${r.folds}, not used)`
+    const folds = split === 'leave_one_group_out' ? `leave one '${r.columns.group}' out (the Folds setting, ${r.folds}, not used)`
       : split === 'leave_one_out' ? 'leave-one-out' : `folds ${r.folds}`;
     parts.push(folds, PD.count(r.repeats, 'repeat'), PD.count(r.shuffles, 'shuffle'), `seed ${r.seed}`);
     if (!r.balance) parts.push('classes not balanced');
     if (r.pairwise) parts.push('every pair of conditions also decoded on its own');
-    parts.push(`label ‘${r.columns.label}’` + (r.columns.group ? `, groups ‘${r.columns.group}’` : '') +
-      (r.columns.pseudo ? `, pseudo-trials across ‘${r.columns.pseudo}’` : ''));
+    parts.push(`label '${r.columns.label}'` + (r.columns.group ? `, groups '${r.columns.group}'` : '') +
+      (r.columns.pseudo ? `, pseudo-trials across '${r.columns.pseudo}'` : ''));
     if (r.time) {
       const t = r.time.input;
       if (t.width !== undefined) parts.push(`windows ${t.width} s every ${t.step} s from ${t.start} to ${t.end} s`);

@@ -29,7 +29,11 @@ window.PD = { state: {}, views: {} };
     return b;
   };
 
-  PD.pct = (v) => (100 * v).toFixed(1) + ' %';
+  // A no-break space keeps "%" on the line of its number.
+  PD.pct = (v) => (100 * v).toFixed(1) + '\u00a0%';
+  // The core's texts write "25.0 %" with a plain space; where the page wraps such a text in a narrow place (the
+  // runs list), the number and its "%" are kept together.
+  PD.unbroken = (text) => text.replace(/(\d) %/g, '$1\u00a0%');
   // A p- or q-value written as the core's text writes it (crate/report/text.rs `p_text`): three decimals, or two
   // significant digits in exponent form below 0.001, so the page's tables and its headline agree.
   PD.pText = (v) => (v === null || v === undefined ? '—' : v < 0.001 ? v.toExponential(1) : v.toFixed(3));

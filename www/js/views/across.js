@@ -26,7 +26,7 @@
     rows.push([{ text: 'every assignment', cls: 'text', header: true }, `${pct(headlineOf(r, r.summary).mean)} ± ${pct(headlineOf(r, r.summary).sd)}`,
       pct(headlineOf(r, r.within).mean), r.shuffle.p_value === null ? '—' : pct(r.shuffle.null_p95),
       PD.pText(r.shuffle.p_value), '']);
-    PD.table(view, `Trained → tested on the levels of ‘${r.input.across_column}’ (${r.design.headline.replace('_', ' ')}: mean ± SD over repeats, a spread over resampling, not a confidence interval; chance ${pct(r.chance.level)})`,
+    PD.table(view, `Trained → tested on the levels of '${r.input.across_column}' (${r.design.headline.replace('_', ' ')}: mean ± SD over repeats, a spread over resampling, not a confidence interval; chance ${pct(r.chance.level)})`,
       ['trained → tested', 'across', 'within the testing levels', 'shuffled, 95th percentile', 'p', 'trials (train / test)'], rows);
   }
 
@@ -48,7 +48,7 @@
     PD.notes(view, r);
     PD.figures(view, FIGURES(res), ex);
     assignmentsTable(view, r);
-    PD.table(view, `Trials per class and level of ‘${r.input.across_column}’`, ['class', ...r.levels],
+    PD.table(view, `Trials per class and level of '${r.input.across_column}'`, ['class', ...r.levels],
       r.classes.map((c, i) => [{ text: c, cls: 'text', header: true }, ...r.cell_counts[i]]));
     PD.methods(view, res.methods);
     const items = [['Results (JSON)', `Save the results of run ${record.id} as JSON`, ex.json]];

@@ -41,7 +41,7 @@
     PD.notes(view, r);
     PD.figures(view, FIGURES(res), ex);
     const t = r.target;
-    view.appendChild(el('p', `‘${t.column}’: ${t.variable === 'linear' ? 'a quantity' : `an angle in ${t.unit}`}, from ${t.min} to ${t.max}` +
+    view.appendChild(el('p', `'${t.column}': ${t.variable === 'linear' ? 'a quantity' : `an angle in ${t.unit}`}, from ${t.min} to ${t.max}` +
       (t.mean !== null && t.mean !== undefined ? `, mean ${num(t.mean)} (SD ${num(t.sd)})` : '') +
       (t.mean_direction !== null && t.mean_direction !== undefined ? `, mean direction ${num(t.mean_direction)} (resultant length ${num(t.resultant_length)})` : '') +
       `; ${r.input.trials} trials, ${r.input.features.length} features.`, 'note'));
