@@ -218,7 +218,7 @@
     // Tasks go out in batches: a message to a worker and back costs about a millisecond, as much as a whole task
     // of a fast decoder on small data. A batch is at most a twentieth of a worker's share (so progress moves
     // smoothly and the workers finish together) and, when the speed is known, about a tenth of a second of work.
-    const msPerTask = S.check && S.check.msPerFit !== undefined ? S.check.msPerFit * fitsTotal / queue.length : 0;
+    const msPerTask = S.check && S.check.msTotal !== undefined ? S.check.msTotal / queue.length : 0;
     const batch = Math.max(1, Math.min(Math.floor(queue.length / (20 * n)), msPerTask > 0 ? Math.floor(100 / msPerTask) : Infinity));
     await Promise.all(workers.map(async (worker) => {
       while (next < queue.length) {

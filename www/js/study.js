@@ -163,11 +163,11 @@
   PD.drawStudyPlan = function (c) {
     const fits = c.plan.fits.reduce((a, b) => a + b, 0);
     const workers = PD.workersFor(null, c.plan.tasks.length).workers;
-    const seconds = c.msPerFit !== undefined ? fits * c.msPerFit / 1000 / workers : null;
+    const seconds = c.msTotal !== undefined ? c.msTotal / 1000 / PD.speedOf(workers) : null;
     c.seconds = seconds;
     c.memory = null;
     $('estimate').textContent = `${PD.count(fits, 'fit')} in ${PD.count(c.plan.tasks.length, 'task')} on ${PD.count(workers, 'worker')}` +
-      (seconds !== null ? `: ${PD.about(seconds)} on this computer` : PD.timingNow() ? ' (timing one task on this computer…)' : '') + '.';
+      (seconds !== null ? `: ${PD.about(seconds)} on this computer` : PD.timingNow() ? ' (timing a task on this computer…)' : '') + '.';
   };
 
   window.addEventListener('DOMContentLoaded', () => {
