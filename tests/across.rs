@@ -245,12 +245,21 @@ fn over_time_generalization_is_found_where_the_shared_code_is() {
     for (i, c) in curve.iter().enumerate() {
         assert_eq!(g.scores[i][i], *c, "diagonal at window {i}");
     }
-    // The matrix's null permutes every label: its caveat is in the warnings (JSON, text, page) and the methods.
-    let caveat = popdecode::analyses::across::report::MATRIX_NULL_CAVEAT;
+    // The matrix's null is the default one, only the training labels permuted, and the recipe says so; its
+    // caveat is in the warnings (JSON, text, page) and the methods, beside how the null was made.
+    use popdecode::analyses::time_course::report::generalization_caveat;
+    use popdecode::recipe::GeneralizationNull;
+    assert_eq!(g.null_method, GeneralizationNull::TrainingLabels);
+    assert_eq!(
+        report.recipe.time.as_ref().unwrap().generalization_null,
+        Some(GeneralizationNull::TrainingLabels)
+    );
+    let caveat = generalization_caveat(GeneralizationNull::TrainingLabels);
     assert!(report.warnings.iter().any(|w| w == caveat));
     let methods = popdecode::analyses::across::methods::time_paragraph(&report);
     assert!(
-        methods.contains(&format!("Caution: {caveat}.")),
+        methods.contains(&format!("Caution: {caveat}."))
+            && methods.contains("permuted only the training trials' labels"),
         "{methods}"
     );
 }
@@ -313,4 +322,110 @@ fn bad_designs_say_what_is_wrong() {
     few.folds = popdecode::recipe::Folds::K(12);
     let e = plan(&s, &few).err().unwrap().to_string();
     assert!(e.contains("fewer than the 12 folds"), "{e}");
+}
+
+/// Recordings whose choice is carried only from 0.2 s on, by a code shared by both contexts, trained on one context
+/// and tested on the other with temporal generalization: in how many is a cell trained at a window that ends by 0 s
+/// (trained where there is no information) significant, and in how many a cell trained and tested inside the
+/// information?
+fn pre_onset_rate(
+    null: popdecode::recipe::GeneralizationNull,
+    n: u64,
+    (repeats, shuffle_repeats): (usize, usize),
+) -> (usize, usize) {
+    let (mut hits, mut found) = (0, 0);
+    for seed in 0..n {
+        let s = ContextScenario {
+            trials_per_cell: 20,
+            units: 8,
+            choice_gain: 8.0,
+            seed: 7000 + seed,
+            ..ContextScenario::choices()
+        };
+        let table = context_binned(&s, -0.4, 0.8, 0.1, (0.2, 0.8));
+        let mut r = recipe(&[(&["citral"], &["hexanal"])], repeats, 39);
+        r.shuffle_repeats = Some(shuffle_repeats);
+        r.seed = seed;
+        let mut settings = TimeSettings::binned("trial", "time");
+        settings.generalize = true;
+        settings.generalization_null = Some(null);
+        r.time = Some(settings);
+        let files = [FileBytes {
+            name: "binned.csv",
+            bytes: table.as_bytes(),
+        }];
+        let input = &r.time.as_ref().unwrap().input;
+        let data = input::across::time_course(&files, &r.columns, input, "context").unwrap();
+        let report = run_all_time(&AcrossPlan::new(data, &r).unwrap());
+        let g = report.generalization.as_ref().unwrap();
+        let pre = report.windows.iter().filter(|w| w.end <= 1e-9).count();
+        hits += usize::from(g.significant[..pre].iter().flatten().any(|&s| s));
+        let inside = report
+            .windows
+            .iter()
+            .position(|w| w.start >= 0.2 - 1e-9)
+            .unwrap();
+        found += usize::from(
+            g.significant[inside..]
+                .iter()
+                .any(|row| row[inside..].iter().any(|&s| s)),
+        );
+    }
+    (hits, found)
+}
+
+/// With the default null of the train × test matrix across conditions (only the training trials' labels
+/// permuted, within levels), cells trained before any information are significant in no more recordings than the
+/// α rate allows: the cluster test's family-wise error over cells whose training window carries no information
+/// (Maris & Oostenveld, 2007). 200 recordings; the count must lie below the binomial 99 % upper bound for α = 0.05.
+/// (The all-labels null, which also permutes the testing trials' labels, exceeds it on these recordings: README.)
+#[test]
+fn matrix_cells_trained_before_information_keep_the_error_rate_across_conditions() {
+    use popdecode::recipe::GeneralizationNull;
+    use popdecode::stats::binomial;
+    let n = 200;
+    let (hits, found) = pre_onset_rate(GeneralizationNull::TrainingLabels, n, (2, 1));
+    let bound = binomial::quantile(0.995, n, 0.05) as usize;
+    assert!(
+        hits <= bound,
+        "{hits} of {n} recordings had a significant cell trained before 0 s; bound {bound}"
+    );
+    assert!(found >= n as usize * 9 / 10, "found in {found} of {n}");
+}
+
+/// The same with several repeats per shuffle: the null's training labels recur across a shuffle's repeats as the
+/// observed labels recur across the observed repeats.
+#[test]
+fn matrix_cells_trained_before_information_keep_the_error_rate_across_conditions_over_many_repeats()
+{
+    use popdecode::recipe::GeneralizationNull;
+    use popdecode::stats::binomial;
+    let n = 100;
+    let (hits, found) = pre_onset_rate(GeneralizationNull::TrainingLabels, n, (10, 5));
+    let bound = binomial::quantile(0.995, n, 0.05) as usize;
+    assert!(
+        hits <= bound,
+        "{hits} of {n} recordings had a significant cell trained before 0 s; bound {bound}"
+    );
+    assert!(found >= n as usize * 9 / 10, "found in {found} of {n}");
+}
+
+/// Not a check: prints the same counts for both nulls, for README (`cargo test --release --test across --
+/// --ignored --nocapture`).
+#[test]
+#[ignore]
+fn matrix_null_rates_for_readme() {
+    use popdecode::recipe::GeneralizationNull;
+    for null in [
+        GeneralizationNull::TrainingLabels,
+        GeneralizationNull::AllLabels,
+    ] {
+        for (n, reps) in [(200, (2, 1)), (100, (10, 5))] {
+            let (hits, found) = pre_onset_rate(null, n, reps);
+            println!(
+                "{} {n} recordings {reps:?}: {hits} pre-onset, {found} found",
+                null.name()
+            );
+        }
+    }
 }

@@ -1,13 +1,11 @@
 //! The methods paragraph of generalization across conditions.
 
 use super::plan::WithinSplit;
-use super::report::{
-    AcrossDesign, AcrossInput, AcrossReport, AcrossTimeReport, SetBalance, MATRIX_NULL_CAVEAT,
-};
+use super::report::{AcrossDesign, AcrossInput, AcrossReport, AcrossTimeReport, SetBalance};
 use super::text::arrow;
 use crate::analyses::over_time::{cluster_sentence, windows_sentence};
-use crate::analyses::time_course::report::ONSET_CAVEAT;
-use crate::recipe::Recipe;
+use crate::analyses::time_course::report::{generalization_caveat, ONSET_CAVEAT};
+use crate::recipe::{GeneralizationNull, Recipe};
 use crate::report::methods::{class_counts, fitting};
 use crate::report::text::{p_text, pct, seconds as s};
 
@@ -258,9 +256,6 @@ pub fn time_paragraph(r: &AcrossTimeReport) -> String {
              set was tested on the testing set at every window."
                 .into(),
         );
-        if r.shuffle.count > 0 {
-            out.push(format!("Caution: {MATRIX_NULL_CAVEAT}."));
-        }
     }
     out.push(format!(
         "The {} was averaged over assignments and repeats at each window; chance was {}.",
@@ -298,6 +293,27 @@ pub fn time_paragraph(r: &AcrossTimeReport) -> String {
             out.push(format!(
                 "The first window of the earliest significant cluster was centred at {} s; {ONSET_CAVEAT}.",
                 s(o.time)
+            ));
+        }
+        if let Some(g) = &r.generalization {
+            out.push(match g.null_method {
+                GeneralizationNull::TrainingLabels => format!(
+                    "For the train × test matrix, each of the {} permutations instead permuted only the training \
+                     trials' labels: one permutation within {} per permutation, shared by its repeats and windows \
+                     as the observed labels are, the training set balanced by the permuted labels; the decoders \
+                     were trained on the permuted labels and tested on the testing trials with their observed \
+                     labels, so that a cell's null is a decoder trained without information at its training window \
+                     meeting the observed data at its testing window. The matrix's clusters (cells adjacent when \
+                     sharing an edge) were tested against this null in the same way.",
+                    r.shuffle.count, r.shuffle.permuted_within
+                ),
+                GeneralizationNull::AllLabels => "The train × test matrix used the same permutations of the \
+                     labels as the curve, its clusters (cells adjacent when sharing an edge) tested in the same way."
+                    .to_string(),
+            });
+            out.push(format!(
+                "Caution: {}.",
+                generalization_caveat(g.null_method)
             ));
         }
     }

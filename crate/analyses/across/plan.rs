@@ -12,7 +12,9 @@
 //!
 //! A shuffle permutes the labels within each level of the second column (and within each group, when set) — which
 //! keeps every level's label counts and removes any relation of activity to label that could carry over — and runs
-//! the recipe's repeats per shuffle of the generalization score for every assignment.
+//! the recipe's repeats per shuffle of the generalization score for every assignment. With temporal
+//! generalization and its default null, the train × test matrix has a null of its own in each shuffle: only the
+//! training trials' labels permuted, the testing trials keeping theirs (see [`AcrossPlan::run`]).
 
 use crate::data::across::AcrossData;
 use crate::decoders::{
@@ -20,7 +22,7 @@ use crate::decoders::{
 };
 use crate::error::{Error, Result};
 use crate::input::{self, FileBytes};
-use crate::recipe::{Assignment, Folds, Recipe, Setting, TimeInput};
+use crate::recipe::{Assignment, Folds, GeneralizationNull, Recipe, Setting, TimeInput};
 use crate::resample::score::accuracies;
 use crate::resample::{balance, grouped_folds, permute_labels, stratified_folds, Headline, Task};
 use crate::rng::{task_rng, Stream};
@@ -103,6 +105,8 @@ pub struct AcrossPlan {
     pub dichotomies: bool,
     pub headline: Headline,
     pub generalize: bool,
+    /// With temporal generalization: the null of the train × test matrix.
+    pub matrix_null: Option<GeneralizationNull>,
     pub warnings: Vec<String>,
     decoder: Box<dyn Decoder>,
     /// Label permutations stay within these strata: level × group.
@@ -243,15 +247,24 @@ impl AcrossPlan {
                 );
             }
         }
+        // With temporal generalization, the matrix's null is written out, so that a saved recipe keeps its meaning
+        // whatever the default.
+        let mut recipe = recipe.clone();
+        let matrix_null = recipe.time.as_mut().filter(|t| t.generalize).map(|t| {
+            let null = t.generalization_null();
+            t.generalization_null = Some(null);
+            null
+        });
         Ok(AcrossPlan {
             headline: if recipe.balance {
                 Headline::Accuracy
             } else {
                 Headline::BalancedAccuracy
             },
-            generalize: recipe.time.as_ref().is_some_and(|t| t.generalize),
+            generalize: matrix_null.is_some(),
+            matrix_null,
             decoder: decoders::build(recipe.classifier, recipe.c, recipe.tune),
-            recipe: recipe.clone(),
+            recipe,
             dichotomies: !named,
             assignments,
             warnings,
@@ -271,7 +284,7 @@ impl AcrossPlan {
     }
 
     /// Fits one task performs: per assignment and window, one generalization fit and, in an observed repeat, the
-    /// within-condition folds.
+    /// within-condition folds; in a shuffle with the training-label null, a second fit for the matrix's null.
     pub fn fits_in(&self, task: Task) -> usize {
         let nw = self.n_windows();
         match task {
@@ -280,8 +293,16 @@ impl AcrossPlan {
                 .iter()
                 .map(|a| nw * (1 + self.within_folds(a)))
                 .sum(),
-            Task::Shuffle(_) => self.assignments.len() * nw * self.recipe.shuffle_repeats(),
+            Task::Shuffle(_) => {
+                let per_repeat = if self.training_label_null() { 2 } else { 1 };
+                self.assignments.len() * nw * self.recipe.shuffle_repeats() * per_repeat
+            }
         }
+    }
+
+    /// Whether the matrix's null permutes only the training trials' labels (and so is run apart from the curve's).
+    fn training_label_null(&self) -> bool {
+        self.matrix_null == Some(GeneralizationNull::TrainingLabels)
     }
 
     /// Folds of the within-condition cross-validation of an assignment.
@@ -299,21 +320,47 @@ impl AcrossPlan {
         }
     }
 
+    /// Run one task. A shuffle `j` permutes the labels within strata (stream `Permutation` (j, 0)) and runs the
+    /// recipe's repeats per shuffle on them for every assignment (streams `ShuffleRepeat` (j, b)): the curve's null.
+    ///
+    /// With the training-label null of the matrix, each of those repeats has a twin (stream `TrainingShuffle`
+    /// (j, b)) that trains on the shuffle's *training* labels — a second permutation within strata, drawn once per
+    /// shuffle (stream `TrainingLabels` (j, 0)) and shared by its repeats and windows, as the observed labels are
+    /// shared by the observed repeats — and tests on the testing trials with their observed labels; the twins' mean
+    /// is the shuffle's matrix. Why this is the null of "what was learnt at the training window generalizes": where
+    /// the training window carries no information, a decoder trained on permuted labels is distributed as the
+    /// observed one, while the testing trials it meets, and their information at the testing window, are the
+    /// observed ones, so a chance alignment of a decoder trained on noise with that information is in the null too
+    /// (permuting the testing labels as well removes it, and cells trained before any information come out
+    /// significant; see README). The training set is balanced by the labels it is trained on; permuting within
+    /// level × group keeps every (level, label) cell's size, so the balanced sets are as large as the observed ones.
     pub fn run(&self, task: Task) -> AcrossOutcome {
         let seed = self.recipe.seed;
         let mut out = AcrossOutcome::empty(task);
+        let observed = Labels {
+            train: &self.data.y,
+            test: &self.data.y,
+        };
         match task {
             Task::Repeat(i) => {
                 for (a, assignment) in self.assignments.iter().enumerate() {
                     let mut rng = task_rng(seed, Stream::Repeat, i as u64, a as u64);
                     let keep = i == 0 && !self.data.features.is_time();
-                    let one = self.one_repeat(assignment, &self.data.y, &mut rng, true, keep);
+                    let one = self.one_repeat(assignment, observed, &mut rng, true, keep, true);
                     out.push(one);
                 }
             }
             Task::Shuffle(j) => {
                 let mut rng = task_rng(seed, Stream::Permutation, j as u64, 0);
                 let labels = permute_labels(&mut rng, &self.data.y, Some(&self.strata));
+                let shuffled = Labels {
+                    train: &labels,
+                    test: &labels,
+                };
+                let training = self.training_label_null().then(|| {
+                    let mut rng = task_rng(seed, Stream::TrainingLabels, j as u64, 0);
+                    permute_labels(&mut rng, &self.data.y, Some(&self.strata))
+                });
                 let r = self.recipe.shuffle_repeats();
                 let n_assign = self.assignments.len();
                 for (a, assignment) in self.assignments.iter().enumerate() {
@@ -321,7 +368,21 @@ impl AcrossPlan {
                     for i in 0..r {
                         let b = (i * n_assign + a) as u64;
                         let mut rng = task_rng(seed, Stream::ShuffleRepeat, j as u64, b);
-                        let one = self.one_repeat(assignment, &labels, &mut rng, false, false);
+                        let matrix = training.is_none();
+                        let mut one =
+                            self.one_repeat(assignment, shuffled, &mut rng, false, false, matrix);
+                        if let Some(training) = &training {
+                            let mut rng = task_rng(seed, Stream::TrainingShuffle, j as u64, b);
+                            let twin = Labels {
+                                train: training,
+                                test: &self.data.y,
+                            };
+                            let g = self.one_repeat(assignment, twin, &mut rng, false, false, true);
+                            one.matrix = g.matrix;
+                            one.fits += g.fits;
+                            one.capped += g.capped;
+                            one.single_class += g.single_class;
+                        }
                         match &mut total {
                             None => total = Some(one),
                             Some(t) => t.add(&one),
@@ -345,22 +406,24 @@ impl AcrossPlan {
         }
     }
 
-    /// Balance both sets, train on one and test on the other at every window; with `within`, cross-validate within
-    /// the testing set too; with `keep`, record every decision.
+    /// Balance both sets, train on one and test on the other at every window (and, with temporal generalization
+    /// and `matrix`, at every other window); with `within`, cross-validate within the testing set too; with `keep`,
+    /// record every decision.
     fn one_repeat(
         &self,
         a: &Resolved,
-        labels: &[usize],
+        labels: Labels,
         rng: &mut impl RngCore,
         within: bool,
         keep: bool,
+        matrix: bool,
     ) -> One {
         let k = self.data.classes.len();
         let nw = self.n_windows();
-        let train = self.balanced(&a.train_trials, labels, rng);
-        let test = self.balanced(&a.test_trials, labels, rng);
-        let y_train: Vec<usize> = train.iter().map(|&i| labels[i]).collect();
-        let y_test: Vec<usize> = test.iter().map(|&i| labels[i]).collect();
+        let train = self.balanced(&a.train_trials, labels.train, rng);
+        let test = self.balanced(&a.test_trials, labels.test, rng);
+        let y_train: Vec<usize> = train.iter().map(|&i| labels.train[i]).collect();
+        let y_test: Vec<usize> = test.iter().map(|&i| labels.test[i]).collect();
         let within_fold = within.then(|| self.within_fold(a, &test, &y_test, rng));
         // Nested tuning's inner folds within the testing set: a stream of this repeat's own, the same at every window.
         let nesting = Nesting {
@@ -384,7 +447,7 @@ impl AcrossPlan {
             one.fits += 1;
             one.capped += u32::from(model.hit_iteration_cap());
             one.chosen.extend(model.chosen());
-            let targets: Vec<usize> = if self.generalize {
+            let targets: Vec<usize> = if self.generalize && matrix {
                 (0..nw).collect()
             } else {
                 vec![w]
@@ -578,6 +641,14 @@ impl AcrossOutcome {
         self.chosen.extend(one.chosen);
         self.decisions.extend(one.decisions);
     }
+}
+
+/// The labels a repeat trains on and the labels it tests against: the same vector, observed or permuted, except
+/// in the matrix's training-label null.
+#[derive(Clone, Copy)]
+struct Labels<'a> {
+    train: &'a [usize],
+    test: &'a [usize],
 }
 
 /// Accuracy and balanced accuracy of predictions (`usize::MAX` for a trial whose fold had no model counts as wrong).

@@ -40,9 +40,11 @@
 
 use super::plan::{AcrossOutcome, AcrossPlan, Decisions, WithinSplit};
 use crate::analyses::over_time::{curve_test, in_significant, onset, time_clusters};
-use crate::analyses::time_course::report::{Generalization, GridCluster, Onset, TimeCluster};
+use crate::analyses::time_course::report::{
+    generalization_caveat, Generalization, GridCluster, Onset, TimeCluster,
+};
 use crate::data::SourceFile;
-use crate::recipe::{GeneralizationNull, Recipe, TimeInput};
+use crate::recipe::{Recipe, TimeInput};
 use crate::report::{by_task, Fits, Software, Tuning, CHANCE_ALPHA};
 use crate::resample::Headline;
 use crate::stats::clusters::{self, CLUSTER_PERCENTILE};
@@ -51,16 +53,6 @@ use serde::{Deserialize, Serialize};
 
 pub const ACROSS_SCHEMA: &str = "popdecode-across/1";
 pub const ACROSS_TIME_SCHEMA: &str = "popdecode-across-timecourse/1";
-
-/// What a temporal generalization matrix across conditions says about its cells: its null permutes every label,
-/// so it has the weakness the time course's all-labels null has (`time_course::report::generalization_caveat`);
-/// the time course's training-label null is not built for generalization across conditions yet.
-pub const MATRIX_NULL_CAVEAT: &str = "temporal generalization across conditions: the matrix's permutations \
-     shuffled every label, training and testing trials alike, so where the testing window carries information a \
-     decoder trained at a window without any can score away from chance by a chance alignment with it, and cells \
-     trained before any information can come out significant (the time course's null that permutes only the \
-     training labels, which does not have this problem, is not available across conditions yet); read \
-     off-diagonal cells with care";
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct AcrossReport {
@@ -569,8 +561,8 @@ impl AcrossTimeReport {
             .generalize
             .then(|| matrix(plan, &repeats, &shuffles, alpha));
         let mut warnings = c.warnings;
-        if generalization.is_some() && !shuffles.is_empty() {
-            warnings.push(MATRIX_NULL_CAVEAT.to_string());
+        if let Some(g) = generalization.as_ref().filter(|_| !shuffles.is_empty()) {
+            warnings.push(generalization_caveat(g.null_method).to_string());
         }
         AcrossTimeReport {
             schema: ACROSS_TIME_SCHEMA.into(),
@@ -696,8 +688,9 @@ fn matrix(
         .collect();
     let rows = |flat: &[f64]| flat.chunks(nw).map(<[f64]>::to_vec).collect::<Vec<_>>();
     Generalization {
-        // Across conditions, a shuffle permutes the labels within each level, training and testing trials alike.
-        null_method: GeneralizationNull::AllLabels,
+        null_method: plan
+            .matrix_null
+            .expect("a matrix only with temporal generalization"),
         scores: rows(&mean),
         null_p95: test.as_ref().map(|t| rows(&t.thresholds)),
         null_max_mass: test.map(|t| t.null_max_mass).unwrap_or_default(),
