@@ -628,7 +628,7 @@ fn generalization_cells_trained_before_information_keep_the_error_rate_over_many
 /// The same with unequal classes (12 trials of "a", 4 of "b"): balancing and folds are drawn from the observed
 /// labels, so the training trials' permuted labels are not balanced in the null's fits (about 3:1 on average) while
 /// the observed fits' are; the null must still keep the error rate. Measured 2026-12-04: 3 of 200 recordings with
-/// 2 repeats and 1 per shuffle, 5 of 100 with 10 repeats and 5 per shuffle (bounds 17 and 11).
+/// 2 repeats and 1 per shuffle, 5 of 100 with 10 repeats and 5 per shuffle (bounds 19 and 11).
 #[test]
 fn generalization_cells_trained_before_information_keep_the_error_rate_with_unequal_classes() {
     use popdecode::recipe::GeneralizationNull;
