@@ -268,3 +268,36 @@ fn each_analysis_refuses_the_other_kind_of_decoder() {
         .to_string();
     assert!(e.contains("ridge decodes a continuous variable"), "{e}");
 }
+
+/// The shuffle control of a continuous variable is calibrated: speed without any tuning (slope 0), ridge
+/// regression, 199 shuffles of the values, 2 repeats observed and 2 per shuffle; p < 0.05 in a share of 300 tables
+/// inside the binomial 99 % interval around 0.05 (P(p < 0.05) = 9/200 for m = 199, Phipson & Smyth 2010).
+#[test]
+fn continuous_shuffle_control_is_calibrated() {
+    use popdecode::stats::binomial;
+    let datasets = 300;
+    let mut rejections = 0;
+    for d in 0..datasets {
+        let none = MotionScenario {
+            trials: 60,
+            units: 5,
+            speed_slope: 0.0,
+            seed: 11_000 + d,
+            ..MotionScenario::running()
+        };
+        let mut r = recipe("speed", Classifier::Ridge, 2, 199);
+        r.shuffle_repeats = Some(2);
+        r.seed = d;
+        let report = run_all(&plan(&none, &r));
+        rejections += u64::from(report.shuffle.p_value.unwrap() < 0.05);
+    }
+    eprintln!("measured, continuous: {rejections} of {datasets} rejected");
+    let (lo, hi) = (
+        binomial::quantile(0.005, datasets, 0.05),
+        binomial::quantile(0.995, datasets, 0.05),
+    );
+    assert!(
+        lo <= rejections && rejections <= hi,
+        "{rejections} of {datasets} rejected; 99 % interval {lo}..={hi}"
+    );
+}

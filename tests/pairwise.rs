@@ -130,3 +130,48 @@ fn per_class_recall_has_its_own_p_value() {
         .unwrap()
         .contains("pooled"));
 }
+
+/// A table of three conditions without any information: 20 trials each over four features of pure noise.
+fn three_without_information(seed: u64) -> String {
+    let mut rng = task_rng(seed, Stream::Simulation, 16, 0);
+    let mut text = String::from("cond,f0,f1,f2,f3\n");
+    for i in 0..60 {
+        text.push_str(["a", "b", "c"][i % 3]);
+        for _ in 0..4 {
+            write!(text, ",{}", normal(&mut rng)).unwrap();
+        }
+        text.push('\n');
+    }
+    text
+}
+
+/// Each pair's own shuffle p-value is calibrated: without information, the first pair's p < 0.05 in a share of 300
+/// tables inside the binomial 99 % interval around 0.05 (one pair per table, so the tables are independent; P(p <
+/// 0.05) = 9/200 for m = 199, Phipson & Smyth 2010; ties only lower it). The pair's permutations are those of the
+/// pair's own trials, so the test is the two-class test on them.
+#[test]
+fn a_pairs_shuffle_p_value_is_calibrated() {
+    use popdecode::stats::binomial;
+    let datasets = 300;
+    let mut rejections = 0;
+    for d in 0..datasets {
+        let text = three_without_information(20_000 + d);
+        let mut r = recipe(199);
+        r.repeats = 2;
+        r.shuffle_repeats = Some(2);
+        r.seed = d;
+        let data = input::trial_table("three.csv", text.as_bytes(), &r.columns).unwrap();
+        let report = run_all(&Plan::new(data, &r).unwrap());
+        let pairs = &report.pairwise.as_ref().unwrap().pairs;
+        rejections += u64::from(pairs[0].p_value.unwrap() < 0.05);
+    }
+    eprintln!("measured, first pair: {rejections} of {datasets} rejected");
+    let (lo, hi) = (
+        binomial::quantile(0.005, datasets, 0.05),
+        binomial::quantile(0.995, datasets, 0.05),
+    );
+    assert!(
+        lo <= rejections && rejections <= hi,
+        "{rejections} of {datasets} rejected; 99 % interval {lo}..={hi}"
+    );
+}
