@@ -7,6 +7,8 @@ use popdecode::input::{self, FileBytes};
 use popdecode::recipe::{Across, Assignment, Classifier, Recipe, TimeSettings};
 use popdecode::simulate::{context_binned, context_csv, ContextScenario};
 
+mod common;
+
 fn recipe(assignments: &[(&[&str], &[&str])], repeats: usize, shuffles: usize) -> Recipe {
     let mut r = Recipe::new("choice");
     r.classifier = Classifier::ShrinkageLda;
@@ -382,15 +384,9 @@ fn pre_onset_rate(
 #[test]
 fn matrix_cells_trained_before_information_keep_the_error_rate_across_conditions() {
     use popdecode::recipe::GeneralizationNull;
-    use popdecode::stats::binomial;
     let n = 200;
     let (hits, found) = pre_onset_rate(GeneralizationNull::TrainingLabels, n, (2, 1));
-    let bound = binomial::quantile(0.995, n, 0.05) as usize;
-    assert!(
-        hits <= bound,
-        "{hits} of {n} recordings had a significant cell trained before 0 s; bound {bound}"
-    );
-    assert!(found >= n as usize * 9 / 10, "found in {found} of {n}");
+    common::assert_keeps_error_rate(hits, found, n, 90);
 }
 
 /// The same with several repeats per shuffle: the null's training labels recur across a shuffle's repeats as the
@@ -399,15 +395,9 @@ fn matrix_cells_trained_before_information_keep_the_error_rate_across_conditions
 fn matrix_cells_trained_before_information_keep_the_error_rate_across_conditions_over_many_repeats()
 {
     use popdecode::recipe::GeneralizationNull;
-    use popdecode::stats::binomial;
     let n = 100;
     let (hits, found) = pre_onset_rate(GeneralizationNull::TrainingLabels, n, (10, 5));
-    let bound = binomial::quantile(0.995, n, 0.05) as usize;
-    assert!(
-        hits <= bound,
-        "{hits} of {n} recordings had a significant cell trained before 0 s; bound {bound}"
-    );
-    assert!(found >= n as usize * 9 / 10, "found in {found} of {n}");
+    common::assert_keeps_error_rate(hits, found, n, 90);
 }
 
 /// Not a check: prints the same counts for both nulls, for README (`cargo test --release --test across --
@@ -458,16 +448,6 @@ fn across_rejections(datasets: u64) -> u64 {
 /// permuted tables are exchangeable with the observed one under no information.
 #[test]
 fn across_shuffle_control_is_calibrated() {
-    use popdecode::stats::binomial;
     let datasets = 300;
-    let rejections = across_rejections(datasets);
-    eprintln!("measured, across conditions: {rejections} of {datasets} rejected");
-    let (lo, hi) = (
-        binomial::quantile(0.005, datasets, 0.05),
-        binomial::quantile(0.995, datasets, 0.05),
-    );
-    assert!(
-        lo <= rejections && rejections <= hi,
-        "{rejections} of {datasets} rejected; 99 % interval {lo}..={hi}"
-    );
+    common::assert_calibrated("across conditions", across_rejections(datasets), datasets);
 }

@@ -8,6 +8,8 @@ use popdecode::input::{self, FileBytes};
 use popdecode::recipe::{AngleUnit, Classifier, Recipe, TimeSettings};
 use popdecode::simulate::{motion_binned, motion_csv, MotionScenario, MotionUnits};
 
+mod common;
+
 fn recipe(label: &str, classifier: Classifier, repeats: usize, shuffles: usize) -> Recipe {
     let mut r = Recipe::new(label);
     r.classifier = classifier;
@@ -274,7 +276,6 @@ fn each_analysis_refuses_the_other_kind_of_decoder() {
 /// inside the binomial 99 % interval around 0.05 (P(p < 0.05) = 9/200 for m = 199, Phipson & Smyth 2010).
 #[test]
 fn continuous_shuffle_control_is_calibrated() {
-    use popdecode::stats::binomial;
     let datasets = 300;
     let mut rejections = 0;
     for d in 0..datasets {
@@ -291,13 +292,5 @@ fn continuous_shuffle_control_is_calibrated() {
         let report = run_all(&plan(&none, &r));
         rejections += u64::from(report.shuffle.p_value.unwrap() < 0.05);
     }
-    eprintln!("measured, continuous: {rejections} of {datasets} rejected");
-    let (lo, hi) = (
-        binomial::quantile(0.005, datasets, 0.05),
-        binomial::quantile(0.995, datasets, 0.05),
-    );
-    assert!(
-        lo <= rejections && rejections <= hi,
-        "{rejections} of {datasets} rejected; 99 % interval {lo}..={hi}"
-    );
+    common::assert_calibrated("a continuous variable", rejections, datasets);
 }

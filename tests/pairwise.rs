@@ -9,6 +9,8 @@ use popdecode::recipe::{Classifier, Recipe};
 use popdecode::rng::{normal, task_rng, Stream};
 use std::fmt::Write;
 
+mod common;
+
 /// Four conditions over six features: 'a' at the origin, 'b' shifted on feature 0, 'c' and 'd' both shifted on
 /// feature 1, so that 'c' and 'd' cannot be told apart (our own invented design).
 fn four_conditions() -> String {
@@ -151,7 +153,6 @@ fn three_without_information(seed: u64) -> String {
 /// pair's own trials, so the test is the two-class test on them.
 #[test]
 fn a_pairs_shuffle_p_value_is_calibrated() {
-    use popdecode::stats::binomial;
     let datasets = 300;
     let mut rejections = 0;
     for d in 0..datasets {
@@ -165,13 +166,5 @@ fn a_pairs_shuffle_p_value_is_calibrated() {
         let pairs = &report.pairwise.as_ref().unwrap().pairs;
         rejections += u64::from(pairs[0].p_value.unwrap() < 0.05);
     }
-    eprintln!("measured, first pair: {rejections} of {datasets} rejected");
-    let (lo, hi) = (
-        binomial::quantile(0.005, datasets, 0.05),
-        binomial::quantile(0.995, datasets, 0.05),
-    );
-    assert!(
-        lo <= rejections && rejections <= hi,
-        "{rejections} of {datasets} rejected; 99 % interval {lo}..={hi}"
-    );
+    common::assert_calibrated("a pair's own p-value", rejections, datasets);
 }

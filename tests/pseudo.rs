@@ -10,6 +10,8 @@ use popdecode::resample::Split;
 use popdecode::rng::{normal, task_rng, Stream};
 use std::fmt::Write;
 
+mod common;
+
 /// Three sessions of 6 neurons each, 30 trials per condition per session (two conditions), each neuron weakly
 /// tuned; cells of other sessions' neurons empty. `tag` makes every value unique to its trial (for tracing).
 fn sessions_table(tuning: f64) -> String {
@@ -218,7 +220,6 @@ fn neuron_weights_of_a_pseudo_population_are_finite() {
 /// and 0.475 with 120; hence 80 here.
 #[test]
 fn pseudo_population_shuffle_control_is_calibrated() {
-    use popdecode::stats::binomial;
     let datasets = 300;
     let mut rejections = 0;
     for d in 0..datasets {
@@ -232,13 +233,5 @@ fn pseudo_population_shuffle_control_is_calibrated() {
         let report = run_all(&Plan::new(data, &r).unwrap());
         rejections += u64::from(report.shuffle.p_value.unwrap() < 0.05);
     }
-    eprintln!("measured, pseudo-population: {rejections} of {datasets} rejected");
-    let (lo, hi) = (
-        binomial::quantile(0.005, datasets, 0.05),
-        binomial::quantile(0.995, datasets, 0.05),
-    );
-    assert!(
-        lo <= rejections && rejections <= hi,
-        "{rejections} of {datasets} rejected; 99 % interval {lo}..={hi}"
-    );
+    common::assert_calibrated("a pseudo-population", rejections, datasets);
 }

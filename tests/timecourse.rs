@@ -14,6 +14,8 @@ use popdecode::resample::Task;
 use popdecode::simulate::{binned, spike_events, TimeScenario};
 use std::fmt::Write;
 
+mod common;
+
 fn events_recipe(start: f64, end: f64, repeats: usize, shuffles: usize) -> Recipe {
     let mut r = Recipe::new("odour");
     r.classifier = Classifier::ShrinkageLda;
@@ -594,16 +596,10 @@ fn pre_onset_rate(
 #[test]
 fn generalization_cells_trained_before_information_keep_the_error_rate() {
     use popdecode::recipe::GeneralizationNull;
-    use popdecode::stats::binomial;
     let n = 200;
     let (hits, found) = pre_onset_rate(GeneralizationNull::TrainingLabels, n, (2, 1), None);
-    let bound = binomial::quantile(0.995, n, 0.05) as usize;
-    assert!(
-        hits <= bound,
-        "{hits} of {n} recordings had a significant cell trained before 0 s; bound {bound}"
-    );
     // The test still finds the information where it is.
-    assert!(found >= n as usize * 9 / 10, "found in {found} of {n}");
+    common::assert_keeps_error_rate(hits, found, n, 90);
 }
 
 /// The same with many repeats, and several per shuffle, as the defaults run (10 repeats per shuffle): the null's
@@ -614,15 +610,10 @@ fn generalization_cells_trained_before_information_keep_the_error_rate() {
 #[test]
 fn generalization_cells_trained_before_information_keep_the_error_rate_over_many_repeats() {
     use popdecode::recipe::GeneralizationNull;
-    use popdecode::stats::binomial;
     let n = 100;
     let (hits, found) = pre_onset_rate(GeneralizationNull::TrainingLabels, n, (10, 5), None);
-    let bound = binomial::quantile(0.995, n, 0.05) as usize;
-    assert!(
-        hits <= bound,
-        "{hits} of {n} recordings had a significant cell trained before 0 s; bound {bound}"
-    );
-    assert!(found >= n as usize * 9 / 10, "found in {found} of {n}");
+    // The test still finds the information where it is.
+    common::assert_keeps_error_rate(hits, found, n, 90);
 }
 
 /// The same with unequal classes (12 trials of "a", 4 of "b"): balancing and folds are drawn from the observed
@@ -632,13 +623,8 @@ fn generalization_cells_trained_before_information_keep_the_error_rate_over_many
 #[test]
 fn generalization_cells_trained_before_information_keep_the_error_rate_with_unequal_classes() {
     use popdecode::recipe::GeneralizationNull;
-    use popdecode::stats::binomial;
     let n = 200;
     let (hits, found) = pre_onset_rate(GeneralizationNull::TrainingLabels, n, (2, 1), Some(4));
-    let bound = binomial::quantile(0.995, n, 0.05) as usize;
-    assert!(
-        hits <= bound,
-        "{hits} of {n} recordings had a significant cell trained before 0 s; bound {bound}"
-    );
-    assert!(found >= n as usize * 8 / 10, "found in {found} of {n}");
+    // The test still finds the information where it is.
+    common::assert_keeps_error_rate(hits, found, n, 80);
 }

@@ -143,6 +143,36 @@ test('planning the next recording: defaults from the core, the same bytes as the
   await b.context.close();
 });
 
+test('generalization across conditions over time with temporal generalization: the matrix has its own null, the same bytes as the command line', SLOW, async () => {
+  const b = await openPage();
+  await b.page.check('input[name=kind][value=binned]');
+  await b.page.setInputFiles('#file', sample('choices_binned.csv'));
+  await b.page.waitForSelector('#data-view:not([hidden])');
+  await b.page.selectOption('#label', 'choice');
+  await b.page.dispatchEvent('#label', 'change');
+  await quickSettings(b.page, { repeats: 2, shuffles: 3 });
+  await b.page.check('#generalize');
+  await b.page.dispatchEvent('#generalize', 'change');
+  assert.equal(await b.page.inputValue('#generalization-null'), 'training-labels', 'the recommended null is the default');
+  await b.page.selectOption('#across-col', 'context');
+  await b.page.dispatchEvent('#across-col', 'change');
+  await runAndWait(b.page, '#across-start');
+  await shot(b.page, 'across-time-results');
+  const json = await downloadText(b.page, '#export-json');
+  assert.equal(json, cliJson('across-time', ['timecourse', sample('choices_binned.csv'), '--label', 'choice', '--across', 'context',
+    '--generalize', '--repeats', '2', '--shuffles', '3']), 'page JSON and CLI JSON differ');
+  const report = JSON.parse(json);
+  assert.equal(report.schema, 'popdecode-across-timecourse/1');
+  assert.equal(report.generalization.null_method, 'training-labels');
+  assert.equal(report.recipe.time.generalization_null, 'training-labels', 'the recipe keeps the null it ran with');
+  const view = b.page.locator('#views .view').first();
+  assert.match(await view.textContent(), /The train × test matrix was tested against a null with training labels shuffled, test labels kept\./);
+  assert.match(await view.locator('.methods').textContent(), /permuted only the training trials' labels/);
+  assert.deepEqual(b.errors, []);
+  assertLocalOnly(assert, b.requests, server.origin);
+  await b.context.close();
+});
+
 test('a study of sessions over time: what each session is told from the files, windows and columns, the same bytes as the command line', SLOW, async () => {
   const b = await openPage();
   await b.page.check('input[name=kind][value=study]');

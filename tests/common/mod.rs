@@ -49,3 +49,35 @@ pub fn analyse(scenario: &Scenario, recipe: &Recipe) -> Report {
     let plan = Plan::new(data.clone(), &recipe).expect("valid plan");
     run_all(&plan)
 }
+
+/// A shuffle control is calibrated: its rejections at α = 0.05 over `datasets` tables without information lie
+/// inside the binomial 99 % interval around 0.05 (a permutation p with m = 199 has P(p < 0.05) = 9/200, Phipson &
+/// Smyth 2010; ties only lower it). Prints the count, for README.
+pub fn assert_calibrated(what: &str, rejections: u64, datasets: u64) {
+    use popdecode::stats::binomial;
+    let (lo, hi) = (
+        binomial::quantile(0.005, datasets, 0.05),
+        binomial::quantile(0.995, datasets, 0.05),
+    );
+    eprintln!("measured, {what}: {rejections} of {datasets} rejected (99 % interval {lo}..={hi})");
+    assert!(
+        lo <= rejections && rejections <= hi,
+        "{what}: {rejections} of {datasets} rejected; 99 % interval {lo}..={hi}"
+    );
+}
+
+/// Cells of a generalization matrix trained before any information were significant in `hits` of `n` recordings:
+/// at most the binomial 99 % upper bound at α = 0.05 (the cluster test's family-wise error over those cells, Maris
+/// & Oostenveld 2007); and the information was found in `found` of them, at least `found_percent` %.
+pub fn assert_keeps_error_rate(hits: usize, found: usize, n: u64, found_percent: usize) {
+    use popdecode::stats::binomial;
+    let bound = binomial::quantile(0.995, n, 0.05) as usize;
+    assert!(
+        hits <= bound,
+        "{hits} of {n} recordings had a significant cell trained before 0 s; bound {bound}"
+    );
+    assert!(
+        found * 100 >= n as usize * found_percent,
+        "found in {found} of {n}"
+    );
+}

@@ -47,6 +47,10 @@
     view.appendChild(el('p', res.headline, 'headline'));
     PD.notes(view, r);
     PD.figures(view, FIGURES(res), ex);
+    if (r.generalization && r.shuffle && r.shuffle.count) {
+      view.appendChild(el('p', `The train × test matrix was tested against a ${
+        PD.NULL_WORDS[r.generalization.null_method].replace(/^null of the generalization matrix: /, 'null with ')}.`, 'note'));
+    }
     assignmentsTable(view, r);
     PD.table(view, `Trials per class and level of '${r.input.across_column}'`, ['class', ...r.levels],
       r.classes.map((c, i) => [{ text: c, cls: 'text', header: true }, ...r.cell_counts[i]]));
