@@ -51,6 +51,12 @@ fn a_shared_code_generalizes_and_an_orthogonal_one_does_not() {
     assert!(shared.within.accuracy.mean > 0.8);
     // The null of labels permuted within context sits at chance.
     assert!((shared.shuffle.null_mean.unwrap() - 0.5).abs() < 0.03);
+    // No permutation reached the score, so p is at its floor 1/61 and every text says it is a bound.
+    assert_eq!(shared.shuffle.p_value, Some(1.0 / 61.0));
+    let headline = popdecode::analyses::across::text::headline_sentence(&shared);
+    assert!(headline.contains("p ≤ 0.016 over 60 shuffles"), "{headline}");
+    let methods = popdecode::analyses::across::methods::paragraph(&shared);
+    assert!(methods.contains("; p ≤ 0.016."), "{methods}");
 
     let orthogonal = ContextScenario {
         shared: false,

@@ -7,7 +7,7 @@ use crate::analyses::over_time::{cluster_sentence, windows_sentence};
 use crate::analyses::time_course::report::{generalization_caveat, ONSET_CAVEAT};
 use crate::recipe::{GeneralizationNull, Recipe};
 use crate::report::methods::{class_counts, fitting};
-use crate::report::text::{p_text, pct, seconds as s};
+use crate::report::text::{p_phrase, pct, seconds as s};
 
 fn files(i: &AcrossInput) -> String {
     i.files
@@ -124,10 +124,10 @@ fn permutation(
     );
     if let Some((mean, p95, p)) = observed {
         s.push_str(&format!(
-            " The null distribution had mean {} and 95th percentile {}; p = {}.",
+            " The null distribution had mean {} and 95th percentile {}; {}.",
             pct(mean),
             pct(p95),
-            p_text(p)
+            p_phrase(p, shuffle_count)
         ));
     }
     s
@@ -277,10 +277,10 @@ pub fn time_paragraph(r: &AcrossTimeReport) -> String {
             .filter(|c| c.significant)
             .map(|c| {
                 format!(
-                    "{} to {} s (p = {})",
+                    "{} to {} s ({})",
                     s(c.start),
                     s(c.end),
-                    p_text(c.p_value)
+                    p_phrase(c.p_value, r.shuffle.count)
                 )
             })
             .collect();

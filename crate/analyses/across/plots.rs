@@ -5,7 +5,7 @@ use super::report::{AcrossReport, AcrossTimeReport};
 use super::text::arrow;
 use crate::report::figures::{curve, matrix, Axis, Curve, Series};
 use crate::report::svg::{esc, histogram, open, Marker, BAR, INK, LEFT, NULL_BAR, W};
-use crate::report::text::{clip, p_text, pct, per_permutation, seconds};
+use crate::report::text::{clip, p_phrase, pct, per_permutation, seconds};
 use crate::resample::Headline;
 use std::fmt::Write;
 
@@ -194,7 +194,11 @@ pub fn null_distribution(r: &AcrossReport) -> Option<String> {
     let markers = [
         Marker {
             at: r.shuffle.observed,
-            label: format!("observed {} (p = {})", pct(r.shuffle.observed), p_text(p)),
+            label: format!(
+                "observed {} ({})",
+                pct(r.shuffle.observed),
+                p_phrase(p, r.shuffle.count)
+            ),
             dash: "none",
             colour: "#1d4e89",
         },
@@ -281,10 +285,10 @@ pub fn time_curve(r: &AcrossTimeReport) -> String {
                     c.start,
                     c.end,
                     format!(
-                        "cluster {} s to {} s, p = {}",
+                        "cluster {} s to {} s, {}",
                         seconds(c.start),
                         seconds(c.end),
-                        p_text(c.p_value)
+                        p_phrase(c.p_value, r.shuffle.count)
                     ),
                 )
             })

@@ -1,7 +1,7 @@
 //! Generalization across conditions in words and tables.
 
 use super::report::{AcrossReport, AcrossTimeReport, AssignmentResult};
-use crate::report::text::{clip, p_text, pct, seconds as s, tuning_line};
+use crate::report::text::{clip, p_phrase, p_text, pct, seconds as s, tuning_line};
 use std::fmt::Write;
 
 /// "'citral' → 'hexanal'": an assignment's levels.
@@ -59,8 +59,8 @@ pub fn headline_sentence(r: &AcrossReport) -> String {
     match r.shuffle.p_value {
         Some(p) => write!(
             out,
-            ", p = {} over {} shuffles.",
-            p_text(p),
+            ", {} over {} shuffles.",
+            p_phrase(p, r.shuffle.count),
             r.shuffle.count
         )
         .unwrap(),
@@ -111,11 +111,11 @@ pub fn render(r: &AcrossReport) -> String {
     {
         writeln!(
             out,
-            "\nlabels permuted within {}: null mean {}, 95th pct {}, p = {} ({} shuffles × {} repeats)",
+            "\nlabels permuted within {}: null mean {}, 95th pct {}, {} ({} shuffles × {} repeats)",
             r.shuffle.permuted_within,
             pct(mean),
             pct(p95),
-            p_text(p),
+            p_phrase(p, r.shuffle.count),
             r.shuffle.count,
             r.shuffle.repeats_each
         )
@@ -181,10 +181,10 @@ pub fn time_headline(r: &AcrossTimeReport) -> String {
         .filter(|c| c.significant)
         .map(|c| {
             format!(
-                "{} to {} s (p = {})",
+                "{} to {} s ({})",
                 s(c.start),
                 s(c.end),
-                p_text(c.p_value)
+                p_phrase(c.p_value, r.shuffle.count)
             )
         })
         .collect();

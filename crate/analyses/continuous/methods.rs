@@ -8,7 +8,7 @@ use crate::analyses::over_time::{cluster_sentence, windows_sentence};
 use crate::analyses::time_course::report::ONSET_CAVEAT;
 use crate::decoders;
 use crate::recipe::Recipe;
-use crate::report::text::{p_text, seconds as s};
+use crate::report::text::{p_phrase, seconds as s};
 
 /// The variable, in a clause: "'speed' (mean 21.3, SD 8.1, range 2.0–45.9)".
 fn variable(t: &TargetInfo) -> String {
@@ -150,7 +150,7 @@ pub fn paragraph(r: &ContinuousReport) -> String {
             "Significance was assessed by a permutation test: the values of '{}' were permuted across trials{} {} \
              times, each permutation was analysed with the identical protocol over {} repeats, and p = (b + 1)/(m + \
              1), with b the number of the m permutations whose mean {} (Phipson & Smyth, 2010). Under permutation the \
-             {} averaged {} (the chance level of these data); p = {}.",
+             {} averaged {} (the chance level of these data); {}.",
             t.column,
             permuted(&r.input),
             r.shuffle.count,
@@ -162,7 +162,7 @@ pub fn paragraph(r: &ContinuousReport) -> String {
             },
             if t.unit.is_some() { "angular error" } else { "R²" },
             headline_value(t, mean),
-            p_text(p)
+            p_phrase(p, r.shuffle.count)
         ));
     }
     out.push(reproducible(rc));
@@ -224,10 +224,10 @@ pub fn time_paragraph(r: &ContinuousTimeReport) -> String {
             .filter(|c| c.significant)
             .map(|c| {
                 format!(
-                    "{} to {} s (p = {})",
+                    "{} to {} s ({})",
                     s(c.start),
                     s(c.end),
-                    p_text(c.p_value)
+                    p_phrase(c.p_value, r.shuffle.count)
                 )
             })
             .collect();

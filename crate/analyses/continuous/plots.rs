@@ -6,7 +6,7 @@ use super::text::{headline_name, headline_value};
 use crate::recipe::AngleUnit;
 use crate::report::figures::{curve, decimals, histogram, plain, scatter, Axis, Curve, Series};
 use crate::report::svg::{Marker, BAR, INK, NULL_BAR};
-use crate::report::text::{p_text, per_permutation, seconds};
+use crate::report::text::{p_phrase, per_permutation, seconds};
 
 fn value_format(t: &TargetInfo) -> fn(f64) -> String {
     match t.unit {
@@ -102,9 +102,9 @@ pub fn null_distribution(r: &ContinuousReport) -> Option<String> {
         Marker {
             at: r.shuffle.observed,
             label: format!(
-                "observed {} (p = {})",
+                "observed {} ({})",
                 headline_value(t, r.shuffle.observed),
-                p_text(p)
+                p_phrase(p, r.shuffle.count)
             ),
             dash: "none",
             colour: "#1d4e89",
@@ -192,10 +192,10 @@ pub fn time_curve(r: &ContinuousTimeReport) -> String {
                     c.start,
                     c.end,
                     format!(
-                        "cluster {} s to {} s, p = {}",
+                        "cluster {} s to {} s, {}",
                         seconds(c.start),
                         seconds(c.end),
-                        p_text(c.p_value)
+                        p_phrase(c.p_value, r.shuffle.count)
                     ),
                 )
             })

@@ -3,7 +3,7 @@
 
 use super::report::{ContinuousReport, ContinuousTimeReport, TargetInfo};
 use crate::recipe::AngleUnit;
-use crate::report::text::{p_text, seconds as s};
+use crate::report::text::{p_phrase, seconds as s};
 use std::fmt::Write;
 
 /// An angle in the target's unit: "31.2°" or "0.545 rad".
@@ -67,9 +67,9 @@ pub fn headline_sentence(r: &ContinuousReport) -> String {
     match (r.shuffle.p_value, r.shuffle.null_mean) {
         (Some(p), Some(null)) => write!(
             out,
-            "; shuffled values {}), p = {} over {} shuffles.",
+            "; shuffled values {}), {} over {} shuffles.",
             headline_value(t, null),
-            p_text(p),
+            p_phrase(p, r.shuffle.count),
             r.shuffle.count
         )
         .unwrap(),
@@ -126,12 +126,12 @@ pub fn render(r: &ContinuousReport) -> String {
         };
         writeln!(
             out,
-            "{:<30} {:>10} {:>10}   {which} pct {}, p = {} ({} shuffles × {} repeats{})",
+            "{:<30} {:>10} {:>10}   {which} pct {}, {} ({} shuffles × {} repeats{})",
             "shuffled values",
             headline_value(t, mean),
             headline_value(t, sd),
             headline_value(t, cut.unwrap_or(f64::NAN)),
-            p_text(p),
+            p_phrase(p, r.shuffle.count),
             r.shuffle.count,
             r.shuffle.repeats_each,
             if r.shuffle.within_groups {
@@ -205,10 +205,10 @@ pub fn time_headline(r: &ContinuousTimeReport) -> String {
         .filter(|c| c.significant)
         .map(|c| {
             format!(
-                "{} to {} s (p = {})",
+                "{} to {} s ({})",
                 s(c.start),
                 s(c.end),
-                p_text(c.p_value)
+                p_phrase(c.p_value, r.shuffle.count)
             )
         })
         .collect();
