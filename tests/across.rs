@@ -54,7 +54,10 @@ fn a_shared_code_generalizes_and_an_orthogonal_one_does_not() {
     // No permutation reached the score, so p is at its floor 1/61 and every text says it is a bound.
     assert_eq!(shared.shuffle.p_value, Some(1.0 / 61.0));
     let headline = popdecode::analyses::across::text::headline_sentence(&shared);
-    assert!(headline.contains("p ≤ 0.016 over 60 shuffles"), "{headline}");
+    assert!(
+        headline.contains("p ≤ 0.016 over 60 shuffles"),
+        "{headline}"
+    );
     let methods = popdecode::analyses::across::methods::paragraph(&shared);
     assert!(methods.contains("; p ≤ 0.016."), "{methods}");
 
@@ -269,6 +272,22 @@ fn over_time_generalization_is_found_where_the_shared_code_is() {
         methods.contains(&format!("Caution: {caveat}."))
             && methods.contains("permuted only the training trials' labels"),
         "{methods}"
+    );
+    // The matrix's significant clusters are said in words in the methods and the text, not only drawn.
+    let found = g.clusters.iter().filter(|c| c.significant).count();
+    assert!(found > 0, "{:?}", g.clusters);
+    assert!(
+        methods
+            .contains("Significant clusters of the train × test matrix (window centres): trained "),
+        "{methods}"
+    );
+    let text = popdecode::analyses::across::text::time_render(&report);
+    assert!(
+        text.contains(&format!(
+            "cluster{} in the train × test matrix, {found} significant",
+            if g.clusters.len() == 1 { "" } else { "s" }
+        )),
+        "{text}"
     );
 }
 

@@ -5,6 +5,7 @@ use super::report::{AcrossDesign, AcrossInput, AcrossReport, AcrossTimeReport, S
 use super::text::arrow;
 use crate::analyses::over_time::{cluster_sentence, windows_sentence};
 use crate::analyses::time_course::report::{generalization_caveat, ONSET_CAVEAT};
+use crate::analyses::time_course::text::matrix_sentence;
 use crate::recipe::{GeneralizationNull, Recipe};
 use crate::report::methods::{class_counts, fitting};
 use crate::report::text::{p_phrase, pct, seconds as s};
@@ -311,6 +312,7 @@ pub fn time_paragraph(r: &AcrossTimeReport) -> String {
                      labels as the curve, its clusters (cells adjacent when sharing an edge) tested in the same way."
                     .to_string(),
             });
+            out.push(matrix_sentence(g, r.shuffle.count));
             out.push(format!(
                 "Caution: {}.",
                 generalization_caveat(g.null_method)

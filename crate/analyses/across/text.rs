@@ -1,6 +1,7 @@
 //! Generalization across conditions in words and tables.
 
 use super::report::{AcrossReport, AcrossTimeReport, AssignmentResult};
+use crate::analyses::time_course::text::matrix_lines;
 use crate::report::text::{clip, p_phrase, p_text, pct, seconds as s, tuning_line};
 use std::fmt::Write;
 
@@ -249,6 +250,10 @@ pub fn time_render(r: &AcrossTimeReport) -> String {
             if w.significant { "*" } else { "" }
         )
         .unwrap();
+    }
+    if let Some(g) = &r.generalization {
+        out.push('\n');
+        out.push_str(&matrix_lines(g, r.shuffle.count));
     }
     out.push_str(&balance_line(
         r.design.balance,

@@ -1,6 +1,7 @@
 //! The methods paragraph of a time course.
 
 use super::report::{generalization_caveat, TimeReport, ONSET_CAVEAT};
+use super::text::matrix_sentence;
 use super::text::span;
 use crate::recipe::GeneralizationNull;
 use crate::recipe::TimeInput;
@@ -174,6 +175,9 @@ pub fn paragraph(r: &TimeReport) -> String {
                 "Significant clusters (window centres): {}.",
                 sig.join("; ")
             ));
+        }
+        if let Some(g) = &r.generalization {
+            out.push(matrix_sentence(g, r.shuffle.count));
         }
         if let Some(o) = &r.onset {
             out.push(format!(

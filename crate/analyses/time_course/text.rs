@@ -1,6 +1,6 @@
 //! A time course in words and tables: the headline sentence, a per-window table, and the curve and matrix as CSV.
 
-use super::report::{TimeCluster, TimeReport, ONSET_CAVEAT};
+use super::report::{Generalization, GridCluster, TimeCluster, TimeReport, ONSET_CAVEAT};
 use crate::recipe::GeneralizationNull;
 use crate::report::text::{p_phrase, pct, seconds as s, tuning_line};
 use crate::resample::Headline;
@@ -88,31 +88,7 @@ pub fn render(r: &TimeReport) -> String {
         out.push('\n');
     }
     if let Some(g) = &r.generalization {
-        let sig = g.clusters.iter().filter(|c| c.significant).count();
-        writeln!(
-            out,
-            "temporal generalization: {} cluster{} in the train × test matrix, {sig} significant (null: {})",
-            g.clusters.len(),
-            if g.clusters.len() == 1 { "" } else { "s" },
-            match g.null_method {
-                GeneralizationNull::TrainingLabels => "training labels permuted, test labels kept",
-                GeneralizationNull::AllLabels => "every label permuted",
-            }
-        )
-        .unwrap();
-        for c in g.clusters.iter().filter(|c| c.significant) {
-            writeln!(
-                out,
-                "  trained {} to {} s, tested {} to {} s, {} cells, {}",
-                s(c.train_start),
-                s(c.train_end),
-                s(c.test_start),
-                s(c.test_end),
-                c.cells,
-                p_phrase(c.p_value, r.shuffle.count)
-            )
-            .unwrap();
-        }
+        out.push_str(&matrix_lines(g, r.shuffle.count));
         out.push('\n');
     }
     writeln!(
@@ -196,4 +172,55 @@ pub fn generalization_csv(r: &TimeReport) -> Option<String> {
         out.push('\n');
     }
     Some(out)
+}
+
+/// The train × test matrix's clusters in the text output: how many, how many significant, against which null, and
+/// each significant one's training and testing spans (`m` permutations).
+pub fn matrix_lines(g: &Generalization, m: usize) -> String {
+    let sig: Vec<&GridCluster> = g.clusters.iter().filter(|c| c.significant).collect();
+    let mut out = format!(
+        "temporal generalization: {} cluster{} in the train × test matrix, {} significant (null: {})\n",
+        g.clusters.len(),
+        if g.clusters.len() == 1 { "" } else { "s" },
+        sig.len(),
+        match g.null_method {
+            GeneralizationNull::TrainingLabels => "training labels permuted, test labels kept",
+            GeneralizationNull::AllLabels => "every label permuted",
+        }
+    );
+    for c in sig {
+        out.push_str(&format!("  {}\n", grid_span(c, m)));
+    }
+    out
+}
+
+/// The methods sentence on the matrix's significant clusters (`m` permutations).
+pub fn matrix_sentence(g: &Generalization, m: usize) -> String {
+    let sig: Vec<String> = g
+        .clusters
+        .iter()
+        .filter(|c| c.significant)
+        .map(|c| grid_span(c, m))
+        .collect();
+    if sig.is_empty() {
+        "No cluster of the train × test matrix was significant.".into()
+    } else {
+        format!(
+            "Significant clusters of the train × test matrix (window centres): {}.",
+            sig.join("; ")
+        )
+    }
+}
+
+/// "trained 0.25 to 0.55 s, tested 0.25 to 0.55 s, 16 cells, p ≤ 0.020".
+fn grid_span(c: &GridCluster, m: usize) -> String {
+    format!(
+        "trained {} to {} s, tested {} to {} s, {} cells, {}",
+        s(c.train_start),
+        s(c.train_end),
+        s(c.test_start),
+        s(c.test_end),
+        c.cells,
+        p_phrase(c.p_value, m)
+    )
 }
