@@ -101,6 +101,10 @@ test('continuous decoding: the page and the command line give the same bytes', S
   const json = await downloadText(b.page, '#export-json');
   assert.equal(json, cliJson('continuous', ['decode', sample('running.csv'), '--label', 'speed', '--classifier', 'ridge',
     '--repeats', '2', '--shuffles', '3']), 'page JSON and CLI JSON differ');
+  // The command line beside the button is the same analysis.
+  const line = (await b.page.textContent('#continuous-cli-line')).replace(/\s+/g, ' ').trim();
+  assert.match(line, /^popdecode decode running\.csv --label speed .*--classifier ridge /);
+  assert.equal(cliJson('continuous-line', line.split(' ').slice(1).map((a) => (a === 'running.csv' ? sample(a) : a))), json);
   const report = JSON.parse(json);
   assert.equal(report.schema, 'popdecode-continuous/1');
   await checkView(b, report, ['predicted', 'scores', 'null'], [sample('running.csv')]);
@@ -159,10 +163,11 @@ test('generalization across conditions over time with temporal generalization: t
   await runAndWait(b.page, '#across-start');
   await shot(b.page, 'across-time-results');
   const json = await downloadText(b.page, '#export-json');
-  // The page's recipe names the text columns it leaves out ('context' too, which the command line leaves out by
-  // itself as the column generalized across).
-  assert.equal(json, cliJson('across-time', ['timecourse', sample('choices_binned.csv'), '--label', 'choice', '--ignore', 'context,session', '--across', 'context',
-    '--generalize', '--repeats', '2', '--shuffles', '3']), 'page JSON and CLI JSON differ');
+  // The command line the page gives beside the button runs the same analysis: the same bytes.
+  const line = (await b.page.textContent('#across-cli-line')).replace(/\s+/g, ' ').trim();
+  assert.match(line, /^popdecode timecourse choices_binned\.csv --trial trial --time time --label choice .*--generalize .*--across context$/);
+  const args = line.split(' ').slice(1).map((a) => (a === 'choices_binned.csv' ? sample(a) : a));
+  assert.equal(json, cliJson('across-time', args), 'page JSON and the JSON of the page\'s command line differ');
   const report = JSON.parse(json);
   assert.equal(report.schema, 'popdecode-across-timecourse/1');
   assert.equal(report.generalization.null_method, 'training-labels');

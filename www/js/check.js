@@ -62,9 +62,13 @@
     const { recipe, problems } = PD.readRecipe();
     PD.showProblems(problems);
     S.check = { seq: mine, recipe, plan: null, header: null, problems, error: null };
-    // Each option with its value in a span that does not wrap, so a line never breaks inside "--shuffles".
-    $('cli-line').replaceChildren(...PD.cliLine(recipe).split(/ (?=--)/)
-      .flatMap((part, i) => [...(i ? [' '] : []), PD.el('span', part, 'unbroken')]));
+    PD.showCli($('cli-line'), recipe);
+    // The analyses beside the main decoding run the same recipe with their own settings: each says its own line.
+    ['across', 'continuous'].forEach((kind) => {
+      const r = structuredClone(recipe);
+      PD.ANALYSES[kind].recipe(r);
+      PD.showCli($(`${kind}-cli-line`), r);
+    });
     PD.emit('checked');
     if (!PD.dataReady()) { drawPlan(); PD.updateButtons(); return; }
     if (problems.length) { drawPlan(); PD.updateButtons(); return; }

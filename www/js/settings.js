@@ -312,8 +312,18 @@
     if (r.time && r.time.generalize) parts.push('--generalize');
     if (r.time && r.time.generalization_null) parts.push('--generalization-null', r.time.generalization_null);
     if (r.time && r.time.alpha !== 0.05) parts.push('--alpha', r.time.alpha);
+    if (r.angle_unit) parts.push('--angle-unit', r.angle_unit);
+    if (r.across && r.across.column) {
+      parts.push('--across', q(r.across.column));
+      r.across.assignments.forEach((a) => parts.push('--train-levels', q(a.train.join(',')), '--test-levels', q(a.test.join(','))));
+    }
     return parts.join(' ');
   };
+
+  // A command line shown in a box, each option with its value in a span that does not wrap, so a line never breaks
+  // inside "--shuffles 200".
+  PD.showCli = (box, recipe) => box.replaceChildren(...PD.cliLine(recipe).split(/ (?=--)/)
+    .flatMap((part, i) => [...(i ? [' '] : []), PD.el('span', part, 'unbroken')]));
 
   // The recipe's settings in words, for a record's heading and for saying what changed since. `design`, when
   // given, is the design the run used (its report's `design`): a split that ignores the Folds setting says so.
