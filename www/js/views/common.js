@@ -91,7 +91,8 @@
   PD.methods = function (container, text) {
     if (!text) return;
     container.appendChild(el('h4', 'Methods'));
-    const p = el('p', text, 'methods');
+    // Shown with each number kept on the line of its "%"; copied exactly as the command line writes it.
+    const p = el('p', PD.unbroken(text), 'methods');
     container.appendChild(p);
     const row = el('p', null, 'row');
     const status = el('span');
