@@ -397,9 +397,10 @@ pub fn describe(classifier: Classifier, c: Option<f64>, features: usize) -> Stri
              constant feature, {c}, one-vs-rest for more than two classes), minimised in the primal by the \
              finite Newton method (Keerthi & DeCoste, 2005) when a training fold had more than three trials per \
              feature and otherwise in the dual by coordinate descent (Hsieh et al., 2008; stopping tolerance {} on the \
-             projected gradient, at most {} passes)",
+             projected gradient; a fit still moving after {} passes was finished by the same Newton method from \
+             where the dual stopped)",
             linear_svm::TOLERANCE,
-            linear_svm::MAX_PASSES
+            linear_svm::HANDOVER_PASSES
         ),
         Classifier::ShrinkageLda => "linear discriminant analysis with a pooled within-class covariance \
              regularised by Ledoit–Wolf analytic shrinkage (Ledoit & Wolf, 2004) and class priors equal to the \
