@@ -384,19 +384,11 @@ fn pre_onset_rate(
         let input = &r.time.as_ref().unwrap().input;
         let data = input::across::time_course(&files, &r.columns, input, "context").unwrap();
         let report = run_all_time(&AcrossPlan::new(data, &r).unwrap());
+        let windows: Vec<(f64, f64)> = report.windows.iter().map(|w| (w.start, w.end)).collect();
         let g = report.generalization.as_ref().unwrap();
-        let pre = report.windows.iter().filter(|w| w.end <= 1e-9).count();
-        hits += usize::from(g.significant[..pre].iter().flatten().any(|&s| s));
-        let inside = report
-            .windows
-            .iter()
-            .position(|w| w.start >= 0.2 - 1e-9)
-            .unwrap();
-        found += usize::from(
-            g.significant[inside..]
-                .iter()
-                .any(|row| row[inside..].iter().any(|&s| s)),
-        );
+        let (pre, inside) = common::pre_onset_and_inside(g, &windows);
+        hits += usize::from(pre);
+        found += usize::from(inside);
     }
     (hits, found)
 }

@@ -571,19 +571,11 @@ fn pre_onset_rate(
                 run_all(&TimePlan::new(data, &recipe).expect("valid plan"))
             }
         };
+        let windows: Vec<(f64, f64)> = r.windows.iter().map(|w| (w.start, w.end)).collect();
         let g = r.generalization.as_ref().unwrap();
-        let pre = r.windows.iter().filter(|w| w.end <= 1e-9).count();
-        hits += usize::from(g.significant[..pre].iter().flatten().any(|&s| s));
-        let inside = r
-            .windows
-            .iter()
-            .position(|w| w.start >= 0.2 - 1e-9)
-            .unwrap();
-        found += usize::from(
-            g.significant[inside..]
-                .iter()
-                .any(|row| row[inside..].iter().any(|&s| s)),
-        );
+        let (pre, inside) = common::pre_onset_and_inside(g, &windows);
+        hits += usize::from(pre);
+        found += usize::from(inside);
     }
     (hits, found)
 }

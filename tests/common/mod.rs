@@ -81,3 +81,23 @@ pub fn assert_keeps_error_rate(hits: usize, found: usize, n: u64, found_percent:
         "found in {found} of {n}"
     );
 }
+
+/// Where a generalization matrix's significant cells lie, for recordings with information only from 0.2 s on:
+/// whether a cell trained at a window that ends by 0 s is significant (trained where there is no information), and
+/// whether a cell trained and tested inside the information is. `windows` are the (start, end) of each window.
+pub fn pre_onset_and_inside(
+    g: &popdecode::analyses::time_course::report::Generalization,
+    windows: &[(f64, f64)],
+) -> (bool, bool) {
+    let pre = windows.iter().filter(|w| w.1 <= 1e-9).count();
+    let inside = windows
+        .iter()
+        .position(|w| w.0 >= 0.2 - 1e-9)
+        .expect("windows inside the information");
+    (
+        g.significant[..pre].iter().flatten().any(|&s| s),
+        g.significant[inside..]
+            .iter()
+            .any(|row| row[inside..].iter().any(|&s| s)),
+    )
+}
