@@ -272,8 +272,8 @@ fn bring_up_to_date(
 /// Where the primal Newton method starts.
 #[derive(Clone, Copy)]
 enum Start<'a> {
-    /// At w = 0, where every trial is inside the margin: the Hessian term is the fold's Gram matrix `gram_all`
-    /// (upper triangle of `2C`-free `X̃ᵀX̃`) and `factor0` the factor of its step, both shared by the classes.
+    /// At w = 0, where every trial is inside the margin: the Hessian term is 2C times the fold's Gram matrix
+    /// `X̃ᵀX̃` (`gram_all`), and `factor0` is the factor of the first step, both shared by the classes.
     Zero {
         gram_all: &'a [f64],
         factor0: &'a [f64],
