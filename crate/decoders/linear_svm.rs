@@ -312,16 +312,19 @@ multiversion! {
             ),
             Start::From(w0) => (w0.to_vec(), vec![0.0; q * q], vec![false; n], None),
         };
-        let mut margin = step_margins(x, n, p, signs, &w);
         let mut inside = synced.clone();
-        // The stopping rule is relative to the gradient at w = 0 (every slack 1), wherever the method starts.
-        let first = {
-            let mut g0 = vec![0.0; q];
-            for (row, &y) in x.chunks_exact(p).zip(signs) {
-                axpy(-2.0 * c * y, row, &mut g0[..p]);
-                g0[p] -= 2.0 * c * y;
+        // The stopping rule is relative to the gradient at w = 0 (every slack 1), wherever the method starts: from
+        // w = 0 it is the first step's gradient, from the dual's weights it is formed here, with the margins there.
+        let (mut margin, mut first_norm) = match factor0 {
+            Some(_) => (vec![0.0; n], None),
+            None => {
+                let mut g0 = vec![0.0; q];
+                for (row, &y) in x.chunks_exact(p).zip(signs) {
+                    axpy(-2.0 * c * y, row, &mut g0[..p]);
+                    g0[p] -= 2.0 * c * y;
+                }
+                (step_margins(x, n, p, signs, &w), Some(dot_wide(&g0, &g0).sqrt()))
             }
-            dot_wide(&g0, &g0).sqrt()
         };
         // The factor of the current Hessian, once this problem has one of its own (step 0 from w = 0 uses the shared
         // `factor0`).
@@ -351,6 +354,7 @@ multiversion! {
             }
             // The Hessian matrix is only read when the factor is made again: it is brought up to date then.
             let norm = dot_wide(&grad, &grad).sqrt();
+            let first = *first_norm.get_or_insert(norm);
             if norm <= NEWTON_TOLERANCE * first.max(1.0) {
                 return (w, false);
             }
