@@ -94,6 +94,35 @@ test('generalization across conditions: the page and the command line give the s
   await b.context.close();
 });
 
+test('a long run of another analysis asks first too, timed on its own tasks', SLOW, async () => {
+  // Across conditions (the main decoder on other training sets) and a continuous variable (another decoder): each
+  // times one of its own tasks when Start is pressed, and a run over the minute asks before starting anything.
+  for (const [file, label, start, across] of [['choices.csv', 'choice', '#across-start', 'context'],
+    ['running.csv', 'speed', '#continuous-start', null]]) {
+    const b = await loadTable(file, label);
+    if (across) {
+      await b.page.selectOption('#across-col', across);
+      await b.page.dispatchEvent('#across-col', 'change');
+    }
+    // About 20 min for the main decoding of the example on this project's 2-core machine (2026-12-04): long on any
+    // computer for these analyses too.
+    await quickSettings(b.page, { repeats: 5000, shuffles: 20000 });
+    await b.page.click(start);
+    await b.page.waitForSelector('#confirm:not([hidden])', { timeout: 120000 });
+    assert.match(await b.page.textContent('#confirm-text'), /^This run has [\d,\s]+ fits and should take about [\d.]+ (s|min|h) on this computer/);
+    await b.page.click('#confirm-no');
+    assert.equal(await b.page.textContent('#progress-text'), 'Not started.');
+    assert.equal(await b.page.locator('#records li').count(), 0, `${start}: nothing ran`);
+    // Short settings run without asking.
+    await quickSettings(b.page, { repeats: 2, shuffles: 3 });
+    await runAndWait(b.page, start);
+    assert.equal(await b.page.locator('#records li').count(), 1);
+    assert.deepEqual(b.errors, []);
+    assertLocalOnly(assert, b.requests, server.origin);
+    await b.context.close();
+  }
+});
+
 test('continuous decoding: the page and the command line give the same bytes', SLOW, async () => {
   const b = await loadTable('running.csv', 'speed');
   await runAndWait(b.page, '#continuous-start');

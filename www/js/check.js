@@ -86,7 +86,8 @@
       S.check.header = answer.header;
       S.check.speedKey = speedKey;
       S.check.msTotal = planMs(answer.plan, rates.get(speedKey));
-      if (S.check.msTotal === undefined) timeTasks(speedKey, kind, req, answer.plan, answer.header);
+      // No timing beside a run (a run asked for while its settings are being timed waits for it: PD.settle).
+      if (S.check.msTotal === undefined && !(S.run && !S.run.settling)) timeTasks(speedKey, kind, req, answer.plan, answer.header);
       else stopTiming();
       PD.clearError('data-error');
     } catch (e) {
@@ -110,6 +111,8 @@
     timing = null;
   }
   PD.timingNow = () => timing !== null;
+  // Cancel stops the timing of a run's own tasks (PD.costOfRun), not that of the settings on the form.
+  PD.stopRunTiming = () => { if (timing && !(S.check && timing.key === S.check.speedKey)) stopTiming(); };
   // A run asked for while its settings are being timed waits for the estimate (so a long run still asks first);
   // any other timing stops, to leave the cores to the run (PD.settle).
   // A run starts from the check of the settings as they are at the click: a change still waiting to be checked is
@@ -146,7 +149,7 @@
     const shuffle = plan.tasks.findIndex(isShuffle);
     if (timing && timing.key === key && (shuffle < 0 || timing.shuffles)) return;
     stopTiming();
-    if (!plan.tasks.length || (S.run && !S.run.settling)) return;
+    if (!plan.tasks.length) return;
     const mine = { key, shuffles: shuffle >= 0, worker: new PD.DataWorker(S.module, S.data), cancelled: false };
     let finished;
     mine.done = new Promise((ok) => { finished = ok; });
@@ -227,6 +230,33 @@
     return { workers: Math.min(wanted, fit), limited: fit < wanted, wanted };
   };
 
+  // What a plan costs on this computer: its fits, the workers it gets, its duration in seconds (null while
+  // untimed) and, when large, its memory (else null).
+  function costOf(plan, header, msTotal) {
+    const fits = plan.fits.reduce((a, b) => a + b, 0);
+    const pool = PD.workersFor(header, plan.tasks.length);
+    const seconds = msTotal !== undefined ? msTotal / 1000 / PD.speedOf(pool.workers) : null;
+    const mem = PD.memoryNeed(header, pool.workers);
+    return { fits, pool, seconds, memory: mem && mem.total > LARGE ? mem : null };
+  }
+
+  // The cost of a run of another analysis than the main decoding (across conditions, a continuous variable, the
+  // neurons), timed like the main one's (its own tasks: another analysis fits other training sets, or another
+  // decoder), so that a long run of it asks first too. Called as the run starts; no other timing runs then.
+  // -> { fits, seconds, memory }
+  // `onTiming` is called when a task has to be timed first.
+  PD.costOfRun = async function (analysis, recipe, options, onTiming) {
+    const req = PD.request(analysis, recipe, options);
+    const { plan, header } = await S.data.ask('prepare', { ...req, withHeader: true });
+    const key = JSON.stringify([S.generation, analysis, req.recipe, req.options]);
+    if (!rates.has(key)) {
+      onTiming();
+      await timeTasks(key, analysis, req, plan, header);
+    }
+    const cost = costOf(plan, header, planMs(plan, rates.get(key)));
+    return { fits: cost.fits, seconds: cost.seconds, memory: cost.memory };
+  };
+
   function drawPlan() {
     const box = $('classes');
     box.replaceChildren();
@@ -285,16 +315,13 @@
       scheme.appendChild(q);
     }
 
-    const fits = plan.fits.reduce((a, b) => a + b, 0);
-    const pool = PD.workersFor(c.header, plan.tasks.length);
+    const { fits, pool, seconds, memory } = costOf(plan, c.header, c.msTotal);
     const workers = pool.workers;
-    const seconds = c.msTotal !== undefined ? c.msTotal / 1000 / PD.speedOf(workers) : null;
-    const mem = PD.memoryNeed(c.header, workers);
     c.seconds = seconds;
-    c.memory = mem && mem.total > LARGE ? mem : null;
+    c.memory = memory;
     estimate.textContent = `${PD.count(fits, 'fit')} in ${PD.count(plan.tasks.length, 'task')} on ${PD.count(workers, 'worker')}` +
       (pool.limited ? ` (not ${pool.wanted}: ${PD.shared ? 'each worker needs room for its own training rows' : 'each worker holds its own copy of the data'}, and more would not fit in memory)` : '') +
       (seconds !== null ? `: ${PD.about(seconds)} on this computer` : timing ? ' (timing a task on this computer…)' : '') +
-      (c.memory ? `; needs about ${PD.bytes(c.memory.total)} of memory (${PD.bytes(c.memory.perWorker)} per worker)` : '') + '.';
+      (memory ? `; needs about ${PD.bytes(c.memory.total)} of memory (${PD.bytes(c.memory.perWorker)} per worker)` : '') + '.';
   }
 }(window.PD));

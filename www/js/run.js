@@ -51,6 +51,7 @@
   PD.cancel = function () {
     if (!S.run) return;
     S.run.cancelled = true;
+    PD.stopRunTiming();
     endRun();
     $('confirm').hidden = true;
     $('progress-text').textContent = 'Cancelled. Nothing was kept from the stopped run; the results on view are unchanged.';
@@ -118,10 +119,17 @@
         const analysis = PD.analysisOf(kind);
         const recipe = PD.runRecipe(kind, base);
         const options = kind === 'neurons' ? JSON.stringify({ draws }) : PD.runOptions(analysis);
-        const c = S.check;
-        const long = c && c.seconds !== null && c.seconds > 60 && kind === 'main';
-        if ((long || (c && c.memory)) && kind === 'main') {
-          const ok = await confirmRun(`This run has ${PD.count(c.plan.fits.reduce((a, b) => a + b, 0), 'fit')}` +
+        // A long or large run asks first, whichever analysis it is.
+        let c = S.check && S.check.plan &&
+          { fits: S.check.plan.fits.reduce((a, b) => a + b, 0), seconds: S.check.seconds, memory: S.check.memory };
+        if (kind !== 'main') {
+          c = await PD.costOfRun(analysis, recipe, options,
+            () => { $('progress-text').textContent = 'Timing one task on this computer before starting…'; });
+          $('progress-text').textContent = '';
+          if (token.cancelled || S.run !== token) return;
+        }
+        if (c && ((c.seconds !== null && c.seconds > 60) || c.memory)) {
+          const ok = await confirmRun(`This run has ${PD.count(c.fits, 'fit')}` +
             (c.seconds !== null ? ` and should take ${PD.about(c.seconds)} on this computer` : '') +
             (c.memory ? `; it needs about ${PD.bytes(c.memory.total)} of memory (${PD.bytes(c.memory.perWorker)} per worker; fewer workers need less: add ?workers=1 to the address)` : '') +
             '. Start it?');
