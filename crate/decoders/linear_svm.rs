@@ -10,11 +10,12 @@
 //! deterministic (it uses none of the recipe's random streams) yet free of the slow convergence of a cyclic order.
 //!
 //! The dual has one variable per training trial. When a fold has more than three trials per feature (+1 for the
-//! intercept; the crossover measured in `primal_is_cheaper`), the same objective is smaller in the primal, and dual
+//! intercept; the crossovers measured in `dual_passes`), the same objective is smaller in the primal, and dual
 //! coordinate descent can crawl there (measured on invented 232 × 52 data: hundreds of passes per fit, as
 //! scikit-learn's dual LinearSVC also reports). Those fits use the finite Newton method for the primal
 //! squared-hinge objective (Keerthi & DeCoste, JMLR 2005): each step solves `(I + 2C·X̃ᵢᵀX̃ᵢ) d = −∇f` over the
-//! trials inside the margin, then goes to the exact minimum along d (`exact_step`). Both routes minimise
+//! trials inside the margin, then goes to the exact minimum along d (`exact_step`); from 3 to 4.5 trials per
+//! feature it starts where a short run of the dual stopped, which saves it half its steps. Both routes minimise
 //! the same strictly convex function, so they reach the same decoder; the choice only saves time (the same choice
 //! scikit-learn's LinearSVC makes with `dual="auto"` at one trial per feature, scikit-learn 1.9 documentation).
 
@@ -26,7 +27,7 @@ use super::{present_classes, Decoder, LinearModel, Model};
 
 /// Stop when the projected gradient's spread (max − min) falls below this. The usual default of this solver is 0.1
 /// (from memory of liblinear's documentation); with the dual also taking folds of up to three trials per feature
-/// (`primal_is_cheaper`), 0.1 moved 1 % of the test trials of the reference case with 240 trials × 120 units
+/// (`dual_passes`), 0.1 moved 1 % of the test trials of the reference case with 240 trials × 120 units
 /// away from scikit-learn's optimum, and 0.01 reproduces it on every reference case (tests/reference).
 pub const TOLERANCE: f64 = 1e-2;
 /// Passes of the dual before a fit that is still moving is handed to the primal Newton method, started from where
@@ -36,6 +37,10 @@ pub const TOLERANCE: f64 = 1e-2;
 /// shuffle control's decoders then stopped short of their optimum, unlike the observed ones), at five times the
 /// time of a real-label fit.
 pub const HANDOVER_PASSES: usize = 300;
+/// Passes of the dual before the primal Newton method takes over, at 3 to 4.5 training trials per feature
+/// ([`dual_passes`]): enough to bring the primal near its final set of trials inside the margin (40–120 passes
+/// took the same time at 1600 × 400, 2026-12-05).
+pub const SHORT_DUAL_PASSES: usize = 60;
 /// Primal route: stop when the gradient norm falls below this fraction of its value at w = 0.
 pub const NEWTON_TOLERANCE: f64 = 1e-8;
 /// Primal route: Newton steps before giving up (the fit is then flagged).
@@ -53,7 +58,8 @@ impl Decoder for LinearSvm {
             .collect();
         // Primal route: at w = 0 every trial is inside the margin for every class, so the first Hessian and its
         // factor are the same for all one-vs-rest problems: compute them once.
-        let (gram_all, factor0) = if primal_is_cheaper(n, p) {
+        let passes = dual_passes(n, p);
+        let (gram_all, factor0) = if passes == 0 {
             let gram_all = augmented_gram(x, n, p);
             let mut h0: Vec<f64> = gram_all.iter().map(|g| 2.0 * self.c * g).collect();
             for a in 0..=p {
@@ -70,7 +76,7 @@ impl Decoder for LinearSvm {
                 .iter()
                 .map(|&c| if c == positive { 1.0 } else { -1.0 })
                 .collect();
-            let (w, hit_cap) = if primal_is_cheaper(n, p) {
+            let (w, hit_cap) = if passes == 0 {
                 primal_newton(
                     x,
                     n,
@@ -83,7 +89,7 @@ impl Decoder for LinearSvm {
                     },
                 )
             } else {
-                match dual_cd(x, n, p, &signs, &sq_norms, self.c) {
+                match dual_cd(x, n, p, &signs, &sq_norms, self.c, passes) {
                     (w, false) => (w, false),
                     // Still moving: the primal Newton method finishes the same objective from here.
                     (w, true) => primal_newton(x, n, p, &signs, self.c, Start::From(&w)),
@@ -102,19 +108,34 @@ impl Decoder for LinearSvm {
     }
 }
 
-/// Whether a fit on `n` trials of `p` features goes to the primal (Newton) rather than the dual (coordinate
-/// descent). The dual has one variable per trial, the primal one per feature, but the primal's Newton steps cost
-/// about `p` times more per variable, and the dual crawls on many trials that overlap; measured with
-/// `popdecode-bench grid` (2026-12-03, one thread, invented odour tables with 10 weakly tuned neurons): at
-/// 2 training trials per feature the dual was 2–5 times faster (198 × 100, 320 × 200, 800 × 400), at 4 they were
-/// even (1600 × 400), at 8 the primal was 9 times faster (800 × 100).
-fn primal_is_cheaper(n: usize, p: usize) -> bool {
-    n > 3 * (p + 1)
+/// Passes of the dual a fit on `n` trials of `p` features gets before the primal Newton method takes over from where
+/// it stopped (0: the primal from w = 0, whose first step's factor the classes share). The dual has one variable
+/// per trial, the primal one per feature, but the primal's Newton steps cost about `p` times more per variable, and
+/// the dual crawls on many trials that overlap. Measured with `popdecode-bench grid` (one thread, invented odour
+/// tables with 10 weakly tuned neurons, 4 classes, training folds of 4/5 of the trials):
+/// - up to 3 training trials per feature (+1 for the intercept), the dual: at 2 it was 2–5 times faster than the
+///   primal (198 × 100, 320 × 200, 800 × 400; 2026-12-03);
+/// - from 3 to 4.5, with 150 features or more, [`SHORT_DUAL_PASSES`] of the dual, then the primal: 1600 × 400 took
+///   4.1 s against the primal's 5.3 s from w = 0 (the dual's 60 passes bring the Newton steps from 509 to 272 in
+///   all, the refactorings from 117 to 50), 3200 × 1000 6.0 s against 8.1 s, 800 × 200 0.63 against 0.79 s; with
+///   fewer features the primal's factor is cheap and the short dual cost more: 400 × 100 0.150 against 0.133 s,
+///   198 × 50 0.052 against 0.030 s (2026-12-05);
+/// - beyond, the primal from w = 0: at 5 the two were even (2000 × 400), at 6 the short dual cost 20–50 % more
+///   (2400 × 400, 1200 × 200), at 8 it nearly doubled the time (800 × 100, 1600 × 200).
+fn dual_passes(n: usize, p: usize) -> usize {
+    let q = p + 1;
+    if n <= 3 * q {
+        HANDOVER_PASSES
+    } else if 2 * n <= 9 * q && q >= 150 {
+        SHORT_DUAL_PASSES
+    } else {
+        0
+    }
 }
 
 multiversion! {
     /// Solve one binary problem with labels ±1; returns `p` weights then the intercept, and whether the fit was still
-    /// moving after [`HANDOVER_PASSES`] passes.
+    /// moving after `max_passes` passes.
     fn dual_cd(
         x: &[f64],
         n: usize,
@@ -122,6 +143,7 @@ multiversion! {
         signs: &[f64],
         sq_norms: &[f64],
         c: f64,
+        max_passes: usize,
     ) -> (Vec<f64>, bool) {
         let diag = 0.5 / c;
         let qd: Vec<f64> = sq_norms.iter().map(|q| q + diag).collect();
@@ -132,7 +154,7 @@ multiversion! {
         // With no upper bound on α (squared hinge), only the lower bound can be shrunk, so only the old maximum is kept.
         let mut pg_max_old = f64::INFINITY;
         let mut order = SplitMix64(0x005e_ed0f_d0a1);
-        for _pass in 0..HANDOVER_PASSES {
+        for _pass in 0..max_passes {
             if crate::stop::requested() {
                 break;
             }
@@ -466,48 +488,78 @@ mod tests {
         assert_eq!(m.predict(&[-3.0, 0.1, 3.1, 0.0, 0.0, 3.2]), vec![0, 1, 2]);
     }
 
-    /// Labels unrelated to the activity, two trials per feature (a shuffle's fit): the dual is still moving after
-    /// its passes, and the primal Newton method started where it stopped reaches the optimum the primal reaches
-    /// from w = 0 (the objective is strictly convex), without hitting a cap.
-    #[test]
-    fn a_dual_still_moving_is_finished_by_the_primal() {
+    /// Invented trials of `p` standard normal features, with labels ±1 that follow feature 0 weakly.
+    fn weakly_labelled(n: usize, p: usize, seed: u64) -> (Vec<f64>, Vec<f64>) {
         use crate::rng::{normal, task_rng, Stream};
-        let (n, p, c) = (200, 100, 1.0);
-        let mut rng = task_rng(7, Stream::Simulation, 99, 0);
+        let mut rng = task_rng(seed, Stream::Simulation, 99, 0);
         let x: Vec<f64> = (0..n * p).map(|_| normal(&mut rng)).collect();
-        let signs: Vec<f64> = (0..n)
-            .map(|_| if normal(&mut rng) > 0.0 { 1.0 } else { -1.0 })
+        let signs = (0..n)
+            .map(|i| {
+                if 0.3 * x[i * p] + normal(&mut rng) > 0.0 {
+                    1.0
+                } else {
+                    -1.0
+                }
+            })
             .collect();
-        let sq: Vec<f64> = x.chunks_exact(p).map(|r| dot_wide(r, r) + 1.0).collect();
-        let (from_dual, moving) = dual_cd(&x, n, p, &signs, &sq, c);
-        assert!(moving, "this problem must exercise the hand-over");
-        let (finished, capped) = primal_newton(&x, n, p, &signs, c, Start::From(&from_dual));
-        assert!(!capped);
-        let gram_all = augmented_gram(&x, n, p);
+        (x, signs)
+    }
+
+    /// The primal Newton method's optimum from w = 0.
+    fn primal_from_zero(x: &[f64], n: usize, p: usize, signs: &[f64], c: f64) -> Vec<f64> {
+        let gram_all = augmented_gram(x, n, p);
         let mut h0: Vec<f64> = gram_all.iter().map(|g| 2.0 * c * g).collect();
         for a in 0..=p {
             h0[a * (p + 1) + a] += 1.0;
         }
         let factor0 = cholesky_with_ridge(&h0, p + 1).0;
-        let (cold, _) = primal_newton(
-            &x,
-            n,
-            p,
-            &signs,
-            c,
-            Start::Zero {
-                gram_all: &gram_all,
-                factor0: &factor0,
-            },
-        );
+        let start = Start::Zero {
+            gram_all: &gram_all,
+            factor0: &factor0,
+        };
+        let (w, capped) = primal_newton(x, n, p, signs, c, start);
+        assert!(!capped);
+        w
+    }
+
+    /// Starting the primal where `passes` of the dual stopped reaches the optimum it reaches from w = 0 (the
+    /// objective is strictly convex), without hitting a cap.
+    fn assert_hand_over_reaches_the_optimum(n: usize, p: usize, seed: u64, passes: usize) {
+        let c = 1.0;
+        let (x, signs) = weakly_labelled(n, p, seed);
+        let sq: Vec<f64> = x.chunks_exact(p).map(|r| dot_wide(r, r) + 1.0).collect();
+        let (from_dual, moving) = dual_cd(&x, n, p, &signs, &sq, c, passes);
+        assert!(moving, "this problem must exercise the hand-over");
+        let (finished, capped) = primal_newton(&x, n, p, &signs, c, Start::From(&from_dual));
+        assert!(!capped);
+        let cold = primal_from_zero(&x, n, p, &signs, c);
         let scale = cold.iter().fold(0.0f64, |m, v| m.max(v.abs()));
         for (a, b) in finished.iter().zip(&cold) {
             assert!((a - b).abs() <= 1e-6 * scale, "{a} against {b}");
         }
-        // The decoder takes that route and is not flagged as capped.
+        // The decoder is not flagged as capped.
         let y: Vec<usize> = signs.iter().map(|&s| usize::from(s > 0.0)).collect();
         let model = LinearSvm { c }.fit(&x, n, p, &y, 2);
         assert!(!model.hit_iteration_cap());
+    }
+
+    /// Two trials per feature and labels nearly unrelated to the activity (a shuffle's fit): the dual is still
+    /// moving after its passes and the primal finishes it.
+    #[test]
+    fn a_dual_still_moving_is_finished_by_the_primal() {
+        assert_eq!(dual_passes(200, 100), HANDOVER_PASSES);
+        assert_hand_over_reaches_the_optimum(200, 100, 7, HANDOVER_PASSES);
+    }
+
+    /// Four trials per feature, 200 features: the primal starts where a short run of the dual stopped.
+    #[test]
+    fn the_primal_after_a_short_dual_reaches_the_optimum() {
+        assert_eq!(dual_passes(800, 199), SHORT_DUAL_PASSES);
+        assert_eq!(dual_passes(901, 199), 0);
+        assert_eq!(dual_passes(600, 199), HANDOVER_PASSES);
+        // Few features: the primal from w = 0.
+        assert_eq!(dual_passes(400, 99), 0);
+        assert_hand_over_reaches_the_optimum(800, 199, 8, SHORT_DUAL_PASSES);
     }
 
     #[test]

@@ -56,8 +56,10 @@ def data_sets():
     yield "invented 3 x 200 x 150", *invented_population(200, 3, 150, 0.08, 3)
     # More units than training trials: the linear SVM takes its dual route here.
     yield "invented 3 x 20 x 120", *invented_population(20, 3, 120, 0.2, 4)
-    # Between one and three training trials per unit: the dual route too (`primal_is_cheaper`).
+    # Between one and three training trials per unit: the dual route too (`dual_passes`).
     yield "invented 3 x 100 x 120", *invented_population(100, 3, 120, 0.1, 5)
+    # Four training trials per unit, 200 with the intercept: a short run of the dual, then the primal (`dual_passes`).
+    yield "invented 4 x 250 x 199", *invented_population(250, 4, 199, 0.1, 6)
 
 
 class CorrelationNearestMean(ClassifierMixin, BaseEstimator):
