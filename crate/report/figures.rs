@@ -268,9 +268,12 @@ pub fn scatter(
     svg
 }
 
-/// A line over time, optionally with a ± band.
+/// A line over time, optionally with a ± SD band over repeats.
 pub struct Series<'a> {
     pub values: &'a [f64],
+    /// The SD over repeats at each time. The legend adds "± SD" to the label when the band has a width, and says
+    /// the repeats were all the same when it has none (nothing is drawn then, and a legend naming a band that is
+    /// not there would leave the reader looking for it).
     pub band: Option<&'a [f64]>,
     pub colour: &'static str,
     pub dash: &'static str,
@@ -288,6 +291,15 @@ pub struct Curve<'a> {
     pub spans: Vec<(f64, f64, String)>,
     pub span_label: String,
     pub axis: Axis,
+}
+
+/// A series' words in the legend: its label, with what its band shows.
+fn legend_label(s: &Series) -> String {
+    match s.band {
+        Some(band) if band.iter().any(|&b| b > 0.0) => format!("{} ± SD", s.label),
+        Some(_) => format!("{} (the same in every repeat)", s.label),
+        None => s.label.to_string(),
+    }
 }
 
 /// Lines over time with a legend in words under the axis.
@@ -310,7 +322,7 @@ pub fn curve(c: &Curve) -> String {
     let mut items: Vec<(&str, &str, String, bool)> = c
         .series
         .iter()
-        .map(|s| (s.colour, s.dash, s.label.to_string(), false))
+        .map(|s| (s.colour, s.dash, legend_label(s), false))
         .chain(reference.map(|(a, b, l)| (a, b, l, false)))
         .collect();
     if !c.spans.is_empty() {
@@ -638,6 +650,37 @@ mod tests {
         );
         let bounded = Axis::fit([-3.0, 170.0], plain, Some((0.0, 180.0)));
         assert!(bounded.lo == 0.0 && bounded.hi <= 180.0);
+    }
+
+    /// The legend names the SD band only when there is one to see.
+    #[test]
+    fn the_legend_says_whether_repeats_spread() {
+        let times = [0.0, 0.1, 0.2];
+        let values = [0.5, 0.6, 0.7];
+        let draw = |band: &[f64]| {
+            curve(&Curve {
+                title: "t".into(),
+                y_label: "accuracy",
+                times: &times,
+                series: vec![Series {
+                    values: &values,
+                    band: Some(band),
+                    colour: INK,
+                    dash: "none",
+                    label: "generalization",
+                }],
+                reference: None,
+                spans: Vec::new(),
+                span_label: String::new(),
+                axis: Axis::fit([0.0, 1.0], decimals, None),
+            })
+        };
+        let spread = draw(&[0.0, 0.02, 0.01]);
+        assert!(spread.contains("generalization ± SD") && !spread.contains("every repeat"));
+        let none = draw(&[0.0; 3]);
+        assert!(
+            none.contains("generalization (the same in every repeat)") && !none.contains("± SD")
+        );
     }
 
     #[test]

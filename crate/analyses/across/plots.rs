@@ -240,7 +240,7 @@ pub fn time_curve(r: &AcrossTimeReport) -> String {
             band: Some(&sd),
             colour: BAR,
             dash: "none",
-            label: "generalization ± SD",
+            label: "generalization",
         },
         Series {
             values: &within,

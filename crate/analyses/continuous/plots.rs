@@ -150,7 +150,7 @@ pub fn time_curve(r: &ContinuousTimeReport) -> String {
         band: Some(&sd),
         colour: BAR,
         dash: "none",
-        label: "mean ± SD",
+        label: "mean",
     }];
     if threshold.len() == times.len() {
         series.push(Series {
