@@ -190,6 +190,34 @@ fn information_in_six_of_ten_sessions_is_found_and_not_overstated() {
     assert!(bound.is_some_and(|g| g > 0.3), "{bound:?}");
 }
 
+/// A group p-value at the smallest its draws can give is a bound, not an estimate: the text, the report and the
+/// methods say "p ≤" (a p of 0.001 from 999 draws means no draw reached the observed group mean).
+#[test]
+fn a_group_p_at_its_floor_reads_as_a_bound() {
+    let r = table_study(&[0.8; 10], 77, 999);
+    let g = r.group.as_ref().unwrap();
+    assert_eq!(
+        g.p_value,
+        Some(1.0 / 1000.0),
+        "every session informative: no draw reaches the group mean"
+    );
+    let headline = popdecode::analyses::study::text::headline_sentence(&r);
+    assert!(
+        headline.contains("group permutation test p ≤ 0.001"),
+        "{headline}"
+    );
+    let text = popdecode::analyses::study::text::render(&r);
+    assert!(
+        text.contains("p ≤ 0.001") && !text.contains("p = 0.001"),
+        "{text}"
+    );
+    let methods = popdecode::analyses::study::methods::paragraph(&r);
+    assert!(
+        methods.contains("), p ≤ 0.001.") && !methods.contains("p = 0.001"),
+        "{methods}"
+    );
+}
+
 /// A session of a study gives, number for number, what the same file decoded alone with the session's seed gives:
 /// each session runs on its own random streams, whatever else is in the study.
 #[test]

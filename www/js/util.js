@@ -37,6 +37,9 @@ window.PD = { state: {}, views: {} };
   // A p- or q-value written as the core's text writes it (crate/report/text.rs `p_text`): three decimals, or two
   // significant digits in exponent form below 0.001, so the page's tables and its headline agree.
   PD.pText = (v) => (v === null || v === undefined ? '—' : v < 0.001 ? v.toExponential(1) : v.toFixed(3));
+  // A permutation p-value from `m` permutations: "≤ 0.005" at its floor 1/(m + 1), where no permutation reached the
+  // observed statistic and p is a bound, not an estimate (the core's `report::text::at_floor`).
+  PD.pBound = (v, m) => (v !== null && v !== undefined && m > 0 && Math.abs(v * (m + 1) - 1) < 1e-9 ? '≤ ' : '') + PD.pText(v);
   PD.bytes = (n) => (n >= 1e9 ? (n / 1e9).toFixed(1) + ' GB' : n >= 1e6 ? (n / 1e6).toFixed(1) + ' MB'
     : Math.max(1, Math.round(n / 1e3)) + ' kB');
   PD.seconds = (s) => (s < 1 ? 'under a second' : s < 90 ? Math.round(s) + ' s' : s < 5400 ? Math.round(s / 60) + ' min'

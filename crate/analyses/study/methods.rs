@@ -6,7 +6,7 @@ use super::text::prevalence_statement;
 use crate::input::study::SessionKind;
 use crate::recipe::{Across, Folds, Recipe, TimeInput};
 use crate::report::methods::fitting;
-use crate::report::text::{p_text, pct, seconds as s};
+use crate::report::text::{p_phrase, p_text, pct, seconds as s};
 
 /// The paragraph: data, the per-session protocol, the group test, prevalence, the t-test's caution, and clusters.
 pub fn paragraph(r: &StudyReport) -> String {
@@ -127,7 +127,7 @@ pub fn paragraph(r: &StudyReport) -> String {
              observed labelling counting as one of the permutations, as in Allefeld, Görgen & Haynes 2016){} and \
              the mean taken across {level}s, and \
              p = (b + 1)/(B + 1), b of the B draws reaching the observed group mean (Phipson & Smyth 2010). The \
-             group mean was {} (SD {} across {level}s; chance {}), p = {}.",
+             group mean was {} (SD {} across {level}s; chance {}), {}.",
             g.units,
             g.draws,
             if r.study.subjects.is_some() {
@@ -138,7 +138,7 @@ pub fn paragraph(r: &StudyReport) -> String {
             pct(g.mean),
             pct(g.sd),
             pct(g.chance),
-            p_text(p)
+            p_phrase(p, g.draws)
         ));
     } else {
         out.push(format!(
@@ -154,11 +154,11 @@ pub fn paragraph(r: &StudyReport) -> String {
         out.push(format!(
             "Prevalence was inferred by permutation with the minimum statistic (Allefeld, Görgen & Haynes 2016) on \
              the same draws: the smallest {level} score ({}) was compared with the smallest of every draw, giving \
-             the p-value of the global null (no {level} carries information), p = {}, and the largest prevalence \
+             the p-value of the global null (no {level} carries information), {}, and the largest prevalence \
              γ₀ whose null (the information is present in at most a fraction γ₀ of the population) is rejected at \
              α = {}, γ₀ = (α^(1/N) − p^(1/N)) / (1 − p^(1/N)) with N = {}: {words}.",
             pct(p.minimum),
-            p_text(p.global_p),
+            p_phrase(p.global_p, g.draws),
             p.alpha,
             p.units
         ));
@@ -239,16 +239,17 @@ fn significant_spans(r: &StudyReport) -> String {
     let Some(t) = &r.time else {
         return String::new();
     };
+    let draws = r.group.as_ref().map_or(0, |g| g.draws);
     let spans: Vec<String> = t
         .clusters
         .iter()
         .filter(|c| c.significant)
         .map(|c| {
             format!(
-                "{} to {} s (p = {})",
+                "{} to {} s ({})",
                 s(c.start),
                 s(c.end),
-                p_text(c.p_value)
+                p_phrase(c.p_value, draws)
             )
         })
         .collect();

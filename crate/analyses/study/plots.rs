@@ -9,7 +9,7 @@ use super::report::StudyReport;
 use crate::report::svg::{
     esc, open, percent_ticks, tick_step, BAR, BOTTOM, H, INK, LEFT, NULL_BAR, RIGHT, TOP, W,
 };
-use crate::report::text::{clip, p_text, pct, seconds};
+use crate::report::text::{clip, p_phrase, pct, seconds};
 use crate::resample::Headline;
 use std::fmt::Write;
 
@@ -193,9 +193,9 @@ pub fn sessions(r: &StudyReport) -> Option<String> {
                 "{}: {}{}",
                 r.sessions[s].session,
                 pct(v),
-                r.sessions[s]
-                    .p_value
-                    .map_or(String::new(), |p| format!(", p = {}", p_text(p)))
+                r.sessions[s].p_value.map_or(String::new(), |p| {
+                    format!(", {}", p_phrase(p, r.recipe.shuffles))
+                })
             );
             marker(
                 &mut svg,
@@ -358,11 +358,11 @@ pub fn group_curve(r: &StudyReport) -> Option<String> {
         let (a, b) = (x(c.start), x(c.end).max(x(c.start) + 3.0));
         write!(
             svg,
-            r#"<rect x="{a:.2}" y="{bar_y:.2}" width="{:.2}" height="6" fill="{INK}"><title>group cluster {} s to {} s, p = {}</title></rect>"#,
+            r#"<rect x="{a:.2}" y="{bar_y:.2}" width="{:.2}" height="6" fill="{INK}"><title>group cluster {} s to {} s, {}</title></rect>"#,
             b - a,
             seconds(c.start),
             seconds(c.end),
-            p_text(c.p_value)
+            p_phrase(c.p_value, r.group.as_ref().map_or(0, |g| g.draws))
         )
         .unwrap();
     }

@@ -2,7 +2,7 @@
 //! sessions (and the group curve) as CSV.
 
 use super::report::StudyReport;
-use crate::report::text::{clip, p_text, pct, seconds as s};
+use crate::report::text::{clip, p_phrase, p_text, pct, seconds as s};
 use std::fmt::Write;
 
 /// "subject", "session".
@@ -57,8 +57,8 @@ pub fn headline_sentence(r: &StudyReport) -> String {
     match g.p_value {
         Some(p) => write!(
             out,
-            "; group permutation test p = {} ({} draws from the sessions' shuffles)",
-            p_text(p),
+            "; group permutation test {} ({} draws from the sessions' shuffles)",
+            p_phrase(p, g.draws),
             g.draws
         )
         .unwrap(),
@@ -67,8 +67,8 @@ pub fn headline_sentence(r: &StudyReport) -> String {
     if let (Some(p), Some(words)) = (&r.prevalence, prevalence_statement(r)) {
         write!(
             out,
-            "; {words} (prevalence test of the global null p = {})",
-            p_text(p.global_p)
+            "; {words} (prevalence test of the global null {})",
+            p_phrase(p.global_p, g.draws)
         )
         .unwrap();
     }
@@ -79,10 +79,10 @@ pub fn headline_sentence(r: &StudyReport) -> String {
             .filter(|c| c.significant)
             .map(|c| {
                 format!(
-                    "{} to {} s (p = {})",
+                    "{} to {} s ({})",
                     s(c.start),
                     s(c.end),
-                    p_text(c.p_value)
+                    p_phrase(c.p_value, g.draws)
                 )
             })
             .collect();
@@ -195,24 +195,26 @@ pub fn render(r: &StudyReport) -> String {
             writeln!(
                 out,
                 "  permutation test of the group mean (Stelzer, Chen & Turner 2013; {} draws of one pool score per \
-                 session): null mean {}, 95th pct {}, p = {}",
+                 session): null mean {}, 95th pct {}, {}",
                 g.draws,
                 pct(m),
                 pct(q),
-                p_text(p)
+                p_phrase(p, g.draws)
             )
             .unwrap();
         }
     }
+    // The second level's draws, which bound its p-values from below (`p_phrase`).
+    let draws = r.group.as_ref().map_or(0, |g| g.draws);
     if let (Some(p), Some(words)) = (&r.prevalence, prevalence_statement(r)) {
         writeln!(
             out,
-            "  prevalence (Allefeld, Görgen & Haynes 2016; minimum over {} {}s = {}): global null p = {}; {}; the \
+            "  prevalence (Allefeld, Görgen & Haynes 2016; minimum over {} {}s = {}): global null {}; {}; the \
              largest bound these draws allow is {}",
             p.units,
             level(r),
             pct(p.minimum),
-            p_text(p.global_p),
+            p_phrase(p.global_p, draws),
             words,
             pct(p.gamma0_limit)
         )
@@ -243,13 +245,13 @@ pub fn render(r: &StudyReport) -> String {
         for c in &t.clusters {
             writeln!(
                 out,
-                "  {} to {} s (windows [{}, {}) s), mass {:.3}, p = {}{}",
+                "  {} to {} s (windows [{}, {}) s), mass {:.3}, {}{}",
                 s(c.start),
                 s(c.end),
                 s(c.window_start),
                 s(c.window_end),
                 c.mass,
-                p_text(c.p_value),
+                p_phrase(c.p_value, draws),
                 if c.significant { ", significant" } else { "" }
             )
             .unwrap();

@@ -22,10 +22,10 @@
     const rows = r.assignments.map((a) => [{ text: levels(a), cls: 'text', header: true },
       `${pct(headlineOf(r, a).mean)} ± ${pct(headlineOf(r, a).sd)}`, pct(headlineOf(r, a.within).mean),
       a.null_p95 === null || a.null_p95 === undefined ? '—' : pct(a.null_p95),
-      PD.pText(a.p_value), `${a.balance.train_trials} / ${a.balance.test_trials}`]);
+      PD.pBound(a.p_value, r.shuffle.count), `${a.balance.train_trials} / ${a.balance.test_trials}`]);
     rows.push([{ text: 'every assignment', cls: 'text', header: true }, `${pct(headlineOf(r, r.summary).mean)} ± ${pct(headlineOf(r, r.summary).sd)}`,
       pct(headlineOf(r, r.within).mean), r.shuffle.p_value === null ? '—' : pct(r.shuffle.null_p95),
-      PD.pText(r.shuffle.p_value), '']);
+      PD.pBound(r.shuffle.p_value, r.shuffle.count), '']);
     PD.table(view, `Trained → tested on the levels of '${r.input.across_column}' (${r.design.headline.replace('_', ' ')}: mean ± SD over repeats, a spread over resampling, not a confidence interval; chance ${pct(r.chance.level)})`,
       ['trained → tested', 'across', 'within the testing levels', 'shuffled, 95th percentile', 'p', 'trials (train / test)'], rows);
   }

@@ -29,7 +29,7 @@
         [{ text: `observed ${SCORE_WORDS[s.score] || s.score}`, cls: 'text', header: true }, num(s.observed), { text: `mean over ${r.repeats.length} repeats`, cls: 'text' }],
         [{ text: 'shuffled values, mean (SD)', cls: 'text', header: true }, `${num(s.null_mean)} (${num(s.null_sd)})`, { text: how, cls: 'text' }],
         [{ text: 'shuffled values, 95th percentile', cls: 'text', header: true }, num(s.null_p95), { text: how, cls: 'text' }],
-        [{ text: 'p (observed against shuffles)', cls: 'text', header: true }, num(s.p_value), { text: how, cls: 'text' }],
+        [{ text: 'p (observed against shuffles)', cls: 'text', header: true }, PD.pBound(s.p_value, s.count), { text: how, cls: 'text' }],
       ]);
     }
   }

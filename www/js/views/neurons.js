@@ -23,7 +23,7 @@
       const s = n[r.headline];
       const row = [{ text: n.neuron, cls: 'text', header: true }, PD.pct(s.mean), PD.pct(s.sd)];
       if (tested) {
-        row.push((Math.abs(n.p_value - 1 / (m + 1)) < 1e-12 ? '≤ ' : '') + PD.pText(n.p_value), PD.pText(n.q_value),
+        row.push(PD.pBound(n.p_value, m), PD.pText(n.q_value),
           { text: n.discovery ? 'yes' : 'no', cls: 'text' });
       }
       return row;

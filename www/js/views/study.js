@@ -24,12 +24,12 @@
       { text: `SD ${pct(g.sd)}` + (g.interval ? `; ${Math.round(100 * g.interval.level)} % ${g.interval.kind}: ${pct(g.interval.low)}–${pct(g.interval.high)}` : ''), cls: 'text' }],
     [{ text: 'chance', cls: 'text', header: true }, pct(g.chance), { text: '', cls: 'text' }]];
     if (g.p_value !== null) {
-      rows.push([{ text: 'group permutation test, p', cls: 'text', header: true }, p3(g.p_value),
+      rows.push([{ text: 'group permutation test, p', cls: 'text', header: true }, PD.pBound(g.p_value, g.draws),
         { text: `${g.draws} draws from the sessions' shuffles; null mean ${pct(g.null_mean)}, 95th percentile ${pct(g.null_p95)}`, cls: 'text' }]);
     }
     if (r.prevalence) {
       const v = r.prevalence;
-      rows.push([{ text: 'prevalence, global null p', cls: 'text', header: true }, p3(v.global_p),
+      rows.push([{ text: 'prevalence, global null p', cls: 'text', header: true }, PD.pBound(v.global_p, g.draws),
         { text: v.gamma0 !== null ? `at least ${pct(v.gamma0)} of the population carries the information (α = ${v.alpha})` : 'no prevalence above 0 can be claimed', cls: 'text' }]);
     }
     if (r.t_test) rows.push([{ text: 't-test against chance, p', cls: 'text', header: true }, p3(r.t_test.p_value), { text: `t = ${r.t_test.t.toFixed(2)}, ${r.t_test.df} df`, cls: 'text' }]);
@@ -43,7 +43,7 @@
     PD.table(view, `Every session (score: ${r.score}; mean ± SD over repeats, a spread over resampling, not a confidence interval)`,
       ['session', 'subject', 'trials', 'neurons', 'score', 'p'],
       r.sessions.map((s) => [{ text: s.session, cls: 'text', header: true }, { text: s.subject || '—', cls: 'text' }, s.trials, s.neurons,
-        score(s) ? `${pct(score(s).mean)} ± ${pct(score(s).sd)}` : '—', p3(s.p_value)]));
+        score(s) ? `${pct(score(s).mean)} ± ${pct(score(s).sd)}` : '—', PD.pBound(s.p_value, r.recipe.shuffles)]));
     if (r.left_out.length) {
       PD.table(view, 'Sessions left out', ['session', 'subject', 'reason'],
         r.left_out.map((l) => [{ text: l.session, cls: 'text', header: true }, { text: l.subject || '—', cls: 'text' }, { text: PD.pageWords(l.reason), cls: 'text' }]));

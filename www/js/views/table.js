@@ -17,8 +17,6 @@
   const words = (text) => ({ text, cls: 'text' });
   const range = (ci) => (ci ? `${pct(ci[0])} to ${pct(ci[1])}` : '—');
   const p3 = PD.pText;
-  // A p-value as the core means it: the smallest value m shuffles can give says "at most".
-  const pShown = (v, m) => (v === null || v === undefined ? '—' : (Math.abs(v - 1 / (m + 1)) < 1e-12 ? '≤ ' : '') + p3(v));
   const SCORE_WORDS = { accuracy: 'accuracy', balanced_accuracy: 'balanced accuracy' };
 
   // Every distinct way a confidence interval in the report was computed, in order.
@@ -66,7 +64,7 @@
         const how = `${s.count} shuffles × ${s.repeats_each} repeats${s.within_groups ? ', within groups' : ''}`;
         rows.push([head('shuffled labels, mean (SD)'), `${pct(s.null_mean)} (${pct(s.null_sd)})`, words(how)]);
         rows.push([head('shuffled labels, 95th percentile'), pct(s.null_p95), words(how)]);
-        rows.push([head('p (observed against shuffles)'), pShown(s.p_value, s.count), words(`observed ${pct(s.observed)}`)]);
+        rows.push([head('p (observed against shuffles)'), PD.pBound(s.p_value, s.count), words(`observed ${pct(s.observed)}`)]);
       }
       PD.table(view, 'Chance and the shuffle control', ['', 'value', 'from'], rows);
     },
@@ -78,7 +76,7 @@
         : 'Per-class recall (mean over repeats)', headings,
       r.classes.map((c, i) => {
         const row = [words(c), r.class_counts[i], pct(r.summary.recall[i])];
-        if (ps) row.push(pShown(ps[i], r.shuffle.count));
+        if (ps) row.push(PD.pBound(ps[i], r.shuffle.count));
         return row;
       })).classList.add('recall');
     },
@@ -93,7 +91,7 @@
       const rows = pw.pairs.map((p) => {
         const s = p[p.headline];
         const row = [head(`${p.classes[0]} vs ${p.classes[1]}`), ...(one ? [] : [words(SCORE_WORDS[p.headline])]), pct(s.mean), words(range(s.ci)), p.auc ? pct(p.auc.mean) : '—'];
-        if (tested) row.push(pShown(p.p_value, r.shuffle.count), p3(p.q_value), words(p.discovery ? 'yes' : 'no'));
+        if (tested) row.push(PD.pBound(p.p_value, r.shuffle.count), p3(p.q_value), words(p.discovery ? 'yes' : 'no'));
         return row;
       });
       PD.table(view, 'Pairwise decoding: each pair of classes decoded on its own with the same settings (chance 50 %)' +

@@ -12,12 +12,12 @@
 
   const TABLES = [
     (view, r) => {
-      const rows = r.clusters.map((c) => ['time course', `${c.start} to ${c.end} s`, '', c.mass.toFixed(3), PD.pText(c.p_value), c.significant ? 'significant' : '']);
+      const rows = r.clusters.map((c) => ['time course', `${c.start} to ${c.end} s`, '', c.mass.toFixed(3), PD.pBound(c.p_value, r.shuffle.count), c.significant ? 'significant' : '']);
       if (r.generalization) {
         // The matrix has many small chance clusters: list the significant ones and count the rest.
         const g = r.generalization.clusters;
         g.filter((c) => c.significant).forEach((c) => rows.push(['generalization', `${c.train_start} to ${c.train_end} s`,
-          `${c.test_start} to ${c.test_end} s`, c.mass.toFixed(3), PD.pText(c.p_value), 'significant']));
+          `${c.test_start} to ${c.test_end} s`, c.mass.toFixed(3), PD.pBound(c.p_value, r.shuffle.count), 'significant']));
         const rest = g.filter((c) => !c.significant);
         if (rest.length) {
           rows.push([`generalization: ${rest.length} more, none significant`, '', '', Math.max(...rest.map((c) => c.mass)).toFixed(3),
