@@ -216,6 +216,19 @@ fn a_group_p_at_its_floor_reads_as_a_bound() {
         methods.contains("), p ≤ 0.001.") && !methods.contains("p = 0.001"),
         "{methods}"
     );
+    // So does a session's own p in the table when none of its shuffles reached its score.
+    let floor = 1.0 / (r.recipe.shuffles + 1) as f64;
+    let at_floor = r
+        .sessions
+        .iter()
+        .filter(|s| s.p_value == Some(floor))
+        .count();
+    assert!(
+        at_floor > 0,
+        "informative sessions reach the floor of their shuffles"
+    );
+    let cell = format!("≤ {}", popdecode::report::text::p_text(floor));
+    assert_eq!(text.matches(&cell).count(), at_floor, "{text}");
 }
 
 /// A session of a study gives, number for number, what the same file decoded alone with the session's seed gives:

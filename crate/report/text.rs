@@ -20,6 +20,15 @@ pub fn at_floor(p: f64, m: usize) -> bool {
     m > 0 && (p * (m + 1) as f64 - 1.0).abs() < 1e-9
 }
 
+/// A permutation p-value in a table's cell: "0.034", or "≤ 0.005" at its floor ([`at_floor`]).
+pub fn p_cell(p: f64, m: usize) -> String {
+    if at_floor(p, m) {
+        format!("≤ {}", p_text(p))
+    } else {
+        p_text(p)
+    }
+}
+
 /// "p = 0.034", or "p ≤ 0.005" when no permutation reached the observed statistic ([`at_floor`]).
 pub fn p_phrase(p: f64, m: usize) -> String {
     if at_floor(p, m) {

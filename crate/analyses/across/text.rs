@@ -2,7 +2,7 @@
 
 use super::report::{AcrossReport, AcrossTimeReport, AssignmentResult};
 use crate::analyses::time_course::text::matrix_lines;
-use crate::report::text::{clip, p_phrase, p_text, pct, seconds as s, tuning_line};
+use crate::report::text::{clip, p_cell, p_phrase, pct, seconds as s, tuning_line};
 use std::fmt::Write;
 
 /// "'citral' → 'hexanal'": an assignment's levels.
@@ -102,7 +102,7 @@ pub fn render(r: &AcrossReport) -> String {
             format!("{} ± {}", pct(m), pct(sd)),
             pct(within),
             a.null_p95.map_or("–".into(), pct),
-            a.p_value.map_or("–".into(), p_text),
+            a.p_value.map_or("–".into(), |p| p_cell(p, r.shuffle.count)),
             format!("{} / {}", a.balance.train_trials, a.balance.test_trials)
         )
         .unwrap();

@@ -2,7 +2,7 @@
 //! sessions (and the group curve) as CSV.
 
 use super::report::StudyReport;
-use crate::report::text::{clip, p_phrase, p_text, pct, seconds as s};
+use crate::report::text::{clip, p_cell, p_phrase, p_text, pct, seconds as s};
 use std::fmt::Write;
 
 /// "subject", "session".
@@ -153,7 +153,8 @@ pub fn render(r: &StudyReport) -> String {
             spread
                 .as_ref()
                 .map_or("-".into(), |a| format!("{} ± {}", pct(a.mean), pct(a.sd))),
-            x.p_value.map_or("-".into(), p_text)
+            x.p_value
+                .map_or("-".into(), |p| p_cell(p, r.recipe.shuffles))
         )
         .unwrap();
     }

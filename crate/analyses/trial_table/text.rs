@@ -2,7 +2,7 @@
 
 use super::report::Report;
 use crate::report::text::{
-    at_floor, clip, floor_note, p_phrase, p_text, pct, pct_range, tuning_line,
+    at_floor, clip, floor_note, p_cell, p_phrase, p_text, pct, pct_range, tuning_line,
 };
 use std::fmt::Write;
 
@@ -189,13 +189,7 @@ pub fn render(r: &Report) -> String {
         )
         .unwrap();
         if let Some(ps) = recall_p {
-            let p = ps[i];
-            let shown = if at_floor(p, r.shuffle.count) {
-                format!("≤ {}", p_text(p))
-            } else {
-                p_text(p)
-            };
-            write!(out, " {shown:>9}").unwrap();
+            write!(out, " {:>9}", p_cell(ps[i], r.shuffle.count)).unwrap();
         }
         out.push_str(" |");
         for v in &r.summary.confusion[i] {
