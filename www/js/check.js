@@ -86,9 +86,12 @@
       S.check.header = answer.header;
       S.check.speedKey = speedKey;
       S.check.msTotal = planMs(answer.plan, rates.get(speedKey));
-      // No timing beside a run (a run asked for while its settings are being timed waits for it: PD.settle).
-      if (S.check.msTotal === undefined && !(S.run && !S.run.settling)) timeTasks(speedKey, kind, req, answer.plan, answer.header);
-      else stopTiming();
+      // No timing beside a run (a run asked for while its settings are being timed waits for it: PD.settle), and
+      // a run's timing of its own tasks (PD.costOfRun) is left to finish.
+      if (!(S.run && !S.run.settling)) {
+        if (S.check.msTotal === undefined) timeTasks(speedKey, kind, req, answer.plan, answer.header);
+        else stopTiming();
+      }
       PD.clearError('data-error');
     } catch (e) {
       if (mine !== seq) return;
