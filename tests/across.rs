@@ -60,6 +60,21 @@ fn a_shared_code_generalizes_and_an_orthogonal_one_does_not() {
     );
     let methods = popdecode::analyses::across::methods::paragraph(&shared);
     assert!(methods.contains("; p ≤ 0.016."), "{methods}");
+    // Its table cells say so too, and its figure's legend names the ± SD bars only if the repeats spread.
+    let table = popdecode::analyses::across::text::render(&shared);
+    for a in &shared.assignments {
+        let arrow = popdecode::analyses::across::text::arrow(&a.train, &a.test);
+        let row = table.lines().find(|l| l.starts_with(&arrow)).unwrap();
+        assert_eq!(
+            row.contains("≤ 0.016"),
+            a.p_value == Some(1.0 / 61.0),
+            "{row}"
+        );
+    }
+    let spread = shared.assignments.iter().any(|a| a.accuracy.sd > 0.0);
+    let figure = popdecode::analyses::across::plots::assignments(&shared);
+    assert_eq!(figure.contains("mean ± SD over repeats"), spread);
+    assert_eq!(figure.contains("the same in every repeat"), !spread);
 
     let orthogonal = ContextScenario {
         shared: false,

@@ -124,11 +124,16 @@ pub fn assignments(r: &AcrossReport) -> String {
         r.design.headline.name()
     )
     .unwrap();
-    // The legend in words, two rows.
+    // The legend in words, two rows. A bar of ± SD is named only when one is drawn.
     let (ly, ly2) = (bottom + 56.0, bottom + 76.0);
+    let spread = if rows.iter().any(|(_, _, sd, _, _)| *sd > 0.0) {
+        "mean ± SD over repeats"
+    } else {
+        "the same in every repeat"
+    };
     write!(
         svg,
-        r#"<circle cx="{l}" cy="{ly}" r="5" fill="{BAR}"/><text x="{t}" y="{a}" fill="{INK}">generalization, mean ± SD over repeats</text><circle cx="{m}" cy="{ly}" r="5" fill="white" stroke="{WITHIN}" stroke-width="2"/><text x="{n}" y="{a}" fill="{INK}">within the testing levels</text><path d="M{l} {b} v12" stroke="{NULL_BAR}" stroke-width="3"/><text x="{t}" y="{c}" fill="{INK}">null 95th percentile (labels permuted within levels)</text><path d="M{m2} {ly2} h22" stroke="{INK}" stroke-dasharray="2 3"/><text x="{n2}" y="{c}" fill="{INK}">chance</text>"#,
+        r#"<circle cx="{l}" cy="{ly}" r="5" fill="{BAR}"/><text x="{t}" y="{a}" fill="{INK}">generalization, {spread}</text><circle cx="{m}" cy="{ly}" r="5" fill="white" stroke="{WITHIN}" stroke-width="2"/><text x="{n}" y="{a}" fill="{INK}">within the testing levels</text><path d="M{l} {b} v12" stroke="{NULL_BAR}" stroke-width="3"/><text x="{t}" y="{c}" fill="{INK}">null 95th percentile (labels permuted within levels)</text><path d="M{m2} {ly2} h22" stroke="{INK}" stroke-dasharray="2 3"/><text x="{n2}" y="{c}" fill="{INK}">chance</text>"#,
         l = LEFT,
         t = LEFT + 12.0,
         a = ly + 4.0,
