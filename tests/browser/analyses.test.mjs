@@ -109,7 +109,9 @@ test('a long run of another analysis asks first too, timed on its own tasks', SL
     await quickSettings(b.page, { repeats: 5000, shuffles: 20000 });
     await b.page.click(start);
     await b.page.waitForSelector('#confirm:not([hidden])', { timeout: 120000 });
-    assert.match(await b.page.textContent('#confirm-text'), /^This run has [\d,\s]+ fits and should take about [\d.]+ (s|min|h) on this computer/);
+    // The question names its analysis, and says the estimate beside the Decode button is another run's.
+    const what = across ? `Generalization across '${across}'` : `Decoding '${label}' as a continuous variable`;
+    assert.match(await b.page.textContent('#confirm-text'), new RegExp(`^${what}: this run has [\\d,]+ fits and should take about [\\d.]+ (s|min|h) on this computer.*main decoding's\\)\\. Start it\\?$`));
     await b.page.click('#confirm-no');
     assert.equal(await b.page.textContent('#progress-text'), 'Not started.');
     assert.equal(await b.page.locator('#records li').count(), 0, `${start}: nothing ran`);

@@ -74,6 +74,13 @@
     });
   }
 
+  // What a run of another analysis than the main decoding is, for the question a long run asks first.
+  const RUN_WORDS = {
+    across: (r) => `Generalization across '${r.across.column}'`,
+    continuous: (r) => `Decoding '${r.columns.label}' as a continuous variable`,
+    neurons: () => 'The analysis of single neurons and subsets',
+  };
+
   // The recipe and options each kind of run uses, from the form's recipe.
   PD.runRecipe = function (kind, base) {
     const recipe = JSON.parse(JSON.stringify(base));
@@ -129,10 +136,11 @@
           if (token.cancelled || S.run !== token) return;
         }
         if (c && ((c.seconds !== null && c.seconds > 60) || c.memory)) {
-          const ok = await confirmRun(`This run has ${PD.count(c.fits, 'fit')}` +
+          const ok = await confirmRun((kind === 'main' ? 'This run has ' : `${RUN_WORDS[kind](recipe)}: this run has `) +
+            PD.count(c.fits, 'fit') +
             (c.seconds !== null ? ` and should take ${PD.about(c.seconds)} on this computer` : '') +
             (c.memory ? `; it needs about ${PD.bytes(c.memory.total)} of memory (${PD.bytes(c.memory.perWorker)} per worker; fewer workers need less: add ?workers=1 to the address)` : '') +
-            '. Start it?');
+            (kind === 'main' ? '' : ' (the estimate beside the Decode button is the main decoding\'s)') + '. Start it?');
           if (!ok || token.cancelled) { if (S.run === token) endRun(); $('progress-text').textContent = 'Not started.'; return; }
         }
         const result = await runOnce(analysis, recipe, options, token, '');
