@@ -287,12 +287,17 @@ test('a study of spike-time sessions: each session\'s events and trial table pai
 
 test('the example study is one click away: ten sessions from four mice listed, ready to run', async () => {
   const b = await openPage();
+  // A trial table loaded before: its summary is not left above the study's sessions.
+  await b.page.setInputFiles('#file', sample('running.csv'));
+  await b.page.waitForSelector('#data-view:not([hidden])');
+  assert.match(await b.page.textContent('#file-summaries'), /running\.csv/);
   await b.page.check('input[name=kind][value=study]');
   await b.page.click('#example-study');
   await b.page.waitForFunction(() => document.querySelectorAll('#study-sessions tr').length === 11);
   assert.equal(await b.page.inputValue('#label'), 'odour');
   assert.equal(await b.page.inputValue('#study-holds'), 'table');
   assert.equal(await b.page.inputValue('[aria-label="Subject of session m4-d3"]'), 'm4');
+  assert.equal(await b.page.textContent('#file-summaries'), '');
   await b.page.waitForFunction(() => !document.getElementById('start').disabled);
   assert.deepEqual(b.errors, []);
   assertLocalOnly(assert, b.requests, server.origin);

@@ -17,6 +17,9 @@
     const chosen = files.filter((f) => !/(^|\/)\./.test(f.webkitRelativePath || f.name));
     if (!chosen.length) return;
     const gen = ++S.generation;
+    // A file loaded before (as a trial table, say) is not this study's: its summary and preview go.
+    $('file-summaries').replaceChildren();
+    $('previews').replaceChildren();
     $('data-status').textContent = `Reading ${PD.count(chosen.length, 'file')}…`;
     let answers;
     try {
