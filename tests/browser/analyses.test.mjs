@@ -419,6 +419,10 @@ test('the analyses\' examples are one click away: choices across odour contexts,
   assert.equal(continuous.schema, 'popdecode-continuous/1');
   assert.equal(continuous.input.files[0].file, 'running.csv');
   assert.ok(continuous.summary.r2.mean > 0.3, `speed is decoded (R² ${continuous.summary.r2.mean})`);
+  // From the 30 units: the heading, another behavioural variable in the table, is not decoded from.
+  assert.equal(continuous.input.features.length, 30);
+  assert.ok(!continuous.input.features.includes('heading'));
+  assert.match(await b.page.textContent('#data-status'), /'heading', another behavioural variable, is left out/);
   assert.deepEqual(b.errors, []);
   assertLocalOnly(assert, b.requests, server.origin);
   await b.context.close();

@@ -208,14 +208,14 @@
 
   // An analysis's example (invented data, samples/): loaded as a trial table, its label chosen and the analysis's
   // own fields set by `then`, so one more click (on `button`) runs it.
-  async function loadExample(name, label, button, then) {
+  async function loadExample(name, label, button, then, note = '') {
     await PD.loadInto('table', await PD.sampleFile(name));
     if (!PD.mainInfo()) return;
     $('label').value = label;
     $('label').dispatchEvent(new Event('change'));
     then();
     $('data-status').textContent = `Loaded the example ${name} with '${label}' as the label; ` +
-      `“${$(button).textContent.trim()}” (under More analyses of these data) runs it.`;
+      `“${$(button).textContent.trim()}” (under More analyses of these data) runs it.${note}`;
     PD.markStale();
   }
 
@@ -236,9 +236,14 @@
       $('across-col').value = 'context';
       fillLevels();
     }));
+    // The table also holds the heading, a second behavioural variable, not a neuron: it is left out of the
+    // features, as samples/README.md says to (the label's own column is never one).
     $('example-continuous').addEventListener('click', () => loadExample('running.csv', 'speed', 'continuous-start', () => {
       $('value-decoder').value = 'ridge';
       angle();
-    }));
+      PD.syncFeatures();
+      PD.setFeatures(S.features.names.filter((n) => n !== 'heading'));
+      PD.refresh();
+    }, ' The column \'heading\', another behavioural variable, is left out of the features.'));
   });
 }(window.PD));
