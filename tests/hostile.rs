@@ -132,6 +132,34 @@ fn a_class_with_one_trial_is_a_design_error() {
     }
 }
 
+/// A continuous column chosen as the label by mistake is named as such, with what to do, not as a broken class.
+#[test]
+fn a_continuous_label_is_told_apart_from_a_class_with_one_trial() {
+    let rows: String = (0..12)
+        .map(|i| format!("{:.3},{},{}\n", 3.0 + 0.37 * i as f64, i % 3, (i * 7) % 5))
+        .collect();
+    let e = plan_error(
+        "speed.csv",
+        &format!("speed,x,y\n{rows}"),
+        &recipe("speed", 2),
+    );
+    assert!(
+        e.starts_with("speed.csv: 'speed' holds 12 different numbers among 12 trials, 12 of them on a single trial")
+            && e.contains("regression decoder"),
+        "{e}"
+    );
+    // A few numeric classes with one rare level are still a class with one trial.
+    let e = plan_error(
+        "one.csv",
+        "label,x\n1,1\n1,2\n2,3\n2,4\n3,5\n",
+        &recipe("label", 2),
+    );
+    assert!(
+        e.starts_with("one.csv: class '3' has a single trial"),
+        "{e}"
+    );
+}
+
 #[test]
 fn a_draw_that_could_keep_a_single_group_is_refused() {
     // Balanced to 2 trials per class, group g1 alone holds 2 of each: 1 draw in 9 kept only g1 and the run

@@ -136,6 +136,23 @@ impl Scheme {
             return Scheme::resolve_pseudo(t, recipe, n_classes);
         }
         if smallest < 2 {
+            // A label of numbers most of which occur once is a continuous variable chosen by mistake: say that,
+            // not "class '5.033' has a single trial", which reads as a broken file.
+            let singles = counts.iter().filter(|&&c| c == 1).count();
+            if singles * 2 > n_classes && t.classes.iter().all(|c| c.trim().parse::<f64>().is_ok())
+            {
+                return Err(Error::Design(format!(
+                    "{}: '{}' holds {} different numbers among {} trials, {} of them on a single trial: it reads as \
+                     a continuous variable, and decoding classes needs at least two trials of each. Decode it with \
+                     a regression decoder (ridge regression, or circular ridge regression for an angle), or choose \
+                     a column of conditions as the label",
+                    t.source,
+                    recipe.columns.label,
+                    n_classes,
+                    t.y.len(),
+                    singles
+                )));
+            }
             // Its one trial is tested only when held out, and then no training trial of its class exists.
             return Err(Error::Design(format!(
                 "{}: class '{}' has a single trial; cross-validation needs at least two trials of every class, so \

@@ -272,8 +272,8 @@
       if (!PD.dataReady()) estimate.textContent = 'Load data to run.';
       else if (c && c.problems.length) estimate.textContent = 'Some settings need attention (marked beside them).';
       else if (c && c.error) {
-        estimate.textContent = 'Nothing can run on the data as it is set up: the message in the Data section says why. ' +
-          'Correct the file and load it again, or leave out the column it names.';
+        estimate.textContent = 'Nothing can run on the data as it is set up: the message in the Data section says why ' +
+          'and what to change (a setting, such as the label, or the file itself).';
       }
       return;
     }
