@@ -229,6 +229,21 @@ fn a_group_p_at_its_floor_reads_as_a_bound() {
     );
     let cell = format!("≤ {}", popdecode::report::text::p_text(floor));
     assert_eq!(text.matches(&cell).count(), at_floor, "{text}");
+    // The prevalence test's smallest score is each session's over as many repeats as a shuffle's: said when that
+    // is fewer than the table's, so the two numbers can be told apart.
+    assert!(!methods.contains("as every shuffle is"));
+    let mut recipe = small_recipe(77);
+    recipe.repeats = 4;
+    let texts: Vec<(String, String)> = (0..10)
+        .map(|i| (format!("s{i}.csv"), session_csv(0.8, 7700 + i as u64)))
+        .collect();
+    let fewer = in_memory_study(&texts, &recipe, 999).1;
+    let methods = popdecode::analyses::study::methods::paragraph(&fewer);
+    assert!(
+        methods
+            .contains("; each session scored over its first 2 of 4 repeats, as every shuffle is)"),
+        "{methods}"
+    );
 }
 
 /// A session of a study gives, number for number, what the same file decoded alone with the session's seed gives:

@@ -153,11 +153,12 @@ pub fn paragraph(r: &StudyReport) -> String {
     if let (Some(p), Some(words)) = (&r.prevalence, prevalence_statement(r)) {
         out.push(format!(
             "Prevalence was inferred by permutation with the minimum statistic (Allefeld, Görgen & Haynes 2016) on \
-             the same draws: the smallest {level} score ({}) was compared with the smallest of every draw, giving \
+             the same draws: the smallest {level} score ({}{}) was compared with the smallest of every draw, giving \
              the p-value of the global null (no {level} carries information), {}, and the largest prevalence \
              γ₀ whose null (the information is present in at most a fraction γ₀ of the population) is rejected at \
              α = {}, γ₀ = (α^(1/N) − p^(1/N)) / (1 − p^(1/N)) with N = {}: {words}.",
             pct(p.minimum),
+            as_shuffled(r),
             p_phrase(p.global_p, g.draws),
             p.alpha,
             p.units
@@ -233,6 +234,17 @@ fn across_protocol(rc: &Recipe, a: &Across) -> String {
             "every trial at the training and testing levels used without balancing"
         }
     )
+}
+
+/// How the prevalence test scores each session when shuffles average fewer repeats than the observed score: as a
+/// shuffle is (the report's `prevalence.minimum` then differs from the sessions' table, which a reader checks).
+pub fn as_shuffled(r: &StudyReport) -> String {
+    let (each, all) = (r.recipe.shuffle_repeats(), r.recipe.repeats);
+    if each < all {
+        format!("; each session scored over its first {each} of {all} repeats, as every shuffle is")
+    } else {
+        String::new()
+    }
 }
 
 fn significant_spans(r: &StudyReport) -> String {

@@ -210,11 +210,12 @@ pub fn render(r: &StudyReport) -> String {
     if let (Some(p), Some(words)) = (&r.prevalence, prevalence_statement(r)) {
         writeln!(
             out,
-            "  prevalence (Allefeld, Görgen & Haynes 2016; minimum over {} {}s = {}): global null {}; {}; the \
+            "  prevalence (Allefeld, Görgen & Haynes 2016; minimum over {} {}s = {}{}): global null {}; {}; the \
              largest bound these draws allow is {}",
             p.units,
             level(r),
             pct(p.minimum),
+            super::methods::as_shuffled(r),
             p_phrase(p.global_p, draws),
             words,
             pct(p.gamma0_limit)
