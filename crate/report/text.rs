@@ -48,6 +48,14 @@ pub fn floor_note(m: usize) -> String {
     )
 }
 
+/// The smallest p `m` permutations can give, exactly enough to be a true bound: "1/21 = 0.0476" (three
+/// decimals would round 0.0476 up to 0.048, and a p of 0.047 would then seem to lie below the floor).
+pub fn floor_words(m: usize) -> String {
+    let v = 1.0 / (m + 1) as f64;
+    let decimals = (2.0 - v.log10().floor()).max(0.0) as usize;
+    format!("1/{} = {v:.decimals$}", m + 1)
+}
+
 /// The x-axis label of a shuffle null's histogram: each value is one permutation's score averaged over its
 /// repeats, so the histogram holds one value per permutation, not one per repeat ("accuracy (mean of 10 repeats
 /// per permutation)").
@@ -135,4 +143,17 @@ pub fn session_notes(sessions: &[(&str, &[String])]) -> Vec<String> {
             format!("{who}: {w}")
         })
         .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_floor_is_written_so_that_it_bounds() {
+        assert_eq!(floor_words(20), "1/21 = 0.0476");
+        assert_eq!(floor_words(199), "1/200 = 0.00500");
+        assert_eq!(floor_words(9999), "1/10000 = 0.000100");
+        assert_eq!(floor_words(1), "1/2 = 0.500");
+    }
 }

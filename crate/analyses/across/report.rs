@@ -272,8 +272,8 @@ fn common(plan: &AcrossPlan, outcomes: &[AcrossOutcome], repeats: &[&AcrossOutco
     let m = plan.recipe.shuffles;
     if m > 0 && m < 100 {
         warnings.push(format!(
-            "only {m} shuffles: p-values cannot go below {:.3}; 200 or more are usual",
-            1.0 / (m as f64 + 1.0)
+            "only {m} shuffles: p-values cannot go below {}; 200 or more are usual",
+            crate::report::text::floor_words(m)
         ));
     }
     Common {

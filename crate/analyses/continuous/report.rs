@@ -338,8 +338,8 @@ fn shuffle_warnings(plan: &ContinuousPlan, over_time: bool) -> Vec<String> {
     let m = plan.recipe.shuffles;
     if m > 0 && m < 100 {
         warnings.push(format!(
-            "only {m} shuffles: p-values cannot go below {:.3}{}; 200 or more are usual",
-            1.0 / (m as f64 + 1.0),
+            "only {m} shuffles: p-values cannot go below {}{}; 200 or more are usual",
+            crate::report::text::floor_words(m),
             if over_time {
                 ", and the per-window thresholds are rough"
             } else {

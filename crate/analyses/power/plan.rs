@@ -106,10 +106,10 @@ impl PowerPlan {
         let smallest_p = 1.0 / (recipe.shuffles + 1) as f64;
         if smallest_p > settings.alpha {
             return Err(Error::Recipe(format!(
-                "with {} shuffles per subsample the smallest p-value is 1/{} = {smallest_p:.3}, above α = {}, so no \
-                 subsample could be significant; use at least {} shuffles",
+                "with {} shuffles per subsample the smallest p-value is {}, above α = {}, so no subsample could be \
+                 significant; use at least {} shuffles",
                 recipe.shuffles,
-                recipe.shuffles + 1,
+                crate::report::text::floor_words(recipe.shuffles),
                 settings.alpha,
                 (1.0 / settings.alpha).ceil() as usize - 1
             )));

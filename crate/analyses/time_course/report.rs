@@ -265,10 +265,10 @@ impl TimeReport {
         }
         if has_null && plan.recipe.shuffles < 100 {
             warnings.push(format!(
-                "only {} shuffles: the cluster p-values cannot go below {:.3}, and the per-window 95th percentiles \
+                "only {} shuffles: the cluster p-values cannot go below {}, and the per-window 95th percentiles \
                  are rough; 200 or more are usual",
                 plan.recipe.shuffles,
-                1.0 / (plan.recipe.shuffles as f64 + 1.0)
+                crate::report::text::floor_words(plan.recipe.shuffles)
             ));
         }
         let n_classes = data.classes.len();
