@@ -14,9 +14,14 @@ pub fn angle(v: f64, unit: Option<AngleUnit>) -> String {
     }
 }
 
-/// A score with three decimals.
+/// A score with three decimals; one that rounds to zero is "0.000", not "-0.000" (an R² of −0.00007 is none).
 pub fn num(v: f64) -> String {
-    format!("{v:.3}")
+    let s = format!("{v:.3}");
+    if s == "-0.000" {
+        "0.000".into()
+    } else {
+        s
+    }
 }
 
 /// "out-of-sample R²" or "mean absolute angular error": the headline's name.
@@ -318,4 +323,16 @@ pub fn predictions_csv(p: &super::report::PredictionTable) -> String {
         writeln!(out, "{i},{f},{a},{q}").unwrap();
     }
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::num;
+
+    #[test]
+    fn a_score_that_rounds_to_zero_has_no_sign() {
+        assert_eq!(num(-0.0000716), "0.000");
+        assert_eq!(num(-0.0006), "-0.001");
+        assert_eq!(num(0.25), "0.250");
+    }
 }

@@ -7,7 +7,7 @@
   const { el } = PD;
 
   const FIGURES = (res) => [
-    { name: 'predicted', svg: res.plots.predicted, title: 'Predicted against true', alt: 'Each trial\'s predicted value against its true value, first repeat' },
+    { name: 'predicted', svg: res.plots.predicted, title: 'Predicted against actual', alt: 'Each trial\'s predicted value against its actual value, first repeat' },
     { name: 'scores', svg: res.plots.scores, title: 'Scores over repeats', alt: 'Distribution of the score over repeats' },
     { name: 'null', svg: res.plots.null, title: 'Shuffle null', alt: 'Shuffle null distribution with the observed score' },
     { name: 'curve', svg: res.plots.curve, title: 'Score over time', alt: 'Score at each time window with its shuffle null and clusters' },
