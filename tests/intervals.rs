@@ -121,6 +121,10 @@ fn interval_and_effect_size_are_reported_together() {
     assert!((e.above_chance - (s.mean - 0.5)).abs() < 1e-12);
     assert!((e.kappa - (s.mean - 0.5) / 0.5).abs() < 1e-12);
     assert!((e.kappa_ci[0] - (lo - 0.5) / 0.5).abs() < 1e-12);
+    assert!(
+        (e.above_chance_ci[0] - (lo - 0.5)).abs() < 1e-12
+            && (e.above_chance_ci[1] - (hi - 0.5)).abs() < 1e-12
+    );
     assert_eq!(json["summary"]["effect_size"]["score"], "accuracy");
     let text = popdecode::analyses::trial_table::text::render(&r);
     assert!(text.contains("95 % CI") && text.contains("variability over cross-validation repeats"));

@@ -93,6 +93,8 @@ test('pairwise decoding: the page\'s JSON is the command line\'s, and every inte
     return [...t.querySelectorAll('tr')].map((tr) => [...tr.children].map((c) => c.textContent));
   });
   assert.equal(effect[1][1], `${(100 * s.effect_size.above_chance).toFixed(1)} points`);
+  const [low, high] = s.effect_size.above_chance_ci;
+  assert.equal(effect[1][2], `${(100 * low).toFixed(1)} to ${(100 * high).toFixed(1)} points`);
   assert.equal(effect[2][1], s.effect_size.kappa.toFixed(3));
   assert.equal(effect[2][2], `${s.effect_size.kappa_ci[0].toFixed(3)} to ${s.effect_size.kappa_ci[1].toFixed(3)}`);
   // Per-class recall beside its own p-value.

@@ -18,6 +18,7 @@
 //!     repeat and the corrected resampled t over the fold scores of every repeat, [`crate::stats::intervals`])}
 //!   - `confusion` (rows = true class, each row normalised to sum 1, averaged over repeats), `recall` (per class)
 //!   - `effect_size` {`score` ("accuracy" or "balanced_accuracy", the headline), `above_chance` (mean − chance),
+//!     `above_chance_ci` (the headline's `ci` minus chance),
 //!     `kappa` ((mean − chance)/(1 − chance): 0 at chance, 1 perfect; Cohen's κ for balanced test sets),
 //!     `kappa_ci` (the headline's `ci` on that scale)}
 //!   - two classes only: `auc` {`mean`, `sd`, `p2_5`, `p97_5` over repeats} of the area under the ROC curve, and
@@ -154,6 +155,8 @@ pub struct EffectSize {
     pub score: Headline,
     /// Mean score − chance level.
     pub above_chance: f64,
+    /// The score's confidence interval minus chance: the interval of `above_chance`.
+    pub above_chance_ci: [f64; 2],
     /// (score − chance)/(1 − chance): 0 at chance, 1 for perfect decoding; Cohen's κ (Cohen, 1960) for balanced
     /// test sets.
     pub kappa: f64,
@@ -275,6 +278,7 @@ impl Report {
         let effect_size = headline.ci.map(|[lo, hi]| EffectSize {
             score: plan.scheme.headline,
             above_chance: headline.mean - chance,
+            above_chance_ci: [lo - chance, hi - chance],
             kappa: kappa(headline.mean),
             kappa_ci: [kappa(lo), kappa(hi)],
         });

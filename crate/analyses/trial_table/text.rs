@@ -117,8 +117,11 @@ pub fn render(r: &Report) -> String {
     if let Some(e) = &r.summary.effect_size {
         writeln!(
             out,
-            "above chance: {:+.1} percentage points; chance-corrected {} (κ) {:.2}, 95 % CI {:.2}–{:.2}",
+            "above chance: {:+.1} percentage points (95 % CI {:+.1} to {:+.1}); chance-corrected {} (κ) {:.2}, 95 % \
+             CI {:.2}–{:.2}",
             100.0 * e.above_chance,
+            100.0 * e.above_chance_ci[0],
+            100.0 * e.above_chance_ci[1],
             e.score.name(),
             e.kappa,
             e.kappa_ci[0],

@@ -47,7 +47,8 @@
       const e = r.summary.effect_size;
       if (!e) return;
       PD.table(view, `Effect size of the ${SCORE_WORDS[e.score]} above chance (${pct(r.chance.level)})`, ['', 'value', '95 % confidence interval', 'what it is'], [
-        [head('above chance'), `${(100 * e.above_chance).toFixed(1)} points`, '—', words(`mean ${SCORE_WORDS[e.score]} minus chance, in percentage points`)],
+        [head('above chance'), `${(100 * e.above_chance).toFixed(1)} points`,
+          words(`${(100 * e.above_chance_ci[0]).toFixed(1)} to ${(100 * e.above_chance_ci[1]).toFixed(1)} points`), words(`mean ${SCORE_WORDS[e.score]} minus chance, in percentage points`)],
         [head('κ (chance-corrected)'), e.kappa.toFixed(3), words(`${e.kappa_ci[0].toFixed(3)} to ${e.kappa_ci[1].toFixed(3)}`),
           words("(score − chance) / (1 − chance): 0 at chance, 1 for perfect decoding; Cohen's κ (Cohen, 1960) when test sets are balanced")],
       ]);
