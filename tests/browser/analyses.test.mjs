@@ -123,6 +123,19 @@ test('a long run of another analysis asks first too, timed on its own tasks', SL
     assertLocalOnly(assert, b.requests, server.origin);
     await b.context.close();
   }
+  // Planning the next recording, with its own protocol fields: 1,000 subsamples per size of the Gaussian-kernel
+  // SVM, about 3 million fits (under the limit of 5 million; a task is one subsample with its repeats and
+  // shuffles, so the timing stays short).
+  const b = await loadTable('odours.csv', 'odour');
+  await b.page.selectOption('#classifier', 'rbf-svm');
+  await set(b.page, 'power-subsamples', 1000);
+  await b.page.click('#power-start');
+  await b.page.waitForSelector('#confirm:not([hidden])', { timeout: 120000 });
+  assert.match(await b.page.textContent('#confirm-text'), /^Planning the next recording: this run has [\d,]+ fits and should take about/);
+  await b.page.click('#confirm-no');
+  assert.equal(await b.page.textContent('#progress-text'), 'Not started.');
+  assert.deepEqual(b.errors, []);
+  await b.context.close();
 });
 
 test('continuous decoding: the page and the command line give the same bytes', SLOW, async () => {

@@ -148,7 +148,10 @@
     return ms;
   }
 
-  async function timeTasks(key, kind, req, plan, header) {
+  // `growing`: the plan's tasks grow along it (subsamples of more trials or neurons: planning the next recording,
+  // the neurons' analysis), so the first task alone would make the estimate too short (measured: a planning run
+  // estimated under a minute took two); the last task is timed too and the two rates averaged.
+  async function timeTasks(key, kind, req, plan, header, growing = false) {
     const shuffle = plan.tasks.findIndex(isShuffle);
     if (timing && timing.key === key && (shuffle < 0 || timing.shuffles)) return;
     stopTiming();
@@ -164,7 +167,13 @@
         await mine.worker.ask('run-init', { kind, recipe: req.recipe, options: req.options });
       }
       const rate = { ...rates.get(key) };
-      if (rate.observed === undefined) rate.observed = await fastestRun(mine, plan.tasks[0]) / Math.max(1, plan.fits[0]);
+      if (rate.observed === undefined) {
+        rate.observed = await fastestRun(mine, plan.tasks[0]) / Math.max(1, plan.fits[0]);
+        const last = plan.tasks.map(isShuffle).lastIndexOf(false);
+        if (growing && last > 0 && timing === mine) {
+          rate.observed = (rate.observed + await fastestRun(mine, plan.tasks[last]) / Math.max(1, plan.fits[last])) / 2;
+        }
+      }
       if (shuffle >= 0 && rate.shuffled === undefined && timing === mine) {
         rate.shuffled = await fastestRun(mine, plan.tasks[shuffle]) / Math.max(1, plan.fits[shuffle]);
       }
@@ -254,7 +263,7 @@
     const key = JSON.stringify([S.generation, analysis, req.recipe, req.options]);
     if (!rates.has(key)) {
       onTiming();
-      await timeTasks(key, analysis, req, plan, header);
+      await timeTasks(key, analysis, req, plan, header, ['power', 'neurons'].includes(analysis));
     }
     const cost = costOf(plan, header, planMs(plan, rates.get(key)));
     return { fits: cost.fits, seconds: cost.seconds, memory: cost.memory };

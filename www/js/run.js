@@ -79,6 +79,7 @@
     across: (r) => `Generalization across '${r.across.column}'`,
     continuous: (r) => `Decoding '${r.columns.label}' as a continuous variable`,
     neurons: () => 'The analysis of single neurons and subsets',
+    power: () => 'Planning the next recording',
   };
 
   // The recipe and options each kind of run uses, from the form's recipe.
@@ -136,7 +137,7 @@
           if (token.cancelled || S.run !== token) return;
         }
         if (c && ((c.seconds !== null && c.seconds > 60) || c.memory)) {
-          const ok = await confirmRun((kind === 'main' ? 'This run has ' : `${RUN_WORDS[kind](recipe)}: this run has `) +
+          const ok = await confirmRun((RUN_WORDS[kind] ? `${RUN_WORDS[kind](recipe)}: this run has ` : 'This run has ') +
             PD.count(c.fits, 'fit') +
             (c.seconds !== null ? ` and should take ${PD.about(c.seconds)} on this computer` : '') +
             (c.memory ? `; it needs about ${PD.bytes(c.memory.total)} of memory (${PD.bytes(c.memory.perWorker)} per worker; fewer workers need less: add ?workers=1 to the address)` : '') +
