@@ -2,7 +2,7 @@
 //! population's own, after one sentence on the study: see `mod.rs`.)
 
 use super::report::StudyReport;
-use super::text::prevalence_statement;
+use super::text::{as_shuffled, prevalence_statement};
 use crate::input::study::SessionKind;
 use crate::recipe::{Across, Folds, Recipe, TimeInput};
 use crate::report::methods::fitting;
@@ -234,17 +234,6 @@ fn across_protocol(rc: &Recipe, a: &Across) -> String {
             "every trial at the training and testing levels used without balancing"
         }
     )
-}
-
-/// How the prevalence test scores each session when shuffles average fewer repeats than the observed score: as a
-/// shuffle is (the report's `prevalence.minimum` then differs from the sessions' table, which a reader checks).
-pub fn as_shuffled(r: &StudyReport) -> String {
-    let (each, all) = (r.recipe.shuffle_repeats(), r.recipe.repeats);
-    if each < all {
-        format!("; each session scored over its first {each} of {all} repeats, as every shuffle is")
-    } else {
-        String::new()
-    }
 }
 
 fn significant_spans(r: &StudyReport) -> String {

@@ -30,6 +30,17 @@ pub fn prevalence_statement(r: &StudyReport) -> Option<String> {
     })
 }
 
+/// How the prevalence test scores each session when shuffles average fewer repeats than the observed score: as a
+/// shuffle is (the report's `prevalence.minimum` then differs from the sessions' table, which a reader checks).
+pub fn as_shuffled(r: &StudyReport) -> String {
+    let (each, all) = (r.recipe.shuffle_repeats(), r.recipe.repeats);
+    if each < all {
+        format!("; each session scored over its first {each} of {all} repeats, as every shuffle is")
+    } else {
+        String::new()
+    }
+}
+
 /// The one sentence a reader needs first.
 pub fn headline_sentence(r: &StudyReport) -> String {
     let label = &r.recipe.columns.label;
@@ -215,7 +226,7 @@ pub fn render(r: &StudyReport) -> String {
             p.units,
             level(r),
             pct(p.minimum),
-            super::methods::as_shuffled(r),
+            as_shuffled(r),
             p_phrase(p.global_p, draws),
             words,
             pct(p.gamma0_limit)
