@@ -44,7 +44,7 @@ pub fn floor_note(m: usize) -> String {
     format!(
         "no permutation reached the observed value; 1/(m + 1) = {} is the smallest p that m = {m} permutations can \
          give, so p is at most that",
-        p_text(1.0 / (m + 1) as f64)
+        floor_words(m)
     )
 }
 

@@ -15,7 +15,6 @@
     { name: 'curve', svg: res.plots.curve, title: 'Pooled curve over time', alt: 'Pooled population\'s score at each time window' },
   ];
 
-  const p3 = PD.pText;
 
   function groupTable(view, r) {
     const g = r.group;
@@ -32,7 +31,7 @@
       rows.push([{ text: 'prevalence, global null p', cls: 'text', header: true }, PD.pBound(v.global_p, g.draws),
         { text: v.gamma0 !== null ? `at least ${pct(v.gamma0)} of the population carries the information (α = ${v.alpha})` : 'no prevalence above 0 can be claimed', cls: 'text' }]);
     }
-    if (r.t_test) rows.push([{ text: 't-test against chance, p', cls: 'text', header: true }, p3(r.t_test.p_value), { text: `t = ${r.t_test.t.toFixed(2)}, ${r.t_test.df} df`, cls: 'text' }]);
+    if (r.t_test) rows.push([{ text: 't-test against chance, p', cls: 'text', header: true }, PD.pText(r.t_test.p_value), { text: `t = ${r.t_test.t.toFixed(2)}, ${r.t_test.df} df`, cls: 'text' }]);
     PD.table(view, 'The group', ['', 'value', 'details'], rows);
   }
 

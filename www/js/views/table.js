@@ -16,7 +16,6 @@
   const head = (text) => ({ text, cls: 'text', header: true });
   const words = (text) => ({ text, cls: 'text' });
   const range = (ci) => (ci ? `${pct(ci[0])} to ${pct(ci[1])}` : '—');
-  const p3 = PD.pText;
   const SCORE_WORDS = { accuracy: 'accuracy', balanced_accuracy: 'balanced accuracy' };
 
   // Every distinct way a confidence interval in the report was computed, in order.
@@ -92,7 +91,7 @@
       const rows = pw.pairs.map((p) => {
         const s = p[p.headline];
         const row = [head(`${p.classes[0]} vs ${p.classes[1]}`), ...(one ? [] : [words(SCORE_WORDS[p.headline])]), pct(s.mean), words(range(s.ci)), p.auc ? pct(p.auc.mean) : '—'];
-        if (tested) row.push(PD.pBound(p.p_value, r.shuffle.count), p3(p.q_value), words(p.discovery ? 'yes' : 'no'));
+        if (tested) row.push(PD.pBound(p.p_value, r.shuffle.count), PD.pText(p.q_value), words(p.discovery ? 'yes' : 'no'));
         return row;
       });
       PD.table(view, 'Pairwise decoding: each pair of classes decoded on its own with the same settings (chance 50 %)' +
