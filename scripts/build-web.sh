@@ -22,12 +22,14 @@ if [ ! -x "$TOOLS/node_modules/.bin/wasm-opt" ]; then
   (cd "$TOOLS" && npm install --no-audit --no-fund --silent "binaryen@$BINARYEN")
 fi
 
+# Cargo's output directory: the default, or the one the caller chose (CARGO_TARGET_DIR).
+TARGET_DIR=${CARGO_TARGET_DIR:-target}
 OPT=(-Oz --enable-simd --enable-bulk-memory --enable-nontrapping-float-to-int --enable-sign-ext
   --enable-mutable-globals --enable-reference-types --enable-multivalue)
 RUSTFLAGS="-C target-feature=+simd128" cargo build --lib --release --target wasm32-unknown-unknown
 rm -rf www/pkg
 wasm-bindgen --target no-modules --no-typescript --out-dir www/pkg \
-  target/wasm32-unknown-unknown/release/popdecode.wasm
+  "$TARGET_DIR/wasm32-unknown-unknown/release/popdecode.wasm"
 "$TOOLS/node_modules/.bin/wasm-opt" "${OPT[@]}" www/pkg/popdecode_bg.wasm -o www/pkg/popdecode_bg.wasm
 
 # The shared-memory build: the same source and the same floating-point operations (atomics change how memory is
@@ -35,14 +37,14 @@ wasm-bindgen --target no-modules --no-typescript --out-dir www/pkg \
 # library must be compiled with atomics too, which stable cargo does only with RUSTC_BOOTSTRAP=1 and -Zbuild-std;
 # its own target directory keeps the two builds from rebuilding each other. The memory is imported (the page makes
 # one per data set) and may grow to 4 GiB, a 32-bit memory's limit.
-RUSTC_BOOTSTRAP=1 CARGO_TARGET_DIR=target/wasm-shared RUSTFLAGS="-C target-feature=+simd128,+atomics,+bulk-memory,+mutable-globals \
+RUSTC_BOOTSTRAP=1 CARGO_TARGET_DIR="$TARGET_DIR/wasm-shared" RUSTFLAGS="-C target-feature=+simd128,+atomics,+bulk-memory,+mutable-globals \
   -C link-arg=--shared-memory -C link-arg=--import-memory -C link-arg=--max-memory=4294967296 \
   -C link-arg=--export=__wasm_init_tls -C link-arg=--export=__tls_size -C link-arg=--export=__tls_align \
   -C link-arg=--export=__tls_base" \
   cargo build --lib --release --target wasm32-unknown-unknown -Zbuild-std=std,panic_abort
 rm -rf www/pkg-shared
 wasm-bindgen --target no-modules --no-typescript --out-dir www/pkg-shared \
-  target/wasm-shared/wasm32-unknown-unknown/release/popdecode.wasm
+  "$TARGET_DIR/wasm-shared/wasm32-unknown-unknown/release/popdecode.wasm"
 "$TOOLS/node_modules/.bin/wasm-opt" "${OPT[@]}" --enable-threads \
   www/pkg-shared/popdecode_bg.wasm -o www/pkg-shared/popdecode_bg.wasm
 mkdir -p www/samples/study
