@@ -14,7 +14,12 @@
   ];
 
   const SCORE_WORDS = { r2: 'out-of-sample R²', correlation: 'Pearson correlation', circular_correlation: 'circular correlation', mean_abs_error: 'mean absolute angular error' };
-  const num = (v) => (v === null || v === undefined ? '—' : Number(v).toPrecision(3));
+  // Three decimals as in the command line's text (a null R² near 0 reads 0.000, not -7.16e-5 or -0.000).
+  const num = (v) => {
+    if (v === null || v === undefined) return '—';
+    const s = Number(v).toFixed(3);
+    return s === '-0.000' ? '0.000' : s;
+  };
 
   function scoreTable(view, r) {
     if (!r.summary) return;
