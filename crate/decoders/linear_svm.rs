@@ -41,6 +41,12 @@ pub const HANDOVER_PASSES: usize = 300;
 /// ([`dual_passes`]): enough to bring the primal near its final set of trials inside the margin (40–120 passes
 /// took the same time at 1600 × 400, 2026-12-05).
 pub const SHORT_DUAL_PASSES: usize = 60;
+/// Passes of the dual before the primal Newton method takes over with 600 features or more at 3 to 3.5 training
+/// trials per feature ([`dual_passes`]). A Newton step's cost grows with the square (updates) and cube (factors) of
+/// the features, a pass of the dual only linearly, so where the features are many and about as many trials end
+/// inside the margin, more of the dual's cheap passes pay (measured 2026-12-05: 3200 × 1001 one repeat 6.1 → 4.7 s,
+/// 2400 × 701 1.64 → 1.38 s; at 4 trials per feature, 3200 × 801, 150 passes cost 3.09 → 3.47 s).
+pub const WIDE_DUAL_PASSES: usize = 150;
 /// Primal route: stop when the gradient norm falls below this fraction of its value at w = 0.
 pub const NEWTON_TOLERANCE: f64 = 1e-8;
 /// Primal route: Newton steps before giving up (the fit is then flagged).
@@ -119,13 +125,19 @@ impl Decoder for LinearSvm {
 ///   4.1 s against the primal's 5.3 s from w = 0 (the dual's 60 passes bring the Newton steps from 509 to 272 in
 ///   all, the refactorings from 117 to 50), 3200 × 1000 6.0 s against 8.1 s, 800 × 200 0.63 against 0.79 s; with
 ///   fewer features the primal's factor is cheap and the short dual cost more: 400 × 100 0.150 against 0.133 s,
-///   198 × 50 0.052 against 0.030 s (2026-12-05);
+///   198 × 50 0.052 against 0.030 s (2026-12-05); with 600 features or more and up to 3.5 trials per feature,
+///   [`WIDE_DUAL_PASSES`] instead: at 3200 × 1001 (one repeat of the grid's 4000 × 1000) 120, 150, 200 and 300
+///   passes took 4.9, 4.7, 5.0 and 5.1 s against 6.1 s for 60, at 2400 × 701 150 passes 1.38 s against 1.64 s, but
+///   with fewer features they did not pay (1360 × 401 0.66 s either way, 640 × 201 0.113 against 0.090 s) nor at 4
+///   trials per feature (3200 × 801 3.47 against 3.09 s; 2026-12-05);
 /// - beyond, the primal from w = 0: at 5 the two were even (2000 × 400), at 6 the short dual cost 20–50 % more
 ///   (2400 × 400, 1200 × 200), at 8 it nearly doubled the time (800 × 100, 1600 × 200).
 fn dual_passes(n: usize, p: usize) -> usize {
     let q = p + 1;
     if n <= 3 * q {
         HANDOVER_PASSES
+    } else if 2 * n <= 7 * q && q >= 600 {
+        WIDE_DUAL_PASSES
     } else if 2 * n <= 9 * q && q >= 150 {
         SHORT_DUAL_PASSES
     } else {
@@ -560,6 +572,15 @@ mod tests {
         // Few features: the primal from w = 0.
         assert_eq!(dual_passes(400, 99), 0);
         assert_hand_over_reaches_the_optimum(800, 199, 8, SHORT_DUAL_PASSES);
+    }
+
+    /// Many features at just over three trials per feature: more passes of the dual, then the primal.
+    #[test]
+    fn the_primal_after_a_longer_dual_reaches_the_optimum() {
+        assert_eq!(dual_passes(2000, 599), WIDE_DUAL_PASSES);
+        assert_eq!(dual_passes(2101, 599), SHORT_DUAL_PASSES);
+        assert_eq!(dual_passes(2000, 598), SHORT_DUAL_PASSES);
+        assert_hand_over_reaches_the_optimum(2000, 599, 9, WIDE_DUAL_PASSES);
     }
 
     #[test]
