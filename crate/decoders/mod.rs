@@ -397,9 +397,10 @@ pub fn describe(classifier: Classifier, c: Option<f64>, features: usize) -> Stri
              constant feature, {c}, one-vs-rest for more than two classes), minimised in the primal by the \
              finite Newton method (Keerthi & DeCoste, 2005) when a training fold had more than three trials per \
              feature (up to four and a half, with 150 features or more, starting where {} passes of the dual \
-             stopped, {} with 600 features or more and up to three and a half trials per feature) and otherwise in the dual by coordinate descent (Hsieh et al., 2008; stopping tolerance {} on \
-             the projected gradient; a fit still moving after {} passes was finished by the same Newton method from \
-             where the dual stopped)",
+             stopped, {} with 600 features or more and up to three and a half trials per feature) and otherwise \
+             in the dual by coordinate descent (Hsieh et al., 2008; stopping tolerance {} on the projected \
+             gradient; a fit still moving after {} passes was finished by the same Newton method from where the \
+             dual stopped)",
             linear_svm::SHORT_DUAL_PASSES,
             linear_svm::WIDE_DUAL_PASSES,
             linear_svm::TOLERANCE,

@@ -60,7 +60,7 @@ def data_sets():
     yield "invented 3 x 100 x 120", *invented_population(100, 3, 120, 0.1, 5)
     # Four training trials per unit, 200 with the intercept: a short run of the dual, then the primal (`dual_passes`).
     yield "invented 4 x 250 x 199", *invented_population(250, 4, 199, 0.1, 6)
-    # 3.2 training trials per unit with 600 with the intercept: a longer run of the dual, then the primal.
+    # 3.2 training trials per feature (600 with the intercept): a longer run of the dual, then the primal.
     yield "invented 4 x 600 x 599", *invented_population(600, 4, 599, 0.05, 7)
 
 

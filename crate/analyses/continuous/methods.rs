@@ -3,7 +3,7 @@
 
 use super::plan::ValueSplit;
 use super::report::{ContinuousReport, ContinuousTimeReport, InputInfo, TargetInfo, ValueDesign};
-use super::text::{angle, headline_value, num};
+use super::text::{angle, headline_value, num, quantity};
 use crate::analyses::over_time::{cluster_sentence, windows_sentence};
 use crate::analyses::time_course::report::ONSET_CAVEAT;
 use crate::decoders;
@@ -16,10 +16,10 @@ fn variable(t: &TargetInfo) -> String {
         (Some(m), Some(sd), _, _) => format!(
             "'{}' (mean {}, SD {}, range {}–{})",
             t.column,
-            num(m),
-            num(sd),
-            num(t.min),
-            num(t.max)
+            quantity(m),
+            quantity(sd),
+            quantity(t.min),
+            quantity(t.max)
         ),
         (_, _, Some(md), Some(rl)) => format!(
             "'{}', an angle in {} (mean direction {}, mean resultant length {})",

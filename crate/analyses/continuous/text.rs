@@ -24,6 +24,17 @@ pub fn num(v: f64) -> String {
     }
 }
 
+/// A value of the decoded variable in its own units, to four significant digits and without an exponent: a
+/// variable in small units keeps its digits ("0.0004120", where three decimals would say "0.000"), a large one
+/// loses its meaningless decimals ("12346").
+pub fn quantity(v: f64) -> String {
+    if v == 0.0 {
+        return "0".into();
+    }
+    let decimals = (3 - v.abs().log10().floor() as i32).clamp(0, 12) as usize;
+    format!("{v:.decimals$}")
+}
+
 /// "out-of-sample R²" or "mean absolute angular error": the headline's name.
 pub fn headline_name(t: &TargetInfo) -> &'static str {
     if t.unit.is_some() {
@@ -327,12 +338,21 @@ pub fn predictions_csv(p: &super::report::PredictionTable) -> String {
 
 #[cfg(test)]
 mod tests {
-    use super::num;
+    use super::{num, quantity};
 
     #[test]
     fn a_score_that_rounds_to_zero_has_no_sign() {
         assert_eq!(num(-0.0000716), "0.000");
         assert_eq!(num(-0.0006), "-0.001");
         assert_eq!(num(0.25), "0.250");
+    }
+
+    #[test]
+    fn a_quantity_keeps_four_significant_digits_whatever_its_units() {
+        assert_eq!(quantity(21.3456), "21.35");
+        assert_eq!(quantity(0.000412), "0.0004120");
+        assert_eq!(quantity(12345.6), "12346");
+        assert_eq!(quantity(-2.5), "-2.500");
+        assert_eq!(quantity(0.0), "0");
     }
 }

@@ -20,6 +20,13 @@
     const s = Number(v).toFixed(3);
     return s === '-0.000' ? '0.000' : s;
   };
+  // A value of the decoded variable in its own units: four significant digits, no exponent (the methods' rule).
+  const quantity = (v) => {
+    if (v === null || v === undefined) return '—';
+    const x = Number(v);
+    if (x === 0) return '0';
+    return x.toFixed(Math.min(12, Math.max(0, 3 - Math.floor(Math.log10(Math.abs(x))))));
+  };
 
   function scoreTable(view, r) {
     if (!r.summary) return;
@@ -46,8 +53,8 @@
     PD.notes(view, r);
     PD.figures(view, FIGURES(res), ex);
     const t = r.target;
-    view.appendChild(el('p', `'${t.column}': ${t.variable === 'linear' ? 'a quantity' : `an angle in ${t.unit}`}, from ${t.min} to ${t.max}` +
-      (t.mean !== null && t.mean !== undefined ? `, mean ${num(t.mean)} (SD ${num(t.sd)})` : '') +
+    view.appendChild(el('p', `'${t.column}': ${t.variable === 'linear' ? 'a quantity' : `an angle in ${t.unit}`}, from ${quantity(t.min)} to ${quantity(t.max)}` +
+      (t.mean !== null && t.mean !== undefined ? `, mean ${quantity(t.mean)} (SD ${quantity(t.sd)})` : '') +
       (t.mean_direction !== null && t.mean_direction !== undefined ? `, mean direction ${num(t.mean_direction)} (resultant length ${num(t.resultant_length)})` : '') +
       `; ${r.input.trials} trials, ${r.input.features.length} features.`, 'note'));
     scoreTable(view, r);
