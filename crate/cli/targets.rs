@@ -3,8 +3,7 @@
 
 use crate::args::{show, RunArgs};
 use crate::files::{display_name, sha256_file};
-use crate::run::{analyse, Inputs, Loaded};
-use crate::timecourse::read_inputs;
+use crate::run::{analyse, read_inputs, Inputs, Loaded};
 use clap::Args;
 use popdecode::analyses::across::AcrossPlan;
 use popdecode::analyses::continuous::ContinuousPlan;

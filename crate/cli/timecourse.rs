@@ -1,12 +1,11 @@
 //! `popdecode timecourse`: decoding at every time window of a binned table, spike events or an NWB file.
 
 use crate::args::{base_recipe, show, ColumnArgs, RunArgs};
-use crate::files::{display_name, open_source, read};
-use crate::run::{analyse, Inputs, Loaded};
+use crate::run::{analyse, read_inputs, Inputs, Loaded};
 use crate::targets::{self, TargetArgs};
 use clap::Args;
 use popdecode::analyses::time_course::TimePlan;
-use popdecode::input::{self, extract, FileBytes};
+use popdecode::input::{self, FileBytes};
 use popdecode::recipe::{GeneralizationNull, TimeInput, TimeSettings, UnitFilter};
 use std::path::PathBuf;
 
@@ -315,27 +314,4 @@ pub fn load(inputs: &Inputs) -> Result<Loaded<TimePlan>, String> {
     let files = data.files.clone();
     let plan = TimePlan::new(data, recipe).map_err(show)?;
     Ok(Loaded { plan, files })
-}
-
-/// The input files' names and bytes; an NWB file is read lazily into its extract (units and trials only), exactly
-/// as the page does.
-pub fn read_inputs(inputs: &Inputs) -> Result<Vec<(String, Vec<u8>)>, String> {
-    let nwb = inputs
-        .recipe
-        .time
-        .as_ref()
-        .is_some_and(|t| matches!(t.input, TimeInput::Nwb { .. }));
-    inputs
-        .paths
-        .iter()
-        .map(|p| {
-            let name = display_name(p);
-            let bytes = if nwb {
-                extract::read_nwb(&name, open_source(p)?).map_err(show)?
-            } else {
-                read(p)?
-            };
-            Ok((name, bytes))
-        })
-        .collect()
 }
