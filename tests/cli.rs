@@ -395,3 +395,75 @@ fn settings_that_do_not_combine_are_refused_once() {
         assert_eq!(err.lines().count(), 1, "one line: {err}");
     }
 }
+
+/// Runs a command expected to be refused before any work: exit code 2, one line naming the problem, nothing on
+/// standard output (no result printed, so no work was done), and the input untouched.
+fn refused(args: &[&str], expected: &str) {
+    let out = bin().args(args).output().unwrap();
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{args:?}: {stderr}");
+    assert_eq!(stderr.trim().lines().count(), 1, "{stderr}");
+    assert!(stderr.contains(expected), "{args:?}: {stderr}");
+    assert!(!stderr.contains("panicked"), "{stderr}");
+    assert!(out.stdout.is_empty(), "{args:?} did the work");
+}
+
+/// Found by a hostile review: `--json` naming the input overwrote the data after the run, a missing folder or a file
+/// given to `--plots` failed only at the end of the work, and `--threads 100000` spent minutes starting threads.
+#[test]
+fn outputs_and_threads_are_checked_before_any_work() {
+    let dir = temp_dir("outputs");
+    let data = dir.join("odours.csv");
+    std::fs::copy(sample(), &data).unwrap();
+    let before = std::fs::read(&data).unwrap();
+    let d = data.to_str().unwrap();
+    let base = ["decode", d, "--label", "odour", "--quiet"];
+    fn with<'a>(base: &[&'a str], extra: &[&'a str]) -> Vec<&'a str> {
+        [base, extra].concat()
+    }
+    refused(&with(&base, &["--json", d]), "this is the input file");
+    refused(
+        &with(&base, &["--save-recipe", d]),
+        "this is the input file",
+    );
+    let missing = dir.join("no-such-folder").join("r.json");
+    refused(
+        &with(&base, &["--json", missing.to_str().unwrap()]),
+        "does not exist",
+    );
+    refused(
+        &with(&base, &["--plots", d]),
+        "this is a file; name a folder",
+    );
+    refused(
+        &with(&base, &["--json", dir.to_str().unwrap()]),
+        "this is a folder",
+    );
+    refused(
+        &with(&base, &["--threads", "100000"]),
+        "--threads takes at most 1024",
+    );
+    refused(
+        &with(&base, &["--threads", "0"]),
+        "--threads must be at least 1",
+    );
+    assert_eq!(std::fs::read(&data).unwrap(), before);
+}
+
+/// Found by a hostile review: 10¹¹ group draws decoded every session, then aborted allocating 2.4 TB.
+#[test]
+fn group_draws_are_capped_before_any_session_is_decoded() {
+    let study = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("samples/study/study.csv");
+    refused(
+        &[
+            "study",
+            study.to_str().unwrap(),
+            "--label",
+            "odour",
+            "--quiet",
+            "--group-draws",
+            "100000000000",
+        ],
+        "the group tests take at most 100000 draws",
+    );
+}

@@ -4,7 +4,7 @@
 //! changed), and `finish` runs on every task's outcome in task order, exactly as after a single run.
 
 use crate::part::{self, Read};
-use crate::run::{deliver, Loaded, Outputs};
+use crate::run::{check_outputs, deliver, Loaded, Outputs};
 use crate::{decode, neurons, power, study, targets, timecourse};
 use clap::Args;
 use popdecode::analyses::Analysis;
@@ -59,11 +59,13 @@ fn finish<P: Analysis>(
     args: &CombineArgs,
 ) -> Result<(), String> {
     let plan = &loaded.plan;
-    let outcomes: Vec<P::Outcome> = part::outcomes(parts, &plan.tasks())?;
     let outputs = Outputs {
         json: args.json.as_deref(),
         save_recipe: args.save_recipe.as_deref(),
         plots: args.plots.as_deref(),
     };
+    let read_from: Vec<PathBuf> = parts.iter().map(|p| p.path.clone()).collect();
+    check_outputs(&outputs, &read_from)?;
+    let outcomes: Vec<P::Outcome> = part::outcomes(parts, &plan.tasks())?;
     deliver(&plan.finish(&outcomes), plan.recipe(), &outputs)
 }

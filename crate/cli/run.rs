@@ -72,17 +72,21 @@ pub fn analyse<P: Analysis>(
     run: &RunArgs,
 ) -> Result<(), String> {
     let part = run.part.map(|p| part_output(run, p)).transpose()?;
+    let outputs = Outputs {
+        json: run.json.as_deref(),
+        save_recipe: run.save_recipe.as_deref(),
+        plots: run.plots.as_deref(),
+    };
+    let mut read_from = inputs.paths.clone();
+    read_from.extend(run.recipe.clone());
+    check_outputs(&outputs, &read_from)?;
+    threads(run)?;
     let loaded = load(inputs)?;
     let plan = &loaded.plan;
     let tasks = plan.tasks();
     let Some((part, path)) = part else {
         let costs: Vec<usize> = tasks.iter().map(|&t| plan.fits_in(t)).collect();
         let outcomes = run_tasks(&tasks, &costs, |t| plan.run(t), run)?;
-        let outputs = Outputs {
-            json: run.json.as_deref(),
-            save_recipe: run.save_recipe.as_deref(),
-            plots: run.plots.as_deref(),
-        };
         return deliver(&plan.finish(&outcomes), plan.recipe(), &outputs);
     };
     let indices: Vec<usize> = part.indices(tasks.len()).collect();
@@ -130,6 +134,70 @@ fn part_output(run: &RunArgs, part: Part) -> Result<(Part, &Path), String> {
     Ok((part, path))
 }
 
+/// Refuse, before any work starts, outputs that could only fail or do harm at its end: a file in a folder that does
+/// not exist, a folder where a file is asked for (or the reverse), or an output that is one of the files read.
+pub fn check_outputs(outputs: &Outputs, read_from: &[PathBuf]) -> Result<(), String> {
+    let same = |a: &Path, b: &Path| match (a.canonicalize(), b.canonicalize()) {
+        (Ok(a), Ok(b)) => a == b,
+        _ => false,
+    };
+    for (flag, path) in [
+        ("--json", outputs.json),
+        ("--save-recipe", outputs.save_recipe),
+    ] {
+        let Some(path) = path else { continue };
+        if let Some(input) = read_from.iter().find(|i| same(path, i)) {
+            return Err(format!(
+                "{flag} {}: this is the input file {}; write the result to another file",
+                path.display(),
+                input.display()
+            ));
+        }
+        if path.is_dir() {
+            return Err(format!(
+                "{flag} {}: this is a folder; name a file",
+                path.display()
+            ));
+        }
+        let folder = path
+            .parent()
+            .filter(|f| !f.as_os_str().is_empty())
+            .unwrap_or(Path::new("."));
+        if !folder.is_dir() {
+            return Err(format!(
+                "{flag} {}: the folder {} does not exist",
+                path.display(),
+                folder.display()
+            ));
+        }
+    }
+    if let Some(dir) = outputs.plots {
+        if dir.exists() && !dir.is_dir() {
+            return Err(format!(
+                "--plots {}: this is a file; name a folder for the figures",
+                dir.display()
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// Most threads `--threads` may ask for: far beyond any machine's cores (each thread costs memory and start-up
+/// time, and results do not depend on the count).
+const MAX_THREADS: usize = 1024;
+
+/// Check `--threads` before any work starts.
+fn threads(run: &RunArgs) -> Result<(), String> {
+    match run.threads {
+        Some(0) => Err("--threads must be at least 1".into()),
+        Some(n) if n > MAX_THREADS => Err(format!(
+            "--threads takes at most {MAX_THREADS} (this computer has {}); got {n}",
+            std::thread::available_parallelism().map_or(1, |n| n.get())
+        )),
+        _ => Ok(()),
+    }
+}
+
 /// Print a finished analysis's text (and methods paragraph), and write the JSON, the recipe and the figures the
 /// flags ask for. A single run and `combine` both end here, so they write the same bytes.
 pub fn deliver(finished: &Finished, recipe: &Recipe, outputs: &Outputs) -> Result<(), String> {
@@ -175,9 +243,6 @@ fn run_tasks<T: Copy + Sync, O: Send>(
     );
     let mut builder = rayon::ThreadPoolBuilder::new();
     if let Some(n) = args.threads {
-        if n == 0 {
-            return Err("--threads must be at least 1".into());
-        }
         builder = builder.num_threads(n);
     }
     let pool = builder

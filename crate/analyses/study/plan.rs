@@ -9,6 +9,7 @@ use crate::error::{Error, Result};
 use crate::input::study::{base_name, from_rows, read, read_sessions, SessionData};
 use crate::input::study::{SessionKind, StudyRow, StudyTable};
 use crate::input::FileBytes;
+use crate::recipe::limits::{MAX_REPEATS, MAX_RESULT_VALUES};
 use crate::recipe::windows::Window;
 use crate::recipe::{Folds, Recipe};
 use crate::report::text::session_notes;
@@ -64,6 +65,13 @@ impl StudyOptions {
             return Err(Error::Recipe(
                 "the group tests need at least one draw".into(),
             ));
+        }
+        if self.group_draws > MAX_REPEATS {
+            return Err(Error::Recipe(format!(
+                "the group tests take at most {MAX_REPEATS} draws (enough to resolve a p-value to 1/{}); got {}",
+                MAX_REPEATS + 1,
+                self.group_draws
+            )));
         }
         if !(self.alpha > 0.0 && self.alpha < 1.0) {
             return Err(Error::Recipe(format!(
@@ -418,6 +426,27 @@ pub fn assess(
         })
         .collect();
     let study_windows = most_common(&windows).clone();
+    // The group null keeps one value per draw and window, and the draws one pick per session: checked before any
+    // session is decoded.
+    let most_windows = data
+        .iter()
+        .map(|d| match d {
+            SessionData::Time(t) => t.windows.len(),
+            SessionData::Across(a) if a.features.is_time() => a.features.windows.len(),
+            SessionData::Table(_) | SessionData::Across(_) => 1,
+        })
+        .max()
+        .unwrap_or(1);
+    let values = options
+        .group_draws
+        .saturating_mul(most_windows.saturating_add(data.len()));
+    if values > MAX_RESULT_VALUES {
+        return Err(Error::Recipe(format!(
+            "{} group draws would keep {values} numbers (one per draw and time window, and one per draw and \
+             session), more than the {MAX_RESULT_VALUES} a run may hold; use fewer draws",
+            options.group_draws
+        )));
+    }
 
     let mut sessions = Vec::new();
     let mut pooled_data = Vec::new();
