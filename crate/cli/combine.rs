@@ -65,7 +65,7 @@ fn finish<P: Analysis>(
         plots: args.plots.as_deref(),
     };
     let read_from: Vec<PathBuf> = parts.iter().map(|p| p.path.clone()).collect();
-    check_outputs(&outputs, &read_from)?;
+    check_outputs(&outputs, &read_from, None)?;
     let outcomes: Vec<P::Outcome> = part::outcomes(parts, &plan.tasks())?;
     deliver(&plan.finish(&outcomes), plan.recipe(), &outputs)
 }

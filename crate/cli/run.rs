@@ -77,9 +77,7 @@ pub fn analyse<P: Analysis>(
         save_recipe: run.save_recipe.as_deref(),
         plots: run.plots.as_deref(),
     };
-    let mut read_from = inputs.paths.clone();
-    read_from.extend(run.recipe.clone());
-    check_outputs(&outputs, &read_from)?;
+    check_outputs(&outputs, &inputs.paths, run.recipe.as_deref())?;
     threads(run)?;
     let loaded = load(inputs)?;
     let plan = &loaded.plan;
@@ -135,18 +133,24 @@ fn part_output(run: &RunArgs, part: Part) -> Result<(Part, &Path), String> {
 }
 
 /// Refuse, before any work starts, outputs that could only fail or do harm at its end: a file in a folder that does
-/// not exist, a folder where a file is asked for (or the reverse), or an output that is one of the files read.
-pub fn check_outputs(outputs: &Outputs, read_from: &[PathBuf]) -> Result<(), String> {
+/// not exist, a folder where a file is asked for (or the reverse), or an output that is one of the files read (the
+/// recipe read may be saved again, with the flags given applied).
+pub fn check_outputs(
+    outputs: &Outputs,
+    read_from: &[PathBuf],
+    recipe: Option<&Path>,
+) -> Result<(), String> {
     let same = |a: &Path, b: &Path| match (a.canonicalize(), b.canonicalize()) {
         (Ok(a), Ok(b)) => a == b,
         _ => false,
     };
-    for (flag, path) in [
-        ("--json", outputs.json),
-        ("--save-recipe", outputs.save_recipe),
+    for (flag, path, recipe) in [
+        ("--json", outputs.json, recipe),
+        ("--save-recipe", outputs.save_recipe, None),
     ] {
         let Some(path) = path else { continue };
-        if let Some(input) = read_from.iter().find(|i| same(path, i)) {
+        let mut inputs = read_from.iter().map(PathBuf::as_path).chain(recipe);
+        if let Some(input) = inputs.find(|i| same(path, i)) {
             return Err(format!(
                 "{flag} {}: this is the input file {}; write the result to another file",
                 path.display(),
