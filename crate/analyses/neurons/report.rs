@@ -290,11 +290,10 @@ pub fn linear(data: &Dataset, recipe: &Recipe) -> Option<Linear> {
     let context = FitContext::of(&nesting, &(0..n).collect::<Vec<_>>(), 0);
     let model = FittedPipeline::fit_with(decoder.as_ref(), &rows, p, &y, n_classes, &context);
     let outputs = model.weights()?;
-    // The covariance (divisor n) of the standardised features the decoder saw.
+    // The standardised features the decoder saw: each pattern is their covariance (divisor n) times the weights,
+    // formed as Zᵀ(Zw)/n, without the p × p covariance (3.2 GB at 20 000 neurons).
     let mut z = rows.clone();
     Standardiser::fit(&rows, n, p).apply(&mut z);
-    let cov = linalg::gram(&z, n, p);
-    let cov: Vec<f64> = cov.iter().map(|v| v / n as f64).collect();
     let names: Vec<String> = outputs
         .iter()
         .map(|(c, _)| {
@@ -309,9 +308,10 @@ pub fn linear(data: &Dataset, recipe: &Recipe) -> Option<Linear> {
     let patterns: Vec<Vec<f64>> = outputs
         .iter()
         .map(|(_, w)| {
-            let a: Vec<f64> = (0..p)
-                .map(|i| linalg::dot(&cov[i * p..(i + 1) * p], w))
-                .collect();
+            let mut a = vec![0.0; p];
+            for row in z.chunks_exact(p) {
+                linalg::axpy(linalg::dot(row, w) / n as f64, row, &mut a);
+            }
             let var = linalg::dot(w, &a);
             a.iter()
                 .map(|v| if var > 0.0 { v / var } else { 0.0 })
