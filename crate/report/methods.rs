@@ -78,6 +78,17 @@ pub fn resampling(
     out
 }
 
+/// The result's cautions (its `warnings`) that the paragraph so far (`already`) does not state, so that they travel
+/// with the methods paragraph into a paper. `None` when there are none left.
+pub fn cautions(warnings: &[String], already: &str) -> Option<String> {
+    let listed: Vec<&str> = warnings
+        .iter()
+        .map(|w| w.trim_end_matches('.'))
+        .filter(|w| !already.contains(w))
+        .collect();
+    (!listed.is_empty()).then(|| format!("Notes from the analysis: {}.", listed.join("; ")))
+}
+
 /// The standardisation-and-decoder sentence, for a decoder fitted on `features` features: what the fitted
 /// pipeline did (a decoder of counts is fitted on the values as given, every other on standardised features).
 pub fn fitting(rc: &Recipe, features: usize) -> String {
@@ -125,4 +136,25 @@ fn tuning_sentence(rc: &Recipe) -> String {
          the whole training fold; the test fold was never used to choose it.",
         c_grid.join(", ")
     )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::cautions;
+
+    /// A caution travels into the methods paragraph once: those the paragraph already states are not repeated.
+    #[test]
+    fn cautions_not_yet_stated_are_added_once() {
+        let warnings = vec![
+            "only 5 shuffles: p cannot go below 1/6 = 0.167".to_string(),
+            "leave-one-out is biased below chance".to_string(),
+        ];
+        let said = "… Caution: leave-one-out is biased below chance.";
+        assert_eq!(
+            cautions(&warnings, said).as_deref(),
+            Some("Notes from the analysis: only 5 shuffles: p cannot go below 1/6 = 0.167.")
+        );
+        assert_eq!(cautions(&warnings[1..], said), None);
+        assert_eq!(cautions(&[], ""), None);
+    }
 }

@@ -230,7 +230,8 @@ impl Scheme {
                 if !varies {
                     warnings.push(
                         "labels never vary within a group, so shuffling labels within groups leaves them unchanged: \
-                         the shuffle control cannot test anything here (its p-value will be 1)"
+                         the shuffle control cannot test anything here (each shuffle repeats the observed analysis \
+                         on other folds, so its p-value says nothing about the labels)"
                             .to_string(),
                     );
                 }

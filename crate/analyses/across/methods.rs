@@ -7,7 +7,7 @@ use crate::analyses::over_time::{cluster_sentence, windows_sentence};
 use crate::analyses::time_course::report::{generalization_caveat, ONSET_CAVEAT};
 use crate::analyses::time_course::text::matrix_sentence;
 use crate::recipe::{GeneralizationNull, Recipe};
-use crate::report::methods::{class_counts, fitting};
+use crate::report::methods::{cautions, class_counts, fitting};
 use crate::report::text::{p_phrase, pct, seconds as s};
 
 fn files(i: &AcrossInput) -> String {
@@ -206,6 +206,7 @@ pub fn paragraph(r: &AcrossReport) -> String {
                 .map(|((a, b), c)| (a, b, c)),
         ));
     }
+    out.extend(cautions(&r.warnings, &out.join(" ")));
     out.push(reproducible(rc));
     out.join(" ")
 }
@@ -319,6 +320,7 @@ pub fn time_paragraph(r: &AcrossTimeReport) -> String {
             ));
         }
     }
+    out.extend(cautions(&r.warnings, &out.join(" ")));
     out.push(reproducible(rc));
     out.join(" ")
 }

@@ -242,7 +242,8 @@ impl AcrossPlan {
             if !varies {
                 warnings.push(
                     "labels never vary within a level (and group), so permuting them there changes nothing: the \
-                     shuffle control cannot test anything here (its p-value will be 1)"
+                     shuffle control cannot test anything here (each shuffle repeats the observed analysis on \
+                     other folds, so its p-value says nothing about the labels)"
                         .to_string(),
                 );
             }

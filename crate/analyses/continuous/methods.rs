@@ -8,6 +8,7 @@ use crate::analyses::over_time::{cluster_sentence, windows_sentence};
 use crate::analyses::time_course::report::ONSET_CAVEAT;
 use crate::decoders;
 use crate::recipe::Recipe;
+use crate::report::methods::cautions;
 use crate::report::text::{p_phrase, seconds as s};
 
 /// The variable, in a clause: "'speed' (mean 21.3, SD 8.1, range 2.0–45.9)".
@@ -165,6 +166,7 @@ pub fn paragraph(r: &ContinuousReport) -> String {
             p_phrase(p, r.shuffle.count)
         ));
     }
+    out.extend(cautions(&r.warnings, &out.join(" ")));
     out.push(reproducible(rc));
     out.join(" ")
 }
@@ -243,6 +245,7 @@ pub fn time_paragraph(r: &ContinuousTimeReport) -> String {
             ));
         }
     }
+    out.extend(cautions(&r.warnings, &out.join(" ")));
     out.push(reproducible(rc));
     out.join(" ")
 }

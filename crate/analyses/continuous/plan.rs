@@ -152,7 +152,8 @@ impl ContinuousPlan {
                 if !varies {
                     warnings.push(format!(
                         "'{}' never varies within a group, so shuffling it within groups changes nothing: the \
-                         shuffle control cannot test anything here (its p-value will be 1)",
+                         shuffle control cannot test anything here (each shuffle repeats the observed analysis on \
+                         other folds, so its p-value says nothing about the values)",
                         data.column
                     ));
                 }

@@ -5,7 +5,7 @@ use super::text::matrix_sentence;
 use super::text::span;
 use crate::recipe::GeneralizationNull;
 use crate::recipe::TimeInput;
-use crate::report::methods::{class_counts, fitting, resampling};
+use crate::report::methods::{cautions, class_counts, fitting, resampling};
 use crate::report::text::{at_floor, floor_note, p_text, pct, seconds as s};
 use crate::resample::Split;
 
@@ -202,6 +202,7 @@ pub fn paragraph(r: &TimeReport) -> String {
             generalization_caveat(g.null_method)
         ));
     }
+    out.extend(cautions(&r.warnings, &out.join(" ")));
     out.push(format!(
         "Resampling used ChaCha20 random streams derived from seed {} and each task's index, so the analysis is \
          reproducible exactly.",

@@ -2,7 +2,7 @@
 //! and the data's SHA-256, so a reader can re-run the identical analysis.
 
 use super::report::Report;
-use crate::report::methods::{class_counts, fitting, resampling};
+use crate::report::methods::{cautions, class_counts, fitting, resampling};
 use crate::report::text::{at_floor, floor_note, p_phrase, pct, pct_range};
 use crate::resample::Headline;
 
@@ -75,7 +75,7 @@ pub fn paragraph(r: &Report) -> String {
              cross-validated score exists (Bengio & Grandvalet, 2004), so the interval is approximate. Above chance, \
              the score was {:+.1} percentage points (95 % CI {:+.1} to {:+.1}), or {:.2} on a scale from 0 (chance) to \
              1 (perfect decoding), \
-             95 % CI {:.2}–{:.2} (chance-corrected score (score − chance)/(1 − chance), Cohen's κ for balanced test \
+             95 % CI {:.2} to {:.2} (chance-corrected score (score − chance)/(1 − chance), Cohen's κ for balanced test \
              sets; Cohen, 1960).",
             pct_range(ci),
             r.design.trials_per_repeat,
@@ -171,6 +171,7 @@ pub fn paragraph(r: &Report) -> String {
             }
         ));
     }
+    s.extend(cautions(&r.warnings, &s.join(" ")));
     s.push(format!(
         "Resampling used ChaCha20 random streams derived from seed {} and each task's index, so the analysis is \
          reproducible exactly.",
