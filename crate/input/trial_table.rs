@@ -171,6 +171,9 @@ struct Rows<'a> {
     labels: Vec<String>,
     groups: Vec<String>,
     dropped: Vec<u64>,
+    /// The label of each row left out for a missing feature value (its label was present), to tell when a whole
+    /// class went.
+    dropped_labels: Vec<String>,
 }
 
 impl<'a> Rows<'a> {
@@ -183,6 +186,7 @@ impl<'a> Rows<'a> {
             labels: Vec::new(),
             groups: Vec::new(),
             dropped: Vec::new(),
+            dropped_labels: Vec::new(),
         }
     }
 
@@ -208,6 +212,7 @@ impl<'a> Rows<'a> {
                 Cell::Missing if columns.pseudo.is_some() => values.push(f64::NAN),
                 Cell::Missing if columns.drop_missing => {
                     self.dropped.push(table.lines[r]);
+                    self.dropped_labels.push(row[label_col].to_string());
                     return Ok(());
                 }
                 Cell::Missing => return Err(missing(table, r, c, row[c])),
@@ -250,6 +255,7 @@ impl<'a> Rows<'a> {
             labels,
             groups,
             dropped,
+            dropped_labels,
         } = self;
         let src = &table.source;
         let Chosen {
@@ -281,6 +287,19 @@ impl<'a> Rows<'a> {
         };
         let p = feature_cols.len();
         let mut warnings = counter_columns(&x, p, &feature_cols, table);
+        let mut gone: Vec<&String> = dropped_labels
+            .iter()
+            .filter(|l| !classes.contains(l))
+            .collect();
+        gone.sort();
+        gone.dedup();
+        for class in gone {
+            let count = dropped_labels.iter().filter(|l| *l == class).count();
+            warnings.push(format!(
+                "every trial of '{class}' ({count}) had a missing value and was left out, so '{class}' is not \
+                 decoded"
+            ));
+        }
         if !skipped.is_empty() {
             warnings.push(format!(
                 "{} {} not used as {} because {} mostly text",
@@ -497,6 +516,30 @@ mod tests {
         assert_eq!(ds.skipped_columns, vec!["note"]);
         assert_eq!(ds.x[[2, 1]], 6.0);
         assert_eq!(ds.sha256.len(), 64);
+    }
+
+    /// Found by a hostile review: dropping trials with missing values removed a whole class with no caution.
+    #[test]
+    fn a_class_left_out_by_dropping_missing_values_is_said() {
+        let csv = b"odour,n1,n2\na,1,2\nb,3,NA\nc,5,6\na,2,1\nb,4,\nc,6,5\n";
+        let mut c = cols("odour");
+        c.drop_missing = true;
+        let ds = read("t.csv", csv, &c).unwrap();
+        assert_eq!(ds.classes, vec!["a", "c"]);
+        assert!(
+            ds.warnings
+                .contains(&"every trial of 'b' (2) had a missing value and was left out, so 'b' is not decoded".into()),
+            "{:?}",
+            ds.warnings
+        );
+        // A class that keeps some trials is not said to be gone.
+        let csv = b"odour,n1,n2\na,1,2\nb,3,NA\nb,5,6\na,2,1\n";
+        let ds = read("t.csv", csv, &c).unwrap();
+        assert!(
+            ds.warnings.iter().all(|w| !w.contains("is not decoded")),
+            "{:?}",
+            ds.warnings
+        );
     }
 
     /// The streaming read gives what the parsed table gives, data and messages alike, on good and bad files.
