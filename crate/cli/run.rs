@@ -144,12 +144,13 @@ pub fn check_outputs(
         (Ok(a), Ok(b)) => a == b,
         _ => false,
     };
-    for (flag, path, recipe) in [
+    // --save-recipe may rewrite the recipe it read; --json may not.
+    for (flag, path, recipe_too) in [
         ("--json", outputs.json, recipe),
         ("--save-recipe", outputs.save_recipe, None),
     ] {
         let Some(path) = path else { continue };
-        let mut inputs = read_from.iter().map(PathBuf::as_path).chain(recipe);
+        let mut inputs = read_from.iter().map(PathBuf::as_path).chain(recipe_too);
         if let Some(input) = inputs.find(|i| same(path, i)) {
             return Err(format!(
                 "{flag} {}: this is the input file {}; write the result to another file",

@@ -287,14 +287,11 @@ impl<'a> Rows<'a> {
         };
         let p = feature_cols.len();
         let mut warnings = counter_columns(&x, p, &feature_cols, table);
-        let mut gone: Vec<&String> = dropped_labels
-            .iter()
-            .filter(|l| !classes.contains(l))
-            .collect();
-        gone.sort();
-        gone.dedup();
-        for class in gone {
-            let count = dropped_labels.iter().filter(|l| *l == class).count();
+        let mut gone = std::collections::BTreeMap::<&str, usize>::new();
+        for l in dropped_labels.iter().filter(|l| !classes.contains(l)) {
+            *gone.entry(l).or_default() += 1;
+        }
+        for (class, count) in gone {
             warnings.push(format!(
                 "every trial of '{class}' ({count}) had a missing value and was left out, so '{class}' is not \
                  decoded"

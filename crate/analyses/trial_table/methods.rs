@@ -74,8 +74,7 @@ pub fn paragraph(r: &Report) -> String {
              repeats (Nadeau & Bengio, 2003; Bouckaert & Frank, 2004); no unbiased estimator of the variance of a \
              cross-validated score exists (Bengio & Grandvalet, 2004), so the interval is approximate. Above chance, \
              the score was {:+.1} percentage points (95 % CI {:+.1} to {:+.1}), or {:.2} on a scale from 0 (chance) to \
-             1 (perfect decoding), \
-             95 % CI {:.2} to {:.2} (chance-corrected score (score − chance)/(1 − chance), Cohen's κ for balanced test \
+             1 (perfect decoding), 95 % CI {:.2} to {:.2} (chance-corrected score (score − chance)/(1 − chance), Cohen's κ for balanced test \
              sets; Cohen, 1960).",
             pct_range(ci),
             r.design.trials_per_repeat,
