@@ -408,6 +408,17 @@ fn refused(args: &[&str], expected: &str) {
     assert!(out.stdout.is_empty(), "{args:?} did the work");
 }
 
+/// Found by a hostile review: the demo's binned table given to `decode` was decoded with its 1800 time bins as
+/// trials; it is refused, naming the file, lines and column.
+#[test]
+fn a_binned_table_given_as_trials_is_refused() {
+    let binned = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("samples/odours_binned.csv");
+    refused(
+        &["decode", binned.to_str().unwrap(), "--label", "odour"],
+        "odours_binned.csv, lines 2 and 3, column 'trial': trial 'tr001' is on two rows in a row, as in a binned table",
+    );
+}
+
 /// Found by a hostile review: `--json` naming the input overwrote the data after the run, a missing folder or a file
 /// given to `--plots` failed only at the end of the work, and `--threads 100000` spent minutes starting threads.
 #[test]

@@ -151,7 +151,7 @@ fn a_continuous_label_is_told_apart_from_a_class_with_one_trial() {
     // A few numeric classes with one rare level are still a class with one trial.
     let e = plan_error(
         "one.csv",
-        "label,x\n1,1\n1,2\n2,3\n2,4\n3,5\n",
+        "label,x\n1,1\n1,2\n2,3\n2,4\n3,2\n",
         &recipe("label", 2),
     );
     assert!(
@@ -164,7 +164,7 @@ fn a_continuous_label_is_told_apart_from_a_class_with_one_trial() {
 fn a_draw_that_could_keep_a_single_group_is_refused() {
     // Balanced to 2 trials per class, group g1 alone holds 2 of each: 1 draw in 9 kept only g1 and the run
     // panicked (predicted class out of range) on this 8-row file.
-    let csv = "label,g,x\nc,g1,1\nc,g1,2\na,g1,3\na,g1,4\na,g2,5\nb,g1,6\nb,g1,7\nb,g2,8\n";
+    let csv = "label,g,x\nc,g1,1\nc,g1,2\na,g1,3\na,g1,4\na,g2,5\nb,g1,6\nb,g1,7\nb,g2,1\n";
     let mut r = recipe("label", 20);
     r.columns.group = Some("g".into());
     let e = plan_error("grp.csv", csv, &r);
@@ -276,7 +276,7 @@ fn task_counts_are_checked_before_the_task_list_is_built() {
     // Each count within its limit, but 100 000 repeats of 40 classes keep 1.6e8 confusion counts.
     let mut csv = String::from("label,x\n");
     for i in 0..80 {
-        writeln!(csv, "c{},{i}", i % 40).unwrap();
+        writeln!(csv, "c{},{}", i % 40, i % 7).unwrap();
     }
     let mut r = recipe("label", 100_000);
     r.folds = Folds::K(2);

@@ -27,14 +27,17 @@ pub fn read(
     let mut counts: Vec<(usize, usize)> = Vec::new();
     let mut lines = Vec::new();
     let decimal_comma = std::cell::Cell::new(false);
+    let trials = std::cell::RefCell::new(TrialIds::default());
     let header = table::stream(
         source,
         bytes,
         |h| {
             decimal_comma.set(h.delimiter == b';');
+            *trials.borrow_mut() = TrialIds::new(&h.headers, &columns.label);
             Ok(())
         },
         |line, record| {
+            trials.borrow_mut().see(line, |c| record.get(c).unwrap_or(""));
             lines.push(line);
             counts.resize(record.len(), (0, 0));
             for (c, cell) in record.iter().enumerate() {
@@ -56,6 +59,7 @@ pub fn read(
         delimiter: header.delimiter,
         decimal_comma: decimal_comma.get(),
     };
+    trials.borrow().check(&shape)?;
     let chosen = Chosen::new(&shape, columns, &|c| counts[c])?;
     let mut rows = Rows::new(&shape, columns, chosen);
     let mut r = 0;
@@ -106,6 +110,11 @@ pub fn from_table(table: &Table, columns: &Columns) -> Result<Dataset> {
         }
         (numbers, text)
     };
+    let mut trials = TrialIds::new(&table.headers, &columns.label);
+    for (row, &line) in table.rows.iter().zip(&table.lines) {
+        trials.see(line, |c| &row[c]);
+    }
+    trials.check(table)?;
     let chosen = Chosen::new(table, columns, &counts)?;
     let mut rows = Rows::new(table, columns, chosen);
     for (r, row) in table.rows.iter().enumerate() {
@@ -113,6 +122,65 @@ pub fn from_table(table: &Table, columns: &Columns) -> Result<Dataset> {
         rows.take(r, &cells)?;
     }
     rows.finish(&|r, c| table.rows[r][c].clone())
+}
+
+/// A column named as trial identifiers (trial, trial_id, Trial number, …) whose value repeats on consecutive rows: a
+/// binned table (one row per trial and time bin) read as a trial table, whose "trials" would be time bins, with the
+/// bins of one trial split between training and test folds and time itself a feature. Only consecutive repeats
+/// count: trials numbered from 1 again in every session repeat too, but never on the next row.
+#[derive(Default)]
+struct TrialIds {
+    column: Option<usize>,
+    last: Option<(u64, String)>,
+    /// The first repeat: the value and the lines of its two rows.
+    repeat: Option<(String, u64, u64)>,
+}
+
+impl TrialIds {
+    fn new(headers: &[String], label: &str) -> TrialIds {
+        let named = |h: &String| {
+            let key: String = h
+                .chars()
+                .filter(|c| c.is_alphanumeric())
+                .collect::<String>()
+                .to_lowercase();
+            h != label
+                && matches!(
+                    key.as_str(),
+                    "trial" | "trialid" | "trialno" | "trialnr" | "trialnum" | "trialnumber" | "trialindex"
+                )
+        };
+        TrialIds {
+            column: headers.iter().position(named),
+            ..Default::default()
+        }
+    }
+
+    fn see<'r>(&mut self, line: u64, cell: impl Fn(usize) -> &'r str) {
+        let Some(c) = self.column else { return };
+        if self.repeat.is_some() {
+            return;
+        }
+        let value = cell(c);
+        match &self.last {
+            Some((previous, last)) if !value.is_empty() && last == value => {
+                self.repeat = Some((value.to_string(), *previous, line));
+            }
+            _ => self.last = Some((line, value.to_string())),
+        }
+    }
+
+    fn check(&self, table: &Table) -> Result<()> {
+        match (&self.repeat, self.column) {
+            (Some((value, first, second)), Some(c)) => Err(Error::Input(format!(
+                "{}, lines {first} and {second}, column '{}': trial '{value}' is on two rows in a row, as in a \
+                 binned table (one row per trial and time bin); a trial table has one row per trial. Decode it \
+                 over time as a binned table, naming its trial and time columns, or give one row per trial",
+                table.source, table.headers[c]
+            ))),
+            _ => Ok(()),
+        }
+    }
 }
 
 /// The columns a recipe picks in a table: label, group (or pseudo-population session) and features.
@@ -285,8 +353,53 @@ impl<'a> Rows<'a> {
             }
             None => (None, Vec::new()),
         };
+        // A trial counter among features chosen by default is left out (the page leaves it unticked too); one named
+        // among the features is kept, with a caution.
+        let counters = counter_columns(&x, feature_cols.len());
+        let (x, feature_cols, mut warnings) = if columns.features.is_none() && !counters.is_empty() {
+            let names: Vec<String> = counters
+                .iter()
+                .map(|&j| table.headers[feature_cols[j]].clone())
+                .collect();
+            if counters.len() == feature_cols.len() {
+                return Err(Error::Design(format!(
+                    "{src}: the only numeric {} {} counts up by one on every row, like a trial number, and is not \
+                     a measurement to decode from; name the feature columns (--features) if it really is one",
+                    if names.len() == 1 { "column" } else { "columns" },
+                    quoted_list(&names)
+                )));
+            }
+            let p_all = feature_cols.len();
+            let keep: Vec<usize> = (0..p_all).filter(|j| !counters.contains(j)).collect();
+            let x: Vec<f64> = x
+                .chunks_exact(p_all)
+                .flat_map(|row| keep.iter().map(move |&j| row[j]))
+                .collect();
+            let cols = keep.iter().map(|&j| feature_cols[j]).collect();
+            let note = format!(
+                "{} {} up by one on every row, like a trial number, so {} left out of the features; name {} \
+                 among the features (--features) if {} really a measurement",
+                quoted_list(&names),
+                if names.len() == 1 { "counts" } else { "count" },
+                if names.len() == 1 { "it is" } else { "they are" },
+                if names.len() == 1 { "it" } else { "them" },
+                if names.len() == 1 { "it is" } else { "they are" },
+            );
+            (x, cols, vec![note])
+        } else {
+            let warnings = counters
+                .iter()
+                .map(|&j| {
+                    let name = &table.headers[feature_cols[j]];
+                    format!(
+                        "column '{name}' counts up by one on every row, like a trial number, and is used as a \
+                         feature; leave it out (--ignore '{name}') unless it really is a measurement"
+                    )
+                })
+                .collect();
+            (x, feature_cols, warnings)
+        };
         let p = feature_cols.len();
-        let mut warnings = counter_columns(&x, p, &feature_cols, table);
         let mut gone = std::collections::BTreeMap::<&str, usize>::new();
         for l in dropped_labels.iter().filter(|l| !classes.contains(l)) {
             *gone.entry(l).or_default() += 1;
@@ -470,22 +583,15 @@ fn choose_features(
     Ok((cols, skipped))
 }
 
-/// Warn about feature columns that count 1, 2, 3, … down the file: almost surely trial numbers, which would let
-/// slow drift or block order pass for information.
-fn counter_columns(x: &[f64], p: usize, feature_cols: &[usize], table: &Table) -> Vec<String> {
+/// The feature columns (indices into the row) that count 1, 2, 3, … down the file: almost surely trial numbers,
+/// which would let slow drift or block order pass for information.
+fn counter_columns(x: &[f64], p: usize) -> Vec<usize> {
     let n = x.len() / p;
     if n < 3 {
         return Vec::new();
     }
     (0..p)
         .filter(|&j| (1..n).all(|i| x[i * p + j] - x[(i - 1) * p + j] == 1.0))
-        .map(|j| {
-            format!(
-                "column '{}' counts up by one on every row, like a trial number, and is used as a feature; \
-                 leave it out (--ignore '{}') unless it really is a measurement",
-                table.headers[feature_cols[j]], table.headers[feature_cols[j]]
-            )
-        })
         .collect()
 }
 
@@ -513,6 +619,30 @@ mod tests {
         assert_eq!(ds.skipped_columns, vec!["note"]);
         assert_eq!(ds.x[[2, 1]], 6.0);
         assert_eq!(ds.sha256.len(), 64);
+    }
+
+    /// Found by a hostile review: a binned table given as a trial table was decoded with its time bins as trials
+    /// (the bins of one trial in training and test folds, time as a feature). Trials numbered from 1 again in each
+    /// session are still a trial table.
+    #[test]
+    fn a_binned_table_is_not_read_as_trials() {
+        let binned = b"Trial ID,time,odour,n1\nt1,0,a,3\nt1,1,a,4\nt2,0,b,1\nt2,1,b,2\nt3,0,a,5\nt3,1,a,1\n";
+        for e in [
+            read("b.csv", binned, &cols("odour")).err(),
+            from_table(&Table::parse("b.csv", binned).unwrap(), &cols("odour")).err(),
+        ] {
+            let e = e.expect("refused").to_string();
+            assert!(
+                e.starts_with("b.csv, lines 2 and 3, column 'Trial ID': trial 't1' is on two rows in a row"),
+                "{e}"
+            );
+        }
+        let sessions = b"trial,session,odour,n1\n1,s1,a,3\n2,s1,b,4\n1,s2,a,1\n2,s2,b,2\n";
+        let ds = read("s.csv", sessions, &cols("odour")).unwrap();
+        assert_eq!(ds.n_trials(), 4);
+        // The label itself may repeat on consecutive rows, whatever it is called.
+        let ds = read("l.csv", b"trial,n1\na,3\na,4\nb,1\nb,2\n", &cols("trial")).unwrap();
+        assert_eq!(ds.classes, vec!["a", "b"]);
     }
 
     /// Found by a hostile review: dropping trials with missing values removed a whole class with no caution.

@@ -118,7 +118,9 @@
       const others = PD.shape() === 'table' ? S.features.names.filter((n) => !special.includes(n))
         : info.headers.filter((n) => !special.includes(n));
       const left = others.filter((n) => !chosen.includes(n));
-      if (left.length === 0) recipe.columns.features = null;
+      // A trial counter is left out of "every other column" by the core as by this page: one ticked is named.
+      if (chosen.some((c) => (S.features.counters || []).includes(c))) recipe.columns.features = chosen;
+      else if (left.length === 0) recipe.columns.features = null;
       else if (left.length <= chosen.length) { recipe.columns.features = null; recipe.columns.ignore = left; }
       else recipe.columns.features = chosen;
     }

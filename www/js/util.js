@@ -88,6 +88,8 @@ window.PD = { state: {}, views: {} };
     let m = String(message && message.message !== undefined ? message.message : message);
     m = m.replace(/\(--drop-missing\)/g, '(tick “Drop trials with missing values”)')
       .replace(/leave it out \(--ignore '[^']*'\)/g, 'leave it out (untick it in the feature list)')
+      .replace(/among the features \(--features\)/g, 'among the features (tick it in the feature list)')
+      .replace(/name the feature columns \(--features\)/g, 'choose the feature columns')
       .replace(/--([a-z][a-z-]*)/g, (_, f) => SETTING_NAMES[f] || 'the matching setting');
     const kinds = { usize: 'a whole number', u64: 'a whole number', f64: 'a number', 'a boolean': 'yes or no',
       'a string': 'text', 'a sequence': 'a list', bool: 'yes or no' };
