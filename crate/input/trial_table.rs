@@ -37,7 +37,9 @@ pub fn read(
             Ok(())
         },
         |line, record| {
-            trials.borrow_mut().see(line, |c| record.get(c).unwrap_or(""));
+            trials
+                .borrow_mut()
+                .see(line, |c| record.get(c).unwrap_or(""));
             lines.push(line);
             counts.resize(record.len(), (0, 0));
             for (c, cell) in record.iter().enumerate() {
@@ -147,7 +149,13 @@ impl TrialIds {
             h != label
                 && matches!(
                     key.as_str(),
-                    "trial" | "trialid" | "trialno" | "trialnr" | "trialnum" | "trialnumber" | "trialindex"
+                    "trial"
+                        | "trialid"
+                        | "trialno"
+                        | "trialnr"
+                        | "trialnum"
+                        | "trialnumber"
+                        | "trialindex"
                 )
         };
         TrialIds {
@@ -356,7 +364,8 @@ impl<'a> Rows<'a> {
         // A trial counter among features chosen by default is left out (the page leaves it unticked too); one named
         // among the features is kept, with a caution.
         let counters = counter_columns(&x, feature_cols.len());
-        let (x, feature_cols, mut warnings) = if columns.features.is_none() && !counters.is_empty() {
+        let (x, feature_cols, mut warnings) = if columns.features.is_none() && !counters.is_empty()
+        {
             let names: Vec<String> = counters
                 .iter()
                 .map(|&j| table.headers[feature_cols[j]].clone())
@@ -626,14 +635,17 @@ mod tests {
     /// session are still a trial table.
     #[test]
     fn a_binned_table_is_not_read_as_trials() {
-        let binned = b"Trial ID,time,odour,n1\nt1,0,a,3\nt1,1,a,4\nt2,0,b,1\nt2,1,b,2\nt3,0,a,5\nt3,1,a,1\n";
+        let binned =
+            b"Trial ID,time,odour,n1\nt1,0,a,3\nt1,1,a,4\nt2,0,b,1\nt2,1,b,2\nt3,0,a,5\nt3,1,a,1\n";
         for e in [
             read("b.csv", binned, &cols("odour")).err(),
             from_table(&Table::parse("b.csv", binned).unwrap(), &cols("odour")).err(),
         ] {
             let e = e.expect("refused").to_string();
             assert!(
-                e.starts_with("b.csv, lines 2 and 3, column 'Trial ID': trial 't1' is on two rows in a row"),
+                e.starts_with(
+                    "b.csv, lines 2 and 3, column 'Trial ID': trial 't1' is on two rows in a row"
+                ),
                 "{e}"
             );
         }

@@ -248,6 +248,17 @@ impl StudyReport {
                 })
                 .collect();
             warnings.push(POOLED_NOTE.into());
+            // The pooled analysis's own cautions (few trials per class, shuffles too few, …) belong to the study's
+            // result too: every face reads the top-level warnings.
+            let own = report
+                .pooled
+                .as_ref()
+                .and_then(|p| p["warnings"].as_array());
+            for w in own.into_iter().flatten().filter_map(|w| w.as_str()) {
+                if !warnings.iter().any(|have| have == w) {
+                    warnings.push(w.to_string());
+                }
+            }
             report.warnings = warnings;
             return report;
         }
