@@ -408,6 +408,58 @@ fn refused(args: &[&str], expected: &str) {
     assert!(out.stdout.is_empty(), "{args:?} did the work");
 }
 
+/// Found by a hostile review: `predict` on folds where one fold holds a whole class wrote all-wrong predictions for
+/// it with no word, and the CSV said nothing of where it came from. Now standard error names the data and decoder
+/// and cautions about the class; folds whose training trials hold one class are refused.
+#[test]
+fn predict_says_what_it_predicted_and_which_folds_cannot_work() {
+    let dir = temp_dir("predict-folds");
+    let data = dir.join("f.csv");
+    let mut csv = String::from("odour,n1,n2,fold\n");
+    for i in 0..24 {
+        let (odour, fold) = match i % 3 {
+            0 => ("a", 1),
+            1 => ("b", 2 + i % 2),
+            _ => ("c", 2 + (i / 3) % 2),
+        };
+        csv += &format!(
+            "{odour},{},{},{fold}\n",
+            (i * 7 % 5) as f64 + 0.5,
+            (i * 3 % 4) as f64
+        );
+    }
+    std::fs::write(&data, &csv).unwrap();
+    let d = data.to_str().unwrap();
+    let out = bin()
+        .args(["predict", d, "--label", "odour", "--fold-column", "fold"])
+        .output()
+        .unwrap();
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert!(out.status.success(), "{stderr}");
+    assert!(
+        stderr.contains("predictions of 'odour' in f.csv (SHA-256 "),
+        "{stderr}"
+    );
+    assert!(stderr.contains("by linear-svm (C = 1)"), "{stderr}");
+    assert!(
+        stderr.contains("caution: fold 1 holds every trial of 'a': the decoder that predicts it never saw that class"),
+        "{stderr}"
+    );
+    let predictions = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(predictions.lines().count(), 25);
+    // Two classes, one of them only in fold 1: fold 1's training trials hold one class.
+    let two: String = csv
+        .lines()
+        .filter(|l| !l.starts_with("c,"))
+        .map(|l| l.to_string() + "\n")
+        .collect();
+    std::fs::write(&data, two).unwrap();
+    refused(
+        &["predict", d, "--label", "odour", "--fold-column", "fold"],
+        "the trials outside fold 1 are all of class 'b'",
+    );
+}
+
 /// Found by a hostile review: the demo's binned table given to `decode` was decoded with its 1800 time bins as
 /// trials; it is refused, naming the file, lines and column.
 #[test]

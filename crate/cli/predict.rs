@@ -3,7 +3,9 @@
 use crate::args::{apply_column_flags, show, TableArgs};
 use crate::files::{display_name, print, read, write};
 use clap::Args;
-use popdecode::analyses::trial_table::predict::{decisions_with_folds, predict_with_folds};
+use popdecode::analyses::trial_table::predict::{
+    decisions_with_folds, fold_cautions, predict_with_folds,
+};
 use popdecode::input::{table::Table, trial_table};
 use popdecode::recipe::Recipe;
 use std::path::PathBuf;
@@ -59,19 +61,36 @@ pub fn run(args: PredictArgs) -> Result<(), String> {
                 })
         })
         .collect::<Result<_, _>>()?;
-    let (predicted, decision) = if args.decision {
+    let (predicted, decision, auc) = if args.decision {
         let (labels, decision, auc) = decisions_with_folds(&data, &recipe, &folds).map_err(show)?;
+        (labels, Some(decision), Some(auc))
+    } else {
+        let labels = predict_with_folds(&data, &recipe, &folds).map_err(show)?;
+        (labels, None, None)
+    };
+    // The CSV holds only the predictions: what they came from goes to standard error with the cautions.
+    eprintln!(
+        "predictions of '{}' in {} (SHA-256 {}) by {}, each trial predicted by the pipeline fitted on the trials \
+         of the other folds of column '{}' (no balancing, no repeats)",
+        data.label_column,
+        data.source,
+        popdecode::input::sha256_hex(&bytes),
+        match (recipe.tune, recipe.classifier.uses_c()) {
+            (true, _) => format!("{} with its setting chosen inside each training fold", recipe.classifier.name()),
+            (false, true) => format!("{} (C = {})", recipe.classifier.name(), recipe.c),
+            (false, false) => recipe.classifier.name().to_string(),
+        },
+        args.fold_column
+    );
+    for caution in fold_cautions(&data, &folds) {
+        eprintln!("caution: {caution}");
+    }
+    if let Some(auc) = auc {
         eprintln!(
             "AUC {auc} (decision values pooled over the folds; '{}' positive)",
             data.classes[1]
         );
-        (labels, Some(decision))
-    } else {
-        (
-            predict_with_folds(&data, &recipe, &folds).map_err(show)?,
-            None,
-        )
-    };
+    }
     let mut writer = csv::Writer::from_writer(Vec::new());
     let csv_err = |e: csv::Error| e.to_string();
     let mut header = vec!["line", "fold", "true", "predicted"];

@@ -40,6 +40,44 @@ pub fn decisions_with_folds(
     Ok((cv.labels, cv.decision, auc))
 }
 
+/// The classes among the training trials of fold `f` (every trial outside it), ascending.
+fn training_classes(data: &Dataset, fold: &[usize], f: usize) -> Vec<usize> {
+    let mut present = vec![false; data.classes.len()];
+    for (&y, _) in data.y.iter().zip(fold).filter(|(_, &g)| g != f) {
+        present[y] = true;
+    }
+    (0..present.len()).filter(|&c| present[c]).collect()
+}
+
+/// Cautions about user-assigned folds that the predictions cannot show: a class with no training trial for some fold
+/// (its test trials there can only be predicted wrong). The fold numbers are as given.
+pub fn fold_cautions(data: &Dataset, fold_of: &[usize]) -> Vec<String> {
+    let mut names: Vec<usize> = fold_of.to_vec();
+    names.sort_unstable();
+    names.dedup();
+    let fold: Vec<usize> = fold_of
+        .iter()
+        .map(|f| names.binary_search(f).expect("a listed fold"))
+        .collect();
+    let mut out = Vec::new();
+    for (f, name) in names.iter().enumerate() {
+        let trained = training_classes(data, &fold, f);
+        let missing: Vec<String> = (0..data.classes.len())
+            .filter(|c| !trained.contains(c))
+            .map(|c| format!("'{}'", data.classes[c]))
+            .collect();
+        if !missing.is_empty() {
+            out.push(format!(
+                "fold {name} holds every trial of {}: the decoder that predicts it never saw {} class, so \
+                 those trials are predicted as another class",
+                missing.join(", "),
+                if missing.len() == 1 { "that" } else { "those" }
+            ));
+        }
+    }
+    out
+}
+
 fn cross_validated(
     data: &Dataset,
     recipe: &Recipe,
@@ -70,6 +108,17 @@ fn cross_validated(
             "{}: fold {} holds every trial; nothing is left to train on",
             data.source, names[0]
         )));
+    }
+    for (f, name) in names.iter().enumerate() {
+        let trained = training_classes(data, &fold, f);
+        if let [only] = trained[..] {
+            return Err(Error::Design(format!(
+                "{}: the trials outside fold {name} are all of class '{}', so the decoder that predicts fold \
+                 {name} would learn one class and could predict nothing else; assign the folds so that every \
+                 fold leaves trials of at least two classes for training",
+                data.source, data.classes[only]
+            )));
+        }
     }
     let set = FoldSet {
         x: x.as_slice().expect("standard layout"),
