@@ -246,6 +246,32 @@ fn a_group_p_at_its_floor_reads_as_a_bound() {
     );
 }
 
+/// Found by a hostile review: with two sessions, one informative and one not, the t interval of the mean left the
+/// 0–100 % scale unremarked. It is kept as computed (clamping would hide how little it says) and cautioned in the
+/// warnings, which every face shows.
+#[test]
+fn a_group_interval_beyond_the_scale_is_cautioned() {
+    let r = table_study(&[3.0, 0.0], 5, 99);
+    let g = r.group.as_ref().unwrap();
+    let i = g.interval.as_ref().unwrap();
+    assert!(i.low < 0.0 || i.high > 1.0, "{i:?}");
+    let caution = r
+        .warnings
+        .iter()
+        .find(|w| w.contains("reaches beyond the possible 0–100 %"))
+        .unwrap_or_else(|| panic!("{:?}", r.warnings));
+    assert!(caution.contains("across 2 sessions"), "{caution}");
+    let methods = popdecode::analyses::study::methods::paragraph(&r);
+    assert!(methods.contains(caution.as_str()), "{methods}");
+    // Ten informative sessions: an interval inside the scale, no caution.
+    let r = table_study(&[0.8; 10], 5, 99);
+    assert!(
+        !r.warnings.iter().any(|w| w.contains("0–100 %")),
+        "{:?}",
+        r.warnings
+    );
+}
+
 /// A session of a study gives, number for number, what the same file decoded alone with the session's seed gives:
 /// each session runs on its own random streams, whatever else is in the study.
 #[test]

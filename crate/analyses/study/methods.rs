@@ -5,7 +5,7 @@ use super::report::StudyReport;
 use super::text::{as_shuffled, prevalence_statement};
 use crate::input::study::SessionKind;
 use crate::recipe::{Across, Folds, Recipe, TimeInput};
-use crate::report::methods::fitting;
+use crate::report::methods::{cautions, fitting};
 use crate::report::text::{p_phrase, p_text, pct, seconds as s};
 
 /// The paragraph: data, the per-session protocol, the group test, prevalence, the t-test's caution, and clusters.
@@ -188,7 +188,11 @@ pub fn paragraph(r: &StudyReport) -> String {
             ));
         }
     }
-    out.join(" ")
+    let text = out.join(" ");
+    match cautions(&r.warnings, &text) {
+        Some(notes) => format!("{text} {notes}"),
+        None => text,
+    }
 }
 
 /// Each session's protocol when its score is the generalization across the levels of a second column.

@@ -374,6 +374,18 @@ impl StudyReport {
             p_value,
             significant: p_value.map(|p| p < alpha),
         });
+        let g = report.group.as_ref().expect("set above");
+        if let Some(i) = g.interval.as_ref().filter(|i| i.low < 0.0 || i.high > 1.0) {
+            // A t interval is symmetric and unbounded: with few subjects or widely spread scores it leaves the
+            // scale, which a reader should not take for information.
+            warnings.push(format!(
+                "the 95 % t interval of the mean across {} {level}s ({:.1} to {:.1} %) reaches beyond the possible \
+                 0–100 %: with so few {level}s, or scores so spread, it says little about the population",
+                g.units,
+                100.0 * i.low,
+                100.0 * i.high
+            ));
+        }
         report.t_test = group::t_test_greater(&unit_scores, report.chance);
         if let Some(windows) = plan.sessions[0].plan().windows() {
             report.time = Some(group_time(plan, windows, &scored, &picks));
