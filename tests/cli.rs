@@ -460,6 +460,38 @@ fn predict_says_what_it_predicted_and_which_folds_cannot_work() {
     );
 }
 
+/// Found by a hostile review: with standard error not a terminal (a log file, a cluster job) the progress bar is not
+/// drawn, and a run of millions of fits said nothing of its size. It now says it first; `--quiet` says nothing.
+#[test]
+fn a_run_logged_to_a_file_says_its_size_first() {
+    let s = sample();
+    let args = [
+        "decode",
+        s.to_str().unwrap(),
+        "--label",
+        "odour",
+        "--repeats",
+        "3",
+        "--shuffles",
+        "4",
+    ];
+    let out = bin().args(args).output().unwrap();
+    assert!(out.status.success());
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    // 3 repeats (a task each) and 4 shuffles (a task each, of min(repeats, 10) = 3 repeats), 5 folds a repeat.
+    assert_eq!(
+        stderr.lines().next(),
+        Some("popdecode: 75 fits in 7 tasks, run in parallel"),
+        "{stderr}"
+    );
+    let quiet = bin().args(args).arg("--quiet").output().unwrap();
+    assert!(
+        quiet.stderr.is_empty(),
+        "{}",
+        String::from_utf8_lossy(&quiet.stderr)
+    );
+}
+
 /// Found by a hostile review: the demo's binned table given to `decode` was decoded with its 1800 time bins as
 /// trials; it is refused, naming the file, lines and column.
 #[test]

@@ -12,6 +12,7 @@ use popdecode::input::extract;
 use popdecode::recipe::{Recipe, TimeInput};
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
+use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 
 /// What a subcommand builds its plan from. A part file records it, so that `combine` can build the same plan
@@ -253,6 +254,10 @@ fn run_tasks<T: Copy + Sync, O: Send>(
     let pool = builder
         .build()
         .map_err(|e| format!("cannot start threads: {e}"))?;
+    // Where the bar cannot be drawn (a log file, a cluster job's output), the size of the run first and a line at
+    // every tenth of the fits instead, so that a long run says how long it is and how far it got.
+    let log = (!args.quiet && !std::io::stderr().is_terminal())
+        .then(|| LogLines::start(tasks.len(), total));
     let outcomes = pool.install(|| {
         tasks
             .par_iter()
@@ -260,10 +265,69 @@ fn run_tasks<T: Copy + Sync, O: Send>(
             .map(|(&t, &cost)| {
                 let o = run(t);
                 bar.inc(cost as u64);
+                if let Some(log) = &log {
+                    log.done(cost);
+                }
                 o
             })
             .collect()
     });
     bar.finish_and_clear();
     Ok(outcomes)
+}
+
+/// Progress as plain lines on standard error, for when it is not a terminal.
+struct LogLines {
+    total: usize,
+    started: std::time::Instant,
+    /// Fits done, and the tenths already reported.
+    state: std::sync::Mutex<(usize, usize)>,
+}
+
+impl LogLines {
+    fn start(tasks: usize, total: usize) -> LogLines {
+        say(&format!(
+            "popdecode: {total} fits in {tasks} tasks{}",
+            if tasks == 1 { "" } else { ", run in parallel" }
+        ));
+        LogLines {
+            total: total.max(1),
+            started: std::time::Instant::now(),
+            state: std::sync::Mutex::new((0, 0)),
+        }
+    }
+
+    fn done(&self, cost: usize) {
+        let mut state = self.state.lock().unwrap_or_else(|e| e.into_inner());
+        state.0 += cost;
+        let tenths = state.0 * 10 / self.total;
+        let elapsed = self.started.elapsed().as_secs_f64();
+        // A run of a few seconds needs no more than its size.
+        if tenths > state.1 && tenths < 10 && elapsed >= 10.0 {
+            state.1 = tenths;
+            let left = elapsed * (self.total - state.0) as f64 / state.0 as f64;
+            say(&format!(
+                "popdecode: {} % of the fits done, {} elapsed, about {} left",
+                tenths * 10,
+                duration(elapsed),
+                duration(left)
+            ));
+        }
+    }
+}
+
+/// A line on standard error that cannot panic when it is closed (`eprintln!` would).
+fn say(line: &str) {
+    use std::io::Write;
+    let _ = writeln!(std::io::stderr(), "{line}");
+}
+
+/// Seconds as "42 s", "7 min 5 s" or "3 h 12 min".
+fn duration(seconds: f64) -> String {
+    let s = seconds.round() as u64;
+    match s {
+        0..=59 => format!("{s} s"),
+        60..=3599 => format!("{} min {} s", s / 60, s % 60),
+        _ => format!("{} h {} min", s / 3600, s % 3600 / 60),
+    }
 }
