@@ -199,6 +199,40 @@ fn a_trial_counter_column_is_left_out_unless_named() {
         "{:?}",
         ds.warnings
     );
+    // Features that never vary: cautioned, and refused when no other is left (found by a hostile review).
+    let ds = input::trial_table(
+        "rec.csv",
+        b"odour,n1,flat\na,0.3,5\nb,0.1,5\na,0.7,5\nb,0.2,5\n",
+        &columns("odour"),
+    )
+    .unwrap();
+    assert!(
+        ds.warnings
+            .iter()
+            .any(|w| w == "'flat' holds the same value on every trial and carries no information"),
+        "{:?}",
+        ds.warnings
+    );
+    let message =
+        match input::trial_table("rec.csv", b"odour,n1\na,1\nb,1\na,1\n", &columns("odour")) {
+            Ok(_) => panic!("constant features were decoded"),
+            Err(e) => e.to_string(),
+        };
+    assert!(
+        message.contains("every feature column holds one value on every trial ('n1')"),
+        "{message}"
+    );
+    // Named as a feature and to be ignored: refused (it was used silently).
+    let mut both = named.clone();
+    both.ignore = vec!["trial".into()];
+    let message = match input::trial_table("rec.csv", text, &both) {
+        Ok(_) => panic!("a column both named and ignored was accepted"),
+        Err(e) => e.to_string(),
+    };
+    assert!(
+        message.contains("'trial' is both named as a feature and to be left out"),
+        "{message}"
+    );
     // Nothing else to decode from: refused, saying why.
     let message = match input::trial_table(
         "rec.csv",

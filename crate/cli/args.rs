@@ -70,7 +70,7 @@ pub struct RunArgs {
     #[arg(long)]
     pub no_balance: bool,
     /// Seed of every random stream [default: 1].
-    #[arg(long)]
+    #[arg(long, allow_hyphen_values = true, value_parser = parse_seed)]
     pub seed: Option<u64>,
     /// Threads to run tasks on [default: all cores]; results do not depend on it.
     #[arg(long)]
@@ -112,6 +112,17 @@ impl Part {
     pub fn indices(self, total: usize) -> impl Iterator<Item = usize> {
         (self.k - 1..total).step_by(self.n)
     }
+}
+
+/// A seed: a whole number, 0 or more. A negative one (`--seed -1`) got clap's advice about values that start with a
+/// hyphen, which says nothing about seeds.
+fn parse_seed(text: &str) -> Result<u64, String> {
+    text.trim().parse::<u64>().map_err(|_| {
+        format!(
+            "a seed is a whole number from 0 to {}; got '{text}'",
+            u64::MAX
+        )
+    })
 }
 
 fn parse_part(s: &str) -> Result<Part, String> {

@@ -54,9 +54,9 @@ pub fn run(args: PredictArgs) -> Result<(), String> {
                 .parse::<usize>()
                 .map_err(|_| {
                     format!(
-                        "{}: '{}' is not a fold number",
+                        "{}: {} is not a fold number",
                         table.at(r, fold_col),
-                        table.rows[r][fold_col]
+                        popdecode::input::table::quoted_cell(&table.rows[r][fold_col])
                     )
                 })
         })

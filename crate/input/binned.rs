@@ -153,9 +153,9 @@ pub fn read(t: &Table, columns: &Columns, trial: &str, time: &str) -> Result<Tim
                 }
                 Cell::NotNumber => {
                     return Err(Error::Input(format!(
-                        "{}: '{}' is not a number",
+                        "{}: {} is not a number",
                         t.at(r, c),
-                        t.rows[r][c]
+                        super::table::quoted_cell(&t.rows[r][c])
                     )))
                 }
             };

@@ -387,8 +387,8 @@ pub fn is_missing_token(s: &str) -> bool {
             .any(|m| t.eq_ignore_ascii_case(m))
 }
 
-/// Parse a number; infinities and text are `NotNumber`, missing tokens are `Missing`, magnitudes beyond
-/// [`MAX_MAGNITUDE`] are `TooLarge`.
+/// Parse a number; written infinities and text are `NotNumber`, missing tokens are `Missing`, magnitudes beyond
+/// [`MAX_MAGNITUDE`] (numbers too large for 64 bits included) are `TooLarge`.
 pub fn parse_number(s: &str, decimal_comma: bool) -> Cell {
     let t = s.trim();
     if is_missing_token(t) {
@@ -402,6 +402,8 @@ pub fn parse_number(s: &str, decimal_comma: bool) -> Cell {
     match parsed {
         Ok(v) if v.abs() <= MAX_MAGNITUDE => Cell::Number(v),
         Ok(v) if v.is_finite() => Cell::TooLarge(v),
+        // A number written out (1e309) that overflows, unlike a written infinity ("inf"), which is not a number.
+        Ok(v) if !v.is_nan() && !t.to_ascii_lowercase().contains("inf") => Cell::TooLarge(v),
         _ => Cell::NotNumber,
     }
 }
@@ -412,6 +414,19 @@ pub fn delimiter_name(delimiter: u8) -> &'static str {
         b';' => "semicolon",
         b'\t' => "tab",
         _ => "comma",
+    }
+}
+
+/// A cell's text for a message, quoted, and cut after 40 characters: a cell of megabytes (a file with a lost line
+/// ending) would otherwise fill the screen or the page.
+pub fn quoted_cell(text: &str) -> String {
+    const SHOWN: usize = 40;
+    let count = text.chars().count();
+    if count <= SHOWN {
+        format!("'{text}'")
+    } else {
+        let start: String = text.chars().take(SHOWN).collect();
+        format!("'{start}…' ({count} characters)")
     }
 }
 
@@ -530,11 +545,28 @@ mod tests {
         assert_eq!(parse_number("NaN", false), Cell::Missing);
         assert_eq!(parse_number("", false), Cell::Missing);
         assert_eq!(parse_number("inf", false), Cell::NotNumber);
-        assert_eq!(parse_number("1e400", false), Cell::NotNumber);
+        assert_eq!(parse_number("-infinity", false), Cell::NotNumber);
+        // Written as a number but past 64 bits: too large, not "not a number" (found by a hostile review).
+        assert_eq!(parse_number("1e400", false), Cell::TooLarge(f64::INFINITY));
+        assert_eq!(
+            parse_number("-1e309", false),
+            Cell::TooLarge(f64::NEG_INFINITY)
+        );
         assert_eq!(parse_number("-1e100", false), Cell::Number(-1e100));
         assert_eq!(parse_number("1.5e200", false), Cell::TooLarge(1.5e200));
         assert_eq!(parse_number("1,5", false), Cell::NotNumber);
         assert_eq!(parse_number("-2.5e1", false), Cell::Number(-25.0));
+    }
+
+    /// Found by a hostile review: a 50 MB cell was echoed whole in the message.
+    #[test]
+    fn long_cells_are_cut_in_messages() {
+        assert_eq!(quoted_cell("fast"), "'fast'");
+        let long = "é".repeat(100);
+        assert_eq!(
+            quoted_cell(&long),
+            format!("'{}…' (100 characters)", "é".repeat(40))
+        );
     }
 
     #[test]

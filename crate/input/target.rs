@@ -46,9 +46,10 @@ fn numbers(cells: &[TrialCell], column: &str) -> Result<Vec<f64>> {
         .map(|c| {
             c.number.ok_or_else(|| {
                 Error::Input(format!(
-                    "{}: '{}' is not a number; '{column}' is decoded as a continuous variable, so every trial needs \
+                    "{}: {} is not a number; '{column}' is decoded as a continuous variable, so every trial needs \
                      a number there",
-                    c.at, c.text
+                    c.at,
+                    super::table::quoted_cell(&c.text)
                 ))
             })
         })

@@ -45,9 +45,9 @@ pub(super) fn number_cell(t: &Table, r: usize, c: usize, what: &str) -> Result<f
             beyond_magnitude(v)
         ))),
         Cell::NotNumber => Err(Error::Input(format!(
-            "{}: '{}' is not a number ({what})",
+            "{}: {} is not a number ({what})",
             t.at(r, c),
-            t.rows[r][c]
+            super::table::quoted_cell(&t.rows[r][c])
         ))),
     }
 }

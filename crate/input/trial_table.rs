@@ -301,9 +301,9 @@ impl<'a> Rows<'a> {
                 }
                 Cell::NotNumber => {
                     return Err(Error::Input(format!(
-                        "{}: '{}' is not a number{}",
+                        "{}: {} is not a number{}",
                         table.at(r, c),
-                        row[c],
+                        table::quoted_cell(row[c]),
                         if !table.decimal_comma && row[c].contains(',') {
                             " (decimal commas are read only in semicolon-separated files)"
                         } else {
@@ -409,6 +409,29 @@ impl<'a> Rows<'a> {
             (x, feature_cols, warnings)
         };
         let p = feature_cols.len();
+        // Found by a hostile review: features that never vary gave a score with no word.
+        let constant: Vec<String> = (0..p)
+            .filter(|&j| (1..n).all(|i| x[i * p + j] == x[j]) && columns.pseudo.is_none())
+            .map(|j| table.headers[feature_cols[j]].clone())
+            .collect();
+        if constant.len() == p && n > 1 {
+            return Err(Error::Design(format!(
+                "{src}: every feature column holds one value on every trial ({}), so there is nothing to decode \
+                 from; check that the right columns were read",
+                quoted_list(&constant)
+            )));
+        } else if !constant.is_empty() {
+            warnings.push(format!(
+                "{} {} the same value on every trial and {} no information",
+                quoted_list(&constant),
+                if constant.len() == 1 { "holds" } else { "hold" },
+                if constant.len() == 1 {
+                    "carries"
+                } else {
+                    "carry"
+                }
+            ));
+        }
         let mut gone = std::collections::BTreeMap::<&str, usize>::new();
         for l in dropped_labels.iter().filter(|l| !classes.contains(l)) {
             *gone.entry(l).or_default() += 1;
@@ -550,6 +573,12 @@ fn choose_features(
             if cols.contains(&c) {
                 return Err(Error::Design(format!(
                     "{src}: feature '{name}' is listed twice"
+                )));
+            }
+            if columns.ignore.contains(name) {
+                return Err(Error::Design(format!(
+                    "{src}: '{name}' is both named as a feature and to be left out (--ignore); remove it from one \
+                     of the two lists"
                 )));
             }
             cols.push(c);

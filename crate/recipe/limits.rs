@@ -69,8 +69,14 @@ pub fn check_magnitude(v: f64, at: &str) -> Result<f64> {
 
 /// Why a value is refused, in the words every reader uses.
 pub fn beyond_magnitude(v: f64) -> String {
+    let shown = if v.is_finite() {
+        format!("{v:e}")
+    } else {
+        // Written as a number (1e309) but past what a 64-bit number holds.
+        "the value overflows 64-bit numbers (±1.8e308) and".into()
+    };
     format!(
-        "{v:e} is beyond ±1e100, the largest magnitude popdecode accepts (sums of squares of such values overflow); \
+        "{shown} is beyond ±1e100, the largest magnitude popdecode accepts (sums of squares of such values overflow); \
          check the cell, or express the column in larger units"
     )
 }

@@ -75,6 +75,16 @@ impl UnitFilter {
             .find(|(s, _)| rest.starts_with(s))
             .copied()
             .ok_or_else(refuse)?;
+        // "quality==good" (found by a hostile review) read as the value "=good" and came back as "quality = =good".
+        if rest[spelling.len()..]
+            .trim_start()
+            .starts_with(['=', '!', '<', '>'])
+        {
+            return Err(Error::Recipe(format!(
+                "'{text}' is not a unit filter: it has one operator too many; write COLUMN=VALUE with a single '=', \
+                 COLUMN!=VALUE, or COLUMN>=NUMBER (also <=, >, <), e.g. quality=good"
+            )));
+        }
         let filter = UnitFilter {
             column: text[..at].trim().to_string(),
             op,
@@ -151,6 +161,18 @@ impl fmt::Display for UnitFilter {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_doubled_operator_is_refused() {
+        for text in ["quality==good", "snr>==2", "quality=!good"] {
+            let e = UnitFilter::parse(text).unwrap_err().to_string();
+            assert!(e.contains("one operator too many"), "{text}: {e}");
+        }
+        assert_eq!(
+            UnitFilter::parse("quality!=noise").unwrap().values,
+            vec!["noise"]
+        );
+    }
 
     #[test]
     fn round_trips_through_json() {

@@ -28,8 +28,13 @@ pub fn to_ns(seconds: f64) -> f64 {
 /// Windows of `width` stepped by `step` from `start`, as many as fit entirely before `end`. The count is checked
 /// against [`super::limits::MAX_WINDOWS`] as a float, before anything is allocated.
 pub fn sliding(start: f64, end: f64, width: f64, step: f64) -> Result<Vec<Window>> {
-    let finite = [start, end, width, step].iter().all(|v| v.is_finite());
-    if !finite || width <= 0.0 || step <= 0.0 {
+    // Found by a hostile review: a span edge of "nan" was blamed on the width and step.
+    if !start.is_finite() || !end.is_finite() {
+        return Err(Error::Recipe(format!(
+            "the analysis span must run between two numbers of seconds from alignment; got {start} s to {end} s"
+        )));
+    }
+    if !width.is_finite() || !step.is_finite() || width <= 0.0 || step <= 0.0 {
         return Err(Error::Recipe(format!(
             "window width and step must be positive numbers of seconds; got width {width}, step {step}"
         )));
@@ -93,6 +98,16 @@ mod tests {
         assert_eq!(w[5].end, 0.9);
         assert!(sliding(0.0, 0.05, 0.1, 0.05).is_err());
         assert!(sliding(0.0, 1.0, 0.1, 0.0).is_err());
+        // A span edge that is not a number is named as such, not blamed on the width and step.
+        let e = sliding(f64::NAN, 1.0, 0.1, 0.05).unwrap_err().to_string();
+        assert!(
+            e.contains("the analysis span must run between two numbers"),
+            "{e}"
+        );
+        let e = sliding(0.0, 1.0, f64::INFINITY, 0.05)
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("width and step must be positive"), "{e}");
     }
 
     #[test]
