@@ -118,7 +118,7 @@ pub fn render(r: &Report) -> String {
         writeln!(
             out,
             "above chance: {:+.1} percentage points (95 % CI {:+.1} to {:+.1}); chance-corrected {} (κ) {:.2}, 95 % \
-             CI {:.2}–{:.2}",
+             CI {:.2} to {:.2}",
             100.0 * e.above_chance,
             100.0 * e.above_chance_ci[0],
             100.0 * e.above_chance_ci[1],
