@@ -175,6 +175,15 @@ test('a numeric condition column is chosen as label; a trial counter is left out
   assert.match(headline, /'condition' decoded at/);
   const recipe = JSON.parse((await download(page, '#export-recipe')).text);
   assert.deepEqual(recipe.columns.ignore, ['trial']);
+  // Ticked again, the counter is named among the features (the core leaves a counter out of "every other column",
+  // as this page does), decoded, and cautioned in the page's words.
+  await page.click('label[for=feature-0]');
+  assert.equal(await page.textContent('#feature-count'), '(5 of 5 chosen)');
+  await runAndWait(page);
+  const ticked = JSON.parse((await download(page, '#export-recipe')).text);
+  assert.deepEqual(ticked.columns.features, ['trial', 'block', 'u1', 'u2', 'u3']);
+  const results = await page.textContent('#results');
+  assert.match(results, /column 'trial' counts up by one on every row, like a trial number, and is used as a feature; leave it out \(untick it in the feature list\)/);
   await b.context.close();
 });
 
