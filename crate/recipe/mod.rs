@@ -155,8 +155,19 @@ impl Recipe {
 
     /// Read a recipe file's text.
     pub fn from_json(source: &str, text: &str) -> Result<Recipe> {
-        let r: Recipe = serde_json::from_str(text)
-            .map_err(|e| Error::Recipe(format!("{source}: not a valid recipe: {e}")))?;
+        let r: Recipe = serde_json::from_str(text).map_err(|e| {
+            // Where, first, as every message about a file says it ("file, line 3, column 9: …").
+            let at = format!(" at line {} column {}", e.line(), e.column());
+            let what = e.to_string();
+            Error::Recipe(match what.strip_suffix(&at) {
+                Some(what) if e.line() > 0 => format!(
+                    "{source}, line {}, column {}: not a valid recipe: {what}",
+                    e.line(),
+                    e.column()
+                ),
+                _ => format!("{source}: not a valid recipe: {what}"),
+            })
+        })?;
         if r.format != RECIPE_FORMAT {
             return Err(Error::Recipe(format!(
                 "{source}: recipe format '{}' is not '{RECIPE_FORMAT}', the one this version reads",
@@ -316,6 +327,19 @@ impl Recipe {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// A recipe file's mistake is placed as every file's is: "file, line, column: …" first.
+    #[test]
+    fn a_bad_recipe_file_names_the_line_and_column_first() {
+        let e = Recipe::from_json("r.json", "{\n  \"repeats\": \"ten\"\n}")
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.starts_with("r.json, line 2, column 18: not a valid recipe: invalid type"),
+            "{e}"
+        );
+        assert!(!e.contains(" at line "), "{e}");
+    }
 
     /// A shuffle may average fewer repeats than the observed score (conservative), never more (too narrow).
     #[test]
