@@ -209,7 +209,7 @@ fn a_trial_counter_column_is_left_out_unless_named() {
     assert!(
         ds.warnings
             .iter()
-            .any(|w| w == "'flat' holds the same value on every trial and carries no information"),
+            .any(|w| w == "'flat' holds the same value on every trial and carries no information; it is kept among the features"),
         "{:?}",
         ds.warnings
     );

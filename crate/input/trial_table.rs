@@ -422,14 +422,15 @@ impl<'a> Rows<'a> {
             )));
         } else if !constant.is_empty() {
             warnings.push(format!(
-                "{} {} the same value on every trial and {} no information",
+                "{} {} the same value on every trial and {} no information; {} kept among the features",
                 quoted_list(&constant),
                 if constant.len() == 1 { "holds" } else { "hold" },
                 if constant.len() == 1 {
                     "carries"
                 } else {
                     "carry"
-                }
+                },
+                if constant.len() == 1 { "it is" } else { "they are" }
             ));
         }
         let mut gone = std::collections::BTreeMap::<&str, usize>::new();

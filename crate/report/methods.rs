@@ -79,12 +79,20 @@ pub fn resampling(
 }
 
 /// The result's cautions (its `warnings`) that the paragraph so far (`already`) does not state, so that they travel
-/// with the methods paragraph into a paper. `None` when there are none left.
+/// with the methods paragraph into a paper. `None` when there are none left. A clause telling the user what to do
+/// with a command-line flag ("; leave it out (--ignore 'n') unless …") is advice for the run, not a fact about it:
+/// it stays in the warnings and is left out here (the page shows this paragraph as it is, and a paper has no flags).
 pub fn cautions(warnings: &[String], already: &str) -> Option<String> {
-    let listed: Vec<&str> = warnings
+    let listed: Vec<String> = warnings
         .iter()
-        .map(|w| w.trim_end_matches('.'))
-        .filter(|w| !already.contains(w))
+        .map(|w| {
+            w.trim_end_matches('.')
+                .split("; ")
+                .filter(|clause| !clause.contains("(--"))
+                .collect::<Vec<_>>()
+                .join("; ")
+        })
+        .filter(|w| !w.is_empty() && !already.contains(w.as_str()))
         .collect();
     (!listed.is_empty()).then(|| format!("Notes from the analysis: {}.", listed.join("; ")))
 }
@@ -155,6 +163,19 @@ mod tests {
             Some("Notes from the analysis: only 5 shuffles: p cannot go below 1/6 = 0.167.")
         );
         assert_eq!(cautions(&warnings[1..], said), None);
+        // Advice naming a flag stays in the warnings, not in a paper (found by a review of the page).
+        let counter = vec![
+            "column 'n' counts up by one on every row, like a trial number, and is used as a feature; leave it out \
+             (--ignore 'n') unless it really is a measurement"
+                .to_string(),
+        ];
+        assert_eq!(
+            cautions(&counter, "").as_deref(),
+            Some(
+                "Notes from the analysis: column 'n' counts up by one on every row, like a trial number, and is used \
+                 as a feature."
+            )
+        );
         assert_eq!(cautions(&[], ""), None);
     }
 }

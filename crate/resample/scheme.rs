@@ -155,9 +155,10 @@ impl Scheme {
             }
             // Its one trial is tested only when held out, and then no training trial of its class exists.
             return Err(Error::Design(format!(
-                "{}: class '{}' has a single trial; cross-validation needs at least two trials of every class, so \
+                "{}: class {} has a single trial; cross-validation needs at least two trials of every class, so \
                  that a held-out trial's class is among the training trials (leave the class out, or add trials)",
-                t.source, t.classes[smallest_class]
+                t.source,
+                crate::input::table::quoted_cell(&t.classes[smallest_class])
             )));
         }
         let split = match (&t.groups, recipe.folds) {
@@ -182,10 +183,10 @@ impl Scheme {
                 let per_class = smallest;
                 if per_class < k {
                     return Err(Error::Design(format!(
-                        "{}: class '{}' has {} trial{}{}, fewer than the {k} folds; choose {} or fewer folds, or \
+                        "{}: class {} has {} trial{}{}, fewer than the {k} folds; choose {} or fewer folds, or \
                          leave-one-out",
                         t.source,
-                        t.classes[smallest_class],
+                        crate::input::table::quoted_cell(&t.classes[smallest_class]),
                         per_class,
                         if per_class == 1 { "" } else { "s" },
                         if recipe.balance { " (the size every class is balanced to)" } else { "" },

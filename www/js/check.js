@@ -280,7 +280,10 @@
     if (!c || !c.plan) {
       if (!PD.dataReady()) estimate.textContent = 'Load data to run.';
       else if (c && c.problems.length) estimate.textContent = 'Some settings need attention (marked beside them).';
-      else if (c && c.error) {
+      else if (c && c.error && /reads as a continuous variable/.test(c.error)) {
+        estimate.textContent = 'The label is a continuous variable: “Decode a continuous variable” further down decodes it. ' +
+          'Decoding classes needs a column of conditions as the label.';
+      } else if (c && c.error) {
         estimate.textContent = 'Nothing can run on the data as it is set up: the message in the Data section says why ' +
           'and what to change (a setting, such as the label, or the file itself).';
       }
@@ -321,7 +324,7 @@
     scheme.appendChild(p);
     if (recipe.repeats > 1 && PD.repeatsIdentical(recipe, plan, s.split)) {
       const q = el('p', `Every repeat would be identical here (classes are equal and every ${s.split === 'loo' ? 'trial' : 'group'} is ` +
-        `held out in turn), so ${recipe.repeats} repeats give the same number ${recipe.repeats} times. `, 'warning');
+        `held out in turn), so a single repeat is run instead of ${recipe.repeats}, and one per shuffle. `, 'warning');
       q.id = 'identical-note';
       q.appendChild(PD.button('Use 1 repeat', () => { $('repeats').value = '1'; PD.refresh(); }));
       scheme.appendChild(q);

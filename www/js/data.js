@@ -283,6 +283,8 @@
     S.features.names = numeric;
     S.features.chosen = new Set(numeric.filter((c) => !counters.includes(c)));
     S.features.counters = counters;
+    S.features.disabled = new Set();
+    S.features.released = new Set();
     S.features.filter = '';
     $('feature-filter').value = '';
     PD.syncFeatures();
@@ -356,10 +358,18 @@
   }
   const matching = () => S.features.names.filter(matcher(S.features.filter));
 
-  // Columns used as label, group, trial or time cannot be features.
+  // Columns used as label, group, trial or time cannot be features. A column that stops being one (the label
+  // changed from 'speed' to 'heading') comes back unticked, with a note: it is a behavioural or design variable,
+  // and silently decoding it as a neuron would be wrong.
   PD.syncFeatures = function () {
     const used = new Set([$('label').value, $('group').value, $('pseudo').value]);
     if (PD.shape() === 'binned') { used.add($('trial-col').value); used.add($('time-col').value); }
+    (S.features.disabled || new Set()).forEach((c) => {
+      if (c && !used.has(c) && S.features.chosen.has(c) && S.features.names.includes(c)) {
+        S.features.chosen.delete(c);
+        (S.features.released = S.features.released || new Set()).add(c);
+      }
+    });
     S.features.disabled = used;
     $('group').disabled = S.kind === 'table' && $('pseudo').value !== '';
     drawFeatures();
@@ -399,9 +409,12 @@
     const of = S.features.names.filter((x) => !S.features.disabled.has(x)).length;
     $('feature-count').textContent = `(${n} of ${of} chosen)`;
     const counters = (S.features.counters || []).filter((c) => !S.features.chosen.has(c));
-    $('features-note').textContent = counters.length
-      ? `${counters.map((c) => `'${c}'`).join(', ')} counts 1, 2, 3, … down the file like a trial number, so it is left out of the features; tick it if it really is a measurement.`
-      : '';
+    const released = [...(S.features.released || [])].filter((c) => !S.features.chosen.has(c) && !S.features.disabled.has(c));
+    const list = (cs) => cs.map((c) => `'${c}'`).join(', ');
+    $('features-note').textContent = [
+      counters.length ? `${list(counters)} counts 1, 2, 3, … down the file like a trial number, so it is left out of the features; tick it if it really is a measurement.` : '',
+      released.length ? `${list(released)} ${released.length === 1 ? 'was' : 'were'} chosen as another column (label or group), so ${released.length === 1 ? 'it is' : 'they are'} left out of the features; tick ${released.length === 1 ? 'it' : 'them'} if ${released.length === 1 ? 'it is' : 'they are'} a measurement.` : '',
+    ].filter(Boolean).join(' ');
   }
 
   PD.setFeatureFilter = function (text) { S.features.filter = text; drawFeatures(); };

@@ -120,7 +120,7 @@
     }).join(' and ');
     p.appendChild(el('strong', 'From '));
     const report = record.kind === 'compare' ? null : record.result.report;
-    p.appendChild(document.createTextNode(`${files}, with ${PD.describeSettings(record.recipe, report && report.design)}` +
+    p.appendChild(document.createTextNode(`${files}, with ${PD.describeSettings(record.recipe, report && report.design, report && report.recipe)}` +
       (record.draws ? `; ${record.draws} random subsets per size` : '') +
       `. Finished at ${PD.clock(record.finished)} in ${record.seconds.toFixed(1)} s.`));
     return p;
@@ -137,7 +137,12 @@
     const kind = PD.startKind(record);
     const current = PD.runRecipe(kind, S.check.recipe);
     if (record.kind === 'study' && record.options !== PD.runOptions('study')) out.push('the study\'s options (pooling, group draws, group α, subjects or flagged sessions)');
-    out.push(...PD.recipeChanges(record.recipe, current));
+    // A split that held out each group or trial did not use the Folds setting: changing it changes nothing (while
+    // the group column, which decides the split, is compared as itself).
+    const report = record.result && record.result.report;
+    const split = report && report.design && report.design.split;
+    const foldsUnused = ['leave_one_group_out', 'leave_one_out'].includes(split) && current.folds !== 'loo' && record.recipe.folds !== 'loo';
+    out.push(...PD.recipeChanges(record.recipe, current).filter((c) => !(foldsUnused && c.startsWith('Folds ('))));
     if (record.kind === 'neurons' && PD.readDraws() !== record.draws) out.push(`random subsets per size (${record.draws} → ${$('draws').value})`);
     return out;
   };

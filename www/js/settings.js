@@ -329,12 +329,16 @@
 
   // The recipe's settings in words, for a record's heading and for saying what changed since. `design`, when
   // given, is the design the run used (its report's `design`): a split that ignores the Folds setting says so.
-  PD.describeSettings = function (r, design) {
+  // `ran`, when given, is the recipe as the run used it (its report's `recipe`): fewer repeats than asked are said.
+  PD.describeSettings = function (r, design, ran) {
     const parts = [PD.DECODER_NAMES[r.classifier] + (r.tune ? ', C chosen inside each training fold' : PD.WITH_C.includes(r.classifier) ? `, C = ${r.c}` : '')];
     const split = design && design.split;
     const folds = split === 'leave_one_group_out' ? `leave one '${r.columns.group}' out (the Folds setting, ${r.folds}, not used)`
       : split === 'leave_one_out' ? 'leave-one-out' : `folds ${r.folds}`;
-    parts.push(folds, PD.count(r.repeats, 'repeat'), PD.count(r.shuffles, 'shuffle'), `seed ${r.seed}`);
+    const repeats = ran && ran.repeats < r.repeats
+      ? `${PD.count(ran.repeats, 'repeat')} run (${r.repeats} asked: every repeat would split the trials alike)`
+      : PD.count(r.repeats, 'repeat');
+    parts.push(folds, repeats, PD.count(r.shuffles, 'shuffle'), `seed ${r.seed}`);
     if (!r.balance) parts.push('classes not balanced');
     if (r.pairwise) parts.push('every pair of conditions also decoded on its own');
     parts.push(`label '${r.columns.label}'` + (r.columns.group ? `, groups '${r.columns.group}'` : '') +
@@ -356,10 +360,13 @@
     const named = [['classifier', 'Decoder'], ['c', 'C'], ['tune', 'Choose settings inside each training fold'],
       ['folds', 'Folds'], ['repeats', 'Repeats'], ['balance', 'Balance classes'], ['shuffles', 'Shuffles'],
       ['shuffle_repeats', 'Repeats per shuffle'], ['seed', 'Seed'], ['pairwise', 'Also decode every pair of conditions']];
-    const show = (v) => (v === null || v === undefined ? 'empty' : v === true ? 'on' : v === false ? 'off' : String(v));
+    // In the form's words: a decoder by its name on the form, an unset column as "(none)", a default as such.
+    const show = (v) => (v === null || v === undefined ? '(none)' : v === true ? 'on' : v === false ? 'off' : String(v));
+    const shown = (k, v) => (k === 'classifier' && PD.DECODER_NAMES[v] ? PD.DECODER_NAMES[v]
+      : k === 'shuffle_repeats' && (v === null || v === undefined) ? 'default' : show(v));
     // A switch left out of a recipe is off.
     const flag = (k, v) => (k === 'pairwise' ? !!v : v);
-    for (const [key, name] of named) if (!same(flag(key, was[key]), flag(key, now[key]))) out.push(`${name} (${show(flag(key, was[key]))} → ${show(flag(key, now[key]))})`);
+    for (const [key, name] of named) if (!same(flag(key, was[key]), flag(key, now[key]))) out.push(`${name} (${shown(key, flag(key, was[key]))} → ${shown(key, flag(key, now[key]))})`);
     const cols = [['label', 'Label column'], ['group', 'Group column'], ['pseudo', 'separate sessions'], ['drop_missing', 'Drop trials with missing values']];
     for (const [key, name] of cols) if (!same(was.columns[key], now.columns[key])) out.push(`${name} (${show(was.columns[key])} → ${show(now.columns[key])})`);
     if (!same(was.columns.features, now.columns.features) || !same(was.columns.ignore || [], now.columns.ignore || [])) out.push('Feature columns');

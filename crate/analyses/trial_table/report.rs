@@ -268,6 +268,14 @@ impl Report {
         if ungrouped > 0 {
             warnings.push(ungrouped_inner_warning(ungrouped, fits.total));
         }
+        // As every other analysis says it (found by a review of the page: decoding classes alone did not).
+        let m = plan.recipe.shuffles;
+        if m > 0 && m < 100 {
+            warnings.push(format!(
+                "only {m} shuffles: p-values cannot go below {}; 200 or more are usual",
+                crate::report::text::floor_words(m)
+            ));
+        }
         let (accuracy, balanced_accuracy) = intervals(plan, &repeats, &acc, &bacc);
         let headline = match plan.scheme.headline {
             Headline::Accuracy => &accuracy,

@@ -13,7 +13,7 @@
     { name: 'curve', svg: res.plots.curve, title: 'Score over time', alt: 'Score at each time window with its shuffle null and clusters' },
   ];
 
-  const SCORE_WORDS = { r2: 'out-of-sample R²', correlation: 'Pearson correlation', circular_correlation: 'circular correlation', mean_abs_error: 'mean absolute angular error' };
+  const SCORE_WORDS = { r2: 'out-of-sample R²', correlation: 'Pearson correlation' };
   // Three decimals as in the command line's text (a null R² near 0 reads 0.000, not -7.16e-5 or -0.000).
   const num = (v) => {
     if (v === null || v === undefined) return '—';
@@ -28,19 +28,29 @@
     return x.toFixed(Math.min(12, Math.max(0, 3 - Math.floor(Math.log10(Math.abs(x))))));
   };
 
+  // An angle's scores named as the command line names them, its error in the angle's unit.
+  const CIRCULAR_WORDS = { r2: 'R² of (cosine, sine)', correlation: 'circular correlation', angular_error: 'mean absolute angular error' };
+  const wordsOf = (r) => (r.target && r.target.variable !== 'linear' ? CIRCULAR_WORDS : SCORE_WORDS);
+  const valueOf = (r, name) => {
+    const unit = r.target && r.target.variable !== 'linear' && name === 'angular_error' ? (r.target.unit === 'degrees' ? '°' : ' rad') : '';
+    return (v) => (v === null || v === undefined ? '—' : num(v) + unit);
+  };
+
   function scoreTable(view, r) {
     if (!r.summary) return;
+    const words = wordsOf(r);
     const rows = Object.entries(r.summary).filter(([, v]) => v && v.mean !== undefined)
-      .map(([name, v]) => [{ text: SCORE_WORDS[name] || name.replace(/_/g, ' '), cls: 'text', header: true }, num(v.mean), num(v.sd), num(v.p2_5), num(v.p97_5)]);
+      .map(([name, v]) => { const f = valueOf(r, name); return [{ text: words[name] || name.replace(/_/g, ' '), cls: 'text', header: true }, f(v.mean), f(v.sd), f(v.p2_5), f(v.p97_5)]; });
     PD.table(view, 'Scores over repeats (mean, SD and percentiles over repeats: a spread over resampling, not a confidence interval)',
       ['', 'mean', 'SD', '2.5th percentile', '97.5th percentile'], rows);
     const s = r.shuffle;
     if (s && s.p_value !== null && s.p_value !== undefined) {
       const how = `${s.count} shuffles × ${s.repeats_each} repeats${s.within_groups ? ', within groups' : ''}`;
+      const f = valueOf(r, s.score);
       PD.table(view, 'The shuffle control (the values shuffled across trials)', ['', 'value', 'from'], [
-        [{ text: `observed ${SCORE_WORDS[s.score] || s.score}`, cls: 'text', header: true }, num(s.observed), { text: `mean over ${r.repeats.length} repeats`, cls: 'text' }],
-        [{ text: 'shuffled values, mean (SD)', cls: 'text', header: true }, `${num(s.null_mean)} (${num(s.null_sd)})`, { text: how, cls: 'text' }],
-        [{ text: 'shuffled values, 95th percentile', cls: 'text', header: true }, num(s.null_p95), { text: how, cls: 'text' }],
+        [{ text: `observed ${words[s.score] || s.score.replace(/_/g, ' ')}`, cls: 'text', header: true }, f(s.observed), { text: `mean over ${r.repeats.length} repeats`, cls: 'text' }],
+        [{ text: 'shuffled values, mean (SD)', cls: 'text', header: true }, `${f(s.null_mean)} (${f(s.null_sd)})`, { text: how, cls: 'text' }],
+        [{ text: 'shuffled values, 95th percentile', cls: 'text', header: true }, f(s.null_p95), { text: how, cls: 'text' }],
         [{ text: 'p (observed against shuffles)', cls: 'text', header: true }, PD.pBound(s.p_value, s.count), { text: how, cls: 'text' }],
       ]);
     }
@@ -55,7 +65,7 @@
     const t = r.target;
     view.appendChild(el('p', `'${t.column}': ${t.variable === 'linear' ? 'a quantity' : `an angle in ${t.unit}`}, from ${quantity(t.min)} to ${quantity(t.max)}` +
       (t.mean !== null && t.mean !== undefined ? `, mean ${quantity(t.mean)} (SD ${quantity(t.sd)})` : '') +
-      (t.mean_direction !== null && t.mean_direction !== undefined ? `, mean direction ${num(t.mean_direction)} (resultant length ${num(t.resultant_length)})` : '') +
+      (t.mean_direction !== null && t.mean_direction !== undefined ? `, mean direction ${num(t.mean_direction)}${t.unit === 'degrees' ? '°' : ' rad'} (resultant length ${num(t.resultant_length)})` : '') +
       `; ${r.input.trials} trials, ${r.input.features.length} features.`, 'note'));
     scoreTable(view, r);
     const used = r.penalty.chosen.filter((c) => c.fits > 0).map((c) => `${c.alpha} in ${PD.count(c.fits, 'fit')}`);
