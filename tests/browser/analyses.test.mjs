@@ -436,6 +436,20 @@ test('the analyses\' examples are one click away: choices across odour contexts,
   assert.equal(continuous.input.features.length, 30);
   assert.ok(!continuous.input.features.includes('heading'));
   assert.match(await b.page.textContent('#data-status'), /'heading', another behavioural variable, is left out/);
+  // The label changed to the heading: the speed, released from being the label, is not decoded as a neuron (a new
+  // user's walk found it ticked and decoded), and the page says so; an angle's scores are named as such.
+  await b.page.selectOption('#label', 'heading');
+  await b.page.selectOption('#value-decoder', 'circular-ridge');
+  await b.page.waitForFunction(() => /'speed' was chosen/.test(document.getElementById('features-note').textContent));
+  assert.equal(await b.page.textContent('#feature-count'), '(30 of 31 chosen)');
+  assert.match(await b.page.textContent('#features-note'), /'speed' was chosen as another column \(label or group\), so it is left out of the features/);
+  await runAndWait(b.page, '#continuous-start');
+  const heading = JSON.parse(await downloadText(b.page, '#export-json'));
+  assert.equal(heading.input.features.length, 30);
+  assert.ok(!heading.input.features.includes('speed'));
+  const shown = await b.page.textContent('#views');
+  assert.match(shown, /circular correlation/);
+  assert.doesNotMatch(shown, /Pearson correlation|angular_error/);
   assert.deepEqual(b.errors, []);
   assertLocalOnly(assert, b.requests, server.origin);
   await b.context.close();
