@@ -6,6 +6,7 @@ mod args;
 mod combine;
 mod decode;
 mod files;
+mod inputs;
 mod inspect;
 mod neurons;
 mod part;

@@ -17,7 +17,7 @@
 
 use crate::args::Part;
 use crate::files::{display_name, read, sha256_file};
-use crate::run::Inputs;
+use crate::inputs::Inputs;
 use popdecode::data::SourceFile;
 use popdecode::recipe::Recipe;
 use popdecode::report::Software;

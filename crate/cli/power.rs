@@ -2,7 +2,8 @@
 
 use crate::args::{base_recipe, show, RunArgs, TableArgs};
 use crate::files::{display_name, read};
-use crate::run::{analyse, Inputs, Loaded};
+use crate::inputs::Inputs;
+use crate::run::{analyse, Loaded};
 use clap::Args;
 use popdecode::analyses::power::PowerPlan;
 use popdecode::data::SourceFile;

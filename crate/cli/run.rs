@@ -2,55 +2,17 @@
 //! or, with `--part K/N`, only that part's tasks run and their outcomes go to a part file (`part.rs`) that
 //! `popdecode combine` joins with the others.
 
-use crate::args::{show, Part, RunArgs};
-use crate::files::{display_name, open_source, print, read, write};
+use crate::args::{Part, RunArgs};
+use crate::files::{print, write};
+use crate::inputs::Inputs;
 use crate::part;
 use indicatif::{ProgressBar, ProgressStyle};
 use popdecode::analyses::{Analysis, Finished};
 use popdecode::data::SourceFile;
-use popdecode::input::extract;
-use popdecode::recipe::{Recipe, TimeInput};
+use popdecode::recipe::Recipe;
 use rayon::prelude::*;
-use serde::{Deserialize, Serialize};
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
-
-/// What a subcommand builds its plan from. A part file records it, so that `combine` can build the same plan
-/// again with the subcommand's own `load` and call `finish` on it.
-#[derive(Clone, Debug, Serialize, Deserialize)]
-pub struct Inputs {
-    /// The subcommand (`decode`, `timecourse`, `neurons`).
-    pub analysis: String,
-    /// The recipe the plan is built from, after the flags were applied.
-    pub recipe: Recipe,
-    /// Settings of the analysis that are not in the recipe (the neuron analyses' draws), as a JSON object.
-    pub options: serde_json::Value,
-    /// The input files in the order the subcommand's `load` expects them.
-    pub paths: Vec<PathBuf>,
-}
-
-/// The input files' names and bytes; an NWB file is read lazily into its extract (units and trials only), exactly
-/// as the page does.
-pub fn read_inputs(inputs: &Inputs) -> Result<Vec<(String, Vec<u8>)>, String> {
-    let nwb = inputs
-        .recipe
-        .time
-        .as_ref()
-        .is_some_and(|t| matches!(t.input, TimeInput::Nwb { .. }));
-    inputs
-        .paths
-        .iter()
-        .map(|p| {
-            let name = display_name(p);
-            let bytes = if nwb {
-                extract::read_nwb(&name, open_source(p)?).map_err(show)?
-            } else {
-                read(p)?
-            };
-            Ok((name, bytes))
-        })
-        .collect()
-}
 
 /// A plan and the files it was read from, as its report names them (file name and SHA-256).
 pub struct Loaded<P> {

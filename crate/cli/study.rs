@@ -3,7 +3,8 @@
 
 use crate::args::{base_recipe, show, ColumnArgs, RunArgs};
 use crate::files::{display_name, open_source, read, sha256_file};
-use crate::run::{analyse, Inputs, Loaded};
+use crate::inputs::Inputs;
+use crate::run::{analyse, Loaded};
 use crate::targets::TargetArgs;
 use crate::timecourse::{time_settings, Source, TimeFlags};
 use clap::Args;

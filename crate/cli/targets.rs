@@ -3,7 +3,8 @@
 
 use crate::args::{show, RunArgs};
 use crate::files::{display_name, sha256_file};
-use crate::run::{analyse, read_inputs, Inputs, Loaded};
+use crate::inputs::{read_inputs, Inputs};
+use crate::run::{analyse, Loaded};
 use clap::Args;
 use popdecode::analyses::across::AcrossPlan;
 use popdecode::analyses::continuous::ContinuousPlan;

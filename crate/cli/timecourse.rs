@@ -1,7 +1,8 @@
 //! `popdecode timecourse`: decoding at every time window of a binned table, spike events or an NWB file.
 
 use crate::args::{base_recipe, show, ColumnArgs, RunArgs};
-use crate::run::{analyse, read_inputs, Inputs, Loaded};
+use crate::inputs::{read_inputs, Inputs};
+use crate::run::{analyse, Loaded};
 use crate::targets::{self, TargetArgs};
 use clap::Args;
 use popdecode::analyses::time_course::TimePlan;

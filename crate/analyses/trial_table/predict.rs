@@ -40,6 +40,18 @@ pub fn decisions_with_folds(
     Ok((cv.labels, cv.decision, auc))
 }
 
+/// The fold numbers as given, ascending and once each, and each trial's fold renumbered 0, 1, … in that order.
+fn renumbered(fold_of: &[usize]) -> (Vec<usize>, Vec<usize>) {
+    let mut names: Vec<usize> = fold_of.to_vec();
+    names.sort_unstable();
+    names.dedup();
+    let fold = fold_of
+        .iter()
+        .map(|f| names.binary_search(f).expect("a listed fold"))
+        .collect();
+    (names, fold)
+}
+
 /// The classes among the training trials of fold `f` (every trial outside it), ascending.
 fn training_classes(data: &Dataset, fold: &[usize], f: usize) -> Vec<usize> {
     let mut present = vec![false; data.classes.len()];
@@ -52,13 +64,7 @@ fn training_classes(data: &Dataset, fold: &[usize], f: usize) -> Vec<usize> {
 /// Cautions about user-assigned folds that the predictions cannot show: a class with no training trial for some fold
 /// (its test trials there can only be predicted wrong). The fold numbers are as given.
 pub fn fold_cautions(data: &Dataset, fold_of: &[usize]) -> Vec<String> {
-    let mut names: Vec<usize> = fold_of.to_vec();
-    names.sort_unstable();
-    names.dedup();
-    let fold: Vec<usize> = fold_of
-        .iter()
-        .map(|f| names.binary_search(f).expect("a listed fold"))
-        .collect();
+    let (names, fold) = renumbered(fold_of);
     let mut out = Vec::new();
     for (f, name) in names.iter().enumerate() {
         let trained = training_classes(data, &fold, f);
@@ -95,14 +101,7 @@ fn cross_validated(
     decoders::require_classes(recipe.classifier)?;
     let decoder = decoders::build(recipe.classifier, recipe.c, recipe.tune);
     let x = data.x.as_standard_layout();
-    // Fold numbers as given, renumbered 0, 1, … in ascending order.
-    let mut names: Vec<usize> = fold_of.to_vec();
-    names.sort_unstable();
-    names.dedup();
-    let fold: Vec<usize> = fold_of
-        .iter()
-        .map(|f| names.binary_search(f).expect("a listed fold"))
-        .collect();
+    let (names, fold) = renumbered(fold_of);
     if names.len() == 1 {
         return Err(Error::Design(format!(
             "{}: fold {} holds every trial; nothing is left to train on",
