@@ -372,10 +372,12 @@ impl<'a> Rows<'a> {
                 .collect();
             if counters.len() == feature_cols.len() {
                 return Err(Error::Design(format!(
-                    "{src}: the only numeric {} {} counts up by one on every row, like a trial number, and is not \
+                    "{src}: the only numeric {} {} {} up by one on every row, like a trial number, and {} not \
                      a measurement to decode from; name the feature columns (--features) if it really is one",
                     if names.len() == 1 { "column" } else { "columns" },
-                    quoted_list(&names)
+                    quoted_list(&names),
+                    if names.len() == 1 { "counts" } else { "count" },
+                    if names.len() == 1 { "is" } else { "are" }
                 )));
             }
             let p_all = feature_cols.len();
