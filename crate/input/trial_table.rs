@@ -361,59 +361,12 @@ impl<'a> Rows<'a> {
             }
             None => (None, Vec::new()),
         };
-        // A trial counter among features chosen by default is left out (the page leaves it unticked too); one named
-        // among the features is kept, with a caution.
-        let counters = counter_columns(&x, feature_cols.len());
-        let (x, feature_cols, mut warnings) = if columns.features.is_none() && !counters.is_empty()
-        {
-            let names: Vec<String> = counters
-                .iter()
-                .map(|&j| table.headers[feature_cols[j]].clone())
-                .collect();
-            if counters.len() == feature_cols.len() {
-                return Err(Error::Design(format!(
-                    "{src}: the only numeric {} {} {} up by one on every row, like a trial number, and {} not \
-                     a measurement to decode from; name the feature columns (--features) if it really is one",
-                    if names.len() == 1 { "column" } else { "columns" },
-                    quoted_list(&names),
-                    if names.len() == 1 { "counts" } else { "count" },
-                    if names.len() == 1 { "is" } else { "are" }
-                )));
-            }
-            let p_all = feature_cols.len();
-            let keep: Vec<usize> = (0..p_all).filter(|j| !counters.contains(j)).collect();
-            let x: Vec<f64> = x
-                .chunks_exact(p_all)
-                .flat_map(|row| keep.iter().map(move |&j| row[j]))
-                .collect();
-            let cols = keep.iter().map(|&j| feature_cols[j]).collect();
-            let note = format!(
-                "{} {} up by one on every row, like a trial number, so {} left out of the features; name {} \
-                 among the features (--features) if {} really a measurement",
-                quoted_list(&names),
-                if names.len() == 1 { "counts" } else { "count" },
-                if names.len() == 1 { "it is" } else { "they are" },
-                if names.len() == 1 { "it" } else { "them" },
-                if names.len() == 1 { "it is" } else { "they are" },
-            );
-            (x, cols, vec![note])
-        } else {
-            let warnings = counters
-                .iter()
-                .map(|&j| {
-                    let name = &table.headers[feature_cols[j]];
-                    format!(
-                        "column '{name}' counts up by one on every row, like a trial number, and is used as a \
-                         feature; leave it out (--ignore '{name}') unless it really is a measurement"
-                    )
-                })
-                .collect();
-            (x, feature_cols, warnings)
-        };
+        let (x, feature_cols, mut warnings) = leave_out_counters(table, columns, x, feature_cols)?;
         let p = feature_cols.len();
-        // Found by a hostile review: features that never vary gave a score with no word.
+        // Found by a hostile review: features that never vary gave a score with no word. (A pseudo-population's
+        // features are empty outside their session, so none is constant.)
         let constant: Vec<String> = (0..p)
-            .filter(|&j| (1..n).all(|i| x[i * p + j] == x[j]) && columns.pseudo.is_none())
+            .filter(|&j| columns.pseudo.is_none() && (1..n).all(|i| x[i * p + j] == x[j]))
             .map(|j| table.headers[feature_cols[j]].clone())
             .collect();
         if constant.len() == p && n > 1 {
@@ -426,13 +379,9 @@ impl<'a> Rows<'a> {
             warnings.push(format!(
                 "{} {} the same value on every trial and {} no information; {} kept among the features",
                 quoted_list(&constant),
-                if constant.len() == 1 { "holds" } else { "hold" },
-                if constant.len() == 1 {
-                    "carries"
-                } else {
-                    "carry"
-                },
-                if constant.len() == 1 { "it is" } else { "they are" }
+                number(&constant, "holds", "hold"),
+                number(&constant, "carries", "carry"),
+                number(&constant, "it is", "they are")
             ));
         }
         let mut gone = std::collections::BTreeMap::<&str, usize>::new();
@@ -449,17 +398,9 @@ impl<'a> Rows<'a> {
             warnings.push(format!(
                 "{} {} not used as {} because {} mostly text",
                 quoted_list(&skipped),
-                if skipped.len() == 1 { "is" } else { "are" },
-                if skipped.len() == 1 {
-                    "a feature"
-                } else {
-                    "features"
-                },
-                if skipped.len() == 1 {
-                    "it holds"
-                } else {
-                    "they hold"
-                },
+                number(&skipped, "is", "are"),
+                number(&skipped, "a feature", "features"),
+                number(&skipped, "it holds", "they hold"),
             ));
         }
         let pseudo = match (&columns.pseudo, &groups) {
@@ -622,6 +563,72 @@ fn choose_features(
         )));
     }
     Ok((cols, skipped))
+}
+
+/// The word for one or for several `names`.
+fn number<'w>(names: &[String], one: &'w str, several: &'w str) -> &'w str {
+    if names.len() == 1 {
+        one
+    } else {
+        several
+    }
+}
+
+/// A trial counter among features chosen by default is left out (the page leaves it unticked too), with a note;
+/// one named among the features is kept, with a caution. Only counters to decode from: refused. Returns the rows
+/// (`x`, row-major over `feature_cols`) and feature columns that remain, and the notes.
+fn leave_out_counters(
+    table: &Table,
+    columns: &Columns,
+    x: Vec<f64>,
+    feature_cols: Vec<usize>,
+) -> Result<(Vec<f64>, Vec<usize>, Vec<String>)> {
+    let src = &table.source;
+    let p_all = feature_cols.len();
+    let counters = counter_columns(&x, p_all);
+    if columns.features.is_some() || counters.is_empty() {
+        let warnings = counters
+            .iter()
+            .map(|&j| {
+                let name = &table.headers[feature_cols[j]];
+                format!(
+                    "column '{name}' counts up by one on every row, like a trial number, and is used as a feature; \
+                     leave it out (--ignore '{name}') unless it really is a measurement"
+                )
+            })
+            .collect();
+        return Ok((x, feature_cols, warnings));
+    }
+    let names: Vec<String> = counters
+        .iter()
+        .map(|&j| table.headers[feature_cols[j]].clone())
+        .collect();
+    if counters.len() == p_all {
+        return Err(Error::Design(format!(
+            "{src}: the only numeric {} {} {} up by one on every row, like a trial number, and {} not a \
+             measurement to decode from; name the feature columns (--features) if it really is one",
+            number(&names, "column", "columns"),
+            quoted_list(&names),
+            number(&names, "counts", "count"),
+            number(&names, "is", "are")
+        )));
+    }
+    let keep: Vec<usize> = (0..p_all).filter(|j| !counters.contains(j)).collect();
+    let x = x
+        .chunks_exact(p_all)
+        .flat_map(|row| keep.iter().map(move |&j| row[j]))
+        .collect();
+    let cols = keep.iter().map(|&j| feature_cols[j]).collect();
+    let note = format!(
+        "{} {} up by one on every row, like a trial number, so {} left out of the features; name {} among the \
+         features (--features) if {} really a measurement",
+        quoted_list(&names),
+        number(&names, "counts", "count"),
+        number(&names, "it is", "they are"),
+        number(&names, "it", "them"),
+        number(&names, "it is", "they are"),
+    );
+    Ok((x, cols, vec![note]))
 }
 
 /// The feature columns (indices into the row) that count 1, 2, 3, … down the file: almost surely trial numbers,
