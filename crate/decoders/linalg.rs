@@ -6,27 +6,100 @@
 
 use super::simd::multiversion;
 
+/// The two precisions the linear SVM's solvers work in: double everywhere, and single for the passes that only find
+/// a starting point or a Newton direction (`linear_svm`, "single precision"), where half the bytes and twice the
+/// lanes per register are what count. Every other kernel here is double precision only.
+pub trait Real:
+    Copy
+    + PartialOrd
+    + std::ops::Add<Output = Self>
+    + std::ops::Sub<Output = Self>
+    + std::ops::Mul<Output = Self>
+    + std::ops::Div<Output = Self>
+    + std::ops::AddAssign
+{
+    const ZERO: Self;
+    /// Rounded to the nearest value of this precision.
+    fn from_f64(v: f64) -> Self;
+    fn to_f64(self) -> f64;
+    fn sqrt(self) -> Self;
+    fn is_finite(self) -> bool;
+    /// The linear SVM's dot product of a row with the weights: [`dot_wide`] or [`dot_single`].
+    fn dot_rows(a: &[Self], b: &[Self]) -> Self;
+}
+
+impl Real for f64 {
+    const ZERO: f64 = 0.0;
+    #[inline(always)]
+    fn from_f64(v: f64) -> f64 {
+        v
+    }
+    #[inline(always)]
+    fn to_f64(self) -> f64 {
+        self
+    }
+    #[inline(always)]
+    fn sqrt(self) -> f64 {
+        f64::sqrt(self)
+    }
+    #[inline(always)]
+    fn is_finite(self) -> bool {
+        f64::is_finite(self)
+    }
+    #[inline(always)]
+    fn dot_rows(a: &[f64], b: &[f64]) -> f64 {
+        dot_wide(a, b)
+    }
+}
+
+impl Real for f32 {
+    const ZERO: f32 = 0.0;
+    #[inline(always)]
+    fn from_f64(v: f64) -> f32 {
+        v as f32
+    }
+    #[inline(always)]
+    fn to_f64(self) -> f64 {
+        f64::from(self)
+    }
+    #[inline(always)]
+    fn sqrt(self) -> f32 {
+        f32::sqrt(self)
+    }
+    #[inline(always)]
+    fn is_finite(self) -> bool {
+        f32::is_finite(self)
+    }
+    #[inline(always)]
+    fn dot_rows(a: &[f32], b: &[f32]) -> f32 {
+        dot_single(a, b)
+    }
+}
+
 /// Dot product of two equal-length slices.
 ///
 /// Four partial sums over interleaved elements, combined as `(s0 + s1) + (s2 + s3)`, then the tail: a fixed order
 /// (so every target rounds identically) that breaks the add-latency chain of a single accumulator and lets the
 /// compiler use SIMD lanes on x86_64 and wasm32 alike.
+///
+/// `a` may also be single precision (a factor kept in single precision, [`cholesky_solve`]): its values are widened
+/// exactly, and the products and sums are double precision as for two double slices.
 #[inline]
-pub fn dot(a: &[f64], b: &[f64]) -> f64 {
+pub fn dot<T: Real>(a: &[T], b: &[f64]) -> f64 {
     let n = a.len().min(b.len());
     let (a, b) = (&a[..n], &b[..n]);
     let mut s = [0.0f64; 4];
     let chunks = n / 4;
     for k in 0..chunks {
         let (x, y) = (&a[4 * k..4 * k + 4], &b[4 * k..4 * k + 4]);
-        s[0] += x[0] * y[0];
-        s[1] += x[1] * y[1];
-        s[2] += x[2] * y[2];
-        s[3] += x[3] * y[3];
+        s[0] += x[0].to_f64() * y[0];
+        s[1] += x[1].to_f64() * y[1];
+        s[2] += x[2].to_f64() * y[2];
+        s[3] += x[3].to_f64() * y[3];
     }
     let mut total = (s[0] + s[1]) + (s[2] + s[3]);
     for i in 4 * chunks..n {
-        total += a[i] * b[i];
+        total += a[i].to_f64() * b[i];
     }
     total
 }
@@ -103,6 +176,76 @@ unsafe fn dot_wide_avx2(a: &[f64], b: &[f64]) -> f64 {
     total
 }
 
+/// [`dot_wide`] in single precision, with thirty-two partial sums (four 256-bit registers of eight): element `i` joins
+/// sum `i mod 32`, the sums are folded in halves (`sₗ + sₗ₊₁₆`, then `sₗ + sₗ₊₈`, …), then the tail is added one
+/// element at a time. For the linear SVM's passes in single precision only.
+#[inline(always)]
+pub fn dot_single(a: &[f32], b: &[f32]) -> f32 {
+    #[cfg(target_arch = "x86_64")]
+    if super::simd::avx2() {
+        // SAFETY: `avx2()` is true only when the processor reports AVX2.
+        return unsafe { dot_single_avx2(a, b) };
+    }
+    const LANES: usize = 32;
+    let n = a.len().min(b.len());
+    let (a, b) = (&a[..n], &b[..n]);
+    let mut s = [0.0f32; LANES];
+    let (mut ca, mut cb) = (a.chunks_exact(LANES), b.chunks_exact(LANES));
+    for (x, y) in (&mut ca).zip(&mut cb) {
+        for l in 0..LANES {
+            s[l] += x[l] * y[l];
+        }
+    }
+    let mut width = LANES;
+    while width > 1 {
+        width /= 2;
+        for l in 0..width {
+            s[l] += s[l + width];
+        }
+    }
+    let mut total = s[0];
+    for (x, y) in ca.remainder().iter().zip(cb.remainder()) {
+        total += x * y;
+    }
+    total
+}
+
+/// [`dot_single`] in AVX2 registers, bit for bit, as [`dot_wide_avx2`] is for [`dot_wide`]: sum `8k + j` is lane `j`
+/// of register `k`, no fused multiply–add, folded in [`dot_single`]'s tree (registers 0, 1 += 2, 3; 0 += 1; lanes
+/// 0–3 += 4–7; lanes 0, 1 += 2, 3; lane 0 += 1), then the tail.
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx2")]
+#[inline]
+unsafe fn dot_single_avx2(a: &[f32], b: &[f32]) -> f32 {
+    use std::arch::x86_64::*;
+    let n = a.len().min(b.len());
+    let chunks = n / 32;
+    let (pa, pb) = (a.as_ptr(), b.as_ptr());
+    let mut s = [_mm256_setzero_ps(); 4];
+    for c in 0..chunks {
+        for (k, reg) in s.iter_mut().enumerate() {
+            let i = 32 * c + 8 * k;
+            // SAFETY: i + 8 ≤ 32 · chunks ≤ n, inside both slices.
+            let (x, y) = unsafe { (_mm256_loadu_ps(pa.add(i)), _mm256_loadu_ps(pb.add(i))) };
+            *reg = _mm256_add_ps(*reg, _mm256_mul_ps(x, y));
+        }
+    }
+    let low = _mm256_add_ps(s[0], s[2]);
+    let high = _mm256_add_ps(s[1], s[3]);
+    let eight = _mm256_add_ps(low, high);
+    let four = _mm_add_ps(
+        _mm256_castps256_ps128(eight),
+        _mm256_extractf128_ps(eight, 1),
+    );
+    let two = _mm_add_ps(four, _mm_movehl_ps(four, four));
+    let one = _mm_add_ss(two, _mm_shuffle_ps(two, two, 1));
+    let mut total = _mm_cvtss_f32(one);
+    for i in 32 * chunks..n {
+        total += a[i] * b[i];
+    }
+    total
+}
+
 /// `(x − centre)·w`, in [`dot`]'s order of partial sums, without a centred copy of `x`.
 #[inline]
 pub fn dot_centred(x: &[f64], centre: &[f64], w: &[f64]) -> f64 {
@@ -123,11 +266,11 @@ pub fn dot_centred(x: &[f64], centre: &[f64], w: &[f64]) -> f64 {
     total
 }
 
-/// `y += a * x`.
+/// `y += a * x`, in either precision.
 #[inline]
-pub fn axpy(a: f64, x: &[f64], y: &mut [f64]) {
+pub fn axpy<T: Real>(a: T, x: &[T], y: &mut [T]) {
     for (yi, xi) in y.iter_mut().zip(x) {
-        *yi += a * xi;
+        *yi += a * *xi;
     }
 }
 
@@ -433,43 +576,47 @@ fn pivot_row(u: &mut [f64], p: usize, k: usize) -> Option<()> {
     Some(())
 }
 
-/// Solve `UᵀU x = b` in place, given the Cholesky factor.
-pub fn cholesky_solve(u: &[f64], p: usize, b: &mut [f64]) {
+/// Solve `UᵀU x = b` in place, given the Cholesky factor, in double precision; the factor may be kept in single
+/// precision (its values are widened exactly; for a double factor the operations are those of `axpy` and [`dot`]).
+pub fn cholesky_solve<T: Real>(u: &[T], p: usize, b: &mut [f64]) {
     for i in 0..p {
-        b[i] /= u[i * p + i];
+        b[i] /= u[i * p + i].to_f64();
         let (head, tail) = b.split_at_mut(i + 1);
-        axpy(-head[i], &u[i * p + i + 1..(i + 1) * p], tail);
+        let a = -head[i];
+        for (t, v) in tail.iter_mut().zip(&u[i * p + i + 1..(i + 1) * p]) {
+            *t += a * v.to_f64();
+        }
     }
     for i in (0..p).rev() {
         let s = b[i] - dot(&u[i * p + i + 1..(i + 1) * p], &b[i + 1..]);
-        b[i] = s / u[i * p + i];
+        b[i] = s / u[i * p + i].to_f64();
     }
 }
 
-multiversion! {
-    /// Turn the Cholesky factor of `A` into that of `A + s·xxᵀ` (`s` = +1 update, −1 downdate) in O(p²), by the
-    /// rotations of LINPACK's `dchud`/`dchdd` (Dongarra et al., LINPACK Users' Guide, 1979). `x` is overwritten.
-    /// Returns false if a downdate would leave the matrix not positive definite (the factor is then unusable).
-    pub fn cholesky_rank_one(u: &mut [f64], p: usize, x: &mut [f64], s: f64) -> bool {
-        for k in 0..p {
-            let d = u[k * p + k];
-            let r2 = d * d + s * x[k] * x[k];
-            if r2 <= 0.0 || !r2.is_finite() {
-                return false;
-            }
-            let r = r2.sqrt();
-            // Multiplying by 1/c rather than dividing by c: a division costs several multiplications' time.
-            let (c, inv_c, sn) = (r / d, d / r, x[k] / d);
-            let s_sn = s * sn;
-            u[k * p + k] = r;
-            for j in k + 1..p {
-                let ukj = (u[k * p + j] + s_sn * x[j]) * inv_c;
-                x[j] = c * x[j] - sn * ukj;
-                u[k * p + j] = ukj;
-            }
+/// Turn the Cholesky factor of `A` into that of `A + s·xxᵀ` (`s` = +1 update, −1 downdate) in O(p²), by the
+/// rotations of LINPACK's `dchud`/`dchdd` (Dongarra et al., LINPACK Users' Guide, 1979), in the factor's precision.
+/// `x` is overwritten. Returns false if a downdate would leave the matrix not positive definite (the factor is then
+/// unusable). Inlined, so the caller's instruction set ([`super::simd`]) compiles it.
+#[inline(always)]
+pub fn cholesky_rank_one<T: Real>(u: &mut [T], p: usize, x: &mut [T], s: T) -> bool {
+    for k in 0..p {
+        let d = u[k * p + k];
+        let r2 = d * d + s * x[k] * x[k];
+        if r2 <= T::ZERO || !r2.is_finite() {
+            return false;
         }
-        true
+        let r = r2.sqrt();
+        // Multiplying by 1/c rather than dividing by c: a division costs several multiplications' time.
+        let (c, inv_c, sn) = (r / d, d / r, x[k] / d);
+        let s_sn = s * sn;
+        u[k * p + k] = r;
+        for j in k + 1..p {
+            let ukj = (u[k * p + j] + s_sn * x[j]) * inv_c;
+            x[j] = c * x[j] - sn * ukj;
+            u[k * p + j] = ukj;
+        }
     }
+    true
 }
 
 /// Factor a symmetric positive semi-definite matrix, adding the smallest ridge (relative to its mean diagonal) that
@@ -640,6 +787,91 @@ mod tests {
         let ints: Vec<f64> = (1..=50).map(f64::from).collect();
         // Σ i² for i = 1..50 = 50·51·101/6.
         assert_eq!(dot_wide(&ints, &ints), 42925.0);
+    }
+
+    /// [`dot_single`] in its documented order (on a processor with AVX2, its AVX2 copy: the test then checks that
+    /// the copy keeps the order of the portable code, the one the page's WebAssembly runs).
+    #[test]
+    fn single_dot_product_adds_in_its_documented_order() {
+        for n in [0, 1, 31, 32, 33, 77, 100, 1001] {
+            let a: Vec<f32> = (0..n).map(|i| (i as f32 * 0.731).sin() * 1e3).collect();
+            let b: Vec<f32> = (0..n).map(|i| (i as f32 * 1.37).cos() / 7.0).collect();
+            let full = n / 32 * 32;
+            let mut s = [0.0f32; 32];
+            for i in 0..full {
+                s[i % 32] += a[i] * b[i];
+            }
+            let mut width = 32;
+            while width > 1 {
+                width /= 2;
+                for l in 0..width {
+                    s[l] += s[l + width];
+                }
+            }
+            let mut expected = s[0];
+            for i in full..n {
+                expected += a[i] * b[i];
+            }
+            assert_eq!(
+                dot_single(&a, &b).to_bits(),
+                expected.to_bits(),
+                "length {n}"
+            );
+        }
+        let ints: Vec<f32> = (1..=50).map(|i| i as f32).collect();
+        assert_eq!(dot_single(&ints, &ints), 42925.0);
+    }
+
+    /// A factor kept in single precision solves as its values widened to double do, bit for bit, and a double
+    /// factor solves as before the solve took either (`axpy` and `dot`'s operations).
+    #[test]
+    fn a_single_precision_factor_solves_as_its_widened_values() {
+        let a = [4.0, 2.0, 0.5, 2.0, 3.0, 0.25, 0.5, 0.25, 2.0];
+        let u = cholesky(&a, 3).unwrap();
+        let u32: Vec<f32> = u.iter().map(|&v| v as f32).collect();
+        let widened: Vec<f64> = u32.iter().map(|&v| f64::from(v)).collect();
+        let (mut b32, mut b64) = (vec![1.0, -2.0, 0.3], vec![1.0, -2.0, 0.3]);
+        cholesky_solve(&u32, 3, &mut b32);
+        cholesky_solve(&widened, 3, &mut b64);
+        assert_eq!(b32, b64);
+        let mut b = vec![1.0, -2.0, 0.3];
+        cholesky_solve(&u, 3, &mut b);
+        let mut by_hand = vec![1.0, -2.0, 0.3];
+        for i in 0..3 {
+            by_hand[i] /= u[i * 3 + i];
+            let (head, tail) = by_hand.split_at_mut(i + 1);
+            axpy(-head[i], &u[i * 3 + i + 1..(i + 1) * 3], tail);
+        }
+        for i in (0..3).rev() {
+            let s = by_hand[i] - dot(&u[i * 3 + i + 1..(i + 1) * 3], &by_hand[i + 1..]);
+            by_hand[i] = s / u[i * 3 + i];
+        }
+        assert_eq!(b, by_hand);
+        // And it is a solution: A·x = b to the single factor's precision.
+        for r in 0..3 {
+            let ax: f64 = (0..3).map(|k| a[r * 3 + k] * b32[k]).sum();
+            assert!((ax - [1.0, -2.0, 0.3][r]).abs() < 1e-5, "row {r}: {ax}");
+        }
+    }
+
+    #[test]
+    fn rank_one_update_in_single_precision_matches_refactoring() {
+        // A = [[4, 2], [2, 3]], x = (1, 2): A + xxᵀ = [[5, 4], [4, 7]].
+        let mut u: Vec<f32> = cholesky(&[4.0, 2.0, 2.0, 3.0], 2)
+            .unwrap()
+            .iter()
+            .map(|&v| v as f32)
+            .collect();
+        assert!(cholesky_rank_one(&mut u, 2, &mut [1.0f32, 2.0], 1.0));
+        let direct = cholesky(&[5.0, 4.0, 4.0, 7.0], 2).unwrap();
+        assert!(
+            u.iter()
+                .zip(&direct)
+                .all(|(a, b)| (f64::from(*a) - b).abs() < 1e-6),
+            "{u:?} vs {direct:?}"
+        );
+        let mut eye = [1.0f32, 0.0, 0.0, 1.0];
+        assert!(!cholesky_rank_one(&mut eye, 2, &mut [2.0f32, 0.0], -1.0));
     }
 
     #[test]

@@ -1,8 +1,8 @@
 """Fold-by-fold agreement of popdecode's decoders with scikit-learn (version pinned in scripts/reference-venv.sh).
 
 Each data set gets fold numbers from scikit-learn's StratifiedKFold; `popdecode predict` and a scikit-learn
-Pipeline(StandardScaler(), decoder) are fitted on exactly those folds, and their test predictions must agree on at
-least 98 % of trials. References:
+Pipeline(StandardScaler(), decoder) are fitted on exactly those folds, and their test predictions must agree on
+every trial for the linear SVM and shrinkage LDA, on at least 97 % for the others. References:
 - linear SVM: sklearn.svm.LinearSVC (squared hinge, L2 penalty, intercept_scaling=1), solved to a tight tolerance so
   that both sides sit at the optimum of the same objective;
 - shrinkage LDA: sklearn.discriminant_analysis.LinearDiscriminantAnalysis(solver='lsqr', shrinkage='auto');
@@ -116,8 +116,8 @@ ONLY = {"invented 4 x 600 x 599": ("linear-svm",)}
 CASES = [(name, clf) for name, *_ in data_sets() for clf in REFERENCES if clf in ONLY.get(name, REFERENCES)]
 
 
-@pytest.mark.parametrize("name,classifier", CASES)
-def test_predictions_agree_fold_by_fold(name, classifier, tmp_path):
+def agreement(name, classifier, reference, extra, tmp_path):
+    """Fraction of test trials on which `popdecode predict` (with `extra` arguments) and `reference` agree."""
     X, y = next((X, y) for n, X, y in data_sets() if n == name)
     folds = np.zeros(len(y), dtype=int)
     for f, (_, test) in enumerate(StratifiedKFold(5, shuffle=True, random_state=0).split(X, y)):
@@ -128,7 +128,7 @@ def test_predictions_agree_fold_by_fold(name, classifier, tmp_path):
     csv = tmp_path / "data.csv"
     table.to_csv(csv, index=False, float_format="%.17g")
     out = subprocess.run(
-        [BIN, "predict", csv, "--label", "condition", "--fold-column", "fold", "--classifier", classifier],
+        [BIN, "predict", csv, "--label", "condition", "--fold-column", "fold", "--classifier", classifier, *extra],
         capture_output=True, text=True, check=True,
     )
     ours = pd.read_csv(pd.io.common.StringIO(out.stdout))
@@ -137,10 +137,74 @@ def test_predictions_agree_fold_by_fold(name, classifier, tmp_path):
     theirs = np.empty(len(y), dtype=object)
     for f in range(5):
         train, test = folds != f, folds == f
-        model = REFERENCES[classifier]().fit(X[train], y[train])
+        model = reference().fit(X[train], y[train])
         theirs[test] = model.predict(X[test])
-    agreement = (ours["predicted"].to_numpy() == theirs).mean()
-    print(f"{name} {classifier}: agreement {agreement:.4f}")
-    # 98 % for the decoders of the first issue, 97 % for the others (both stated in their issues).
-    floor = 0.98 if classifier in ("linear-svm", "shrinkage-lda") else 0.97
-    assert agreement >= floor, f"{name} {classifier}: agreement {agreement:.4f}"
+    share = (ours["predicted"].to_numpy() == theirs).mean()
+    print(f"{name} {classifier} {' '.join(extra)}: agreement {share:.4f}")
+    return share
+
+
+@pytest.mark.parametrize("name,classifier", CASES)
+def test_predictions_agree_fold_by_fold(name, classifier, tmp_path):
+    share = agreement(name, classifier, REFERENCES[classifier], [], tmp_path)
+    # Every test trial for the linear SVM and shrinkage LDA: their solvers were rebuilt for speed on the same
+    # objective, so a prediction may move only at an exact tie, and the speed issue asks these cases to show that none
+    # occurs. 97 % for the others (stated in their issue).
+    floor = 1.0 if classifier in ("linear-svm", "shrinkage-lda") else 0.97
+    assert share >= floor, f"{name} {classifier}: agreement {share:.4f}"
+
+
+class SquaredHingeOneVsRest(ClassifierMixin, BaseEstimator):
+    """The linear SVM's objective, one class against the rest, minimised in numpy to a gradient of 1e-10 (relative to
+    the gradient at w = 0) by the finite Newton method with an exact line search (Keerthi & DeCoste, JMLR 2005):
+    written from the definition here because at large C scikit-learn's LinearSVC stops at its iteration cap on these
+    data (1.9.1: ConvergenceWarning at C = 500 after 100 000 iterations)."""
+
+    def __init__(self, C=1.0):
+        self.C = C
+
+    def fit(self, X, y):
+        self.classes_ = np.unique(y)
+        A = np.hstack([X, np.ones((len(X), 1))])
+        self.w_ = np.array([self._solve(A, np.where(y == k, 1.0, -1.0)) for k in self.classes_])
+        return self
+
+    def _solve(self, A, s):
+        w = np.zeros(A.shape[1])
+        first = None
+        for _ in range(500):
+            m = s * (A @ w)
+            inside = m < 1
+            g = w - 2 * self.C * A[inside].T @ (s[inside] * (1 - m[inside]))
+            first = np.linalg.norm(g) if first is None else first
+            if np.linalg.norm(g) <= 1e-10 * first:
+                return w
+            H = np.eye(len(w)) + 2 * self.C * A[inside].T @ A[inside]
+            d = -np.linalg.solve(H, g)
+            dm, t = s * (A @ d), 1.0
+            for _ in range(100):
+                slack = 1 - m - t * dm
+                on = slack > 0
+                slope = (w + t * d) @ d - 2 * self.C * np.sum(slack[on] * dm[on])
+                next_t = t - slope / (d @ d + 2 * self.C * np.sum(dm[on] ** 2))
+                if abs(next_t - t) <= 1e-15 * max(abs(t), 1.0):
+                    break
+                t = next_t
+            w = w + t * d
+        raise AssertionError("the reference Newton method did not converge")
+
+    def predict(self, X):
+        scores = np.hstack([X, np.ones((len(X), 1))]) @ self.w_.T
+        if len(self.classes_) == 2:
+            return self.classes_[(scores[:, 1] > scores[:, 0]).astype(int)]
+        return self.classes_[np.argmax(scores, axis=1)]
+
+
+@pytest.mark.parametrize("name", ["invented 4 x 58 x 52", "invented 3 x 100 x 120", "invented 4 x 250 x 199"])
+def test_linear_svm_in_double_precision_throughout_agrees(name, tmp_path):
+    """At C = 500 the bound on the Hessian's conditioning is past the linear SVM's limit for single precision
+    (`SINGLE_PRECISION_LIMIT`), so these fits (the primal from w = 0; the dual; a short dual, then the primal) run
+    in double precision throughout: that path must agree on every test trial too."""
+    reference = standardised(lambda: SquaredHingeOneVsRest(C=500.0))
+    share = agreement(name, "linear-svm", reference, ["--c", "500"], tmp_path)
+    assert share == 1.0, f"{name}: agreement {share:.4f}"
