@@ -235,6 +235,41 @@ fn a_binned_table_of_distinct_trials_at_distinct_times_is_refused_without_rows_s
     );
 }
 
+/// A table of one row per trial given where a binned table is expected (the page's binned mode, `--trial`/`--time`)
+/// is named as such, not only as a cell that is not a number.
+#[test]
+fn a_trial_table_read_as_binned_is_named_as_such() {
+    let csv = "trial,odour,u1,u2\nt1,eugenol,3,4\nt2,citral,5,1\n";
+    let e = input::time_course(
+        &[FileBytes {
+            name: "odours.csv",
+            bytes: csv.as_bytes(),
+        }],
+        &recipe("odour", 1).columns,
+        &TimeSettings::binned("trial", "u1").input,
+    )
+    .unwrap_err()
+    .to_string();
+    // The time column is a number here, and the binned reader's own message stays.
+    assert!(!e.contains("one row per trial rather"), "{e}");
+    let e = input::time_course(
+        &[FileBytes {
+            name: "odours.csv",
+            bytes: csv.as_bytes(),
+        }],
+        &recipe("u2", 1).columns,
+        &TimeSettings::binned("trial", "odour").input,
+    )
+    .unwrap_err()
+    .to_string();
+    assert_eq!(
+        e,
+        "odours.csv, line 2, column 'odour': 'eugenol' is not a number (bin time in seconds); column 'odour' holds \
+         text from its first row, so this looks like a table with one row per trial rather than one row per trial \
+         and time bin"
+    );
+}
+
 #[test]
 fn a_binned_table_with_too_many_bins_for_generalization_is_refused_by_the_plan() {
     let mut csv = String::from("trial,time,label,u1\n");

@@ -50,7 +50,18 @@ pub fn read(t: &Table, columns: &Columns, trial: &str, time: &str) -> Result<Tim
     let mut times: Vec<f64> = Vec::new();
     let mut row_time = Vec::with_capacity(t.rows.len());
     for r in 0..t.rows.len() {
-        let v = number_cell(t, r, time_c, "bin time in seconds")?;
+        let v = match number_cell(t, r, time_c, "bin time in seconds") {
+            Ok(v) => v,
+            // Text from the first row on: most likely a table of one row per trial, read as a binned table.
+            Err(Error::Input(m)) if r == 0 && matches!(t.cell(0, time_c), Cell::NotNumber) => {
+                return Err(Error::Input(format!(
+                    "{m}; column '{}' holds text from its first row, so this looks like a table with one row per \
+                     trial rather than one row per trial and time bin",
+                    t.headers[time_c]
+                )))
+            }
+            Err(e) => return Err(e),
+        };
         row_time.push(v);
         times.push(v);
     }

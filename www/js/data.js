@@ -236,16 +236,26 @@
 
   // The label column a new user most likely means: a handful of distinct values (2 to 12), each on several trials
   // (3 or more), text or numbers alike (conditions coded 1–4 are common); never a column that counts trials.
-  // Among those, a column not named like a session or block, then the first in the file. Exported for tests.
+  // Text before numbers (a neuron's small spike counts also take a handful of values), and a text column whose
+  // handful has one or two values on fewer trials (a mistyped label) before any column of numbers: the run then
+  // names the rare value, where guessing a neuron would leave the user wondering why. Among those, a column not
+  // named like a session or block, then the first in the file. Exported for tests.
   PD.suggestLabel = function (info, exclude = []) {
     const cols = info.headers.map((name, i) => ({ name, i, c: info.columns[i] }))
-      .filter((x) => !exclude.includes(x.name) && !x.c.counter);
-    const handful = cols.filter((x) => x.c.values && x.c.values.length >= 2 && x.c.values.length <= 12 &&
-      Math.min(...x.c.values.map(([, n]) => n)) >= 3);
-    const best = handful.find((x) => !GROUP_LIKE.test(x.name)) || handful[0];
+      .filter((x) => !exclude.includes(x.name) && !x.c.counter && x.c.values);
+    const frequent = (x) => x.c.values.filter(([, n]) => n >= 3).length;
+    const handful = cols.filter((x) => x.c.values.length <= 12 && x.c.values.length >= 2 &&
+      frequent(x) === x.c.values.length);
+    const nearly = cols.filter((x) => !x.c.numeric && frequent(x) >= 2 && frequent(x) <= 12 &&
+      x.c.values.length - frequent(x) <= 2);
+    const named = (x) => !GROUP_LIKE.test(x.name);
+    const best = handful.find((x) => !x.c.numeric && named(x)) || nearly.find(named) ||
+      handful.find(named) || handful[0];
     if (best) return best.name;
-    const text = cols.find((x) => !x.c.numeric && (!x.c.values || x.c.values.length < info.rows));
-    return (text || cols[0] || { name: info.headers[0] }).name;
+    const all = info.headers.map((name, i) => ({ name, c: info.columns[i] }))
+      .filter((x) => !exclude.includes(x.name) && !x.c.counter);
+    const text = all.find((x) => !x.c.numeric && (!x.c.values || x.c.values.length < info.rows));
+    return (text || all[0] || { name: info.headers[0] }).name;
   };
 
   const find = (headers, re, fallback) => headers.find((h) => re.test(h)) ?? fallback;
