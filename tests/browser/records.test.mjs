@@ -187,6 +187,27 @@ test('a numeric condition column is chosen as label; a trial counter is left out
   await b.context.close();
 });
 
+test('a mistyped label value does not make a neuron the label; a trial table in binned mode is named as such', async () => {
+  const b = await openPage();
+  const { page } = b;
+  // Four odours on 12 trials each, one mistyped; three neurons of small counts (0–3, each on 12 trials), which a
+  // guess by "a handful of values" alone would take for a coded condition.
+  const odours = ['eugenol', 'citral', 'limonene', 'vanillin'];
+  const rows = Array.from({ length: 48 }, (_, i) => `t${i + 1},${i === 6 ? 'eugenoll' : odours[i % 4]},${(i * 7) % 4},${(i * 3) % 4},${(i * 5 + 1) % 4}`);
+  const file = csvFile('typo.csv', 'trial,odour,u1,u2,u3\n' + rows.join('\n') + '\n');
+  await page.setInputFiles('#file', file);
+  await page.waitForSelector('#data-view:not([hidden])');
+  assert.equal(await page.inputValue('#label'), 'odour');
+  // The same table where a binned table is expected: the message says what it looks like and what to choose.
+  await page.check('input[name=kind][value=binned]');
+  await page.setInputFiles('#file', file);
+  await page.waitForSelector('#data-error:not([hidden])');
+  const error = await page.textContent('#data-error');
+  assert.match(error, /typo\.csv, line 2, column 'odour': 'eugenol' is not a number \(bin time in seconds\); column 'odour' holds text from its first row, so this looks like a table with one row per trial: choose “one row per trial” under “What the data hold”/);
+  assert.doesNotMatch(error, /--[a-z]/);
+  await b.context.close();
+});
+
 test('messages speak the page\'s words: no flags, no parser words; settings problems beside their fields', async () => {
   const b = await openPage();
   const { page } = b;

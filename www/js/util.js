@@ -90,6 +90,8 @@ window.PD = { state: {}, views: {} };
       .replace(/leave it out \(--ignore '[^']*'\)/g, 'leave it out (untick it in the feature list)')
       .replace(/among the features \(--features\)/g, 'among the features (tick it in the feature list)')
       .replace(/name the feature columns \(--features\)/g, 'choose the feature columns')
+      .replace(/so this looks like a table with one row per trial rather than one row per trial and time bin/g,
+        'so this looks like a table with one row per trial: choose “one row per trial” under “What the data hold”, or the column of bin times')
       .replace(/Decode it with a regression decoder \(ridge regression, or circular ridge regression for an angle\), or choose a column of conditions as the label/g,
         'To decode it, use “Decode a continuous variable” further down; to decode classes, choose a column of conditions as the label')
       .replace(/--([a-z][a-z-]*)/g, (_, f) => SETTING_NAMES[f] || 'the matching setting');
