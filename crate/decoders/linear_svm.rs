@@ -22,7 +22,8 @@
 //! Where the data's scale bounds the problem's conditioning ([`single_precision`]), the dual's passes run on rows
 //! rounded to single precision and the Newton method keeps its Cholesky factor in single precision; the result is
 //! always finished and tested in double precision (the dual from the same α, or the Newton method's exact gradient
-//! and line search), so the optimum and its stopping rules are those of a fit in double precision throughout.
+//! and line search), so the objective and its stopping rules are those of a fit in double precision throughout,
+//! and the weights differ from such a fit's only within those rules' tolerances.
 
 use super::linalg::{
     axpy, cholesky_owned, cholesky_rank_one, cholesky_solve, cholesky_with_ridge, dot_wide, gram,
@@ -55,7 +56,8 @@ pub const SHORT_DUAL_PASSES: usize = 60;
 pub const WIDE_DUAL_PASSES: usize = 150;
 /// Largest `2C·Σᵢ‖x̃ᵢ‖²` (over a fit's training trials) for which the solvers work partly in single precision
 /// ([`single_precision`]): 2²³, so that the bound it sets on the Hessian's condition number, times single
-/// precision's rounding unit 2⁻²⁴, stays at or below ½.
+/// precision's rounding unit 2⁻²⁴, stays near ½. A heuristic: the bound (a trace) is far above the largest
+/// eigenvalue on real data, and the factor's updates add rounding of their own.
 pub const SINGLE_PRECISION_LIMIT: f64 = 8_388_608.0;
 /// Primal route: stop when the gradient norm falls below this fraction of its value at w = 0.
 pub const NEWTON_TOLERANCE: f64 = 1e-8;
@@ -105,9 +107,7 @@ impl Decoder for LinearSvm {
                 };
                 primal_newton(x, n, p, &signs, self.c, start, single)
             } else {
-                // Up to three trials per feature the dual's optimum is the fit's; beyond, the dual only starts the
-                // primal Newton method, whose stopping rule is the tighter one (`dual_passes`).
-                let dual_route = passes == HANDOVER_PASSES;
+                let dual_route = dual_route(n, p);
                 let mut alpha = vec![0.0; n];
                 let rows = if single {
                     Rows::Single(&rows_single)
@@ -155,17 +155,25 @@ impl Decoder for LinearSvm {
 /// grid's tables (2026-12-05, one thread): 4000 × 1000 5.9 → 3.7 s per repeat, 2000 × 400 3.8 → 3.2 s,
 /// 400 × 200 0.178 → 0.126 s, 1000 × 1000 1.27 → 0.96 s, 248 × 100 0.080 → 0.075 s.
 ///
-/// Neither use can change the optimum or the test that it is reached: a single-precision pass of the dual only
-/// chooses where the double-precision solver starts, and a factor in single precision only changes the direction of
-/// a Newton step, whose gradient and exact line search are computed in double, so every step still descends and the
-/// method stops on the same rule. What a factor's rounding can cost is extra steps, more of them the worse the
-/// Hessian `I + 2C·Σ x̃ᵢx̃ᵢᵀ` is conditioned; its eigenvalues lie between 1 and `1 + 2C·Σ‖x̃ᵢ‖²` (`sq_norms` holds
-/// `‖x̃ᵢ‖²`), so single precision is used only while that bound stays under [`SINGLE_PRECISION_LIMIT`]. Standardised
-/// features give about `2C·n·(p + 1)`: 6.4 × 10⁶ for 3200 training trials × 1000 neurons at C = 1; larger C or raw
-/// counts fall back to double precision throughout.
+/// Neither use changes the objective or the test that its optimum is reached: a single-precision pass of the dual
+/// only chooses where the double-precision solver starts, and a factor in single precision only changes the
+/// direction of a Newton step, whose gradient and exact line search are computed in double, so every step still
+/// descends and the method stops on the same rule; the weights returned differ from a fit in double precision
+/// throughout only within the stopping rules' tolerances. What a factor's rounding can cost is extra steps, more
+/// of them the worse the Hessian `I + 2C·Σ x̃ᵢx̃ᵢᵀ` is conditioned (at the step cap the method goes on in double:
+/// [`primal_newton`]); its eigenvalues lie between 1 and `1 + 2C·Σ‖x̃ᵢ‖²` (`sq_norms` holds `‖x̃ᵢ‖²`), so single
+/// precision is used only while that bound stays under [`SINGLE_PRECISION_LIMIT`]. Standardised features give about
+/// `2C·n·(p + 1)`: 6.4 × 10⁶ for 3200 training trials × 1000 neurons at C = 1; larger C or more trials fall back to
+/// double precision throughout.
 fn single_precision(sq_norms: &[f64], c: f64) -> bool {
     let bound = 2.0 * c * sq_norms.iter().sum::<f64>();
     bound.is_finite() && bound <= SINGLE_PRECISION_LIMIT
+}
+
+/// Whether the dual's optimum is the fit (up to three training trials per feature, +1 for the intercept); beyond, the
+/// dual at most starts the primal Newton method, whose stopping rule is the tighter one ([`dual_passes`]).
+fn dual_route(n: usize, p: usize) -> bool {
+    n <= 3 * (p + 1)
 }
 
 /// Passes of the dual a fit on `n` trials of `p` features gets before the primal Newton method takes over from where
@@ -188,7 +196,7 @@ fn single_precision(sq_norms: &[f64], c: f64) -> bool {
 ///   (2400 × 400, 1200 × 200), at 8 it nearly doubled the time (800 × 100, 1600 × 200).
 fn dual_passes(n: usize, p: usize) -> usize {
     let q = p + 1;
-    if n <= 3 * q {
+    if dual_route(n, p) {
         HANDOVER_PASSES
     } else if 2 * n <= 7 * q && q >= 600 {
         WIDE_DUAL_PASSES
@@ -264,6 +272,8 @@ fn coordinate_descent<T: Real>(
         for s in 0..active {
             // A draw below `active − s` by multiplying and keeping the high half (Lemire, ACM TOMACS 2019) rather
             // than a 64-bit remainder, a division that cost 3–8 % of small fits' time (248 × 100, 2026-12-04).
+            // Without Lemire's rejection step the draw is biased by at most n/2⁶⁴, as the remainder was: harmless
+            // for a visiting order.
             let j = s + ((u128::from(order.next()) * (active - s) as u128) >> 64) as usize;
             index.swap(s, j);
         }
@@ -421,10 +431,14 @@ multiversion! {
         start: Start,
         single: bool,
     ) -> (Vec<f64>, bool) {
-        if single {
-            newton::<f32>(x, n, p, signs, c, start)
-        } else {
-            newton::<f64>(x, n, p, signs, c, start)
+        if !single {
+            return newton::<f64>(x, n, p, signs, c, start);
+        }
+        match newton::<f32>(x, n, p, signs, c, start) {
+            // At the step cap, the single-precision factor's rounding may be what held the method back (every step
+            // still descends, but the steps may shrink the gradient slowly): go on in double from where it stopped.
+            (w, true) if !crate::stop::requested() => newton::<f64>(x, n, p, signs, c, Start::From(&w)),
+            done => done,
         }
     }
 }
@@ -762,7 +776,54 @@ mod tests {
     #[test]
     fn a_dual_still_moving_is_finished_by_the_primal() {
         assert_eq!(dual_passes(200, 100), HANDOVER_PASSES);
+        assert!(dual_route(303, 100) && !dual_route(304, 100));
         assert_hand_over_reaches_the_optimum(200, 100, 7, HANDOVER_PASSES);
+    }
+
+    /// A short run of the dual that meets its own, looser rule is still finished by the primal Newton method: the
+    /// fit returns the primal's optimum (to 1e-6), not the dual's stopping point (about 1e-3 from it).
+    #[test]
+    fn a_short_dual_that_met_its_rule_is_still_finished_by_the_primal() {
+        let (n, p, c) = (800, 199, 1.0);
+        assert_eq!(dual_passes(n, p), SHORT_DUAL_PASSES);
+        let (mut x, signs) = weakly_labelled(n, p, 11);
+        // Well apart along feature 0, so that the dual meets its rule within its short run.
+        for i in 0..n {
+            x[i * p] = 3.0 * signs[i] + 0.1 * x[i * p];
+        }
+        let sq: Vec<f64> = x.chunks_exact(p).map(|r| dot_wide(r, r) + 1.0).collect();
+        let mut alpha = vec![0.0; n];
+        let (dual_w, moving) = dual_cd(
+            Rows::Double(&x),
+            p,
+            &signs,
+            &sq,
+            c,
+            SHORT_DUAL_PASSES,
+            &mut alpha,
+        );
+        assert!(
+            !moving,
+            "this problem must meet the dual's rule within the short run"
+        );
+        let optimum = primal_from_zero(&x, n, p, &signs, c);
+        let scale = optimum.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+        let off = |w: &[f64]| {
+            w.iter()
+                .zip(&optimum)
+                .map(|(a, b)| (a - b).abs())
+                .fold(0.0, f64::max)
+                / scale
+        };
+        assert!(
+            off(&dual_w) > 1e-5,
+            "the dual's stopping point must differ: {:e}",
+            off(&dual_w)
+        );
+        let y: Vec<usize> = signs.iter().map(|&s| usize::from(s > 0.0)).collect();
+        let model = LinearSvm { c }.fit(&x, n, p, &y, 2);
+        let weights = model.weights().expect("a linear model");
+        assert!(off(&weights[0].1) <= 1e-6, "{:e}", off(&weights[0].1));
     }
 
     /// Four trials per feature, 200 features: the primal starts where a short run of the dual stopped.

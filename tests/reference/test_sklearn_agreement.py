@@ -148,8 +148,8 @@ def agreement(name, classifier, reference, extra, tmp_path):
 def test_predictions_agree_fold_by_fold(name, classifier, tmp_path):
     share = agreement(name, classifier, REFERENCES[classifier], [], tmp_path)
     # Every test trial for the linear SVM and shrinkage LDA: their solvers were rebuilt for speed on the same
-    # objective, so a prediction may move only at an exact tie, and the speed issue asks these cases to show that none
-    # occurs. 97 % for the others (stated in their issue).
+    # objective, so a prediction may move only where two classes' scores are within the solvers' tolerances, and the
+    # speed issue asks these cases to show that none does. 97 % for the others (stated in their issue).
     floor = 1.0 if classifier in ("linear-svm", "shrinkage-lda") else 0.97
     assert share >= floor, f"{name} {classifier}: agreement {share:.4f}"
 
@@ -166,7 +166,9 @@ class SquaredHingeOneVsRest(ClassifierMixin, BaseEstimator):
     def fit(self, X, y):
         self.classes_ = np.unique(y)
         A = np.hstack([X, np.ones((len(X), 1))])
-        self.w_ = np.array([self._solve(A, np.where(y == k, 1.0, -1.0)) for k in self.classes_])
+        # Two classes: one problem, the second class positive (as popdecode fits it); more: one against the rest each.
+        positive = self.classes_[1:] if len(self.classes_) == 2 else self.classes_
+        self.w_ = np.array([self._solve(A, np.where(y == k, 1.0, -1.0)) for k in positive])
         return self
 
     def _solve(self, A, s):
@@ -196,7 +198,7 @@ class SquaredHingeOneVsRest(ClassifierMixin, BaseEstimator):
     def predict(self, X):
         scores = np.hstack([X, np.ones((len(X), 1))]) @ self.w_.T
         if len(self.classes_) == 2:
-            return self.classes_[(scores[:, 1] > scores[:, 0]).astype(int)]
+            return self.classes_[(scores[:, 0] > 0).astype(int)]
         return self.classes_[np.argmax(scores, axis=1)]
 
 
