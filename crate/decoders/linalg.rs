@@ -119,10 +119,17 @@ pub fn dot_wide(a: &[f64], b: &[f64]) -> f64 {
         // SAFETY: `avx2()` is true only when the processor reports AVX2.
         return unsafe { dot_wide_avx2(a, b) };
     }
-    const LANES: usize = 16;
+    folded_dot::<f64, 16>(a, b)
+}
+
+/// The portable body of [`dot_wide`] and [`dot_single`]: element `i` joins sum `i mod LANES`, the sums are folded in
+/// halves (`sₗ + sₗ₊LANES/2`, then `sₗ + sₗ₊LANES/4`, …), then the tail is added one element at a time. `LANES` is a
+/// power of two.
+#[inline(always)]
+fn folded_dot<T: Real, const LANES: usize>(a: &[T], b: &[T]) -> T {
     let n = a.len().min(b.len());
     let (a, b) = (&a[..n], &b[..n]);
-    let mut s = [0.0f64; LANES];
+    let mut s = [T::ZERO; LANES];
     let (mut ca, mut cb) = (a.chunks_exact(LANES), b.chunks_exact(LANES));
     for (x, y) in (&mut ca).zip(&mut cb) {
         for l in 0..LANES {
@@ -133,11 +140,12 @@ pub fn dot_wide(a: &[f64], b: &[f64]) -> f64 {
     while width > 1 {
         width /= 2;
         for l in 0..width {
-            s[l] += s[l + width];
+            let upper = s[l + width];
+            s[l] += upper;
         }
     }
     let mut total = s[0];
-    for (x, y) in ca.remainder().iter().zip(cb.remainder()) {
+    for (&x, &y) in ca.remainder().iter().zip(cb.remainder()) {
         total += x * y;
     }
     total
@@ -186,28 +194,7 @@ pub fn dot_single(a: &[f32], b: &[f32]) -> f32 {
         // SAFETY: `avx2()` is true only when the processor reports AVX2.
         return unsafe { dot_single_avx2(a, b) };
     }
-    const LANES: usize = 32;
-    let n = a.len().min(b.len());
-    let (a, b) = (&a[..n], &b[..n]);
-    let mut s = [0.0f32; LANES];
-    let (mut ca, mut cb) = (a.chunks_exact(LANES), b.chunks_exact(LANES));
-    for (x, y) in (&mut ca).zip(&mut cb) {
-        for l in 0..LANES {
-            s[l] += x[l] * y[l];
-        }
-    }
-    let mut width = LANES;
-    while width > 1 {
-        width /= 2;
-        for l in 0..width {
-            s[l] += s[l + width];
-        }
-    }
-    let mut total = s[0];
-    for (x, y) in ca.remainder().iter().zip(cb.remainder()) {
-        total += x * y;
-    }
-    total
+    folded_dot::<f32, 32>(a, b)
 }
 
 /// [`dot_single`] in AVX2 registers, bit for bit, as [`dot_wide_avx2`] is for [`dot_wide`]: sum `8k + j` is lane `j`
