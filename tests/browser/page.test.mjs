@@ -314,6 +314,20 @@ test('decoders side by side, labelled exploratory', async () => {
   assert.equal(rows, 8, 'a header and seven decoders');
   assert.match(await b.page.textContent('#views'), /Exploratory only/);
   assert.match(await b.page.textContent('#views table'), /shrinkage LDA\s*\d+\.\d\s%/);
+  // Where it came from names every decoder and the split they shared (the example holds sessions out), not the one
+  // decoder and the Folds setting of the form.
+  const provenance = await b.page.textContent('#views .provenance');
+  assert.match(provenance, /with every decoder \(C = 1 for those that take it\); leave one 'session' out \(the Folds setting, 5, not used\); 2 repeats; 0 shuffles/);
+  assert.doesNotMatch(provenance, /linear SVM/);
+  // Another decoder on the form does not make the comparison stale (it ran them all); another C does.
+  await b.page.selectOption('#classifier', 'shrinkage-lda');
+  await b.page.dispatchEvent('#classifier', 'change');
+  await b.page.fill('#c', '2');
+  await b.page.dispatchEvent('#c', 'change');
+  await b.page.waitForFunction(() => /Not the current settings/.test(document.querySelector('#views .stale').textContent));
+  const stale = await b.page.textContent('#views .stale');
+  assert.match(stale, /C \(1 → 2\)/);
+  assert.doesNotMatch(stale, /Decoder/);
   assertLocalOnly(assert, b.requests, server.origin);
   assert.deepEqual(b.errors, []);
   await b.context.close();

@@ -67,7 +67,7 @@
       const what = el('span', null, 'record-text');
       what.appendChild(el('strong', `Run ${r.id}`));
       what.appendChild(document.createTextNode(` · ${PD.kindWords(r)} · ${r.files.map((f) => f.name).join(' + ')} · ` +
-        `${PD.DECODER_NAMES[r.recipe.classifier]}${r.kind === 'compare' ? ' and the others' : ''} · ${PD.clock(r.finished)} — ${PD.unbroken(headline(r))}`));
+        `${r.kind === 'compare' ? 'every decoder' : PD.DECODER_NAMES[r.recipe.classifier]} · ${PD.clock(r.finished)} — ${PD.unbroken(headline(r))}`));
       li.appendChild(what);
       const buttons = el('span', null, 'record-buttons');
       const shown = S.onView.includes(r.id);
@@ -119,8 +119,10 @@
       return `${f.name}${sha ? ` (SHA-256 ${sha})` : ''}`;
     }).join(' and ');
     p.appendChild(el('strong', 'From '));
-    const report = record.kind === 'compare' ? null : record.result.report;
-    p.appendChild(document.createTextNode(`${files}, with ${PD.describeSettings(record.recipe, report && report.design, report && report.recipe)}` +
+    // A comparison's decoders share one split and one recipe: the first report says which split was used.
+    const compare = record.kind === 'compare';
+    const report = compare ? (record.result.rows.find((x) => x.report) || {}).report : record.result.report;
+    p.appendChild(document.createTextNode(`${files}, with ${PD.describeSettings(record.recipe, report && report.design, report && report.recipe, compare)}` +
       (record.draws ? `; ${record.draws} random subsets per size` : '') +
       `. Finished at ${PD.clock(record.finished)} in ${record.seconds.toFixed(1)} s.`));
     return p;
@@ -142,7 +144,9 @@
     const report = record.result && record.result.report;
     const split = report && report.design && report.design.split;
     const foldsUnused = ['leave_one_group_out', 'leave_one_out'].includes(split) && current.folds !== 'loo' && record.recipe.folds !== 'loo';
-    out.push(...PD.recipeChanges(record.recipe, current).filter((c) => !(foldsUnused && c.startsWith('Folds ('))));
+    // A comparison fitted every decoder: the Decoder setting did not choose among them.
+    out.push(...PD.recipeChanges(record.recipe, current).filter((c) => !(foldsUnused && c.startsWith('Folds ('))
+      && !(record.kind === 'compare' && c.startsWith('Decoder ('))));
     if (record.kind === 'neurons' && PD.readDraws() !== record.draws) out.push(`random subsets per size (${record.draws} → ${$('draws').value})`);
     return out;
   };

@@ -330,8 +330,10 @@
   // The recipe's settings in words, for a record's heading and for saying what changed since. `design`, when
   // given, is the design the run used (its report's `design`): a split that ignores the Folds setting says so.
   // `ran`, when given, is the recipe as the run used it (its report's `recipe`): fewer repeats than asked are said.
-  PD.describeSettings = function (r, design, ran) {
-    const parts = [PD.DECODER_NAMES[r.classifier] + (r.tune ? ', C chosen inside each training fold' : PD.WITH_C.includes(r.classifier) ? `, C = ${r.c}` : '')];
+  // `every`: the run fitted every decoder on these settings (the comparison), not the one the recipe names.
+  PD.describeSettings = function (r, design, ran, every = false) {
+    const parts = [every ? `every decoder (C = ${r.c} for those that take it)`
+      : PD.DECODER_NAMES[r.classifier] + (r.tune ? ', C chosen inside each training fold' : PD.WITH_C.includes(r.classifier) ? `, C = ${r.c}` : '')];
     const split = design && design.split;
     const folds = split === 'leave_one_group_out' ? `leave one '${r.columns.group}' out (the Folds setting, ${r.folds}, not used)`
       : split === 'leave_one_out' ? 'leave-one-out' : `folds ${r.folds}`;
