@@ -249,7 +249,9 @@ fn identical_splits_run_once_and_leave_one_out_is_cautioned() {
     );
     let methods = popdecode::analyses::trial_table::methods::paragraph(&report);
     assert!(
-        methods.contains("In one repeat") && methods.contains("biased below chance"),
+        methods.contains("In one repeat")
+            && methods.contains("biased below chance")
+            && methods.contains("so a single repeat was run (instead of 30"),
         "{methods}"
     );
 
@@ -278,6 +280,16 @@ fn identical_splits_run_once_and_leave_one_out_is_cautioned() {
         .warnings
         .iter()
         .any(|w| w.contains("biased below chance")));
+
+    // One repeat asked for, with trials left out by balancing: the paragraph gives no reason for a cut that was not
+    // made (it once said every trial was kept and every repeat would split alike; found by a review).
+    r.repeats = 1;
+    let report = analyse(&unequal, &r);
+    let methods = popdecode::analyses::trial_table::methods::paragraph(&report);
+    assert!(
+        methods.contains("In one repeat") && !methods.contains("single repeat was run"),
+        "{methods}"
+    );
 }
 
 /// The caution's claim, on invented data without information (Kohavi 1995 describes the mechanism): with

@@ -66,12 +66,9 @@ pub fn resampling(
         }
         Split::Pseudo { .. } => unreachable!("answered above"),
     };
+    // Why fewer repeats ran than were asked is the result's own caution (the scheme's), which joins the paragraph
+    // among its notes only when repeats were cut: a single repeat asked for needs no reason.
     let mut out = format!("{in_each}, {balance}{split}.");
-    if matches!(design.split, Split::LeaveOneOut | Split::LeaveOneGroupOut) && rc.repeats == 1 {
-        out.push_str(
-            " A single repeat was run because, with every trial kept, every repeat would split the trials alike.",
-        );
-    }
     if design.split == Split::LeaveOneOut {
         out.push_str(&format!(" Caution: {LEAVE_ONE_OUT_CAUTION}."));
     }

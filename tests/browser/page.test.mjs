@@ -351,6 +351,12 @@ test('the neuron analyses in the page give the command line\'s bytes', async () 
   cli(['neurons', join(ROOT, 'samples', 'odours.csv'), '--recipe', recipeFile, '--draws', '2', '--quiet', '--json', out]);
   assert.equal(json, readFileSync(out, 'utf8'), 'page JSON and CLI JSON differ');
   assert.deepEqual(report.dropping.map((d) => d.size), [1, 2, 4, 8, 16, 32, 52]);
+  // A caution that names no flag is shown as the result says it, word for word (the page once read "is expected to
+  // be lower" as a parser's "expected …" and replaced it; found by a review).
+  const shown = (await b.page.textContent('#views .view')).replace(/\s+/g, ' ');
+  const plain = report.warnings.filter((w) => !w.includes('--'));
+  assert.ok(plain.some((w) => /expected to be lower/.test(w)), 'the selection caution is among the warnings');
+  for (const w of plain) assert.ok(shown.includes(w.replace(/`/g, '“').replace(/\s+/g, ' ')), `shown as said: ${w}`);
   assertLocalOnly(assert, b.requests, server.origin);
   assert.deepEqual(b.errors, []);
   await b.context.close();

@@ -227,6 +227,10 @@ test('messages speak the page\'s words: no flags, no parser words; settings prob
   await page.waitForFunction(() => /could not be loaded/.test(document.getElementById('recipe-status').textContent));
   const status = await page.textContent('#recipe-status');
   assert.doesNotMatch(status, FLAG_OR_PARSER, status);
+  // A recipe cut short: the parser's "EOF while parsing" in words.
+  await page.setInputFiles('#recipe-file', csvFile('cut.recipe.json', '{"format": "popdecode-recipe/1", "columns": {'));
+  await page.waitForFunction(() => /ends too early/.test(document.getElementById('recipe-status').textContent));
+  assert.doesNotMatch(await page.textContent('#recipe-status'), FLAG_OR_PARSER);
   // Settings problems beside their fields, in words.
   await example(page);
   await set(page, 'shuffles', '-1');

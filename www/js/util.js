@@ -98,13 +98,16 @@ window.PD = { state: {}, views: {} };
     const kinds = { usize: 'a whole number', u64: 'a whole number', f64: 'a number', 'a boolean': 'yes or no',
       'a string': 'text', 'a sequence': 'a list', bool: 'yes or no' };
     const kind = (k) => kinds[k.trim()] || 'another kind of value';
+    // A parser's message says where it stopped (the core's "not a valid recipe: …", or serde's own "at line 1
+    // column 45"); a result's caution never does, so its words (e.g. "is expected to be lower") are left alone.
+    const parser = /not a valid |at line \d+ column \d+/.test(m);
     m = m.replace(/missing field `([^`]*)`/g, 'the setting “$1” is missing')
       .replace(/unknown field `([^`]*)`, expected[^.;]*/g, '“$1” is not a setting popdecode knows')
       .replace(/unknown variant `([^`]*)`, expected[^.;]*/g, '“$1” is not one of the accepted values')
       .replace(/invalid type: ([^,]*), expected ([^.;]*?)(?= at line|$|[.;])/g, (_, got, want) => `a setting holds ${got.replace(/^(integer|floating point|string|map|sequence|boolean)\s*/, '').replace(/`/g, '') || 'a value'} where ${kind(want)} is needed`)
       .replace(/invalid value: ([^,]*), expected ([^.;]*?)(?= at line|$|[.;])/g, (_, got, want) => `a setting holds ${got.replace(/`/g, '')} where ${kind(want)} is needed`)
       .replace(/ at line \d+ column \d+/g, '')
-      .replace(/\b(expected|EOF while parsing)[^.;]*/g, (s) => (/EOF/.test(s) ? 'the file ends too early' : 'the file is not in the expected form'))
+      .replace(/\b(expected|EOF while parsing)[^.;]*/g, (s) => (!parser ? s : /EOF/.test(s) ? 'the file ends too early' : 'the file is not in the expected form'))
       .replace(/`/g, '“');
     return m;
   };
