@@ -43,7 +43,7 @@ test('example run matches the command line byte for byte', async () => {
   const methods = await b.page.textContent('#views .methods');
   assert.match(methods, /SHA-256 [0-9a-f]{64}/);
   // The example holds sessions out in turn: the settings it came from say so, not "folds 5".
-  assert.match(await b.page.textContent('#views .provenance'), /leave one 'session' out \(the Folds setting, 5, not used\); 4 repeats/);
+  assert.match(await b.page.textContent('#views .provenance'), /leave one 'session' out \(Folds 5, at least the 4 groups\); 4 repeats/);
   assert.deepEqual(b.errors, []);
   assertLocalOnly(assert, b.requests, server.origin);
   await b.context.close();
@@ -317,8 +317,19 @@ test('decoders side by side, labelled exploratory', async () => {
   // Where it came from names every decoder and the split they shared (the example holds sessions out), not the one
   // decoder and the Folds setting of the form.
   const provenance = await b.page.textContent('#views .provenance');
-  assert.match(provenance, /with every decoder \(C = 1 for those that take it\); leave one 'session' out \(the Folds setting, 5, not used\); 2 repeats; 0 shuffles/);
+  assert.match(provenance, /with every decoder \(C = 1 for those that take it\); leave one 'session' out \(Folds 5, at least the 4 groups\); 2 repeats; 0 shuffles/);
   assert.doesNotMatch(provenance, /linear SVM/);
+  // Folds at or above the 4 sessions keeps each session held out in turn: nothing changed; Folds 3 splits the
+  // sessions into 3 folds: stale (found by a review: it once stayed fresh).
+  const folds = async (v) => { await b.page.fill('#folds', v); await b.page.dispatchEvent('#folds', 'change'); };
+  await folds('6');
+  await b.page.waitForFunction(() => /Folds \(6\) is at least/.test(document.getElementById('scheme').textContent));
+  assert.equal(await b.page.textContent('#views .stale'), '');
+  await folds('3');
+  await b.page.waitForFunction(() => /Not the current settings/.test(document.querySelector('#views .stale').textContent));
+  assert.match(await b.page.textContent('#views .stale'), /Folds \(5 → 3\)/);
+  await folds('5');
+  await b.page.waitForFunction(() => document.querySelector('#views .stale').textContent === '');
   // Another decoder on the form does not make the comparison stale (it ran them all); another C does.
   await b.page.selectOption('#classifier', 'shrinkage-lda');
   await b.page.dispatchEvent('#classifier', 'change');

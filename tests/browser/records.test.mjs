@@ -257,7 +257,7 @@ test('what will happen is said before it happens: scheme in words, identical rep
   await axe(page, 'empty');
   await example(page);
   assert.match(await page.textContent('#data-status'), /The example sets the Group column to 'session'/);
-  assert.match(await page.textContent('#scheme'), /leave one 'session' out \(4 groups held out in turn\); the Folds setting \(5\) is not used/);
+  assert.match(await page.textContent('#scheme'), /leave one 'session' out \(4 groups held out in turn\): Folds \(5\) is at least the number of groups/);
   await page.selectOption('#group', '');
   await page.waitForFunction(() => /5 folds, stratified/.test(document.getElementById('scheme').textContent));
   // The time comes from one task timed in a worker of its own, after the plan.

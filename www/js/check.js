@@ -206,7 +206,7 @@
     if (recipe.columns.pseudo) return { split: 'pseudo', text: `pseudo-trials built within ${k === 'loo' ? 'leave-one-out' : k + ' folds'} of every session's trials (${groups.length} sessions in '${recipe.columns.pseudo}')` };
     if (col) {
       if (k !== 'loo' && k < groups.length) return { split: 'grouped', text: `${k} folds, grouped by '${col}' (${groups.length} groups): no group is split between training and test` };
-      return { split: 'logo', text: `leave one '${col}' out (${groups.length} groups held out in turn); the Folds setting (${k}) is not used` };
+      return { split: 'logo', text: `leave one '${col}' out (${groups.length} groups held out in turn): Folds (${k}) is ${k === 'loo' ? 'leave-one-out' : 'at least the number of groups'}` };
     }
     if (k === 'loo') return { split: 'loo', text: `leave-one-out (${n} trials per repeat)` };
     if (k >= n) return { split: 'loo', text: `leave-one-out: ${k} folds is at least the ${n} trials per repeat` };

@@ -139,11 +139,15 @@
     const kind = PD.startKind(record);
     const current = PD.runRecipe(kind, S.check.recipe);
     if (record.kind === 'study' && record.options !== PD.runOptions('study')) out.push('the study\'s options (pooling, group draws, group α, subjects or flagged sessions)');
-    // A split that held out each group or trial did not use the Folds setting: changing it changes nothing (while
-    // the group column, which decides the split, is compared as itself).
-    const report = record.result && record.result.report;
+    // A split that held out each group or each trial in turn stays so for any Folds setting at least the number of
+    // groups (or trials): a change of Folds that keeps the split changes nothing, one below it changes the split
+    // (the group column, which decides the split too, is compared as itself). Until the current settings' plan is
+    // known, a change of Folds counts.
+    const report = record.result && (record.kind === 'compare'
+      ? (record.result.rows.find((x) => x.report) || {}).report : record.result.report);
     const split = report && report.design && report.design.split;
-    const foldsUnused = ['leave_one_group_out', 'leave_one_out'].includes(split) && current.folds !== 'loo' && record.recipe.folds !== 'loo';
+    const sameSplit = { leave_one_group_out: 'logo', leave_one_out: 'loo' }[split];
+    const foldsUnused = !!sameSplit && !!S.check.plan && PD.schemeWords(current, S.check.plan).split === sameSplit;
     // A comparison fitted every decoder: the Decoder setting did not choose among them.
     out.push(...PD.recipeChanges(record.recipe, current).filter((c) => !(foldsUnused && c.startsWith('Folds ('))
       && !(record.kind === 'compare' && c.startsWith('Decoder ('))));

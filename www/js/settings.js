@@ -335,7 +335,7 @@
     const parts = [every ? `every decoder (C = ${r.c} for those that take it)`
       : PD.DECODER_NAMES[r.classifier] + (r.tune ? ', C chosen inside each training fold' : PD.WITH_C.includes(r.classifier) ? `, C = ${r.c}` : '')];
     const split = design && design.split;
-    const folds = split === 'leave_one_group_out' ? `leave one '${r.columns.group}' out (the Folds setting, ${r.folds}, not used)`
+    const folds = split === 'leave_one_group_out' ? `leave one '${r.columns.group}' out (Folds ${r.folds}${r.folds === 'loo' ? '' : `, at least the ${design.folds} groups`})`
       : split === 'leave_one_out' ? 'leave-one-out' : `folds ${r.folds}`;
     const repeats = ran && ran.repeats < r.repeats
       ? `${PD.count(ran.repeats, 'repeat')} run (${r.repeats} asked: every repeat would split the trials alike)`
