@@ -271,3 +271,41 @@ fn single_neuron_p_values_are_calibrated_and_fdr_controlled() {
         "{found:?}"
     );
 }
+
+/// The report says which split every subset and neuron was decoded with, and the CLI's text names it: with the
+/// sessions as groups and Folds at least their number, each session held out in turn; with fewer folds, grouped
+/// folds (the page's record once said "folds 5" for the first; found by a review).
+#[test]
+fn the_split_used_is_in_the_report_and_its_text() {
+    let scenario = Scenario {
+        units: 6,
+        ..Scenario::odours()
+    };
+    let text = csv(&scenario);
+    let mut recipe = Recipe::new("odour");
+    recipe.classifier = Classifier::ShrinkageLda;
+    recipe.repeats = 2;
+    recipe.columns.group = Some("session".into());
+    let data = input::trial_table("pop.csv", text.as_bytes(), &recipe.columns).unwrap();
+    let sessions = data.group_names.len();
+    assert!(sessions >= 3, "{sessions} sessions");
+    recipe.folds = popdecode::recipe::Folds::K(sessions + 1);
+    let r = run_all(&NeuronsPlan::new(data.clone(), &recipe, 1).unwrap());
+    assert_eq!(r.design.split, popdecode::resample::Split::LeaveOneGroupOut);
+    assert_eq!(r.design.folds, sessions);
+    let shown = popdecode::analyses::neurons::text::render(&r);
+    assert!(
+        shown.starts_with(&format!(
+            "Cross-validation: leave one 'session' out ({sessions} groups)."
+        )),
+        "{shown}"
+    );
+    recipe.folds = popdecode::recipe::Folds::K(2);
+    let r = run_all(&NeuronsPlan::new(data, &recipe, 1).unwrap());
+    assert_eq!(
+        r.design.split,
+        popdecode::resample::Split::Grouped { folds: 2 }
+    );
+    assert!(popdecode::analyses::neurons::text::render(&r)
+        .starts_with("Cross-validation: 2 folds, grouped by 'session'."));
+}

@@ -145,6 +145,18 @@ pub fn session_notes(sessions: &[(&str, &[String])]) -> Vec<String> {
         .collect()
 }
 
+/// The split a result was decoded with, in a few words for the CLI's text ("leave one 'session' out (4 groups)").
+pub fn split_words(design: &super::Design, group: &str) -> String {
+    use crate::resample::Split;
+    match design.split {
+        Split::Stratified { folds } => format!("{folds} stratified folds"),
+        Split::LeaveOneOut => format!("leave-one-out ({} trials)", design.folds),
+        Split::Grouped { folds } => format!("{folds} folds, grouped by '{group}'"),
+        Split::LeaveOneGroupOut => format!("leave one '{group}' out ({} groups)", design.folds),
+        Split::Pseudo { folds } => format!("pseudo-trials within {folds} folds of every session"),
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

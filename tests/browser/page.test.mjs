@@ -354,6 +354,8 @@ test('the neuron analyses in the page give the command line\'s bytes', async () 
   await shot(b.page, 'neurons');
   for (const fig of ['[data-figure=dropping] img', '[data-figure=single] img', '[data-figure=weights] img']) assert.ok(await b.page.isVisible(fig), fig);
   assert.match(await b.page.textContent('#views'), /Activation patterns \(Haufe/);
+  // The split it used, from its report (it once said "folds 5" while each session was held out).
+  assert.match(await b.page.textContent('#views .provenance'), /leave one 'session' out \(Folds 5, at least the 4 groups\)/);
   const json = await downloadText(b.page, '#export-neurons');
   const report = JSON.parse(json);
   const recipeFile = join(tmp, 'neurons.recipe.json');

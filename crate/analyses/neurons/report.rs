@@ -5,6 +5,8 @@
 //! * `schema`, `software` {`name`, `version`}, `file`, `sha256`, `recipe` (as it ran; its `shuffles` are run for
 //!   each neuron alone), `classes`, `neurons`, `chance`, `headline` ("accuracy", or "balanced_accuracy" when classes
 //!   are not balanced)
+//! * `design`: the cross-validation every decoding here used, as in a trial table's report (`split`, `folds`,
+//!   `trials_per_repeat`, `headline`)
 //! * `dropping`: per population size {`size`, `draws`, `accuracy` and `balanced_accuracy` {`mean`, `sd`}: over the
 //!   random subsets drawn, of each subset's mean over cross-validation repeats}
 //! * `single`: each neuron alone, best first {`neuron`, `accuracy` and `balanced_accuracy` {`mean`, `sd`: the mean
@@ -26,7 +28,7 @@ use crate::decoders::{
     self, linalg, standardise::Standardiser, FitContext, FittedPipeline, Nesting,
 };
 use crate::recipe::{Classifier, Recipe};
-use crate::report::Software;
+use crate::report::{Design, Software};
 use crate::resample::{balance, pseudo};
 use crate::rng::{task_rng, Stream};
 use crate::stats::fdr;
@@ -89,6 +91,8 @@ pub struct NeuronsReport {
     pub classes: Vec<String>,
     pub neurons: Vec<String>,
     pub chance: f64,
+    /// The split every subset and neuron was decoded with (held out in turn, or folds), said where the result is.
+    pub design: Design,
     /// Which score leads ("accuracy", or "balanced_accuracy" when classes are not balanced).
     pub headline: String,
     pub dropping: Vec<SizeResult>,
@@ -185,6 +189,7 @@ impl NeuronsReport {
             classes: data.classes.clone(),
             neurons: data.feature_names.clone(),
             chance: 1.0 / data.classes.len() as f64,
+            design: Design::of(&plan.plan.scheme),
             headline: if balanced {
                 "accuracy"
             } else {

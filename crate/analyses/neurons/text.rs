@@ -2,7 +2,7 @@
 
 use super::plan::MeanSd;
 use super::report::NeuronsReport;
-use crate::report::text::{p_phrase, p_text, pct};
+use crate::report::text::{p_phrase, p_text, pct, split_words};
 use std::fmt::Write;
 
 /// The tables printed by the CLI.
@@ -15,6 +15,8 @@ pub fn render(r: &NeuronsReport) -> String {
         }
     };
     let mut out = String::new();
+    let group = r.recipe.columns.group.as_deref().unwrap_or("");
+    writeln!(out, "Cross-validation: {}.", split_words(&r.design, group)).unwrap();
     let score = r.headline.replace('_', " ");
     writeln!(
         out,
