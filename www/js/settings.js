@@ -345,6 +345,10 @@
     if (r.pairwise) parts.push('every pair of conditions also decoded on its own');
     parts.push(`label '${r.columns.label}'` + (r.columns.group ? `, groups '${r.columns.group}'` : '') +
       (r.columns.pseudo ? `, pseudo-trials across '${r.columns.pseudo}'` : ''));
+    // A chosen set of neurons is part of where a result came from (two runs on different sets must not read alike).
+    const names = (list) => list.slice(0, 8).map((n) => `'${n}'`).join(', ') + (list.length > 8 ? ` and ${list.length - 8} more` : '');
+    if (Array.isArray(r.columns.features)) parts.push(`features ${names(r.columns.features)} only`);
+    else if (r.columns.ignore && r.columns.ignore.length) parts.push(`every feature but ${names(r.columns.ignore)}`);
     if (r.time) {
       const t = r.time.input;
       if (t.width !== undefined) parts.push(`windows ${t.width} s every ${t.step} s from ${t.start} to ${t.end} s`);
