@@ -19,9 +19,15 @@
     return order.filter((s) => S.files[s]).map((s) => ({ slot: s, name: S.files[s].name, size: S.files[s].size }));
   };
 
+  // A record's report; a comparison's decoders share one split and one recipe, so its first report stands for them.
+  function reportOf(record) {
+    if (!record.result) return undefined;
+    return record.kind === 'compare' ? (record.result.rows.find((x) => x.report) || {}).report : record.result.report;
+  }
+
   // The files' SHA-256 as the result states them (the report is what the CLI would write).
   function hashes(record) {
-    const r = record.kind === 'compare' ? (record.result.rows.find((x) => x.report) || {}).report : record.result.report;
+    const r = reportOf(record);
     if (r && r.study) {
       return [[r.study.file, r.study.sha256], ...r.sessions.flatMap((s) => s.files.map((f) => [f.file, f.sha256]))];
     }
@@ -119,9 +125,8 @@
       return `${f.name}${sha ? ` (SHA-256 ${sha})` : ''}`;
     }).join(' and ');
     p.appendChild(el('strong', 'From '));
-    // A comparison's decoders share one split and one recipe: the first report says which split was used.
     const compare = record.kind === 'compare';
-    const report = compare ? (record.result.rows.find((x) => x.report) || {}).report : record.result.report;
+    const report = reportOf(record);
     p.appendChild(document.createTextNode(`${files}, with ${PD.describeSettings(record.recipe, report && report.design, report && report.recipe, compare)}` +
       (record.draws ? `; ${record.draws} random subsets per size` : '') +
       `. Finished at ${PD.clock(record.finished)} in ${record.seconds.toFixed(1)} s.`));
@@ -143,8 +148,7 @@
     // groups (or trials): a change of Folds that keeps the split changes nothing, one below it changes the split
     // (the group column, which decides the split too, is compared as itself). Until the current settings' plan is
     // known, a change of Folds counts.
-    const report = record.result && (record.kind === 'compare'
-      ? (record.result.rows.find((x) => x.report) || {}).report : record.result.report);
+    const report = reportOf(record);
     const split = report && report.design && report.design.split;
     const sameSplit = { leave_one_group_out: 'logo', leave_one_out: 'loo' }[split];
     const foldsUnused = !!sameSplit && !!S.check.plan && PD.schemeWords(current, S.check.plan).split === sameSplit;

@@ -328,7 +328,8 @@
     .flatMap((part, i) => [...(i ? [' '] : []), PD.el('span', part, 'unbroken')]));
 
   // The recipe's settings in words, for a record's heading and for saying what changed since. `design`, when
-  // given, is the design the run used (its report's `design`): a split that ignores the Folds setting says so.
+  // given, is the design the run used (its report's `design`): a split that held each group out says why Folds
+  // did not matter.
   // `ran`, when given, is the recipe as the run used it (its report's `recipe`): fewer repeats than asked are said.
   // `every`: the run fitted every decoder on these settings (the comparison), not the one the recipe names.
   PD.describeSettings = function (r, design, ran, every = false) {
